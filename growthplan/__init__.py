@@ -1,0 +1,70 @@
+"""growthplan: multi-year growth planning of multi-sector economies.
+
+The public door of the library; everything an analyst needs is importable
+from here.
+"""
+
+from importlib.metadata import PackageNotFoundError, version
+
+from . import capital, objectives
+from .economy import CapitalSpec, Economy, Sector
+from .errors import (
+    EndEffectsWarning,
+    GrowthplanError,
+    GrowthplanWarning,
+    InvalidInput,
+    NoBalancedGrowth,
+    PlanInfeasible,
+    PlanNotOptimal,
+    PlanUnbounded,
+    SolverFailure,
+    UnproductiveEconomy,
+)
+from .audit import Audit
+from .compile import LinearProgram
+from .expanding import ExpandingEconomy, expanding_economy
+from .plan import Consumption, LabourSupply, Plan, StartsCeiling, Target, TerminalGrowth
+from .result import CAUTION, PlanResult
+from .solvers import Status
+from .steady import BalancedGrowth
+from .tables import TransactionsTable, read_transactions
+
+try:
+    __version__ = version("growthplan")
+except PackageNotFoundError:  # running from a source tree
+    __version__ = "0.0.0"
+
+__all__ = [
+    "Audit",
+    "CAUTION",
+    "Consumption",
+    "LabourSupply",
+    "LinearProgram",
+    "Plan",
+    "PlanResult",
+    "StartsCeiling",
+    "Status",
+    "Target",
+    "TerminalGrowth",
+    "objectives",
+    "BalancedGrowth",
+    "CapitalSpec",
+    "Economy",
+    "EndEffectsWarning",
+    "ExpandingEconomy",
+    "GrowthplanError",
+    "GrowthplanWarning",
+    "InvalidInput",
+    "NoBalancedGrowth",
+    "PlanInfeasible",
+    "PlanNotOptimal",
+    "PlanUnbounded",
+    "Sector",
+    "SolverFailure",
+    "TransactionsTable",
+    "UnproductiveEconomy",
+    "__version__",
+    "capital",
+    "expanding_economy",
+    "read_transactions",
+]

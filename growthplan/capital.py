@@ -1,0 +1,349 @@
+"""Retirement profiles of fixed capital and the perpetual inventory.
+
+A vintage of capacity enters service at age 0 and a share ``S(a)`` of it is
+still in service ``a`` whole years later, with ``S(0) = 1``.
+
+Discretisation convention
+-------------------------
+Every family is parameterised by the mean service life ``L`` and discretised
+on whole years so that ``sum_a S(a) = L`` (the expected number of years a unit
+serves, counting the year it enters):
+
+* ``sudden_exit``: ``S(a) = 1`` for ``a < floor(L)``, the fraction
+  ``L - floor(L)`` in year ``floor(L)``, then 0;
+* ``linear``: ``S(a) = max(0, 1 - a/W)`` with the width ``W`` chosen so the sum
+  is ``L`` (``W = 2L - 1`` for whole ``L``: retirements spread evenly);
+* ``geometric``: ``S(a) = (1 - δ)^a`` with ``δ = R/L``; the sum is ``L/R``,
+  which is ``L`` for the default declining-balance rate ``R = 1``;
+* ``weibull`` (shape ``k``) and ``lognormal`` (shape ``σ``): the continuous
+  survival function evaluated at whole ages, with its scale chosen so the sum
+  is ``L``. The continuous distribution with mean ``L`` itself is
+  :func:`lifetime_distribution`.
+
+A continuous survival function sampled at whole ages sums to about ``L + 1/2``
+(the trapezoid rule); calibrating the scale instead keeps the discrete mean
+exact, which is what the capacity accounts of a plan need.
+"""
+
+from __future__ import annotations
+
+import math
+from functools import lru_cache
+from typing import Literal
+
+import numpy as np
+from scipy import optimize, special, stats
+
+from .errors import invalid
+
+__all__ = [
+    "PROFILES",
+    "Profile",
+    "survival",
+    "lifetime_distribution",
+    "geometric_rate",
+    "replacement_rate",
+    "starts_per_capacity",
+    "initial_survival",
+    "perpetual_inventory",
+]
+
+Profile = Literal["sudden_exit", "linear", "geometric", "weibull", "lognormal"]
+PROFILES: tuple[str, ...] = ("sudden_exit", "linear", "geometric", "weibull", "lognormal")
+DEFAULT_SHAPE = {"weibull": 2.0, "lognormal": 0.5}
+_TAIL = 1e-12
+
+
+def _check(profile: str, mean_life: float, shape: float | None, declining_balance: float):
+    if profile not in PROFILES:
+        raise invalid("retirement", f"be one of {', '.join(PROFILES)}", profile)
+    if not (np.isfinite(mean_life) and mean_life >= 1):
+        raise invalid("mean_service_life", "be a finite number >= 1 year", mean_life)
+    if profile in DEFAULT_SHAPE:
+        shape = DEFAULT_SHAPE[profile] if shape is None else shape
+        if not (np.isfinite(shape) and shape > 0):
+            raise invalid("shape", f"be a finite number > 0 for the {profile} profile", shape)
+    if profile == "geometric" and not (
+        np.isfinite(declining_balance) and 0 < declining_balance <= mean_life
+    ):
+        raise invalid("declining_balance", "be in (0, mean_service_life]", declining_balance)
+    return shape
+
+
+def geometric_rate(service_life: float, declining_balance: float = 1.0) -> float:
+    """Geometric retirement (or depreciation) rate ``δ = R / L``.
+
+    Parameters
+    ----------
+    service_life : float
+        Mean service life ``L`` in years.
+    declining_balance : float, default 1.0
+        Declining-balance rate ``R``. ``R = 1`` keeps the mean life ``L``;
+        national accounts use other values (for example about 1.65 for
+        machinery) when the rate measures depreciation.
+
+    Examples
+    --------
+    >>> geometric_rate(20)
+    0.05
+    >>> round(geometric_rate(10, 1.65), 4)
+    0.165
+    """
+    _check("geometric", service_life, None, declining_balance)
+    return declining_balance / service_life
+
+
+def lifetime_distribution(profile: str, mean_life: float, shape: float | None = None):
+    """The continuous service-life distribution with mean ``mean_life``.
+
+    Only for ``weibull`` (``λ = L / Γ(1 + 1/k)``) and ``lognormal``
+    (``μ = ln L − σ²/2``). Returns a frozen ``scipy.stats`` distribution.
+    """
+    shape = _check(profile, mean_life, shape, 1.0)
+    if profile == "weibull":
+        scale = mean_life / special.gamma(1.0 + 1.0 / shape)
+        return stats.weibull_min(shape, scale=scale)
+    if profile == "lognormal":
+        mu = math.log(mean_life) - shape**2 / 2.0
+        return stats.lognorm(shape, scale=math.exp(mu))
+    raise invalid("retirement", "be weibull or lognormal for a continuous distribution", profile)
+
+
+def _linear(ages: np.ndarray, width: float) -> np.ndarray:
+    return np.clip(1.0 - ages / width, 0.0, 1.0)
+
+
+def _continuous(profile: str, shape: float, scale: float, ages: np.ndarray) -> np.ndarray:
+    if profile == "weibull":
+        return np.exp(-((ages / scale) ** shape))
+    # lognormal with median `scale`
+    out = np.ones_like(ages, dtype=float)
+    pos = ages > 0
+    out[pos] = stats.norm.sf((np.log(ages[pos]) - math.log(scale)) / shape)
+    return out
+
+
+@lru_cache(maxsize=512)
+def _calibrated(profile: str, mean_life: float, shape: float) -> tuple[float, int]:
+    """Scale parameter making the whole-year survival sum equal the mean life."""
+    if profile == "linear":
+        def total(w: float) -> float:
+            return float(_linear(np.arange(0, math.ceil(w) + 1.0), w).sum())
+        lo, hi = 1e-9, 2.0 * mean_life + 2.0
+    else:
+        dist = lifetime_distribution(profile, mean_life, shape)
+        horizon = int(math.ceil(dist.isf(_TAIL) * 3.0)) + 2
+
+        def total(s: float) -> float:
+            return float(_continuous(profile, shape, s, np.arange(horizon, dtype=float)).sum())
+        base = mean_life / special.gamma(1 + 1 / shape) if profile == "weibull" else math.exp(
+            math.log(mean_life) - shape**2 / 2)
+        lo, hi = base * 1e-3, base * 4.0
+    scale = optimize.brentq(lambda s: total(s) - mean_life, lo, hi, xtol=1e-13, rtol=1e-14)
+    if profile == "linear":
+        return scale, int(math.ceil(scale)) + 1
+    return scale, horizon
+
+
+def survival(
+    profile: str,
+    mean_life: float,
+    *,
+    shape: float | None = None,
+    declining_balance: float = 1.0,
+    max_age: int | None = None,
+) -> np.ndarray:
+    """Share of a vintage still in service at each whole age ``a = 0, 1, …``.
+
+    Parameters
+    ----------
+    profile : {"sudden_exit", "linear", "geometric", "weibull", "lognormal"}
+        Retirement profile family.
+    mean_life : float
+        Mean service life ``L`` in years (>= 1).
+    shape : float, optional
+        Weibull shape ``k`` (default 2) or lognormal ``σ`` (default 0.5).
+    declining_balance : float, default 1.0
+        Rate ``R`` of the geometric profile, ``δ = R/L``.
+    max_age : int, optional
+        Return ages ``0..max_age``. By default up to the age where the profile
+        ends (or falls below 1e-12).
+
+    Returns
+    -------
+    numpy.ndarray
+        ``S(0..max_age)``, non-increasing, ``S(0) = 1``; sums to ``L`` (to
+        ``L/R`` for the geometric profile) when ``max_age`` covers the tail.
+
+    Examples
+    --------
+    >>> survival("sudden_exit", 3)
+    array([1., 1., 1.])
+    >>> float(survival("linear", 5).sum())
+    5.0
+    """
+    shape = _check(profile, mean_life, shape, declining_balance)
+    if max_age is not None and (int(max_age) != max_age or max_age < 0):
+        raise invalid("max_age", "be a whole number >= 0", max_age)
+    if profile != "geometric" and mean_life - 1.0 < 1e-12:
+        s = np.array([1.0])
+    elif profile == "sudden_exit":
+        whole = int(math.floor(mean_life))
+        s = np.ones(whole + 1)
+        s[whole] = mean_life - whole
+        if s[-1] == 0.0:
+            s = s[:-1]
+    elif profile == "geometric":
+        delta = declining_balance / mean_life
+        if delta >= 1.0:
+            s = np.array([1.0])
+        else:
+            end = max_age if max_age is not None else int(math.log(_TAIL) / math.log1p(-delta))
+            s = (1.0 - delta) ** np.arange(end + 1, dtype=float)
+    else:
+        scale, horizon = _calibrated(profile, float(mean_life), float(shape or 0.0))
+        ages = np.arange(horizon, dtype=float)
+        s = _linear(ages, scale) if profile == "linear" else _continuous(
+            profile, shape, scale, ages)
+        if profile != "linear":
+            s[0] = 1.0
+            keep = np.nonzero(s >= _TAIL)[0]
+            s = s[: keep[-1] + 1]
+        else:
+            s = s[: max(1, int(np.count_nonzero(s > 0)))]
+    if max_age is None:
+        return s
+    out = np.zeros(int(max_age) + 1)
+    m = min(out.size, s.size)
+    out[:m] = s[:m]
+    return out
+
+
+def _discounted_sum(s: np.ndarray, g: float) -> float:
+    with np.errstate(over="ignore"):
+        return float(np.sum(s * (1.0 + g) ** -np.arange(s.size, dtype=float)))
+
+
+def starts_per_capacity(
+    s: np.ndarray, g: float, *, lead_time: int = 1, spending: np.ndarray | None = None
+) -> tuple[float, float]:
+    """Starts and capital deliveries per unit of capacity on a path growing at ``g``.
+
+    On a balanced path ``z_t = z (1+g)^t`` with capacity
+    ``C_t = Σ_a S(a) z_{t-θ-a}``, starts per unit of capacity are
+    ``(1+g)^θ / Σ_a S(a)(1+g)^-a``, and deliveries of capital goods per unit
+    of capacity are that times ``Σ_s w(s)(1+g)^-s``.
+
+    Returns
+    -------
+    (starts, deliveries) : tuple of float
+    """
+    ratio = (1.0 + g) ** lead_time / _discounted_sum(s, g)
+    if spending is None or len(spending) == 0:
+        return ratio, ratio
+    w = np.asarray(spending, dtype=float)
+    return ratio, ratio * float(np.sum(w * (1.0 + g) ** -np.arange(w.size, dtype=float)))
+
+
+def replacement_rate(
+    profile: str,
+    mean_life: float,
+    g: float = 0.0,
+    *,
+    shape: float | None = None,
+    declining_balance: float = 1.0,
+) -> float:
+    """Replacement rate ``d(g)`` that keeps a stock growing at ``g`` with this profile.
+
+    With the library's timing (starts serve from the next year),
+    ``d(g) = (1+g) / Σ_a S(a)(1+g)^-a − g``: new starts per unit of capacity
+    minus the growth they add. ``d(0) = 1/L`` for every profile, and for the
+    geometric profile ``d(g) = δ`` for every ``g``.
+
+    Examples
+    --------
+    >>> round(replacement_rate("geometric", 20, 0.07), 12)
+    0.05
+    >>> round(replacement_rate("sudden_exit", 10, 0.0), 12)
+    0.1
+    """
+    if not (np.isfinite(g) and g > -1):
+        raise invalid("g", "be a finite growth rate > -1", g)
+    if profile == "geometric":
+        return geometric_rate(mean_life, declining_balance)
+    s = survival(profile, mean_life, shape=shape, declining_balance=declining_balance)
+    return starts_per_capacity(s, g, lead_time=1)[0] - g
+
+
+def initial_survival(
+    s: np.ndarray,
+    horizon: int,
+    *,
+    past_growth: float = 0.0,
+    history: np.ndarray | None = None,
+) -> np.ndarray:
+    """Share ``R(t)``, ``t = 0..horizon``, of today's capacity still in service in year ``t``.
+
+    Parameters
+    ----------
+    s : numpy.ndarray
+        Survival profile ``S(a)``.
+    horizon : int
+        Last year ``t`` wanted.
+    past_growth : float, default 0.0
+        Today's stock has the steady age structure of vintages that grew at
+        this rate (used when ``history`` is None).
+    history : array_like, optional
+        Capacity that entered service in each past year, oldest first, the last
+        entry in plan year 0 (age 0 then). The perpetual inventory of these
+        vintages gives the stock and its survival.
+
+    Returns
+    -------
+    numpy.ndarray
+        ``R(0..horizon)`` with ``R(0) = 1``.
+    """
+    ages_needed = horizon + (len(history) if history is not None else s.size) + 1
+    full = np.zeros(ages_needed + s.size)
+    full[: s.size] = s
+    if history is None:
+        age = np.arange(s.size, dtype=float)
+        vint = (1.0 + past_growth) ** -age  # vintage of age a today
+    else:
+        vint = np.asarray(history, dtype=float)[::-1]
+        age = np.arange(vint.size, dtype=float)
+    idx = age.astype(int)
+    t = np.arange(horizon + 1)
+    stock = (full[idx[None, :] + t[:, None]] * vint[None, :]).sum(axis=1)
+    if stock[0] <= 0:
+        raise invalid("investment_history", "leave a positive stock in service in year 0",
+                      history)
+    return stock / stock[0]
+
+
+def perpetual_inventory(
+    investment: np.ndarray, s: np.ndarray, *, lead_time: int = 1
+) -> np.ndarray:
+    """Capital stock by the perpetual inventory method.
+
+    ``K_t = Σ_{a ≥ 0} S(a) I_{t-θ-a}``: investment of year ``τ`` enters
+    service in year ``τ + θ`` at age 0. With ``θ = 1`` and the geometric
+    profile this is ``K_{t+1} = (1 − δ) K_t + I_t``.
+
+    Parameters
+    ----------
+    investment : array_like
+        Investment (capacity started) per year, oldest first.
+    s : numpy.ndarray
+        Survival profile.
+    lead_time : int, default 1
+        Years from investment to service.
+
+    Returns
+    -------
+    numpy.ndarray
+        ``K_t`` for the same years as ``investment``.
+    """
+    inv = np.asarray(investment, dtype=float)
+    shifted = np.concatenate([np.zeros(lead_time), inv])[: inv.size]
+    return np.convolve(shifted, s)[: inv.size]

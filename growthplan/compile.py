@@ -1,0 +1,398 @@
+"""Plan → LinearProgram: one sparse matrix with named row and column blocks.
+
+Every back end (HiGHS directly, PuLP) is fed from the same
+:class:`LinearProgram`, so they cannot drift apart.
+
+Capacity in service is written as a linear expression in past starts,
+``C_jt = C0_j R_j(t) + pipeline_j(t) + Σ_τ S_j(t − τ − θ_j) z_jτ``, not as
+state variables: the expression form holds for every retirement profile (a
+state recursion exists only for the geometric one), adds no rows or columns,
+and its ``T²n/2`` nonzeros are few next to the ``Tn²`` of the input and
+capital blocks (measured in ``tests/benchmarks/bench_capacity_form.py``).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy import sparse
+
+from . import objectives as obj
+from ._validation import Rule
+from .capital import starts_per_capacity
+
+__all__ = ["Block", "LinearProgram", "PlanData", "compile_plan"]
+
+INF = np.inf
+
+
+@dataclass(frozen=True)
+class Block:
+    """A named range of rows or columns laid out as an array of ``shape``."""
+
+    name: str
+    start: int
+    shape: tuple[int, ...]
+    labels: tuple[list, ...]
+
+    @property
+    def size(self) -> int:
+        return int(np.prod(self.shape)) if self.shape else 1
+
+    @property
+    def stop(self) -> int:
+        return self.start + self.size
+
+    def take(self, values: np.ndarray) -> np.ndarray:
+        """This block's part of a full vector, reshaped to ``shape``."""
+        return np.asarray(values[self.start:self.stop]).reshape(self.shape)
+
+
+@dataclass
+class PlanData:
+    """The plan's arrays, computed once from the validated models."""
+
+    names: list[str]
+    years: list[int]
+    a: np.ndarray
+    b: np.ndarray
+    labour: np.ndarray          # kinds with a supply × sectors
+    labour_kinds: list[str]
+    labour_all: np.ndarray      # every kind × sectors
+    supply: np.ndarray          # kinds × years
+    basket: np.ndarray
+    floor: np.ndarray
+    max_fall: float | None
+    demand: np.ndarray          # years × sectors
+    theta: np.ndarray
+    spending: np.ndarray        # sectors × max lead
+    surv: np.ndarray            # sectors × (T+1)
+    base: np.ndarray            # (T+1) × sectors: capacity from before the plan
+    pipe_deliveries: np.ndarray  # years × commodities
+    util: np.ndarray
+    upper_starts: np.ndarray    # years × sectors
+    proportions: np.ndarray | None
+    proportions_source: str
+    terminal_rate: float | None
+    psi: np.ndarray | None
+    has_consumption: bool
+
+
+@dataclass
+class LinearProgram:
+    """A compiled plan: ``row_lower ≤ M v ≤ row_upper``, ``col_lower ≤ v ≤ col_upper``.
+
+    Attributes
+    ----------
+    matrix : scipy.sparse.csc_array
+    cost : numpy.ndarray
+        Objective coefficients, optimised in ``sense``.
+    sense : {"max", "min"}
+    rows, cols : dict of str to Block
+        Named blocks: rows ``balance``, ``capacity``, ``labour``,
+        ``consumption_floor``, ``consumption_fall``, ``targets``,
+        ``terminal``, ``objective``; columns ``output``, ``starts``,
+        ``consumption``, ``level``.
+    row_sign : numpy.ndarray
+        +1 for "≤" rows, −1 for "≥" rows.
+    data : PlanData
+    """
+
+    matrix: sparse.csc_array
+    row_lower: np.ndarray
+    row_upper: np.ndarray
+    col_lower: np.ndarray
+    col_upper: np.ndarray
+    cost: np.ndarray
+    sense: str
+    rows: dict[str, Block]
+    cols: dict[str, Block]
+    row_sign: np.ndarray
+    data: PlanData
+    target_info: list[dict] = field(default_factory=list)
+
+    @property
+    def shape(self) -> tuple[int, int]:
+        return self.matrix.shape
+
+    @property
+    def nnz(self) -> int:
+        return int(self.matrix.nnz)
+
+    def row_names(self) -> list[str]:
+        """Readable unique row names, e.g. ``balance_2030_energy``."""
+        return _names(self.rows, self.matrix.shape[0])
+
+    def col_names(self) -> list[str]:
+        """Readable unique column names, e.g. ``starts_2030_energy``."""
+        return _names(self.cols, self.matrix.shape[1])
+
+
+def _names(blocks: dict[str, Block], total: int) -> list[str]:
+    out: list[str] = [""] * total
+    for b in blocks.values():
+        if not b.shape:
+            out[b.start] = b.name
+            continue
+        grids = np.meshgrid(*[np.asarray(lbl, dtype=object) for lbl in b.labels], indexing="ij")
+        flat = zip(*[g.ravel() for g in grids], strict=True)
+        for i, parts in enumerate(flat):
+            out[b.start + i] = "_".join([b.name, *map(str, parts)])
+    return out
+
+
+def _plan_data(plan) -> PlanData:
+    econ = plan.economy
+    names, years, T, n = econ.names, plan.years, plan.horizon, econ.n
+    specs = [econ.capital[k] for k in names]
+    theta = np.array([s.lead_time for s in specs], dtype=int)
+    width = int(max(1, theta.max()))
+    spending = np.zeros((n, width))
+    for j, s in enumerate(specs):
+        spending[j, : len(s.spending_profile)] = s.spending_profile
+    surv = np.array([s.survival(max_age=T) for s in specs])
+    base = np.array([s.initial_capacity * s.initial_survival(T) for s in specs]).T.copy()
+    b = np.asarray(econ.capital_coefficients)
+    pipe_del = np.zeros((T, n))
+    for k, starts in (plan.under_construction or {}).items():
+        j = names.index(k)
+        v = np.asarray(starts, dtype=float)
+        if v.size > max(theta[j], 1) and np.any(v[: v.size - max(theta[j], 1)] > 0):
+            raise Rule(f"list only starts still under construction (at most the lead time, "
+                       f"{theta[j]} years; older starts belong in initial_capacity)",
+                       list(starts), field=f"under_construction.{k}")
+        for back, amount in enumerate(v[::-1], start=1):
+            tau = -back
+            enter = tau + theta[j]
+            if enter >= 0:
+                ages = np.arange(T + 1) - enter
+                ok = ages >= 0
+                base[ok, j] += amount * surv[j, ages[ok]]
+            for s in range(spending.shape[1]):
+                if 0 <= tau + s < T:
+                    pipe_del[tau + s] += b[:, j] * spending[j, s] * amount
+    util = np.array([s.max_utilisation for s in specs])
+    upper = np.full((T, n), INF)
+    for sc in plan.starts_ceilings:
+        j = names.index(sc.sector)
+        rows = [years.index(y) for y in sc.years] if sc.years else list(range(T))
+        upper[rows, j] = np.minimum(upper[rows, j], sc.at_most)
+    kinds = econ.labour_kinds or []
+    labour_all = (np.asarray(econ.labour_coefficients) if econ.labour_coefficients is not None
+                  else np.zeros((0, n)))
+    sup_kinds = [ls.kind for ls in plan.labour]
+    labour = labour_all[[kinds.index(k) for k in sup_kinds]] if sup_kinds else np.zeros((0, n))
+    proportions, source = (None, "")
+    if isinstance(plan.objective, obj.TerminalCapacity):
+        proportions, source = plan.terminal_proportions()
+    rate = plan.terminal.rate if plan.terminal is not None else None
+    psi = None
+    if rate is not None:
+        psi = np.array([starts_per_capacity(surv_full, rate, lead_time=int(s.lead_time))[0]
+                        for s, surv_full in zip(specs, [s.survival() for s in specs],
+                                                strict=True)])
+    if isinstance(plan.objective, obj.LeastLabour) and labour_all.shape[0] == 0:
+        raise Rule("come with labour coefficients in the economy", None, field="objective")
+    return PlanData(
+        names=names, years=years, a=np.asarray(econ.input_coefficients), b=b, labour=labour,
+        labour_kinds=sup_kinds, labour_all=labour_all, supply=plan.labour_supply(),
+        basket=plan.basket(), floor=plan.consumption_floor(),
+        max_fall=plan.consumption.max_fall if plan.consumption else None,
+        demand=plan.exogenous_demand(), theta=theta, spending=spending, surv=surv, base=base,
+        pipe_deliveries=pipe_del, util=util, upper_starts=upper, proportions=proportions,
+        proportions_source=source, terminal_rate=rate, psi=psi,
+        has_consumption=plan.consumption is not None)
+
+
+def capacity_operator(d: PlanData) -> sparse.csr_array:
+    """``G`` with ``C = base + G z``: rows (t, j) for t = 0..T, columns starts (τ, j)."""
+    T, n = len(d.years), len(d.names)
+    t = np.arange(T + 1)[:, None, None]
+    tau = np.arange(T)[None, :, None]
+    j = np.arange(n)[None, None, :]
+    age = t - tau - d.theta[None, None, :]
+    age_b, t_b, tau_b, j_b = np.broadcast_arrays(age, t, tau, j)
+    mask = age_b >= 0
+    vals = d.surv[j_b[mask], age_b[mask]]
+    keep = vals != 0
+    rows = (t_b[mask] * n + j_b[mask])[keep]
+    cols = (tau_b[mask] * n + j_b[mask])[keep]
+    return sparse.csr_array((vals[keep], (rows, cols)), shape=((T + 1) * n, T * n))
+
+
+def deliveries_operator(d: PlanData) -> sparse.csr_array:
+    """``W`` with capital goods delivered by commodity = ``W z``: rows (t, i), cols (τ, j)."""
+    T = len(d.years)
+    parts = []
+    for s in range(d.spending.shape[1]):
+        if not np.any(d.spending[:, s]):
+            continue
+        shift = sparse.eye_array(T, T, k=-s, format="csr")
+        parts.append(sparse.kron(shift, sparse.csr_array(d.b * d.spending[:, s][None, :]),
+                                 format="csr"))
+    n = len(d.names)
+    if not parts:
+        return sparse.csr_array((T * n, T * n))
+    out = parts[0]
+    for p in parts[1:]:
+        out = out + p
+    return sparse.csr_array(out)
+
+
+class _Builder:
+    def __init__(self) -> None:
+        self.cols: dict[str, Block] = {}
+        self.rows: dict[str, Block] = {}
+        self.ncol = 0
+        self.parts: list[tuple[str, dict[str, sparse.csr_array]]] = []
+        self.lower: list[np.ndarray] = []
+        self.upper: list[np.ndarray] = []
+        self.sign: list[np.ndarray] = []
+        self.nrow = 0
+
+    def col(self, name: str, shape: tuple[int, ...], labels: tuple[list, ...]) -> Block:
+        b = Block(name, self.ncol, shape, labels)
+        self.cols[name] = b
+        self.ncol = b.stop
+        return b
+
+    def row(self, name: str, shape: tuple[int, ...], labels: tuple[list, ...],
+            coeffs: dict[str, sparse.csr_array], lower: np.ndarray, upper: np.ndarray) -> None:
+        b = Block(name, self.nrow, shape, labels)
+        if b.size == 0:
+            return
+        self.rows[name] = b
+        self.nrow = b.stop
+        self.parts.append((name, coeffs))
+        lower = np.broadcast_to(np.asarray(lower, float).ravel(), (b.size,))
+        upper = np.broadcast_to(np.asarray(upper, float).ravel(), (b.size,))
+        self.lower.append(lower)
+        self.upper.append(upper)
+        self.sign.append(np.where(np.isfinite(upper), 1.0, -1.0))
+
+    def matrix(self) -> sparse.csc_array:
+        blocks = []
+        for name, coeffs in self.parts:
+            size = self.rows[name].size
+            line = [coeffs.get(c, None) for c in self.cols]
+            line = [sparse.csr_array((size, b.size)) if m is None else m
+                    for m, b in zip(line, self.cols.values(), strict=True)]
+            blocks.append(line)
+        return sparse.csc_array(sparse.block_array(blocks, format="csc"))
+
+
+def compile_plan(plan) -> LinearProgram:
+    """Compile a validated :class:`~growthplan.Plan` into a :class:`LinearProgram`."""
+    try:
+        d = _plan_data(plan)
+    except Rule as exc:
+        from ._validation import raise_plain
+
+        raise raise_plain(exc, "") from None
+    T, n = len(d.years), len(d.names)
+    years, names = d.years, d.names
+    eye_t = sparse.eye_array(T, format="csr")
+    bld = _Builder()
+    xb = bld.col("output", (T, n), (years, names))
+    zb = bld.col("starts", (T, n), (years, names))
+    kb = bld.col("consumption", (T,), (years,)) if d.has_consumption else None
+    lb = bld.col("level", (), ()) if d.proportions is not None else None
+
+    g = capacity_operator(d)
+    g_plan = g[: T * n]
+    base = d.base
+    # 1. commodity balance: (I − A) x_t − W z − h κ_t ≥ g_t + pipeline deliveries
+    bal = {"output": sparse.kron(eye_t, sparse.csr_array(np.eye(n) - d.a), format="csr"),
+           "starts": -deliveries_operator(d)}
+    if kb is not None:
+        bal["consumption"] = sparse.kron(eye_t, sparse.csr_array(-d.basket[:, None]),
+                                         format="csr")
+    bld.row("balance", (T, n), (years, names), bal, d.demand + d.pipe_deliveries, INF)
+    # 2. capacity: x_jt − u_j G z ≤ u_j base_jt
+    ucol = np.tile(d.util, T)
+    bld.row("capacity", (T, n), (years, names),
+            {"output": sparse.eye_array(T * n, format="csr"),
+             "starts": sparse.csr_array(-(sparse.diags_array(ucol) @ g_plan))},
+            -INF, (base[:T] * d.util[None, :]))
+    # 3. labour: l_k x_t ≤ supply_kt
+    if d.labour.shape[0]:
+        k = d.labour.shape[0]
+        rows_lab = sparse.kron(eye_t, sparse.csr_array(d.labour), format="csr")
+        bld.row("labour", (T, k), (years, d.labour_kinds), {"output": rows_lab}, -INF,
+                d.supply.T)
+    # 4-5. consumption floor and fall
+    if kb is not None:
+        bld.row("consumption_floor", (T,), (years,), {"consumption": eye_t}, d.floor, INF)
+        if d.max_fall is not None and T > 1:
+            fall = sparse.eye_array(T - 1, T, k=1, format="csr") - (1 - d.max_fall) * \
+                sparse.eye_array(T - 1, T, format="csr")
+            bld.row("consumption_fall", (T - 1,), (years[1:],),
+                    {"consumption": sparse.csr_array(fall)}, 0.0, INF)
+    # 6. targets
+    info = []
+    t_rows: dict[str, list] = {"output": [], "starts": [], "consumption": []}
+    t_lower = []
+    for i, tg in enumerate(plan.targets):
+        t = tg.year - years[0]
+        j = names.index(tg.sector) if tg.sector is not None else None
+        entry = {"index": i, "what": tg.what, "sector": tg.sector or "", "year": tg.year,
+                 "required": tg.value}
+        row = {c: sparse.csr_array((1, b.size)) for c, b in bld.cols.items()}
+        if tg.what == "output":
+            row["output"] = sparse.csr_array(([1.0], ([0], [t * n + j])), shape=(1, T * n))
+            t_lower.append(tg.value)
+        elif tg.what == "capacity":
+            row["starts"] = sparse.csr_array(g[[t * n + j]])
+            t_lower.append(tg.value - base[t, j])
+        else:
+            coef = 1.0 if j is None else d.basket[j]
+            row["consumption"] = sparse.csr_array(([coef], ([0], [t])), shape=(1, T))
+            t_lower.append(tg.value)
+        info.append(entry)
+        for c in t_rows:
+            if c in row:
+                t_rows[c].append(row[c])
+    if plan.targets:
+        coeffs = {c: sparse.csr_array(sparse.vstack(v)) for c, v in t_rows.items()
+                  if v and c in bld.cols}
+        bld.row("targets", (len(plan.targets),), ([f"{e['what']}_{e['sector']}_{e['year']}"
+                                                    for e in info],),
+                coeffs, np.array(t_lower), INF)
+    # 7. terminal growth: z_jt − ψ_j G z ≥ ψ_j base_jt in each sector's final window
+    if d.psi is not None:
+        sel = [(t, j) for j in range(n) for t in range(T - max(int(d.theta[j]), 1), T)
+               if t >= 0]
+        idx = np.array([t * n + j for t, j in sel])
+        psi = np.array([d.psi[j] for _, j in sel])
+        zsel = sparse.csr_array((np.ones(len(sel)), (np.arange(len(sel)), idx)),
+                                shape=(len(sel), T * n))
+        term = zsel - sparse.diags_array(psi) @ g_plan[idx]
+        bld.row("terminal", (len(sel),), ([f"{years[t]}_{names[j]}" for t, j in sel],),
+                {"starts": sparse.csr_array(term)},
+                psi * np.array([base[t, j] for t, j in sel]), INF)
+    # 8. terminal capacity objective: G_T z − π λ ≥ −base_T
+    if lb is not None:
+        bld.row("objective", (n,), (names,),
+                {"starts": sparse.csr_array(g[T * n:]),
+                 "level": sparse.csr_array(-d.proportions[:, None])}, -base[T], INF)
+
+    ncol = bld.ncol
+    cost = np.zeros(ncol)
+    o = plan.objective
+    if isinstance(o, obj.TerminalCapacity):
+        cost[lb.start] = 1.0
+    elif isinstance(o, obj.DiscountedConsumption):
+        cost[kb.start:kb.stop] = (1.0 + o.rate) ** -np.arange(T, dtype=float)
+    elif isinstance(o, obj.LeastLabour):
+        cost[xb.start:xb.stop] = np.tile(d.labour_all.sum(axis=0), T)
+    col_lower = np.zeros(ncol)
+    col_upper = np.full(ncol, INF)
+    col_upper[zb.start:zb.stop] = d.upper_starts.ravel()
+    if lb is not None:
+        col_lower[lb.start] = -INF
+    return LinearProgram(
+        matrix=bld.matrix(), row_lower=np.concatenate(bld.lower),
+        row_upper=np.concatenate(bld.upper), col_lower=col_lower, col_upper=col_upper,
+        cost=cost, sense=o.sense, rows=bld.rows, cols=bld.cols,
+        row_sign=np.concatenate(bld.sign), data=d, target_info=info)

@@ -1,0 +1,511 @@
+"""The economy: sectors, coefficients and capital, validated once.
+
+Conventions (MODEL.md §1): ``a_ij`` is commodity ``i`` used up per unit of
+output of sector ``j``; ``b_ij`` is commodity ``i`` embodied in one unit of new
+annual capacity of sector ``j``; labour coefficients are person-years per unit
+of output, one row per labour kind.
+"""
+
+from __future__ import annotations
+
+import json
+from functools import cached_property
+from typing import Any
+
+import numpy as np
+import pandas as pd
+from pydantic import Field, field_validator, model_validator
+
+from . import capital as cap
+from . import steady
+from ._validation import Matrix, Model, Rule, Vector, align_matrix, align_vector
+from .errors import UnproductiveEconomy
+
+__all__ = ["Sector", "CapitalSpec", "Economy"]
+
+
+class Sector(Model):
+    """One producing sector and the unit its commodity is measured in."""
+
+    name: str
+    unit: str = "unit"
+
+    @field_validator("name")
+    @classmethod
+    def _name(cls, v: str) -> str:
+        if not v.strip():
+            raise Rule("be a non-empty name", v)
+        return v.strip()
+
+
+class CapitalSpec(Model):
+    """Fixed capital of one sector.
+
+    Parameters
+    ----------
+    initial_capacity : float
+        Capacity in service in the first plan year (output per year), >= 0.
+    mean_service_life : float
+        Mean service life in years, >= 1.
+    retirement : {"geometric", "sudden_exit", "linear", "weibull", "lognormal"}
+        Retirement profile family (see :mod:`growthplan.capital`).
+    shape : float, optional
+        Weibull shape or lognormal σ.
+    declining_balance : float, default 1.0
+        Geometric profile only: ``δ = declining_balance / mean_service_life``.
+    lead_time : int, default 1
+        Whole years from a capacity start to service.
+    spending_profile : list of float, optional
+        Share of the capital goods delivered in each construction year,
+        ``max(lead_time, 1)`` entries summing to 1. Default: spread evenly.
+    max_utilisation : float, default 1.0
+        Largest share of capacity that can be used, in (0, 1].
+    past_growth : float, default 0.0
+        Growth rate of past investment that gave today's age structure.
+    investment_history : list of float, optional
+        Capacity that entered service in past years, oldest first, the last in
+        plan year 0; overrides ``past_growth`` (perpetual inventory).
+    """
+
+    initial_capacity: float = Field(ge=0, allow_inf_nan=False)
+    mean_service_life: float
+    retirement: str = "geometric"
+    shape: float | None = None
+    declining_balance: float = 1.0
+    lead_time: int = 1
+    spending_profile: list[float] | None = None
+    max_utilisation: float = 1.0
+    past_growth: float = 0.0
+    investment_history: list[float] | None = None
+
+    @field_validator("mean_service_life", mode="before")
+    @classmethod
+    def _life(cls, v: Any) -> Any:
+        if not _is_number(v) or not np.isfinite(v) or v < 1:
+            raise Rule("be a number of years >= 1", v)
+        return v
+
+    @field_validator("retirement")
+    @classmethod
+    def _profile(cls, v: str) -> str:
+        if v not in cap.PROFILES:
+            raise Rule(f"be one of {', '.join(cap.PROFILES)}", v)
+        return v
+
+    @field_validator("lead_time", mode="before")
+    @classmethod
+    def _lead(cls, v: Any) -> Any:
+        if isinstance(v, bool) or not _is_number(v) or not np.isfinite(v) or v < 0 or v != int(v):
+            raise Rule("be a whole number of years >= 0", v)
+        return int(v)
+
+    @field_validator("max_utilisation", mode="before")
+    @classmethod
+    def _util(cls, v: Any) -> Any:
+        if not _is_number(v) or not (0 < v <= 1):
+            raise Rule("be in (0, 1]", v)
+        return v
+
+    @field_validator("past_growth", "declining_balance", mode="before")
+    @classmethod
+    def _finite(cls, v: Any) -> Any:
+        if not _is_number(v) or not np.isfinite(v) or v <= -1:
+            raise Rule("be a finite number > -1", v)
+        return v
+
+    @model_validator(mode="after")
+    def _consistent(self) -> CapitalSpec:
+        n = max(self.lead_time, 1)
+        if self.spending_profile is None:
+            object.__setattr__(self, "spending_profile", [1.0 / n] * n)
+        w = np.asarray(self.spending_profile, dtype=float)
+        if w.size != n:
+            raise Rule(f"have max(lead_time, 1) = {n} entries", self.spending_profile,
+                       field="spending_profile")
+        if not np.all(np.isfinite(w)) or np.any(w < 0) or abs(w.sum() - 1) > 1e-9:
+            raise Rule("hold non-negative shares summing to 1", self.spending_profile,
+                       field="spending_profile")
+        if self.retirement == "geometric" and self.declining_balance <= 0:
+            raise Rule("be > 0", self.declining_balance, field="declining_balance")
+        if self.shape is not None and not (np.isfinite(self.shape) and self.shape > 0):
+            raise Rule("be > 0", self.shape, field="shape")
+        if self.investment_history is not None:
+            h = np.asarray(self.investment_history, dtype=float)
+            if h.size == 0 or not np.all(np.isfinite(h)) or np.any(h < 0):
+                raise Rule("be a non-empty list of non-negative numbers",
+                           self.investment_history, field="investment_history")
+        return self
+
+    def survival(self, max_age: int | None = None) -> np.ndarray:
+        """Survival profile ``S(a)`` of new vintages."""
+        return cap.survival(self.retirement, self.mean_service_life, shape=self.shape,
+                            declining_balance=self.declining_balance, max_age=max_age)
+
+    def initial_survival(self, horizon: int) -> np.ndarray:
+        """Share of the initial capacity still in service in years ``0..horizon``."""
+        hist = None if self.investment_history is None else np.asarray(self.investment_history)
+        return cap.initial_survival(self.survival(), horizon, past_growth=self.past_growth,
+                                    history=hist)
+
+    def deliveries_per_capacity(self, g: float) -> float:
+        """Capital goods delivered per unit of capacity on a path growing at ``g``."""
+        return cap.starts_per_capacity(self.survival(), g, lead_time=self.lead_time,
+                                       spending=np.asarray(self.spending_profile))[1]
+
+
+def _is_number(v: Any) -> bool:
+    return isinstance(v, int | float | np.integer | np.floating) and not isinstance(v, bool)
+
+
+class Economy(Model):
+    """A multi-sector economy: sectors, input, capital and labour coefficients, capital.
+
+    Parameters
+    ----------
+    sectors : list of str or Sector
+        Unique sector names (each sector produces one commodity).
+    input_coefficients : array_like or DataFrame, shape (n, n)
+        ``A``; a DataFrame is aligned to ``sectors`` by its labels.
+    capital_coefficients : array_like or DataFrame, shape (n, n), optional
+        ``B``; zeros when omitted.
+    labour_coefficients : array_like, Series or DataFrame, shape (k, n), optional
+        One row per labour kind (a 1-D array or Series is one kind).
+    labour_kinds : list of str, optional
+        Names of the labour kinds (default ``["labour"]`` or the DataFrame index).
+    capital : dict of str to CapitalSpec, optional
+        Capital of every sector; needed for planning and dynamic growth.
+    consumption_basket : array_like or Series, optional
+        Commodities per unit of the plan's consumption level.
+    wage_basket : array_like or Series, optional
+        Commodities consumed per person-year of labour (closes the model).
+
+    Examples
+    --------
+    >>> econ = Economy(sectors=["farm", "mill"],
+    ...                input_coefficients=[[0.15, 0.25], [0.20, 0.05]])
+    >>> econ.leontief_inverse().round(6).to_numpy().tolist()
+    [[1.254125, 0.330033], [0.264026, 1.122112]]
+    """
+
+    sectors: list[Sector]
+    input_coefficients: Matrix
+    capital_coefficients: Matrix | None = None
+    labour_coefficients: Matrix | None = None
+    labour_kinds: list[str] | None = None
+    capital: dict[str, CapitalSpec] | None = None
+    consumption_basket: Vector | None = None
+    wage_basket: Vector | None = None
+
+    @model_validator(mode="before")
+    @classmethod
+    def _align(cls, data: Any) -> Any:
+        if not isinstance(data, dict):
+            return data
+        data = dict(data)
+        raw = data.get("sectors")
+        if raw is None:
+            return data
+        if isinstance(raw, str | bytes) or not hasattr(raw, "__iter__"):
+            raise Rule("be a list of sector names", raw, field="sectors")
+        sectors = [Sector(name=s) if isinstance(s, str) else s for s in raw]
+        names = [s.name if isinstance(s, Sector) else (s.get("name") if isinstance(s, dict)
+                 else s) for s in sectors]
+        data["sectors"] = sectors
+        if not names:
+            raise Rule("name at least one sector", raw, field="sectors")
+        if any(not isinstance(x, str) for x in names):
+            raise Rule("be a list of text names", names, field="sectors")
+        stripped = [x.strip() for x in names]
+        if len(set(stripped)) != len(stripped):
+            dup = sorted({x for x in stripped if stripped.count(x) > 1})
+            raise Rule("be unique", dup, field="sectors")
+        names = stripped
+        for key in ("input_coefficients", "capital_coefficients"):
+            if key in data:
+                data[key] = align_matrix(data[key], names, key)
+        lab = data.get("labour_coefficients")
+        if isinstance(lab, pd.Series):
+            data.setdefault("labour_kinds", [str(lab.name) if lab.name is not None
+                                             else "labour"])
+            lab = align_vector(lab, names, "labour_coefficients")
+        elif isinstance(lab, pd.DataFrame):
+            kinds = data.get("labour_kinds") or [str(k) for k in lab.index]
+            data["labour_kinds"] = kinds
+            lab = align_matrix(lab, names, "labour_coefficients", rows=kinds)
+        if lab is not None:
+            arr = np.asarray(lab, dtype=object)
+            if arr.ndim == 1:
+                lab = [list(arr)]
+            data["labour_coefficients"] = lab
+        for key in ("consumption_basket", "wage_basket"):
+            if key in data:
+                data[key] = align_vector(data[key], names, key)
+        capital = data.get("capital")
+        if isinstance(capital, dict):
+            unknown = [k for k in capital if k not in names]
+            missing = [k for k in names if k not in capital]
+            if unknown or missing:
+                raise Rule("name every sector once (missing "
+                           f"{missing}; unknown {unknown})", sorted(capital), field="capital")
+            data["capital"] = {k: capital[k] for k in names}
+        return data
+
+    @model_validator(mode="after")
+    def _check(self) -> Economy:
+        n = len(self.sectors)
+        a = self.input_coefficients
+        if a.shape != (n, n):
+            raise Rule(f"be square with one row and column per sector ({n}×{n})",
+                       f"shape {a.shape}", field="input_coefficients")
+        _nonneg(a, "input_coefficients", self.names)
+        b = self.capital_coefficients
+        if b is None:
+            b = np.zeros((n, n))
+            b.setflags(write=False)
+            object.__setattr__(self, "capital_coefficients", b)
+        if b.shape != (n, n):
+            raise Rule(f"be square with one row and column per sector ({n}×{n})",
+                       f"shape {b.shape}", field="capital_coefficients")
+        _nonneg(b, "capital_coefficients", self.names)
+        lab = self.labour_coefficients
+        if lab is not None:
+            if lab.ndim != 2 or lab.shape[1] != n:
+                raise Rule(f"have one column per sector ({n})", f"shape {lab.shape}",
+                           field="labour_coefficients")
+            _nonneg(lab, "labour_coefficients", self.names)
+            kinds = self.labour_kinds or (["labour"] if lab.shape[0] == 1 else
+                                          [f"labour_{i}" for i in range(lab.shape[0])])
+            if len(kinds) != lab.shape[0] or len(set(kinds)) != len(kinds):
+                raise Rule(f"name each of the {lab.shape[0]} labour kinds once", kinds,
+                           field="labour_kinds")
+            object.__setattr__(self, "labour_kinds", list(kinds))
+        elif self.labour_kinds:
+            raise Rule("come with labour_coefficients", self.labour_kinds,
+                       field="labour_kinds")
+        for key in ("consumption_basket", "wage_basket"):
+            v = getattr(self, key)
+            if v is not None:
+                if v.shape != (n,):
+                    raise Rule(f"have one entry per sector ({n})", f"shape {v.shape}",
+                               field=key)
+                _nonneg(v, key, self.names)
+        if self.wage_basket is not None and self.labour_coefficients is None:
+            raise Rule("come with labour_coefficients (it closes the model through labour)",
+                       "wage_basket", field="wage_basket")
+        self._check_productive()
+        return self
+
+    def _check_productive(self) -> None:
+        a = self.input_coefficients
+        colsum = a.sum(axis=0)
+        if colsum.size and colsum.max() < 1.0:
+            return  # ρ(A) <= max column sum < 1: productive, no eigen-solve needed
+        rho = steady.spectral_radius(a)
+        if rho >= 1.0 - 1e-12:
+            bad = [self.names[j] for j in np.nonzero(colsum >= 1.0)[0]]
+            detail = (f" Sectors whose input coefficients sum to 1 or more: {bad}." if bad
+                      else " No single column sums to 1; the cycle of inputs among sectors "
+                      "uses up more than it makes.")
+            raise UnproductiveEconomy(
+                f"input_coefficients must describe a productive economy (spectral radius "
+                f"< 1). Got spectral radius {rho:.6f}.{detail}",
+                spectral_radius=rho, sectors=bad)
+
+    # -- labels ---------------------------------------------------------------
+    @property
+    def names(self) -> list[str]:
+        """Sector names in order."""
+        return [s.name for s in self.sectors]
+
+    @property
+    def n(self) -> int:
+        """Number of sectors."""
+        return len(self.sectors)
+
+    def _frame(self, m: np.ndarray, rows: list[str] | None = None) -> pd.DataFrame:
+        return pd.DataFrame(m, index=pd.Index(rows or self.names), columns=pd.Index(self.names))
+
+    @property
+    def A(self) -> pd.DataFrame:  # noqa: N802 (the trade's symbol)
+        """Input coefficients as a labelled DataFrame."""
+        return self._frame(np.array(self.input_coefficients))
+
+    @property
+    def B(self) -> pd.DataFrame:  # noqa: N802
+        """Capital coefficients as a labelled DataFrame."""
+        return self._frame(np.array(self.capital_coefficients))
+
+    # -- steady state -----------------------------------------------------------
+    @cached_property
+    def _leontief(self) -> np.ndarray:
+        return steady.leontief_inverse(np.asarray(self.input_coefficients))
+
+    def spectral_radius(self) -> float:
+        """Spectral radius ``ρ(A)`` of the input coefficients."""
+        return steady.spectral_radius(np.asarray(self.input_coefficients))
+
+    def hawkins_simon(self) -> pd.Series:
+        """Leading principal minors of ``I − A`` (all positive for a productive economy)."""
+        _, minors = steady.hawkins_simon(np.asarray(self.input_coefficients))
+        return pd.Series(minors, index=pd.Index(self.names[: len(minors)], name="up to"),
+                         name="minor")
+
+    def leontief_inverse(self) -> pd.DataFrame:
+        """``(I − A)^-1``: gross output of each row sector per unit of final demand."""
+        return self._frame(self._leontief.copy())
+
+    def output_multipliers(self) -> pd.Series:
+        """Column sums of the Leontief inverse (simple output multipliers)."""
+        return pd.Series(self._leontief.sum(axis=0), index=pd.Index(self.names),
+                         name="output_multiplier")
+
+    def required_output(self, final_demand) -> pd.Series:
+        """Gross output ``x = (I − A)^-1 f`` that delivers final demand ``f``."""
+        f = np.asarray(align_vector(final_demand, self.names, "final_demand"), dtype=float)
+        return pd.Series(self._leontief @ f, index=pd.Index(self.names), name="output")
+
+    def labour_content(self) -> pd.DataFrame:
+        """Vertically integrated labour coefficients ``v = l (I − A)^-1`` (kinds × sectors)."""
+        if self.labour_coefficients is None:
+            raise Rule("be given to compute labour content", None, field="labour_coefficients")
+        return self._frame(self.labour_coefficients @ self._leontief, rows=self.labour_kinds)
+
+    def balanced_growth(self, *, method: str = "eigen", closed: bool | None = None,
+                        tol: float = 1e-12, max_iter: int = 100_000) -> steady.BalancedGrowth:
+        """Maximal balanced growth of the (open or closed) static model.
+
+        Without a wage basket ``M = A``; with one (or ``closed=True``) the model
+        is closed through labour, ``M = [[A, h_w], [l, 0]]``. The growth factor
+        is ``1/ρ(M)`` and the proportions are the Perron vector of ``M``.
+
+        Parameters
+        ----------
+        method : {"eigen", "power"}
+            A direct eigen-solver (sparse ARPACK above 400 sectors) or the
+            damped power iteration.
+        closed : bool, optional
+            Close the model through labour (default: when a wage basket is given).
+        tol, max_iter
+            Convergence tolerance and step limit of the power iteration.
+        """
+        use_closed = self.wage_basket is not None if closed is None else closed
+        a = np.asarray(self.input_coefficients)
+        names = list(self.names)
+        if use_closed:
+            if self.wage_basket is None or self.labour_coefficients is None:
+                raise Rule("be given for a closed model", None, field="wage_basket")
+            labour = self.labour_coefficients.sum(axis=0)
+            n = self.n
+            m = np.zeros((n + 1, n + 1))
+            m[:n, :n] = a
+            m[:n, n] = self.wage_basket
+            m[n, :n] = labour
+            names.append("households")
+        else:
+            m = a
+        irreducible, period = steady.structure(m)
+        rho, v, used, it, res = steady.perron(m, method=method, tol=tol, max_iter=max_iter)
+        notes = []
+        if not irreducible:
+            notes.append("reducible: some sectors do not feed all others; proportions may "
+                         "have zeros")
+        if period > 1:
+            notes.append(f"periodic with period {period}: the plain power iteration "
+                         "would oscillate; the damped one converges")
+        if rho <= 0:
+            raise steady.NoBalancedGrowth("The matrix is nilpotent (spectral radius 0): "
+                                          "growth is not limited by inputs.")
+        return steady.BalancedGrowth(
+            rate=1.0 / rho - 1.0, factor=1.0 / rho,
+            proportions=pd.Series(v, index=pd.Index(names), name="proportion"),
+            spectral_radius=rho, method=used, iterations=it, residual=res,
+            irreducible=irreducible, period=period, notes=notes)
+
+    def dynamic_balanced_growth(self) -> steady.BalancedGrowth:
+        """Balanced growth of the dynamic Leontief model with capital replacement.
+
+        Finds the largest ``g`` such that output ``x`` covers current inputs and
+        the capital goods for capacity growing at ``g`` and replacing what
+        retires: ``x = A x + B K(g) U⁻¹ x``. With geometric retirement and
+        one-year lead times this is ``(I − A − BD) x = g B x``, so
+        ``g = 1/ρ((I − A − BD)^-1 B)``.
+        """
+        if self.capital is None:
+            raise Rule("be given for dynamic balanced growth", None, field="capital")
+        specs = [self.capital[s] for s in self.names]
+        util = np.array([c.max_utilisation for c in specs])
+        g, v = steady.dynamic_growth(np.asarray(self.input_coefficients),
+                                     np.asarray(self.capital_coefficients),
+                                     [c.deliveries_per_capacity for c in specs], util)
+        irreducible, period = steady.structure(
+            np.asarray(self.input_coefficients) + np.asarray(self.capital_coefficients))
+        return steady.BalancedGrowth(
+            rate=g, factor=1.0 + g, proportions=pd.Series(v, index=pd.Index(self.names),
+                                                           name="proportion"),
+            spectral_radius=1.0 / (1.0 + g) if g > -1 else float("inf"), method="root",
+            irreducible=irreducible, period=period)
+
+    # -- files ------------------------------------------------------------------
+    def to_json(self, **kwargs: Any) -> str:
+        """JSON text that :meth:`from_json` reads back to an equal economy."""
+        return self.model_dump_json(**kwargs)
+
+    @classmethod
+    def from_json(cls, text: str | bytes) -> Economy:
+        """Read an economy from :meth:`to_json` text."""
+        return cls.model_validate_json(text)
+
+    @classmethod
+    def json_schema(cls) -> dict:
+        """JSON Schema of the economy description."""
+        return cls.model_json_schema()
+
+    @classmethod
+    def from_flows(cls, flows, gross_output, labour=None, *, final_demand=None,
+                   value_added=None, **kwargs: Any) -> Economy:
+        """Build an economy from a transactions table in flows.
+
+        ``a_ij = z_ij / x_j`` and ``l_j = labour_j / x_j``; the remaining keywords
+        go to :meth:`TransactionsTable.to_economy` (``capital``,
+        ``capital_coefficients``, ``capital_stocks``) and to the economy.
+        """
+        from .tables import TransactionsTable
+
+        table = TransactionsTable(flows, gross_output, labour, final_demand=final_demand,
+                                  value_added=value_added)
+        return table.to_economy(**kwargs)
+
+    @classmethod
+    def from_tables(cls, flows, *, capital=None, capital_coefficients=None,
+                    capital_stocks=None, **kwargs: Any) -> Economy:
+        """Build an economy from table files (CSV or Excel) or DataFrames.
+
+        See :mod:`growthplan.tables` for the layout of each table.
+        """
+        from .tables import read_frame, read_transactions
+
+        table = read_transactions(flows)
+        return table.to_economy(
+            capital=None if capital is None else read_frame(capital, what="capital"),
+            capital_coefficients=None if capital_coefficients is None else read_frame(
+                capital_coefficients, what="capital_coefficients"),
+            capital_stocks=capital_stocks, **kwargs)
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, Economy):
+            return NotImplemented
+        return json.loads(self.to_json()) == json.loads(other.to_json())
+
+    def __hash__(self) -> int:
+        return hash(self.to_json())
+
+    def __repr__(self) -> str:
+        return f"Economy({self.n} sectors: {', '.join(self.names[:6])}{'…' if self.n > 6 else ''})"
+
+
+def _nonneg(m: np.ndarray, field: str, names: list[str]) -> None:
+    if np.any(m < 0):
+        pos = np.argwhere(m < 0)[0]
+        where = ", ".join(names[p] if i == m.ndim - 1 and p < len(names) else str(p)
+                          for i, p in enumerate(pos))
+        raise Rule("be >= 0", f"{m[tuple(pos)]} at [{where}]", field=field)

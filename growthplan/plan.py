@@ -1,0 +1,432 @@
+"""The multi-year plan: what the analyst states.
+
+Timing conventions (MODEL.md §4, kept everywhere in the library):
+
+* plan year index ``t = 0..T−1`` is the first..last calendar year given in
+  ``years``; a series given as a start value and a growth rate is
+  ``X_t = X_0 (1 + r)^t``;
+* ``initial_capacity`` is the capacity in service in year 0;
+* a start made in year ``τ`` delivers its capital goods in years
+  ``τ..τ+θ−1`` (by the spending profile; in year ``τ`` when ``θ = 0``) and
+  enters service in year ``τ + θ`` at age 0;
+* terminal capacity ``C_T`` is the capacity in service in the first year
+  after the plan.
+"""
+
+from __future__ import annotations
+
+import time
+from typing import Any
+
+import numpy as np
+import pandas as pd
+from pydantic import Field, PrivateAttr, field_validator, model_validator
+
+from . import objectives as obj
+from ._validation import Model, Rule
+from .economy import Economy
+
+__all__ = ["LabourSupply", "Consumption", "Target", "StartsCeiling", "TerminalGrowth", "Plan"]
+
+
+def _series(value: Any, years: list[int], field: str, growth: float = 0.0) -> np.ndarray:
+    """A per-year array from a number (grown at ``growth``), a list, a dict or a Series."""
+    t = np.arange(len(years), dtype=float)
+    if isinstance(value, int | float) and not isinstance(value, bool):
+        out = float(value) * (1.0 + growth) ** t
+    elif isinstance(value, dict | pd.Series):
+        items = dict(value)
+        unknown = [y for y in items if int(y) not in years]
+        if unknown:
+            raise Rule(f"give values for plan years {years[0]}..{years[-1]} only", unknown,
+                       field=field)
+        missing = [y for y in years if y not in {int(k) for k in items}]
+        if missing:
+            raise Rule("give a value for every plan year", f"missing {missing}", field=field)
+        out = np.array([float(items[k]) for k in sorted(items, key=int)])
+    else:
+        out = np.asarray(value, dtype=float)
+        if out.shape != (len(years),):
+            raise Rule(f"have one value per plan year ({len(years)})", f"{out.size} values",
+                       field=field)
+    if not np.all(np.isfinite(out)) or np.any(out < 0):
+        raise Rule("hold finite values >= 0", value, field=field)
+    return out
+
+
+class LabourSupply(Model):
+    """Labour available per year for one labour kind.
+
+    Parameters
+    ----------
+    start : float, optional
+        Person-years available in the first plan year (grown at ``growth``).
+    growth : float, default 0.0
+        Yearly growth rate of ``start``.
+    series : list, dict or Series, optional
+        Person-years per plan year (instead of ``start`` and ``growth``).
+    kind : str, default "labour"
+        Labour kind this supply is for.
+    """
+
+    start: float | None = Field(default=None, ge=0, allow_inf_nan=False)
+    growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
+    series: Any = None
+    kind: str = "labour"
+
+    @model_validator(mode="after")
+    def _one(self) -> LabourSupply:
+        if (self.start is None) == (self.series is None):
+            raise Rule("be given as start (with growth) or as series, exactly one", None,
+                       field="start")
+        return self
+
+    def path(self, years: list[int]) -> np.ndarray:
+        """Person-years for each plan year."""
+        return _series(self.start if self.series is None else self.series, years,
+                       "labour.series", self.growth)
+
+
+class Consumption(Model):
+    """Household consumption: the basket, its floors and how fast it may fall.
+
+    Parameters
+    ----------
+    basket : dict of str to float, optional
+        Commodities per unit of consumption level (default: the economy's).
+    floor : float, list, dict or Series, default 0.0
+        Least consumption level per year (a number is grown at ``floor_growth``).
+    floor_growth : float, default 0.0
+    max_fall : float, optional
+        Largest allowed fall from one year to the next, as a share (0.02 = 2 %).
+    """
+
+    basket: dict[str, float] | None = None
+    floor: Any = 0.0
+    floor_growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
+    max_fall: float | None = Field(default=None, ge=0, le=1)
+
+
+class Target(Model):
+    """An at-least condition on one sector (or on the consumption level) in one year.
+
+    Give exactly one of ``output_at_least``, ``capacity_at_least`` or
+    ``consumption_at_least``. Capacity targets may name the year after the
+    plan (terminal capacity). A consumption target without a sector bounds the
+    consumption level; with a sector it bounds that commodity's consumption.
+    """
+
+    sector: str | None = None
+    year: int
+    output_at_least: float | None = Field(default=None, ge=0, allow_inf_nan=False)
+    capacity_at_least: float | None = Field(default=None, ge=0, allow_inf_nan=False)
+    consumption_at_least: float | None = Field(default=None, ge=0, allow_inf_nan=False)
+
+    def __init__(self, sector: str | None = None, /, **data: Any) -> None:
+        if sector is not None:
+            data["sector"] = sector
+        super().__init__(**data)
+
+    @model_validator(mode="after")
+    def _one(self) -> Target:
+        given = [k for k in ("output_at_least", "capacity_at_least", "consumption_at_least")
+                 if getattr(self, k) is not None]
+        if len(given) != 1:
+            raise Rule("give exactly one of output_at_least, capacity_at_least, "
+                       "consumption_at_least", given or None, field="")
+        if self.sector is None and given[0] != "consumption_at_least":
+            raise Rule("name a sector for output and capacity targets", None, field="sector")
+        return self
+
+    @property
+    def what(self) -> str:
+        """``"output"``, ``"capacity"`` or ``"consumption"``."""
+        for k in ("output", "capacity", "consumption"):
+            if getattr(self, f"{k}_at_least") is not None:
+                return k
+        raise AssertionError("validated target without a condition")
+
+    @property
+    def value(self) -> float:
+        """The required level."""
+        return float(getattr(self, f"{self.what}_at_least"))
+
+
+class StartsCeiling(Model):
+    """Largest capacity starts of a sector per year (absorptive capacity)."""
+
+    sector: str
+    at_most: float = Field(ge=0, allow_inf_nan=False)
+    years: list[int] | None = None
+
+    def __init__(self, sector: str | None = None, /, **data: Any) -> None:
+        if sector is not None:
+            data["sector"] = sector
+        super().__init__(**data)
+
+
+class TerminalGrowth(Model):
+    """After the plan, capacity goes on growing at ``rate``.
+
+    The starts of each sector's final lead-time window (its last
+    ``max(θ, 1)`` plan years) are at least what a balanced path growing at
+    ``rate`` needs: ``z_t ≥ ψ(rate) C_t`` with
+    ``ψ(g) = (1+g)^θ / Σ_a S(a)(1+g)^-a``.
+    """
+
+    rate: float = Field(gt=-1, allow_inf_nan=False)
+
+
+class Plan(Model):
+    """A multi-year growth plan of an economy.
+
+    Parameters
+    ----------
+    economy : Economy
+        With capital for every sector.
+    years : range or list of int
+        Consecutive calendar years of the plan.
+    labour : LabourSupply or list of LabourSupply, optional
+        Supply per labour kind; no labour limit when omitted.
+    consumption : Consumption, optional
+        Basket, floors and fall limit; needs a basket (here or in the economy).
+    final_demand : dict, DataFrame, optional
+        Exogenous final demand (government, stock building) by sector: a
+        number (grown at ``final_demand_growth``), a per-year list, or a
+        DataFrame with years as rows and sectors as columns.
+    final_demand_growth : float, default 0.0
+    targets : list of Target
+    starts_ceilings : list of StartsCeiling
+    under_construction : dict of str to list of float, optional
+        Capacity started before the plan, one entry per past year, the last in
+        the year before the plan; their remaining capital deliveries fall in
+        plan years and their capacity enters service on schedule.
+    terminal : TerminalGrowth, optional
+        Post-horizon growth condition; without one the result warns of end
+        effects.
+    objective : TerminalCapacity, DiscountedConsumption or LeastLabour
+    """
+
+    economy: Economy
+    years: list[int]
+    labour: list[LabourSupply] = Field(default_factory=list)
+    consumption: Consumption | None = None
+    final_demand: Any = None
+    final_demand_growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
+    targets: list[Target] = Field(default_factory=list)
+    starts_ceilings: list[StartsCeiling] = Field(default_factory=list)
+    under_construction: dict[str, list[float]] | None = None
+    terminal: TerminalGrowth | None = None
+    objective: obj.TerminalCapacity | obj.DiscountedConsumption | obj.LeastLabour = Field(
+        default_factory=obj.TerminalCapacity, discriminator="kind")
+    _validate_seconds: float = PrivateAttr(default=0.0)
+
+    def __init__(self, /, **data: Any) -> None:
+        t0 = time.perf_counter()
+        super().__init__(**data)
+        self._validate_seconds = time.perf_counter() - t0
+
+    @field_validator("years", mode="before")
+    @classmethod
+    def _years(cls, v: Any) -> Any:
+        if isinstance(v, range):
+            v = list(v)
+        if isinstance(v, str | bytes) or not hasattr(v, "__iter__"):
+            raise Rule("be a range or list of calendar years", v)
+        v = list(v)
+        if not v:
+            raise Rule("hold at least one year", v)
+        if any(isinstance(y, bool) or not isinstance(y, int | np.integer) for y in v):
+            raise Rule("be whole calendar years", v)
+        v = [int(y) for y in v]
+        if any(b - a != 1 for a, b in zip(v, v[1:], strict=False)):
+            raise Rule("be consecutive and increasing", v)
+        return v
+
+    @field_validator("labour", mode="before")
+    @classmethod
+    def _labour(cls, v: Any) -> Any:
+        if v is None:
+            return []
+        return [v] if isinstance(v, LabourSupply | dict) else v
+
+    @model_validator(mode="after")
+    def _check(self) -> Plan:
+        econ = self.economy
+        names = econ.names
+        if econ.capital is None:
+            raise Rule("have capital for every sector to be planned", None,
+                       field="economy.capital")
+        kinds = econ.labour_kinds or []
+        for i, ls in enumerate(self.labour):
+            if econ.labour_coefficients is None:
+                raise Rule("come with labour coefficients in the economy", ls.kind,
+                           field=f"labour.{i}")
+            if ls.kind not in kinds:
+                raise Rule(f"name a labour kind of the economy {kinds}", ls.kind,
+                           field=f"labour.{i}.kind")
+            ls.path(self.years)
+        if len({ls.kind for ls in self.labour}) != len(self.labour):
+            raise Rule("give each labour kind once", [ls.kind for ls in self.labour],
+                       field="labour")
+        if self.consumption is not None:
+            self.consumption_floor()
+            self.basket()
+        first, last = self.years[0], self.years[-1]
+        for i, tg in enumerate(self.targets):
+            if tg.sector is not None and tg.sector not in names:
+                raise Rule(f"name a sector of the economy ({', '.join(names)})", tg.sector,
+                           field=f"targets.{i}.sector")
+            limit = last + 1 if tg.what == "capacity" else last
+            if not first <= tg.year <= limit:
+                raise Rule(f"be a plan year {first}..{limit}", tg.year,
+                           field=f"targets.{i}.year")
+            if tg.what == "consumption" and self.consumption is None:
+                raise Rule("come with a consumption part in the plan", tg.value,
+                           field=f"targets.{i}.consumption_at_least")
+        for i, sc in enumerate(self.starts_ceilings):
+            if sc.sector not in names:
+                raise Rule(f"name a sector of the economy ({', '.join(names)})", sc.sector,
+                           field=f"starts_ceilings.{i}.sector")
+            bad = [y for y in (sc.years or []) if y not in self.years]
+            if bad:
+                raise Rule("be plan years", bad, field=f"starts_ceilings.{i}.years")
+        if self.under_construction:
+            for k, v in self.under_construction.items():
+                if k not in names:
+                    raise Rule("name sectors of the economy", k, field="under_construction")
+                arr = np.asarray(v, dtype=float)
+                if not np.all(np.isfinite(arr)) or np.any(arr < 0):
+                    raise Rule("hold finite starts >= 0", v, field=f"under_construction.{k}")
+        if isinstance(self.objective, obj.DiscountedConsumption) and self.consumption is None:
+            raise Rule("come with a consumption part in the plan (the objective values it)",
+                       None, field="consumption")
+        if isinstance(self.objective, obj.TerminalCapacity) and self.objective.proportions:
+            unknown = [k for k in self.objective.proportions if k not in names]
+            if unknown:
+                raise Rule("name sectors of the economy", unknown,
+                           field="objective.proportions")
+        self.exogenous_demand()
+        return self
+
+    # -- derived data ---------------------------------------------------------
+    @property
+    def horizon(self) -> int:
+        """Number of plan years ``T``."""
+        return len(self.years)
+
+    def basket(self) -> np.ndarray:
+        """Consumption basket per unit of consumption level (zeros without one)."""
+        econ = self.economy
+        if self.consumption is not None and self.consumption.basket is not None:
+            b = self.consumption.basket
+            unknown = [k for k in b if k not in econ.names]
+            if unknown:
+                raise Rule("name sectors of the economy", unknown, field="consumption.basket")
+            out = np.array([float(b.get(k, 0.0)) for k in econ.names])
+        elif econ.consumption_basket is not None:
+            out = np.array(econ.consumption_basket)
+        elif self.consumption is not None:
+            raise Rule("be given here or in the economy", None, field="consumption.basket")
+        else:
+            return np.zeros(econ.n)
+        if not np.all(np.isfinite(out)) or np.any(out < 0) or out.sum() <= 0:
+            raise Rule("hold amounts >= 0 with a positive sum", out.tolist(),
+                       field="consumption.basket")
+        return out
+
+    def consumption_floor(self) -> np.ndarray:
+        """Least consumption level per plan year."""
+        if self.consumption is None:
+            return np.zeros(self.horizon)
+        return _series(self.consumption.floor, self.years, "consumption.floor",
+                       self.consumption.floor_growth)
+
+    def labour_supply(self) -> np.ndarray:
+        """Labour available, kinds × years (only the kinds with a supply)."""
+        return np.array([ls.path(self.years) for ls in self.labour]).reshape(
+            len(self.labour), self.horizon)
+
+    def exogenous_demand(self) -> np.ndarray:
+        """Exogenous final demand, years × sectors."""
+        names = self.economy.names
+        out = np.zeros((self.horizon, len(names)))
+        fd = self.final_demand
+        if fd is None:
+            return out
+        if isinstance(fd, pd.DataFrame):
+            unknown = [c for c in fd.columns if c not in names]
+            if unknown:
+                raise Rule("name sectors of the economy", unknown, field="final_demand")
+            fd = {c: fd[c] for c in fd.columns}
+        if not isinstance(fd, dict):
+            raise Rule("map sectors to numbers or per-year series", type(fd).__name__,
+                       field="final_demand")
+        for k, v in fd.items():
+            if k not in names:
+                raise Rule("name sectors of the economy", k, field="final_demand")
+            out[:, names.index(k)] = _series(v, self.years, f"final_demand.{k}",
+                                             self.final_demand_growth)
+        return out
+
+    def terminal_proportions(self) -> tuple[np.ndarray, str]:
+        """Proportions ``π`` of the terminal-capacity objective and where they came from."""
+        econ = self.economy
+        o = self.objective
+        if isinstance(o, obj.TerminalCapacity) and o.proportions:
+            p = np.array([float(o.proportions.get(k, 0.0)) for k in econ.names])
+            return p / p.sum(), "given"
+        try:
+            v = econ.dynamic_balanced_growth().proportions.to_numpy()
+            if np.all(v > 1e-12):
+                return v / v.sum(), "balanced growth"
+        except (ValueError, ArithmeticError):
+            pass
+        c0 = np.array([econ.capital[k].initial_capacity for k in econ.names])  # type: ignore
+        if c0.sum() <= 0:
+            return np.full(econ.n, 1.0 / econ.n), "equal"
+        return c0 / c0.sum(), "initial capacity"
+
+    # -- actions ------------------------------------------------------------
+    def compile(self):
+        """The plan's :class:`~growthplan.compile.LinearProgram`."""
+        from .compile import compile_plan
+
+        return compile_plan(self)
+
+    def solve(self, *, method: str = "auto", time_limit: float | None = None,
+              threads: int | None = None, tolerance: float | None = None,
+              audit_tolerance: float = 1e-6, options: dict | None = None):
+        """Solve the plan with HiGHS and audit the result.
+
+        Parameters
+        ----------
+        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp"}
+            HiGHS method. ``"auto"`` picks by problem size (see the README).
+        time_limit : float, optional
+            Seconds; a solve that hits it returns status ``time_limit``.
+        threads : int, optional
+        tolerance : float, optional
+            Primal and dual feasibility tolerance of HiGHS.
+        audit_tolerance : float, default 1e-6
+            Largest violation, relative to each condition's scale, that the
+            audit accepts.
+        options : dict, optional
+            Further HiGHS options by name (a bad name or value is an error).
+
+        Returns
+        -------
+        PlanResult
+        """
+        from .result import PlanResult
+        from .solvers import solve_highs
+
+        t0 = time.perf_counter()
+        lp = self.compile()
+        t1 = time.perf_counter()
+        outcome = solve_highs(lp, method=method, time_limit=time_limit, threads=threads,
+                              tolerance=tolerance, options=options)
+        timings = {"validate": self._validate_seconds, "compile": t1 - t0}
+        return PlanResult.from_outcome(self, lp, outcome, timings=timings,
+                                       audit_tolerance=audit_tolerance)
+

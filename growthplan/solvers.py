@@ -1,0 +1,258 @@
+"""LinearProgram → HiGHS (through highspy), and the status mapping.
+
+Solver outcomes are data: HiGHS's model status is mapped to
+:class:`Status` by one table, the raw message is kept, and nothing here
+raises for an infeasible or stopped solve.
+"""
+
+from __future__ import annotations
+
+import enum
+import time
+from dataclasses import dataclass, field
+
+import highspy
+import numpy as np
+
+from .errors import InvalidInput, SolverFailure, invalid
+
+__all__ = ["Status", "SolverOutcome", "solve_highs", "choose_method", "METHODS"]
+
+
+class Status(str, enum.Enum):
+    """Outcome of a plan solve."""
+
+    OPTIMAL = "optimal"
+    INFEASIBLE = "infeasible"
+    UNBOUNDED = "unbounded"
+    INFEASIBLE_OR_UNBOUNDED = "infeasible_or_unbounded"
+    TIME_LIMIT = "time_limit"
+    ITERATION_LIMIT = "iteration_limit"
+    INTERRUPTED = "interrupted"
+    IMPRECISE = "imprecise"
+    NOT_VERIFIED = "not_verified"
+    UNKNOWN = "unknown"
+    ERROR = "error"
+
+
+_MS = highspy.HighsModelStatus
+STATUS_TABLE: dict[object, Status] = {
+    _MS.kOptimal: Status.OPTIMAL,
+    _MS.kInfeasible: Status.INFEASIBLE,
+    _MS.kUnbounded: Status.UNBOUNDED,
+    _MS.kUnboundedOrInfeasible: Status.INFEASIBLE_OR_UNBOUNDED,
+    _MS.kTimeLimit: Status.TIME_LIMIT,
+    _MS.kIterationLimit: Status.ITERATION_LIMIT,
+    _MS.kInterrupt: Status.INTERRUPTED,
+    _MS.kUnknown: Status.UNKNOWN,
+    _MS.kNotset: Status.UNKNOWN,
+    _MS.kModelEmpty: Status.OPTIMAL,
+    _MS.kSolveError: Status.ERROR,
+    _MS.kLoadError: Status.ERROR,
+    _MS.kModelError: Status.ERROR,
+    _MS.kPresolveError: Status.ERROR,
+    _MS.kPostsolveError: Status.ERROR,
+    _MS.kObjectiveBound: Status.UNKNOWN,
+    _MS.kObjectiveTarget: Status.UNKNOWN,
+    _MS.kSolutionLimit: Status.UNKNOWN,
+}
+if hasattr(_MS, "kMemoryLimit"):
+    STATUS_TABLE[_MS.kMemoryLimit] = Status.ERROR
+
+# method name -> HiGHS options
+METHODS: dict[str, dict[str, object]] = {
+    "simplex": {"solver": "simplex"},
+    "ipm": {"solver": "ipm", "run_crossover": "off"},
+    "ipm-crossover": {"solver": "ipm", "run_crossover": "on"},
+    "pdlp": {"solver": "pdlp"},
+    "highs-default": {"solver": "choose"},
+}
+AUTO_IPM_NONZEROS = 40_000
+
+
+@dataclass
+class SolverOutcome:
+    """What the solver returned, in the LP's own terms."""
+
+    status: Status
+    message: str
+    objective: float
+    x: np.ndarray
+    row_dual: np.ndarray | None
+    col_dual: np.ndarray | None
+    method: str
+    iterations: dict[str, int]
+    seconds: float
+    options: dict[str, object] = field(default_factory=dict)
+    highs_version: str = ""
+
+
+def choose_method(nonzeros: int) -> str:
+    """HiGHS method for a plan with this many nonzeros.
+
+    Multi-year plans have dense input and capital blocks repeated over years;
+    on them the interior point method without crossover was many times faster
+    than simplex once a plan has more than about 40,000 nonzeros (measured in
+    ``tests/benchmarks/bench_plan.py``), while small plans solve fastest by
+    simplex, which also returns a vertex and exact duals.
+    """
+    return "ipm" if nonzeros > AUTO_IPM_NONZEROS else "simplex"
+
+
+def _set(h: highspy.Highs, name: str, value: object) -> None:
+    st = h.setOptionValue(name, value)
+    if st != highspy.HighsStatus.kOk:
+        raise invalid(f"options.{name}", "be a HiGHS option with a valid value", value)
+
+
+def highs_version() -> str:
+    h = highspy.Highs
+    try:
+        return f"{h().versionMajor()}.{h().versionMinor()}.{h().versionPatch()}"
+    except Exception:  # pragma: no cover - older highspy
+        return "unknown"
+
+
+def solve_highs(lp, *, method: str = "auto", time_limit: float | None = None,
+                threads: int | None = None, tolerance: float | None = None,
+                options: dict | None = None, callback=None) -> SolverOutcome:
+    """Solve a :class:`~growthplan.compile.LinearProgram` with HiGHS.
+
+    The matrix is passed column-wise (CSC) in one ``passModel`` call.
+    """
+    if method == "auto":
+        method = choose_method(lp.nnz)
+    if method not in METHODS:
+        raise invalid("method", f"be 'auto' or one of {sorted(METHODS)}", method)
+    h = highspy.Highs()
+    chosen: dict[str, object] = {"output_flag": callback is not None,
+                                 "log_to_console": False, "random_seed": 0}
+    chosen.update(METHODS[method])
+    if time_limit is not None:
+        if not (time_limit > 0):
+            raise invalid("time_limit", "be > 0 seconds", time_limit)
+        chosen["time_limit"] = float(time_limit)
+    if threads is not None:
+        chosen["threads"] = int(threads)
+    if tolerance is not None:
+        if not (0 < tolerance < 1):
+            raise invalid("tolerance", "be in (0, 1)", tolerance)
+        chosen["primal_feasibility_tolerance"] = float(tolerance)
+        chosen["dual_feasibility_tolerance"] = float(tolerance)
+    chosen.update(options or {})
+    for k, v in chosen.items():
+        _set(h, k, v)
+    if callback is not None:
+        h.cbLogging.subscribe(callback)
+
+    m = lp.matrix
+    model = highspy.HighsLp()
+    model.num_col_ = m.shape[1]
+    model.num_row_ = m.shape[0]
+    inf = highspy.kHighsInf
+    model.col_cost_ = np.ascontiguousarray(lp.cost, dtype=np.float64)
+    model.col_lower_ = np.where(np.isfinite(lp.col_lower), lp.col_lower, -inf)
+    model.col_upper_ = np.where(np.isfinite(lp.col_upper), lp.col_upper, inf)
+    model.row_lower_ = np.where(np.isfinite(lp.row_lower), lp.row_lower, -inf)
+    model.row_upper_ = np.where(np.isfinite(lp.row_upper), lp.row_upper, inf)
+    model.sense_ = highspy.ObjSense.kMaximize if lp.sense == "max" else \
+        highspy.ObjSense.kMinimize
+    model.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+    model.a_matrix_.start_ = m.indptr.astype(np.int32)
+    model.a_matrix_.index_ = m.indices.astype(np.int32)
+    model.a_matrix_.value_ = m.data.astype(np.float64)
+    model.a_matrix_.num_col_ = m.shape[1]
+    model.a_matrix_.num_row_ = m.shape[0]
+    st = h.passModel(model)
+    if st == highspy.HighsStatus.kError:
+        raise SolverFailure("HiGHS refused the model (passModel returned an error)")
+    t0 = time.perf_counter()
+    h.run()
+    seconds = time.perf_counter() - t0
+    ms = h.getModelStatus()
+    status = STATUS_TABLE.get(ms, Status.UNKNOWN)
+    info = h.getInfo()
+    sol = h.getSolution()
+    x = np.array(sol.col_value) if sol.value_valid else np.full(m.shape[1], np.nan)
+    row_dual = np.array(sol.row_dual) if sol.dual_valid else None
+    col_dual = np.array(sol.col_dual) if sol.dual_valid else None
+    if status is Status.OPTIMAL and not sol.value_valid:
+        status = Status.UNKNOWN
+    objective = float(info.objective_function_value) if sol.value_valid else float("nan")
+    iters = {"simplex": int(info.simplex_iteration_count), "ipm": int(info.ipm_iteration_count),
+             "crossover": int(getattr(info, "crossover_iteration_count", 0)),
+             "pdlp": int(getattr(info, "pdlp_iteration_count", 0))}
+    return SolverOutcome(status=status, message=h.modelStatusToString(ms), objective=objective,
+                         x=x, row_dual=row_dual, col_dual=col_dual, method=method,
+                         iterations=iters, seconds=seconds, options=chosen,
+                         highs_version=highs_version())
+
+
+def check_method(method: str) -> None:
+    if method != "auto" and method not in METHODS:
+        raise InvalidInput(f"method must be 'auto' or one of {sorted(METHODS)}. Got {method!r}.",
+                           field="method")
+
+
+def _sanitise(names: list[str]) -> list[str]:
+    import re
+
+    bad = re.compile(r"[^A-Za-z0-9_]")
+    return [bad.sub("_", s) for s in names]
+
+
+def to_pulp(lp, name: str = "growthplan"):
+    """A ``pulp.LpProblem`` with the same rows, columns, bounds and costs as ``lp``.
+
+    Variable and constraint names carry the block, year and sector
+    (``output_2030_energy``), sanitised to letters, digits and underscores.
+    Rows are built from (variable, coefficient) pairs with
+    ``LpAffineExpression``, not term by term.
+
+    Returns
+    -------
+    (problem, variables) : tuple of pulp.LpProblem and list of pulp.LpVariable
+    """
+    import pulp
+
+    sense = pulp.LpMaximize if lp.sense == "max" else pulp.LpMinimize
+    prob = pulp.LpProblem(name, sense)
+    cols = _sanitise(lp.col_names())
+    lo = [None if not np.isfinite(v) else float(v) for v in lp.col_lower]
+    up = [None if not np.isfinite(v) else float(v) for v in lp.col_upper]
+    variables = [prob.add_variable(c, lowBound=lo[i], upBound=up[i])
+                 for i, c in enumerate(cols)]
+    nz = np.nonzero(lp.cost)[0]
+    prob.setObjective(pulp.LpAffineExpression([(variables[i], float(lp.cost[i])) for i in nz]))
+    csr = lp.matrix.tocsr()
+    rows = _sanitise(lp.row_names())
+    indptr, indices, data = csr.indptr, csr.indices, csr.data
+    for r, rname in enumerate(rows):
+        sl = slice(indptr[r], indptr[r + 1])
+        expr = pulp.LpAffineExpression(
+            list(zip([variables[i] for i in indices[sl]], data[sl].tolist(), strict=True)))
+        lo_r, up_r = lp.row_lower[r], lp.row_upper[r]
+        if np.isfinite(lo_r) and np.isfinite(up_r) and lo_r == up_r:
+            prob.addConstraint(pulp.LpConstraint(expr, pulp.LpConstraintEQ, rname, float(lo_r)))
+            continue
+        if np.isfinite(lo_r):
+            prob.addConstraint(pulp.LpConstraint(expr, pulp.LpConstraintGE,
+                                                 rname if not np.isfinite(up_r) else rname + "_lo",
+                                                 float(lo_r)))
+        if np.isfinite(up_r):
+            prob.addConstraint(pulp.LpConstraint(expr, pulp.LpConstraintLE,
+                                                 rname if not np.isfinite(lo_r) else rname + "_up",
+                                                 float(up_r)))
+    return prob, variables
+
+
+def cbc_solver(msg: bool = False, time_limit: float | None = None):
+    """PuLP's bundled CBC through the non-deprecated ``COIN_CMD`` class."""
+    import pulp
+    from pulp.apis import coin_api
+
+    path = coin_api.COIN_CMD.executableExtension(coin_api.pulp_cbc_path)
+    kwargs = {"msg": msg, "path": path}
+    if time_limit is not None:
+        kwargs["timeLimit"] = time_limit
+    return pulp.COIN_CMD(**kwargs)

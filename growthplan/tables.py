@@ -1,0 +1,317 @@
+"""Transactions tables: from flows to coefficients, files in and out, aggregation.
+
+Table file layout (CSV or Excel, one sheet)
+-------------------------------------------
+First column ``sector`` holds row labels. Rows are the producing sectors
+(commodities), then the rows ``gross_output`` (required), ``labour`` or
+``labour:<kind>`` (person-years, optional, one row per kind) and
+``value_added`` (optional). Columns are the using sectors, in the same names,
+then optionally ``final_demand``::
+
+    sector,       farm, mill, final_demand
+    farm,          150,  500,          350
+    mill,          200,  100,         1700
+    gross_output, 1000, 2000,
+    labour,        300,  400,
+
+The capital table has one row per sector and the columns of
+:class:`~growthplan.CapitalSpec` (``initial_capacity``,
+``mean_service_life``, ``retirement``, ``shape``, ``lead_time``,
+``spending_profile`` as ``"0.4;0.6"``, ``max_utilisation``, …). Capital
+coefficients come either as a matrix file (commodities × sectors) or from
+capital stocks by using sector divided by capacity.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from ._validation import Rule, align_labels, raise_plain
+from .economy import CapitalSpec, Economy
+from .errors import InvalidInput, invalid
+
+__all__ = ["TransactionsTable", "read_transactions", "read_frame",
+           "capital_coefficients_from_stocks"]
+
+SPECIAL_ROWS = ("gross_output", "value_added")
+CAPITAL_COLUMNS = set(CapitalSpec.model_fields)
+
+
+def read_frame(source: Any, *, what: str = "table") -> pd.DataFrame:
+    """A DataFrame from a DataFrame, a CSV file or an Excel workbook (first sheet)."""
+    if isinstance(source, pd.DataFrame):
+        return source.copy()
+    path = Path(source)
+    if not path.exists():
+        raise invalid(what, "name an existing file", str(path))
+    try:
+        if path.suffix.lower() in (".xlsx", ".xlsm", ".xls"):
+            frame = pd.read_excel(path, index_col=0)
+        else:
+            frame = pd.read_csv(path, index_col=0, skipinitialspace=True, encoding="utf-8")
+    except UnicodeDecodeError as exc:
+        raise invalid(what, "be UTF-8 text", str(path), hint=f"({exc.reason})") from None
+    except (ValueError, pd.errors.ParserError) as exc:
+        raise invalid(what, "be a readable table", str(path), hint=str(exc)) from None
+    frame.index = frame.index.map(lambda x: str(x).strip())
+    frame.columns = [str(c).strip() for c in frame.columns]
+    return frame
+
+
+def _numeric(frame: pd.DataFrame, what: str) -> pd.DataFrame:
+    out = frame.apply(pd.to_numeric, errors="coerce")
+    bad = out.isna() & frame.notna()
+    if bad.to_numpy().any():
+        r, c = np.argwhere(bad.to_numpy())[0]
+        raise invalid(f"{what}[{frame.index[r]}, {frame.columns[c]}]", "be a number",
+                      frame.iat[r, c])
+    return out
+
+
+class TransactionsTable:
+    """An input–output transactions table in flows.
+
+    Parameters
+    ----------
+    flows : DataFrame, shape (n, n)
+        Intermediate use ``z_ij`` of commodity ``i`` (rows) by sector ``j``
+        (columns), the same labels on both axes.
+    gross_output : Series or array_like
+        Gross output ``x_j``.
+    labour : Series, DataFrame (kinds × sectors) or array_like, optional
+        Labour input in person-years.
+    final_demand : Series or DataFrame, optional
+        Final demand by commodity (one or more columns).
+    value_added : Series, optional
+        Value added by sector.
+    """
+
+    def __init__(self, flows, gross_output, labour=None, *, final_demand=None,
+                 value_added=None) -> None:
+        if not isinstance(flows, pd.DataFrame):
+            arr = np.asarray(flows, dtype=float)
+            if arr.ndim != 2 or arr.shape[0] != arr.shape[1]:
+                raise invalid("flows", "be a square table", f"shape {arr.shape}")
+            names = [f"sector_{i + 1}" for i in range(arr.shape[0])]
+            flows = pd.DataFrame(arr, index=names, columns=names)
+        flows = _numeric(flows, "flows")
+        names = [str(c) for c in flows.columns]
+        try:
+            rows = align_labels(flows.index, names, "flows", "row")
+        except Rule as exc:
+            raise raise_plain(exc, "") from None
+        self.flows = flows.iloc[rows].fillna(0.0)
+        self.names = names
+        self.gross_output = self._vector(gross_output, "gross_output")
+        self.labour = self._labour(labour)
+        self.final_demand = None if final_demand is None else self._final(final_demand)
+        self.value_added = None if value_added is None else self._vector(value_added,
+                                                                         "value_added")
+        z = self.flows.to_numpy()
+        if not np.all(np.isfinite(z)) or np.any(z < 0):
+            raise invalid("flows", "hold finite flows >= 0", "a negative or missing flow")
+        x = self.gross_output.to_numpy()
+        zero = [n for n, v in zip(self.names, x, strict=True) if not v > 0]
+        if zero:
+            raise invalid("gross_output", "be > 0 for every sector (coefficients divide by it)",
+                          {n: float(self.gross_output[n]) for n in zero},
+                          hint="Drop or aggregate sectors with no output.")
+
+    def _vector(self, v: Any, field: str) -> pd.Series:
+        if isinstance(v, pd.DataFrame):
+            v = v.iloc[:, 0] if v.shape[1] == 1 else v.iloc[0]
+        if not isinstance(v, pd.Series):
+            arr = np.asarray(v, dtype=object).ravel()
+            if arr.size != len(self.names):
+                raise invalid(field, f"have one entry per sector ({len(self.names)})",
+                              f"{arr.size} entries")
+            v = pd.Series(list(arr), index=self.names)
+        v = pd.to_numeric(v, errors="coerce").where(lambda s: s.notna(), np.nan)
+        try:
+            pos = align_labels(v.index, self.names, field, "index")
+        except Rule as exc:
+            raise raise_plain(exc, "") from None
+        v = v.iloc[pos].astype(float)
+        if v.isna().any():
+            raise invalid(f"{field}[{v.index[v.isna()][0]}]", "be a number", "a blank or text")
+        return v
+
+    def _labour(self, lab: Any) -> pd.DataFrame | None:
+        if lab is None:
+            return None
+        if isinstance(lab, pd.DataFrame):
+            rows = {str(k): self._vector(lab.loc[k], f"labour[{k}]") for k in lab.index}
+            return pd.DataFrame(rows).T
+        series = self._vector(lab, "labour")
+        name = series.name if isinstance(series.name, str) and series.name else "labour"
+        return pd.DataFrame([series.to_numpy()], index=[name], columns=self.names)
+
+    def _final(self, f: Any) -> pd.DataFrame:
+        if isinstance(f, pd.DataFrame):
+            return pd.DataFrame({c: self._vector(f[c], f"final_demand[{c}]") for c in f.columns})
+        return self._vector(f, "final_demand").to_frame("final_demand")
+
+    # -- derived --------------------------------------------------------------
+    def input_coefficients(self) -> pd.DataFrame:
+        """``a_ij = z_ij / x_j``."""
+        return self.flows.div(self.gross_output, axis=1)
+
+    def labour_coefficients(self) -> pd.DataFrame | None:
+        """``l_kj = labour_kj / x_j``."""
+        return None if self.labour is None else self.labour.div(self.gross_output, axis=1)
+
+    def balance_gap(self) -> pd.Series | None:
+        """Row sums of flows plus final demand minus gross output (zero when balanced)."""
+        if self.final_demand is None:
+            return None
+        return self.flows.sum(axis=1) + self.final_demand.sum(axis=1) - self.gross_output
+
+    def aggregate(self, mapping: dict[str, str]) -> TransactionsTable:
+        """Merge sectors by a concordance ``{old sector: new sector}``.
+
+        Flows, gross output, labour, final demand and value added are summed;
+        coefficients are then recomputed from the sums, never averaged.
+        """
+        missing = [s for s in self.names if s not in mapping]
+        unknown = [s for s in mapping if s not in self.names]
+        if missing or unknown:
+            raise invalid("mapping", f"map every sector once (missing {missing}; unknown "
+                          f"{unknown})", sorted(mapping))
+        new = list(dict.fromkeys(mapping[s] for s in self.names))
+        key = [mapping[s] for s in self.names]
+        flows = self.flows.groupby(key, sort=False).sum().T.groupby(key, sort=False).sum().T
+        flows = flows.loc[new, new]
+
+        def rows(s: pd.Series) -> pd.Series:
+            return s.groupby(key, sort=False).sum().loc[new]
+
+        lab = None if self.labour is None else self.labour.T.groupby(key, sort=False).sum().T
+        fd = None if self.final_demand is None else self.final_demand.groupby(
+            key, sort=False).sum().loc[new]
+        va = None if self.value_added is None else rows(self.value_added)
+        return TransactionsTable(flows, rows(self.gross_output),
+                                 None if lab is None else lab[new],
+                                 final_demand=fd, value_added=va)
+
+    def to_economy(self, *, capital=None, capital_coefficients=None, capital_stocks=None,
+                   **kwargs: Any) -> Economy:
+        """The :class:`Economy` with coefficients of this table.
+
+        Parameters
+        ----------
+        capital : dict or DataFrame, optional
+            Capital of each sector (CapitalSpec fields); ``initial_capacity``
+            defaults to gross output divided by ``max_utilisation``.
+        capital_coefficients : DataFrame, optional
+            ``B`` directly.
+        capital_stocks : DataFrame, optional
+            Capital stock of commodity ``i`` (rows) held by sector ``j``
+            (columns); ``b_ij = stock_ij / capacity_j``.
+        """
+        spec = None
+        if capital is not None:
+            spec = _capital_specs(capital, self.names, self.gross_output)
+        if capital_stocks is not None:
+            if spec is None:
+                raise invalid("capital", "be given with capital_stocks (capacity divides them)",
+                              None)
+            capacity = pd.Series({k: s.initial_capacity for k, s in spec.items()})
+            capital_coefficients = capital_coefficients_from_stocks(capital_stocks, capacity)
+        return Economy(sectors=self.names, input_coefficients=self.input_coefficients(),
+                       capital_coefficients=capital_coefficients,
+                       labour_coefficients=self.labour_coefficients(), capital=spec, **kwargs)
+
+
+def capital_coefficients_from_stocks(stocks: pd.DataFrame, capacity: pd.Series) -> pd.DataFrame:
+    """``b_ij = stock_ij / capacity_j`` (a zero capacity is an error)."""
+    stocks = _numeric(read_frame(stocks, what="capital_stocks"), "capital_stocks").fillna(0.0)
+    names = list(capacity.index)
+    try:
+        cols = align_labels(stocks.columns, names, "capital_stocks", "column")
+        rows = align_labels(stocks.index, names, "capital_stocks", "row")
+    except Rule as exc:
+        raise raise_plain(exc, "") from None
+    stocks = stocks.iloc[rows, cols]
+    zero = [n for n in names if not capacity[n] > 0]
+    if zero:
+        raise invalid("capital.initial_capacity", "be > 0 to turn capital stocks into "
+                      "coefficients", zero)
+    return stocks.div(capacity, axis=1)
+
+
+def _capital_specs(capital: Any, names: list[str], gross: pd.Series) -> dict[str, CapitalSpec]:
+    if isinstance(capital, dict):
+        items = capital
+    else:
+        frame = capital if isinstance(capital, pd.DataFrame) else read_frame(capital,
+                                                                            what="capital")
+        unknown = [c for c in frame.columns if c not in CAPITAL_COLUMNS]
+        if unknown:
+            raise invalid("capital", f"have only the columns {sorted(CAPITAL_COLUMNS)}",
+                          unknown)
+        items = {}
+        for name, row in frame.iterrows():
+            entry = {k: v for k, v in row.items() if not (isinstance(v, float) and np.isnan(v))}
+            if isinstance(entry.get("spending_profile"), str):
+                try:
+                    entry["spending_profile"] = [float(p) for p in
+                                                 entry["spending_profile"].split(";")]
+                except ValueError:
+                    raise invalid(f"capital.{name}.spending_profile",
+                                  "be shares separated by ';'", row["spending_profile"]) from None
+            for k in ("lead_time",):
+                if k in entry and isinstance(entry[k], float) and entry[k].is_integer():
+                    entry[k] = int(entry[k])
+            items[str(name)] = entry
+    out: dict[str, Any] = {}
+    for name, entry in items.items():
+        if isinstance(entry, dict) and "initial_capacity" not in entry and name in gross.index:
+            entry = {**entry, "initial_capacity": float(gross[name]) / float(
+                entry.get("max_utilisation", 1.0) or 1.0)}
+        out[name] = entry
+    try:
+        unknown = [k for k in out if k not in names]
+        missing = [k for k in names if k not in out]
+        if unknown or missing:
+            raise invalid("capital", f"name every sector once (missing {missing}; unknown "
+                          f"{unknown})", sorted(out))
+        return {k: v if isinstance(v, CapitalSpec) else _spec(k, v) for k, v in out.items()}
+    except InvalidInput:
+        raise
+
+
+def _spec(name: str, entry: dict) -> CapitalSpec:
+    try:
+        return CapitalSpec(**entry)
+    except InvalidInput as exc:
+        msg = str(exc)
+        raise InvalidInput(f"capital.{name}.{msg}" if not msg.startswith("capital") else msg,
+                           field=f"capital.{name}.{exc.field}") from None
+
+
+def read_transactions(source: Any) -> TransactionsTable:
+    """Read a transactions table in the layout described in this module."""
+    frame = read_frame(source, what="flows")
+    lower = {str(i).lower(): i for i in frame.index}
+    if "gross_output" not in lower:
+        raise invalid("flows", "have a row 'gross_output'", list(frame.index))
+    special = [i for i in frame.index if str(i).lower() in SPECIAL_ROWS
+               or str(i).lower().startswith("labour")]
+    fd_cols = [c for c in frame.columns if c.lower().startswith("final_demand")]
+    sector_cols = [c for c in frame.columns if c not in fd_cols]
+    body = frame.drop(index=special)
+    flows = body[sector_cols]
+    gross = frame.loc[lower["gross_output"], sector_cols]
+    lab_rows = [i for i in special if str(i).lower().startswith("labour")]
+    labour = None
+    if lab_rows:
+        labour = frame.loc[lab_rows, sector_cols]
+        labour.index = ["labour" if r.lower() == "labour" else r.split(":", 1)[1].strip()
+                        for r in lab_rows]
+    fd = body[fd_cols] if fd_cols else None
+    va = frame.loc[lower["value_added"], sector_cols] if "value_added" in lower else None
+    return TransactionsTable(flows, gross, labour, final_demand=fd, value_added=va)
