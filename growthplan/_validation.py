@@ -44,9 +44,12 @@ def translate(exc: ValidationError, model: str) -> GrowthplanError:
     for err in exc.errors(include_url=False):
         loc = _loc(err.get("loc", ()))
         cause = (err.get("ctx") or {}).get("error")
-        if isinstance(cause, GrowthplanError) and not isinstance(cause, Rule):
+        if type(cause) is InvalidInput:  # raised by a nested model: add the path
+            field = ".".join(p for p in (loc, cause.field) if p)
+            text = f"{loc}.{cause}" if loc else str(cause)
+        elif isinstance(cause, GrowthplanError) and not isinstance(cause, Rule):
             return cause  # a domain error with its own type (e.g. UnproductiveEconomy)
-        if isinstance(cause, Rule):
+        elif isinstance(cause, Rule):
             field = ".".join(p for p in (loc, cause.field) if p) or model
             text = str(invalid(field, cause.rule, cause.value, hint=cause.hint))
         elif err["type"] == "missing":

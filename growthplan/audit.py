@@ -163,12 +163,16 @@ def audit_schedules(plan, output: np.ndarray, starts: np.ndarray,
         add("starts ceiling", starts[rows, j] - sc.at_most, starts[rows, j] + sc.at_most,
             [f"starts ceiling {years[r]} {sc.sector}" for r in rows])
     if plan.terminal is not None:
-        from .capital import starts_per_capacity
-
         for j, name in enumerate(names):
             spec = econ.capital[name]
-            psi = starts_per_capacity(spec.survival(), plan.terminal.rate,
-                                      lead_time=spec.lead_time)[0]
+            s = spec.survival()
+            growth = (1.0 + plan.terminal.rate) ** -np.arange(s.size, dtype=float)
+            if spec.retirement == "geometric":  # closed form of the infinite sum
+                d = spec.declining_balance / spec.mean_service_life
+                total = (1 + plan.terminal.rate) / (plan.terminal.rate + d)
+            else:
+                total = float(np.sum(s * growth))
+            psi = (1.0 + plan.terminal.rate) ** spec.lead_time / total
             for t in range(len(years) - max(spec.lead_time, 1), len(years)):
                 if t >= 0:
                     need = psi * cap[t, j]

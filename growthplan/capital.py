@@ -51,7 +51,9 @@ __all__ = [
 Profile = Literal["sudden_exit", "linear", "geometric", "weibull", "lognormal"]
 PROFILES: tuple[str, ...] = ("sudden_exit", "linear", "geometric", "weibull", "lognormal")
 DEFAULT_SHAPE = {"weibull": 2.0, "lognormal": 0.5}
+SHAPE_RANGE = {"weibull": (0.3, 20.0), "lognormal": (0.01, 2.0)}
 _TAIL = 1e-12
+MAX_AGE = 5000  # default length of a geometric profile with a very long life
 
 
 def _check(profile: str, mean_life: float, shape: float | None, declining_balance: float):
@@ -61,8 +63,9 @@ def _check(profile: str, mean_life: float, shape: float | None, declining_balanc
         raise invalid("mean_service_life", "be a finite number >= 1 year", mean_life)
     if profile in DEFAULT_SHAPE:
         shape = DEFAULT_SHAPE[profile] if shape is None else shape
-        if not (np.isfinite(shape) and shape > 0):
-            raise invalid("shape", f"be a finite number > 0 for the {profile} profile", shape)
+        lo, hi = SHAPE_RANGE[profile]
+        if not (np.isfinite(shape) and lo <= shape <= hi):
+            raise invalid("shape", f"be in [{lo}, {hi}] for the {profile} profile", shape)
     if profile == "geometric" and not (
         np.isfinite(declining_balance) and 0 < declining_balance <= mean_life
     ):
@@ -132,7 +135,7 @@ def _calibrated(profile: str, mean_life: float, shape: float) -> tuple[float, in
         lo, hi = 1e-9, 2.0 * mean_life + 2.0
     else:
         dist = lifetime_distribution(profile, mean_life, shape)
-        horizon = int(math.ceil(dist.isf(_TAIL) * 3.0)) + 2
+        horizon = int(min(math.ceil(dist.isf(_TAIL) * 3.0) + 2, 100 * mean_life + 1000))
 
         def total(s: float) -> float:
             return float(_continuous(profile, shape, s, np.arange(horizon, dtype=float)).sum())
@@ -198,7 +201,8 @@ def survival(
         if delta >= 1.0:
             s = np.array([1.0])
         else:
-            end = max_age if max_age is not None else int(math.log(_TAIL) / math.log1p(-delta))
+            end = max_age if max_age is not None else min(
+                int(math.log(_TAIL) / math.log1p(-delta)), MAX_AGE)
             s = (1.0 - delta) ** np.arange(end + 1, dtype=float)
     else:
         scale, horizon = _calibrated(profile, float(mean_life), float(shape or 0.0))
@@ -225,7 +229,8 @@ def _discounted_sum(s: np.ndarray, g: float) -> float:
 
 
 def starts_per_capacity(
-    s: np.ndarray, g: float, *, lead_time: int = 1, spending: np.ndarray | None = None
+    s: np.ndarray | None, g: float, *, lead_time: int = 1, spending: np.ndarray | None = None,
+    delta: float | None = None,
 ) -> tuple[float, float]:
     """Starts and capital deliveries per unit of capacity on a path growing at ``g``.
 
@@ -234,11 +239,18 @@ def starts_per_capacity(
     ``(1+g)^θ / Σ_a S(a)(1+g)^-a``, and deliveries of capital goods per unit
     of capacity are that times ``Σ_s w(s)(1+g)^-s``.
 
+    With ``delta`` (geometric profile) the sum has the closed form
+    ``Σ_a (1−δ)^a (1+g)^-a = (1+g)/(g+δ)`` and ``s`` is not used.
+
     Returns
     -------
     (starts, deliveries) : tuple of float
     """
-    ratio = (1.0 + g) ** lead_time / _discounted_sum(s, g)
+    if delta is not None:
+        total = (1.0 + g) / (g + delta) if g + delta > 0 else np.inf
+    else:
+        total = _discounted_sum(s, g)
+    ratio = (1.0 + g) ** lead_time / total
     if spending is None or len(spending) == 0:
         return ratio, ratio
     w = np.asarray(spending, dtype=float)

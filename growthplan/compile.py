@@ -20,7 +20,6 @@ from scipy import sparse
 
 from . import objectives as obj
 from ._validation import Rule
-from .capital import starts_per_capacity
 
 __all__ = ["Block", "LinearProgram", "PlanData", "compile_plan"]
 
@@ -189,9 +188,7 @@ def _plan_data(plan) -> PlanData:
     rate = plan.terminal.rate if plan.terminal is not None else None
     psi = None
     if rate is not None:
-        psi = np.array([starts_per_capacity(surv_full, rate, lead_time=int(s.lead_time))[0]
-                        for s, surv_full in zip(specs, [s.survival() for s in specs],
-                                                strict=True)])
+        psi = np.array([s.starts_per_capacity(rate) for s in specs])
     if isinstance(plan.objective, obj.LeastLabour) and labour_all.shape[0] == 0:
         raise Rule("come with labour coefficients in the economy", None, field="objective")
     return PlanData(

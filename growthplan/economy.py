@@ -147,10 +147,20 @@ class CapitalSpec(Model):
         return cap.initial_survival(self.survival(), horizon, past_growth=self.past_growth,
                                     history=hist)
 
+    def _per_capacity(self, g: float) -> tuple[float, float]:
+        geometric = self.retirement == "geometric"
+        return cap.starts_per_capacity(
+            None if geometric else self.survival(), g, lead_time=self.lead_time,
+            spending=np.asarray(self.spending_profile),
+            delta=self.declining_balance / self.mean_service_life if geometric else None)
+
+    def starts_per_capacity(self, g: float) -> float:
+        """Capacity starts per unit of capacity on a path growing at ``g``."""
+        return self._per_capacity(g)[0]
+
     def deliveries_per_capacity(self, g: float) -> float:
         """Capital goods delivered per unit of capacity on a path growing at ``g``."""
-        return cap.starts_per_capacity(self.survival(), g, lead_time=self.lead_time,
-                                       spending=np.asarray(self.spending_profile))[1]
+        return self._per_capacity(g)[1]
 
 
 def _is_number(v: Any) -> bool:
@@ -207,6 +217,8 @@ class Economy(Model):
             return data
         if isinstance(raw, str | bytes) or not hasattr(raw, "__iter__"):
             raise Rule("be a list of sector names", raw, field="sectors")
+        if any(isinstance(s, str) and not s.strip() for s in raw):
+            raise Rule("be non-empty names", list(raw), field="sectors")
         sectors = [Sector(name=s) if isinstance(s, str) else s for s in raw]
         names = [s.name if isinstance(s, Sector) else (s.get("name") if isinstance(s, dict)
                  else s) for s in sectors]
