@@ -144,6 +144,9 @@ class CapitalSpec(Model):
     def initial_survival(self, horizon: int) -> np.ndarray:
         """Share of the initial capacity still in service in years ``0..horizon``."""
         hist = None if self.investment_history is None else np.asarray(self.investment_history)
+        if self.retirement == "geometric" and hist is None:  # memoryless: age does not matter
+            return (1.0 - self.declining_balance / self.mean_service_life) ** np.arange(
+                horizon + 1, dtype=float)
         return cap.initial_survival(self.survival(), horizon, past_growth=self.past_growth,
                                     history=hist)
 
