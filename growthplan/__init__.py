@@ -7,6 +7,8 @@ from here.
 from importlib.metadata import PackageNotFoundError, version
 
 from . import capital, objectives
+from .audit import Audit
+from .compile import LinearProgram
 from .economy import CapitalSpec, Economy, Sector
 from .errors import (
     EndEffectsWarning,
@@ -20,8 +22,6 @@ from .errors import (
     SolverFailure,
     UnproductiveEconomy,
 )
-from .audit import Audit
-from .compile import LinearProgram
 from .expanding import ExpandingEconomy, expanding_economy
 from .plan import Consumption, LabourSupply, Plan, StartsCeiling, Target, TerminalGrowth
 from .result import CAUTION, PlanResult

@@ -19,7 +19,7 @@ from .errors import InvalidInput, SolverFailure, invalid
 __all__ = ["Status", "SolverOutcome", "solve_highs", "choose_method", "METHODS"]
 
 
-class Status(str, enum.Enum):
+class Status(enum.StrEnum):
     """Outcome of a plan solve."""
 
     OPTIMAL = "optimal"

@@ -196,7 +196,8 @@ def power_iteration(m, *, tol: float = 1e-12, max_iter: int = 100_000,
     """
     n = m.shape[0]
     v = np.full(n, 1.0 / n) if start is None else np.asarray(start, float) / np.sum(start)
-    for k in range(1, max_iter + 1):
+    steps = 0
+    for steps in range(1, max_iter + 1):  # noqa: B007 (the count is returned)
         w = m @ v
         total = w.sum()
         if total <= 0:
@@ -211,7 +212,7 @@ def power_iteration(m, *, tol: float = 1e-12, max_iter: int = 100_000,
         raise NoBalancedGrowth(f"The power iteration did not converge to {tol:g} in "
                                f"{max_iter} steps.")
     rho = float((m @ v).sum() / v.sum())
-    return rho, v, k
+    return rho, v, steps
 
 
 def dynamic_growth(a: np.ndarray, b: np.ndarray, deliveries_per_capacity,

@@ -182,7 +182,7 @@ class TransactionsTable:
             raise invalid("mapping", f"map every sector once (missing {missing}; unknown "
                           f"{unknown})", sorted(mapping))
         new = list(dict.fromkeys(mapping[s] for s in self.names))
-        key = [mapping[s] for s in self.names]
+        key = np.array([mapping[s] for s in self.names], dtype=object)  # an array, not labels
         flows = self.flows.groupby(key, sort=False).sum().T.groupby(key, sort=False).sum().T
         flows = flows.loc[new, new]
 

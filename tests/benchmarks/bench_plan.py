@@ -1,0 +1,121 @@
+"""Benchmark: the library's time split, its overhead, and a naive PuLP route.
+
+Run: python tests/benchmarks/bench_plan.py [--sizes 30x20,60x25,100x30] [--methods]
+
+For dense random productive economies (sectors × years) it prints, from one
+run each: seconds for validate, compile, solve, post-process and audit; the
+overhead ratio (everything but the solve, over the solve); and the ratio of
+the library's end-to-end time to a naive route that builds the same LP term
+by term in PuLP and solves it with PuLP's default HiGHS call. With
+``--methods`` it also times each HiGHS method on the same plan.
+"""
+
+from __future__ import annotations
+
+import argparse
+import time
+import warnings
+
+import numpy as np
+import pulp
+
+import growthplan as gp
+from growthplan.solvers import solve_highs
+
+
+def economy(n: int, seed: int = 1) -> gp.Economy:
+    rng = np.random.default_rng(seed)
+    a = rng.uniform(0, 1, (n, n))
+    a *= 0.6 / a.sum(axis=0).max()
+    b = rng.uniform(0, 1, (n, n))
+    b *= 2.0 / b.sum(axis=0).max()
+    names = [f"s{i}" for i in range(n)]
+    cap = {s: gp.CapitalSpec(initial_capacity=float(rng.uniform(50, 150)),
+                             mean_service_life=20.0) for s in names}
+    return gp.Economy(sectors=names, input_coefficients=a, capital_coefficients=b,
+                      labour_coefficients=[rng.uniform(0.1, 1.0, n)], capital=cap)
+
+
+def make_plan(econ: gp.Economy, years: int) -> gp.Plan:
+    supply = float((np.asarray(econ.labour_coefficients) @ np.full(econ.n, 100.0))[0])
+    return gp.Plan(economy=econ, years=range(2030, 2030 + years),
+                   labour=gp.LabourSupply(start=supply, growth=0.01),
+                   objective=gp.objectives.TerminalCapacity(
+                       proportions={s: 1.0 for s in econ.names}))
+
+
+def naive(plan: gp.Plan) -> tuple[float, float, float]:
+    """Build the same LP term by term in PuLP and solve it with PuLP's HiGHS class."""
+    t0 = time.perf_counter()
+    econ = plan.economy
+    n, T = econ.n, plan.horizon
+    a, b = np.asarray(econ.input_coefficients), np.asarray(econ.capital_coefficients)
+    lab = np.asarray(econ.labour_coefficients)[0]
+    c0 = [econ.capital[s].initial_capacity for s in econ.names]
+    delta = 1 / 20.0
+    supply = plan.labour_supply()[0]
+    prob = pulp.LpProblem("naive", pulp.LpMaximize)
+    x = [[prob.add_variable(f"x_{t}_{j}", lowBound=0) for j in range(n)] for t in range(T)]
+    z = [[prob.add_variable(f"z_{t}_{j}", lowBound=0) for j in range(n)] for t in range(T)]
+    lam = prob.add_variable("lam")
+    prob += lam
+
+    def capacity(t, j):
+        return c0[j] * (1 - delta) ** t + pulp.lpSum(
+            (1 - delta) ** (t - tau - 1) * z[tau][j] for tau in range(t))
+
+    for t in range(T):
+        for i in range(n):
+            prob += (x[t][i] - pulp.lpSum(a[i, j] * x[t][j] for j in range(n))
+                     - pulp.lpSum(b[i, j] * z[t][j] for j in range(n)) >= 0)
+        for j in range(n):
+            prob += x[t][j] <= capacity(t, j)
+        prob += pulp.lpSum(lab[j] * x[t][j] for j in range(n)) <= supply[t]
+    pi = 1.0 / n
+    for j in range(n):
+        prob += capacity(T, j) >= pi * lam
+    t1 = time.perf_counter()
+    prob.solve(pulp.HiGHS(msg=False))
+    t2 = time.perf_counter()
+    return t1 - t0, t2 - t1, pulp.value(prob.objective)
+
+
+def run(n: int, years: int, methods: bool) -> None:
+    econ = economy(n)
+    t0 = time.perf_counter()
+    plan = make_plan(econ, years)
+    t_val = time.perf_counter() - t0
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        t1 = time.perf_counter()
+        r = plan.solve()
+        total = time.perf_counter() - t1 + t_val
+    tm = dict(r.timings, validate=t_val)
+    overhead = total - tm["solve"]
+    lp = r.lp
+    print(f"\n{n} sectors x {years} years: {lp.shape[0]} rows, {lp.shape[1]} columns, "
+          f"{lp.nnz} nonzeros; status {r.status.value}, method {r.solver['method']}")
+    print("  " + ", ".join(f"{k} {v:.3f} s" for k, v in tm.items()))
+    print(f"  overhead / solve = {overhead / tm['solve']:.3f}")
+    build, solve, obj = naive(plan)
+    print(f"  naive PuLP route: build {build:.3f} s, solve {solve:.3f} s "
+          f"(objective {obj:.6g} vs {r.objective:.6g})")
+    print(f"  library end-to-end / naive = {total / (build + solve):.3f}")
+    if methods:
+        for m in ("simplex", "ipm", "ipm-crossover"):
+            out = solve_highs(lp, method=m)
+            print(f"  method {m:>13}: {out.seconds:.3f} s, objective {out.objective:.8g}")
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--sizes", default="30x20,60x25,100x30")
+    ap.add_argument("--methods", action="store_true")
+    args = ap.parse_args()
+    for size in args.sizes.split(","):
+        n, years = map(int, size.split("x"))
+        run(n, years, args.methods)
+
+
+if __name__ == "__main__":
+    main()
