@@ -514,6 +514,9 @@ class Economy(Model):
     def __hash__(self) -> int:
         return hash(self.to_json())
 
+    def __str__(self) -> str:
+        return self.__repr__()
+
     def __repr__(self) -> str:
         return f"Economy({self.n} sectors: {', '.join(self.names[:6])}{'…' if self.n > 6 else ''})"
 

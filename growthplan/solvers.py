@@ -14,9 +14,10 @@ from dataclasses import dataclass, field
 import highspy
 import numpy as np
 
-from .errors import InvalidInput, SolverFailure, invalid
+from .errors import SolverFailure, invalid
 
-__all__ = ["Status", "SolverOutcome", "solve_highs", "choose_method", "METHODS"]
+__all__ = ["Status", "SolverOutcome", "solve_highs", "choose_method", "METHODS", "to_pulp",
+           "cbc_solver"]
 
 
 class Status(enum.StrEnum):
@@ -186,12 +187,6 @@ def solve_highs(lp, *, method: str = "auto", time_limit: float | None = None,
                          x=x, row_dual=row_dual, col_dual=col_dual, method=method,
                          iterations=iters, seconds=seconds, options=chosen,
                          highs_version=highs_version())
-
-
-def check_method(method: str) -> None:
-    if method != "auto" and method not in METHODS:
-        raise InvalidInput(f"method must be 'auto' or one of {sorted(METHODS)}. Got {method!r}.",
-                           field="method")
 
 
 def _sanitise(names: list[str]) -> list[str]:

@@ -313,6 +313,19 @@ class TestSolverOutcomes:
         with pytest.raises(gp.SolverFailure):
             r.raise_for_status()
 
+    def test_time_limit_is_not_a_plan(self):
+        import sys
+        from pathlib import Path
+
+        sys.path.insert(0, str(Path(__file__).parent / "benchmarks"))
+        from bench_plan import economy, make_plan
+
+        r = make_plan(economy(30), 20).solve(method="simplex", time_limit=0.01)
+        assert r.status is gp.Status.TIME_LIMIT and r.message == "Time limit reached"
+        assert not r.ok
+        with pytest.raises(gp.PlanNotOptimal, match="time_limit"):
+            _ = r.output
+
     def test_bad_option_is_an_error(self):
         plan = gp.Plan(economy=one_sector(), years=YEARS)
         with pytest.raises(gp.InvalidInput, match="options.no_such_option"):
