@@ -9,6 +9,7 @@ from importlib.metadata import PackageNotFoundError, version
 from . import capital, objectives
 from .audit import Audit
 from .compile import LinearProgram
+from .diagnose import Diagnosis
 from .economy import CapitalSpec, Economy, Sector
 from .errors import (
     EndEffectsWarning,
@@ -38,6 +39,7 @@ __all__ = [
     "Audit",
     "CAUTION",
     "Consumption",
+    "Diagnosis",
     "LabourSupply",
     "LinearProgram",
     "Plan",

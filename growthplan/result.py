@@ -130,8 +130,15 @@ class PlanResult:
                     "terminal=TerminalGrowth(rate=...) to value the years after the plan.")
             notes.append(text)
             warnings.warn(text, EndEffectsWarning, stacklevel=3)
-        return cls(plan, lp, outcome, timings=timings, audit=audit, frames=frames,
-                   status=status, notes=notes)
+        result = cls(plan, lp, outcome, timings=timings, audit=audit, frames=frames,
+                     status=status, notes=notes)
+        if status in (Status.INFEASIBLE, Status.INFEASIBLE_OR_UNBOUNDED):
+            from .diagnose import diagnose
+
+            t3 = time.perf_counter()
+            result.diagnosis = diagnose(lp)
+            result.timings["diagnose"] = time.perf_counter() - t3
+        return result
 
     # -- status -----------------------------------------------------------------
     @property
