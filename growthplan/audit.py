@@ -92,6 +92,7 @@ def recompute_deliveries(plan, starts: np.ndarray) -> np.ndarray:
 def audit_schedules(plan, output: np.ndarray, starts: np.ndarray,
                     consumption: np.ndarray | None, *, reported_capacity: np.ndarray,
                     reported_deliveries: np.ndarray, level: float | None,
+                    imports: np.ndarray | None = None, exports: np.ndarray | None = None,
                     tolerance: float = 1e-6) -> Audit:
     """Check every condition of ``plan`` against the schedules.
 
@@ -105,6 +106,8 @@ def audit_schedules(plan, output: np.ndarray, starts: np.ndarray,
     reported_deliveries : array, years × commodities
     level : float or None
         Terminal-capacity level ``λ`` the result claims.
+    imports, exports : array, years × traded goods, optional
+        In the order of the economy's sectors that have an import (export) price.
     """
     econ = plan.economy
     names, years = econ.names, plan.years
@@ -124,7 +127,35 @@ def audit_schedules(plan, output: np.ndarray, starts: np.ndarray,
 
     intermediate = output @ a.T
     use = intermediate + deliv + kappa[:, None] * basket[None, :] + demand
-    add("balance", use - output, output + intermediate + deliv + demand
+    supply = output.copy()
+    trade_scale = np.zeros_like(output)
+    td = plan.trade_data()
+    if td is not None:
+        t_years = [f"{y}" for y in years]
+        for side, flows, sign in (("import", imports, 1.0), ("export", exports, -1.0)):
+            goods, prices, ceil = td[side]
+            if not goods:
+                continue
+            for i, g in enumerate(goods):
+                j = names.index(g)
+                supply[:, j] += sign * flows[:, i]
+                trade_scale[:, j] += np.abs(flows[:, i])
+            add(f"{side} ceiling", flows - ceil, np.abs(flows) + np.where(np.isfinite(ceil),
+                                                                          ceil, 0.0),
+                [f"{side} {y} {g}" for y in years for g in goods])
+            add(f"non-negative {side}s", -flows, flows,
+                [f"{side} {y} {g}" for y in years for g in goods])
+        spend = np.zeros(len(years))
+        scale = np.zeros(len(years))
+        if td["import"][0]:
+            spend += imports @ td["import"][1]
+            scale += np.abs(imports) @ td["import"][1]
+        if td["export"][0]:
+            spend -= exports @ td["export"][1]
+            scale += np.abs(exports) @ td["export"][1]
+        add("foreign exchange", spend - td["inflow"], scale + td["inflow"],
+            [f"foreign exchange {y}" for y in t_years])
+    add("balance", use - supply, output + intermediate + deliv + demand + trade_scale
         + kappa[:, None] * basket[None, :], grid("balance"))
     util = np.array([econ.capital[k].max_utilisation for k in names])
     add("capacity", output - util * cap[:-1], output + util * cap[:-1], grid("capacity"))

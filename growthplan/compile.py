@@ -79,6 +79,7 @@ class PlanData:
     terminal_rate: float | None
     psi: np.ndarray | None
     has_consumption: bool
+    trade: dict | None = None
 
 
 @dataclass
@@ -113,6 +114,7 @@ class LinearProgram:
     row_sign: np.ndarray
     data: PlanData
     target_info: list[dict] = field(default_factory=list)
+    stages: list[tuple[np.ndarray, str]] = field(default_factory=list)
 
     @property
     def shape(self) -> tuple[int, int]:
@@ -186,14 +188,12 @@ def _plan_data(plan) -> PlanData:
     sup_kinds = [ls.kind for ls in plan.labour]
     labour = labour_all[[kinds.index(k) for k in sup_kinds]] if sup_kinds else np.zeros((0, n))
     proportions, source = (None, "")
-    if isinstance(plan.objective, obj.TerminalCapacity):
+    if any(isinstance(c, obj.TerminalCapacity) for c in obj.components(plan.objective)):
         proportions, source = plan.terminal_proportions()
     rate = plan.terminal.rate if plan.terminal is not None else None
     psi = None
     if rate is not None:
         psi = np.array([s.starts_per_capacity(rate) for s in specs])
-    if isinstance(plan.objective, obj.LeastLabour) and labour_all.shape[0] == 0:
-        raise Rule("come with labour coefficients in the economy", None, field="objective")
     return PlanData(
         names=names, years=years, a=np.asarray(econ.input_coefficients), b=b, labour=labour,
         labour_kinds=sup_kinds, labour_all=labour_all, supply=plan.labour_supply(),
@@ -202,7 +202,7 @@ def _plan_data(plan) -> PlanData:
         demand=plan.exogenous_demand(), theta=theta, spending=spending, surv=surv, base=base,
         pipe_deliveries=pipe_del, util=util, upper_starts=upper, proportions=proportions,
         proportions_source=source, terminal_rate=rate, psi=psi,
-        has_consumption=plan.consumption is not None)
+        has_consumption=plan.consumption is not None, trade=plan.trade_data())
 
 
 def capacity_operator(d: PlanData) -> sparse.csr_array:
@@ -298,6 +298,14 @@ def compile_plan(plan) -> LinearProgram:
     zb = bld.col("starts", (T, n), (years, names))
     kb = bld.col("consumption", (T,), (years,)) if d.has_consumption else None
     lb = bld.col("level", (), ()) if d.proportions is not None else None
+    imb = exb = None
+    if d.trade is not None:
+        imp_goods, imp_price, _ = d.trade["import"]
+        exp_goods, exp_price, _ = d.trade["export"]
+        if imp_goods:
+            imb = bld.col("imports", (T, len(imp_goods)), (years, imp_goods))
+        if exp_goods:
+            exb = bld.col("exports", (T, len(exp_goods)), (years, exp_goods))
 
     g = capacity_operator(d)
     g_plan = g[: T * n]
@@ -308,6 +316,12 @@ def compile_plan(plan) -> LinearProgram:
     if kb is not None:
         bal["consumption"] = sparse.kron(eye_t, sparse.csr_array(-d.basket[:, None]),
                                          format="csr")
+    for blk, side, sign in ((imb, "import", 1.0), (exb, "export", -1.0)):
+        if blk is not None:
+            goods = d.trade[side][0]
+            sel = np.zeros((n, len(goods)))
+            sel[[names.index(g) for g in goods], np.arange(len(goods))] = sign
+            bal[blk.name] = sparse.kron(eye_t, sparse.csr_array(sel), format="csr")
     bld.row("balance", (T, n), (years, names), bal, d.demand + d.pipe_deliveries, INF)
     # 2. capacity: x_jt − u_j G z ≤ u_j base_jt
     ucol = np.tile(d.util, T)
@@ -321,6 +335,16 @@ def compile_plan(plan) -> LinearProgram:
         rows_lab = sparse.kron(eye_t, sparse.csr_array(d.labour), format="csr")
         bld.row("labour", (T, k), (years, d.labour_kinds), {"output": rows_lab}, -INF,
                 d.supply.T)
+    # 3b. foreign exchange: p^m m_t − p^e e_t ≤ F_t
+    if imb is not None or exb is not None:
+        fx = {}
+        if imb is not None:
+            fx["imports"] = sparse.kron(eye_t, sparse.csr_array(imp_price[None, :]),
+                                        format="csr")
+        if exb is not None:
+            fx["exports"] = sparse.kron(eye_t, sparse.csr_array(-exp_price[None, :]),
+                                        format="csr")
+        bld.row("foreign_exchange", (T,), (years,), fx, -INF, d.trade["inflow"])
     # 4-5. consumption floor and fall
     if kb is not None:
         bld.row("consumption_floor", (T,), (years,), {"consumption": eye_t}, d.floor, INF)
@@ -378,21 +402,44 @@ def compile_plan(plan) -> LinearProgram:
                  "level": sparse.csr_array(-d.proportions[:, None])}, -base[T], INF)
 
     ncol = bld.ncol
-    cost = np.zeros(ncol)
+
+    def cost_of(o) -> np.ndarray:
+        c = np.zeros(ncol)
+        if isinstance(o, obj.TerminalCapacity):
+            c[lb.start] = 1.0
+        elif isinstance(o, obj.DiscountedConsumption):
+            c[kb.start:kb.stop] = (1.0 + o.rate) ** -np.arange(T, dtype=float)
+        elif isinstance(o, obj.LeastLabour):
+            c[xb.start:xb.stop] = np.tile(d.labour_all.sum(axis=0), T)
+        elif isinstance(o, obj.LeastForeignExchange):
+            if imb is not None:
+                c[imb.start:imb.stop] = np.tile(d.trade["import"][1], T)
+            if exb is not None:
+                c[exb.start:exb.stop] = -np.tile(d.trade["export"][1], T)
+        return c
+
     o = plan.objective
-    if isinstance(o, obj.TerminalCapacity):
-        cost[lb.start] = 1.0
-    elif isinstance(o, obj.DiscountedConsumption):
-        cost[kb.start:kb.stop] = (1.0 + o.rate) ** -np.arange(T, dtype=float)
-    elif isinstance(o, obj.LeastLabour):
-        cost[xb.start:xb.stop] = np.tile(d.labour_all.sum(axis=0), T)
+    if isinstance(o, obj.Fastest):
+        o = o.then
+    if isinstance(o, obj.Weighted):
+        cost = sum(t.weight * (1.0 if t.objective.sense == "max" else -1.0)
+                   * cost_of(t.objective) for t in o.terms)
+        stages = [(cost, "max")]
+    elif isinstance(o, obj.Lexicographic):
+        stages = [(cost_of(p), p.sense) for p in o.objectives]
+    else:
+        stages = [(cost_of(o), o.sense)]
+    cost, sense = stages[0]
     col_lower = np.zeros(ncol)
     col_upper = np.full(ncol, INF)
     col_upper[zb.start:zb.stop] = d.upper_starts.ravel()
     if lb is not None:
         col_lower[lb.start] = -INF
+    for blk, side in ((imb, "import"), (exb, "export")):
+        if blk is not None:
+            col_upper[blk.start:blk.stop] = d.trade[side][2].ravel()
     return LinearProgram(
         matrix=bld.matrix(), row_lower=np.concatenate(bld.lower),
         row_upper=np.concatenate(bld.upper), col_lower=col_lower, col_upper=col_upper,
-        cost=cost, sense=o.sense, rows=bld.rows, cols=bld.cols,
-        row_sign=np.concatenate(bld.sign), data=d, target_info=info)
+        cost=cost, sense=sense, rows=bld.rows, cols=bld.cols,
+        row_sign=np.concatenate(bld.sign), data=d, target_info=info, stages=stages)

@@ -6,14 +6,16 @@ into the LP's cost vector (MODEL.md §4).
 
 from __future__ import annotations
 
-from typing import Any, Literal
+from typing import Annotated, Any, Literal
 
 import numpy as np
-from pydantic import field_validator
+from pydantic import Field, field_validator
 
 from ._validation import Model, Rule
 
-__all__ = ["Objective", "TerminalCapacity", "DiscountedConsumption", "LeastLabour"]
+__all__ = ["Objective", "TerminalCapacity", "DiscountedConsumption", "LeastLabour",
+           "LeastForeignExchange", "Weighted", "WeightedTerm", "Lexicographic", "Fastest",
+           "components"]
 
 
 class Objective(Model):
@@ -85,3 +87,92 @@ class LeastLabour(Objective):
 
     kind: Literal["least_labour"] = "least_labour"
     sense: Literal["max", "min"] = "min"
+
+
+class LeastForeignExchange(Objective):
+    """Minimise the total net foreign-exchange outlay ``Σ_t (p^m·m_t − p^e·e_t)``."""
+
+    kind: Literal["least_foreign_exchange"] = "least_foreign_exchange"
+    sense: Literal["max", "min"] = "min"
+
+
+Simple = Annotated[TerminalCapacity | DiscountedConsumption | LeastLabour | LeastForeignExchange,
+                   Field(discriminator="kind")]
+
+
+class WeightedTerm(Model):
+    """One term of a :class:`Weighted` objective."""
+
+    objective: Simple
+    weight: float = Field(gt=0, allow_inf_nan=False)
+
+
+class Weighted(Objective):
+    """Maximise ``Σ_k w_k σ_k f_k``: a weighted sum of objectives.
+
+    ``σ_k`` is +1 for objectives that are maximised and −1 for those that are
+    minimised (least labour, least foreign exchange), so every term counts as
+    a gain. Weights carry the units: one unit of ``f_1`` is worth ``w_1/w_2``
+    units of ``f_2``.
+    """
+
+    kind: Literal["weighted"] = "weighted"
+    sense: Literal["max", "min"] = "max"
+    terms: list[WeightedTerm] = Field(min_length=1)
+
+    def __init__(self, terms: Any = None, /, **data: Any) -> None:
+        if terms is not None:
+            data["terms"] = [t if isinstance(t, WeightedTerm | dict) else
+                             {"objective": t[0], "weight": t[1]} for t in terms]
+        super().__init__(**data)
+
+
+class Lexicographic(Objective):
+    """Optimise the first objective, then each next one with the earlier ones held.
+
+    Each earlier optimum ``f*`` is kept within ``tolerance`` (relative):
+    ``f ≥ f* − tolerance·max(1, |f*|)`` for a maximised objective, ``≤`` the
+    mirror for a minimised one.
+    """
+
+    kind: Literal["lexicographic"] = "lexicographic"
+    sense: Literal["max", "min"] = "max"
+    objectives: list[Simple] = Field(min_length=1)
+    tolerance: float = Field(default=1e-6, ge=0, lt=1)
+
+    def __init__(self, objectives: Any = None, /, **data: Any) -> None:
+        if objectives is not None:
+            data["objectives"] = list(objectives)
+        super().__init__(**data)
+
+    def discount_rate(self) -> float | None:
+        return self.objectives[-1].discount_rate()
+
+
+class Fastest(Objective):
+    """The shortest horizon, in whole years up to ``max_years``, that meets every target.
+
+    Horizons are searched by bisection, each one a feasibility LP. For a
+    horizon of ``T`` years the plan's targets apply at its end: capacity
+    targets to the capacity in service in the year after the plan, output and
+    consumption targets to the last plan year (the years written in the
+    targets are replaced). The shortest feasible plan is then solved with
+    ``then``. Per-year series (labour, floors, final demand) must be given as
+    a start value and growth rate so they extend to any horizon.
+    """
+
+    kind: Literal["fastest"] = "fastest"
+    sense: Literal["max", "min"] = "max"
+    max_years: int = Field(ge=1, le=500)
+    then: Simple | Weighted = Field(default_factory=TerminalCapacity, discriminator="kind")
+
+
+def components(objective: Objective) -> list[Objective]:
+    """The simple objectives an objective is made of."""
+    if isinstance(objective, Weighted):
+        return [t.objective for t in objective.terms]
+    if isinstance(objective, Lexicographic):
+        return list(objective.objectives)
+    if isinstance(objective, Fastest):
+        return components(objective.then)
+    return [objective]

@@ -16,6 +16,7 @@ Timing conventions (MODEL.md §4, kept everywhere in the library):
 from __future__ import annotations
 
 import time
+import warnings
 from typing import Any
 
 import numpy as np
@@ -25,8 +26,10 @@ from pydantic import Field, PrivateAttr, field_validator, model_validator
 from . import objectives as obj
 from ._validation import Model, Rule
 from .economy import Economy
+from .errors import EndEffectsWarning
 
-__all__ = ["LabourSupply", "Consumption", "Target", "StartsCeiling", "TerminalGrowth", "Plan"]
+__all__ = ["LabourSupply", "Consumption", "Target", "StartsCeiling", "TerminalGrowth", "Trade",
+           "Plan"]
 
 
 def _series(value: Any, years: list[int], field: str, growth: float = 0.0) -> np.ndarray:
@@ -177,6 +180,39 @@ class TerminalGrowth(Model):
     rate: float = Field(gt=-1, allow_inf_nan=False)
 
 
+class Trade(Model):
+    """Foreign trade: which commodities can be imported or exported, at what prices.
+
+    Parameters
+    ----------
+    import_prices, export_prices : dict of str to float
+        Price in foreign currency of one unit of each importable (exportable)
+        commodity; commodities not named cannot be traded that way.
+    import_ceilings, export_ceilings : dict of str to number or per-year series
+        Largest imports (exports) per year.
+    inflow : number, list, dict or Series, default 0.0
+        Net foreign exchange the plan may draw each year (aid, credit,
+        reserves), ``p^m·m_t − p^e·e_t ≤ F_t``; a number grows at
+        ``inflow_growth``.
+    inflow_growth : float, default 0.0
+    """
+
+    import_prices: dict[str, float] = Field(default_factory=dict)
+    export_prices: dict[str, float] = Field(default_factory=dict)
+    import_ceilings: dict[str, Any] = Field(default_factory=dict)
+    export_ceilings: dict[str, Any] = Field(default_factory=dict)
+    inflow: Any = 0.0
+    inflow_growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
+
+    @field_validator("import_prices", "export_prices")
+    @classmethod
+    def _prices(cls, v: dict[str, float]) -> dict[str, float]:
+        bad = {k: p for k, p in v.items() if not (np.isfinite(p) and p > 0)}
+        if bad:
+            raise Rule("hold prices > 0", bad)
+        return v
+
+
 class Plan(Model):
     """A multi-year growth plan of an economy.
 
@@ -217,8 +253,11 @@ class Plan(Model):
     starts_ceilings: list[StartsCeiling] = Field(default_factory=list)
     under_construction: dict[str, list[float]] | None = None
     terminal: TerminalGrowth | None = None
-    objective: obj.TerminalCapacity | obj.DiscountedConsumption | obj.LeastLabour = Field(
-        default_factory=obj.TerminalCapacity, discriminator="kind")
+    trade: Trade | None = None
+    objective: (obj.TerminalCapacity | obj.DiscountedConsumption | obj.LeastLabour
+                | obj.LeastForeignExchange | obj.Weighted | obj.Lexicographic
+                | obj.Fastest) = Field(default_factory=obj.TerminalCapacity,
+                                       discriminator="kind")
     _validate_seconds: float = PrivateAttr(default=0.0)
 
     def __init__(self, /, **data: Any) -> None:
@@ -298,14 +337,35 @@ class Plan(Model):
                 arr = np.asarray(v, dtype=float)
                 if not np.all(np.isfinite(arr)) or np.any(arr < 0):
                     raise Rule("hold finite starts >= 0", v, field=f"under_construction.{k}")
-        if isinstance(self.objective, obj.DiscountedConsumption) and self.consumption is None:
-            raise Rule("come with a consumption part in the plan (the objective values it)",
-                       None, field="consumption")
-        if isinstance(self.objective, obj.TerminalCapacity) and self.objective.proportions:
-            unknown = [k for k in self.objective.proportions if k not in names]
-            if unknown:
-                raise Rule("name sectors of the economy", unknown,
-                           field="objective.proportions")
+        for part in obj.components(self.objective):
+            if isinstance(part, obj.DiscountedConsumption) and self.consumption is None:
+                raise Rule("come with a consumption part in the plan (the objective values "
+                           "it)", None, field="consumption")
+            if isinstance(part, obj.LeastLabour) and econ.labour_coefficients is None:
+                raise Rule("come with labour coefficients in the economy (the objective "
+                           "counts labour)", None, field="economy.labour_coefficients")
+            if isinstance(part, obj.LeastForeignExchange) and self.trade is None:
+                raise Rule("come with a trade part in the plan (the objective counts "
+                           "foreign exchange)", None, field="trade")
+            if isinstance(part, obj.TerminalCapacity) and part.proportions:
+                unknown = [k for k in part.proportions if k not in names]
+                if unknown:
+                    raise Rule("name sectors of the economy", unknown,
+                               field="objective.proportions")
+        if self.trade is not None:
+            t = self.trade
+            for field in ("import_prices", "export_prices", "import_ceilings",
+                          "export_ceilings"):
+                unknown = [k for k in getattr(t, field) if k not in names]
+                if unknown:
+                    raise Rule("name sectors of the economy", unknown, field=f"trade.{field}")
+            for field, prices in (("import_ceilings", t.import_prices),
+                                  ("export_ceilings", t.export_prices)):
+                loose = [k for k in getattr(t, field) if k not in prices]
+                if loose:
+                    raise Rule(f"name only commodities with a price in {field[:6]}_prices",
+                               loose, field=f"trade.{field}")
+            self.trade_data()
         self.exogenous_demand()
         return self
 
@@ -369,11 +429,30 @@ class Plan(Model):
                                              self.final_demand_growth)
         return out
 
+    def trade_data(self) -> dict[str, Any] | None:
+        """Arrays of the trade part: names, prices, ceilings (years × goods), inflow."""
+        if self.trade is None:
+            return None
+        t = self.trade
+        out: dict[str, Any] = {"inflow": _series(t.inflow, self.years, "trade.inflow",
+                                                 t.inflow_growth)}
+        for side in ("import", "export"):
+            prices = getattr(t, f"{side}_prices")
+            goods = [k for k in self.economy.names if k in prices]
+            ceil = np.full((self.horizon, len(goods)), np.inf)
+            for i, g in enumerate(goods):
+                if g in getattr(t, f"{side}_ceilings"):
+                    ceil[:, i] = _series(getattr(t, f"{side}_ceilings")[g], self.years,
+                                         f"trade.{side}_ceilings.{g}")
+            out[side] = (goods, np.array([prices[g] for g in goods]), ceil)
+        return out
+
     def terminal_proportions(self) -> tuple[np.ndarray, str]:
         """Proportions ``π`` of the terminal-capacity objective and where they came from."""
         econ = self.economy
-        o = self.objective
-        if isinstance(o, obj.TerminalCapacity) and o.proportions:
+        o = next((c for c in obj.components(self.objective)
+                  if isinstance(c, obj.TerminalCapacity)), None)
+        if o is not None and o.proportions:
             p = np.array([float(o.proportions.get(k, 0.0)) for k in econ.names])
             return p / p.sum(), "given"
         try:
@@ -418,15 +497,60 @@ class Plan(Model):
         -------
         PlanResult
         """
+        if isinstance(self.objective, obj.Fastest):
+            return self._fastest(method=method, time_limit=time_limit, threads=threads,
+                                 tolerance=tolerance, audit_tolerance=audit_tolerance,
+                                 options=options)
         from .result import PlanResult
-        from .solvers import solve_highs
+        from .solvers import solve_stages
 
         t0 = time.perf_counter()
         lp = self.compile()
         t1 = time.perf_counter()
-        outcome = solve_highs(lp, method=method, time_limit=time_limit, threads=threads,
-                              tolerance=tolerance, options=options)
+        lp, outcome = solve_stages(lp, method=method, time_limit=time_limit, threads=threads,
+                                   tolerance=tolerance, options=options,
+                                   tolerance_stage=getattr(self.objective, "tolerance", 0.0))
         timings = {"validate": self._validate_seconds, "compile": t1 - t0}
         return PlanResult.from_outcome(self, lp, outcome, timings=timings,
                                        audit_tolerance=audit_tolerance)
 
+    def with_horizon(self, years: int) -> Plan:
+        """This plan over its first ``years`` years, targets moved to the end (see Fastest)."""
+        first = self.years[0]
+        last = first + years - 1
+        targets = [t.model_copy(update={"year": last + 1 if t.what == "capacity" else last})
+                   for t in self.targets]
+        fields = {k: getattr(self, k) for k in type(self).model_fields}
+        objective = self.objective.then if isinstance(self.objective, obj.Fastest) else \
+            self.objective
+        fields.update(years=list(range(first, last + 1)), targets=targets, objective=objective)
+        return Plan(**fields)
+
+    def _fastest(self, **kw: Any):
+        o = self.objective
+        assert isinstance(o, obj.Fastest)
+        tried: dict[int, str] = {}
+        results: dict[int, Any] = {}
+
+        def attempt(years: int):
+            with warnings.catch_warnings():
+                warnings.simplefilter("ignore", EndEffectsWarning)
+                r = self.with_horizon(years).solve(**kw)
+            tried[years] = r.status.value
+            results[years] = r
+            return r
+
+        top = attempt(o.max_years)
+        if not top.ok:
+            top.horizons = tried
+            return top
+        lo, hi = 0, o.max_years  # lo infeasible (or none), hi feasible
+        while hi - lo > 1:
+            mid = (lo + hi) // 2
+            if attempt(mid).ok:
+                hi = mid
+            else:
+                lo = mid
+        best = results[hi]
+        best.horizons = dict(sorted(tried.items()))
+        return best

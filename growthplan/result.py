@@ -87,6 +87,7 @@ class PlanResult:
         self.warnings = notes
         self._frames = frames
         self.diagnosis = None
+        self.horizons: dict[int, str] | None = None
         import highspy
         import pulp
 
@@ -113,7 +114,8 @@ class PlanResult:
             audit = audit_mod.audit_schedules(
                 plan, arrays["output"], arrays["starts"], arrays["consumption"],
                 reported_capacity=arrays["capacity"], reported_deliveries=arrays["deliveries"],
-                level=arrays["level"], tolerance=audit_tolerance)
+                level=arrays["level"], imports=arrays["imports"], exports=arrays["exports"],
+                tolerance=audit_tolerance)
             t2 = time.perf_counter()
             if not audit.ok:
                 status = Status.NOT_VERIFIED
@@ -202,6 +204,11 @@ class PlanResult:
                            doc="Value of one more unit of capacity, years × sectors.")
     target_values = property(lambda self: self._get("target_values"),
                              doc="Each target with its value (cost of the requirement).")
+    imports = property(lambda self: self._get("imports"), doc="Imports, years × commodities.")
+    exports = property(lambda self: self._get("exports"), doc="Exports, years × commodities.")
+    shadow_exchange_rate = property(
+        lambda self: self._get("shadow_exchange_rate"),
+        doc="Value of one more unit of foreign exchange per year (0 when the balance is slack).")
 
     @property
     def level(self) -> float | None:
@@ -258,8 +265,12 @@ class PlanResult:
     def _tables(self) -> dict[str, pd.DataFrame]:
         names = ["output", "capacity", "utilisation", "starts", "capital_deliveries",
                  "retirements", "labour", "consumption", "surplus", "shadow_prices",
-                 "shadow_prices_current", "labour_values", "quasi_rents", "target_values"]
+                 "shadow_prices_current", "labour_values", "quasi_rents", "target_values",
+                 "imports", "exports"]
         out = {n: self._get(n) for n in names}
+        fx = self._get("shadow_exchange_rate")
+        if not fx.isna().all():
+            out["shadow_exchange_rate"] = fx.to_frame()
         out["audit"] = self.audit.checks.reset_index()
         return {k: v for k, v in out.items() if v is not None and not v.empty}
 
@@ -437,7 +448,20 @@ def _frames(plan, lp, outcome) -> tuple[dict, dict]:
     else:
         frames["consumption"] = pd.DataFrame(index=idx)
     use = output @ d.a.T + deliv + (0 if kappa is None else kappa[:, None] * d.basket) + d.demand
-    frames["surplus"] = frame(output - use, columns=pd.Index(names, name="commodity"))
+    supply = output.copy()
+    trade = {"imports": None, "exports": None}
+    for key, side, direction in (("imports", "import", 1.0), ("exports", "export", -1.0)):
+        goods = d.trade[side][0] if d.trade is not None else []
+        if key in lp.cols:
+            flows = lp.cols[key].take(x)
+            trade[key] = flows
+            for i, g in enumerate(goods):
+                supply[:, names.index(g)] += direction * flows[:, i]
+            frames[key] = pd.DataFrame(flows, index=idx, columns=pd.Index(goods,
+                                                                         name="commodity"))
+        else:
+            frames[key] = pd.DataFrame(index=idx)
+    frames["surplus"] = frame(supply - use, columns=pd.Index(names, name="commodity"))
     dual = outcome.row_dual
     if dual is None:
         dual = np.full(lp.matrix.shape[0], np.nan)
@@ -458,8 +482,14 @@ def _frames(plan, lp, outcome) -> tuple[dict, dict]:
         tv["value"] = lp.rows["targets"].take(value)
     frames["target_values"] = tv
     frames["level"] = level
+    if "foreign_exchange" in lp.rows:
+        frames["shadow_exchange_rate"] = pd.Series(lp.rows["foreign_exchange"].take(value),
+                                                   index=idx, name="shadow_exchange_rate")
+    else:
+        frames["shadow_exchange_rate"] = pd.Series(dtype=float, index=idx,
+                                                   name="shadow_exchange_rate")
     arrays = {"output": output, "starts": starts, "consumption": kappa, "capacity": cap,
-              "deliveries": deliv, "level": level}
+              "deliveries": deliv, "level": level, **trade}
     return frames, arrays
 
 

@@ -251,3 +251,48 @@ def cbc_solver(msg: bool = False, time_limit: float | None = None):
     if time_limit is not None:
         kwargs["timeLimit"] = time_limit
     return pulp.COIN_CMD(**kwargs)
+
+
+def solve_stages(lp, *, tolerance_stage: float = 0.0, **kw):
+    """Solve ``lp`` through its objective stages (one for most objectives).
+
+    After each stage but the last, its optimum is held by an added row
+    (``c·v ≥ f* − tol·max(1, |f*|)`` when maximising, the mirror when
+    minimising) and the next stage's cost is optimised.
+
+    Returns
+    -------
+    (lp, outcome) : the LP of the last stage and its outcome
+    """
+    import dataclasses
+
+    from scipy import sparse
+
+    from .compile import Block
+
+    stages = lp.stages or [(lp.cost, lp.sense)]
+    outcome = solve_highs(lp, **kw)
+    held = []
+    for cost, sense in stages[1:]:
+        if outcome.status is not Status.OPTIMAL:
+            break
+        prev_cost, prev_sense = lp.cost, lp.sense
+        f = float(prev_cost @ outcome.x)
+        slack = tolerance_stage * max(1.0, abs(f))
+        held.append(f)
+        row = sparse.csr_array(prev_cost[None, :])
+        lo, up = (f - slack, np.inf) if prev_sense == "max" else (-np.inf, f + slack)
+        rows = dict(lp.rows)
+        prev = rows.get("lexicographic")
+        start = lp.matrix.shape[0]
+        size = (prev.size if prev else 0) + 1
+        rows["lexicographic"] = Block("lexicographic", prev.start if prev else start, (size,),
+                                      ([f"stage_{i + 1}" for i in range(size)],))
+        lp = dataclasses.replace(
+            lp, matrix=sparse.csc_array(sparse.vstack([lp.matrix, row])),
+            row_lower=np.append(lp.row_lower, lo), row_upper=np.append(lp.row_upper, up),
+            row_sign=np.append(lp.row_sign, 1.0 if prev_sense == "min" else -1.0),
+            cost=cost, sense=sense, rows=rows)
+        outcome = solve_highs(lp, **kw)
+    outcome.options["held_optima"] = held
+    return lp, outcome
