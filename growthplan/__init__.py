@@ -24,7 +24,15 @@ from .errors import (
     UnproductiveEconomy,
 )
 from .expanding import ExpandingEconomy, expanding_economy
-from .plan import Consumption, LabourSupply, Plan, StartsCeiling, Target, TerminalGrowth
+from .plan import (
+    Consumption,
+    LabourSupply,
+    Plan,
+    StartsCeiling,
+    Target,
+    TerminalGrowth,
+    Trade,
+)
 from .result import CAUTION, PlanResult
 from .solvers import Status
 from .steady import BalancedGrowth
@@ -48,6 +56,7 @@ __all__ = [
     "Status",
     "Target",
     "TerminalGrowth",
+    "Trade",
     "objectives",
     "BalancedGrowth",
     "CapitalSpec",
