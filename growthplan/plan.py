@@ -514,6 +514,70 @@ class Plan(Model):
         return PlanResult.from_outcome(self, lp, outcome, timings=timings,
                                        audit_tolerance=audit_tolerance)
 
+    def to_pulp(self, name: str = "growthplan"):
+        """A ``pulp.LpProblem`` of this plan, built from the same LinearProgram as ``solve``.
+
+        Names carry block, year and sector (``starts_2030_energy``). Add
+        constraints of your own and pass the problem to :meth:`solve_pulp`.
+        """
+        from .solvers import to_pulp
+
+        return to_pulp(self.compile(), name)[0]
+
+    def solve_pulp(self, solver=None, *, problem=None, audit_tolerance: float = 1e-6):
+        """Solve with a PuLP solver (default: PuLP's bundled CBC) and return a PlanResult.
+
+        Parameters
+        ----------
+        solver : pulp.LpSolver, optional
+        problem : pulp.LpProblem, optional
+            A problem from :meth:`to_pulp`, perhaps with constraints of your own.
+        """
+        from .result import PlanResult
+        from .solvers import solve_pulp, to_pulp
+
+        t0 = time.perf_counter()
+        lp = self.compile()
+        prob = problem if problem is not None else to_pulp(lp)[0]
+        t1 = time.perf_counter()
+        outcome = solve_pulp(lp, prob, solver)
+        return PlanResult.from_outcome(self, lp, outcome,
+                                       timings={"validate": self._validate_seconds,
+                                                "compile": t1 - t0},
+                                       audit_tolerance=audit_tolerance)
+
+    def write_mps(self, path, *, overwrite: bool = False):
+        """Write the plan's LP as an MPS file (the objective sense included)."""
+        return self._write(path, overwrite, lambda prob, p: prob.writeMPS(
+            str(p), with_objsense=True))
+
+    def write_lp(self, path, *, overwrite: bool = False):
+        """Write the plan's LP in the LP file format."""
+        return self._write(path, overwrite, lambda prob, p: prob.writeLP(str(p)))
+
+    def _write(self, path, overwrite: bool, writer):
+        import os
+        import tempfile
+        from pathlib import Path
+
+        from .errors import invalid
+
+        target = Path(path)
+        if target.exists() and not overwrite:
+            raise invalid("path", "not exist yet (pass overwrite=True to replace it)",
+                          str(target))
+        prob = self.to_pulp()
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=target.suffix,
+                                   dir=target.parent)
+        os.close(fd)
+        try:
+            writer(prob, tmp)
+            os.replace(tmp, target)
+        except BaseException:
+            Path(tmp).unlink(missing_ok=True)
+            raise
+        return target
+
     def with_horizon(self, years: int) -> Plan:
         """This plan over its first ``years`` years, targets moved to the end (see Fastest)."""
         first = self.years[0]

@@ -296,3 +296,89 @@ def solve_stages(lp, *, tolerance_stage: float = 0.0, **kw):
         outcome = solve_highs(lp, **kw)
     outcome.options["held_optima"] = held
     return lp, outcome
+
+
+def optimality_gap(lp, x: np.ndarray, y: np.ndarray) -> float:
+    """Relative gap between the primal objective and the dual bound of ``(x, y)``.
+
+    ``y`` are row duals in the model's own sense (d objective / d row bound).
+    Duals of the wrong sign for their row, or reduced costs that point at a
+    missing bound, make the dual bound infinite. Zero (to rounding) certifies
+    that ``x`` is optimal; anything else means it is not, whatever a solver's
+    status text says.
+    """
+    sigma = 1.0 if lp.sense == "max" else -1.0
+    value = sigma * lp.row_sign * y  # ≥ 0 for a dual-feasible y
+    # duals read back from text files carry about 8 significant digits: a relative slack
+    scale = max(1.0, float(np.abs(y).max(initial=0.0)) * float(np.abs(lp.matrix.data).max(
+        initial=0.0)), float(np.abs(lp.cost).max(initial=0.0)))
+    tol = 1e-6 * scale
+    if np.any(value < -tol):
+        return float("inf")
+    rhs = np.where(lp.row_sign > 0, lp.row_upper, lp.row_lower)
+    rc = lp.cost - lp.matrix.T @ y
+    bound = np.zeros_like(rc)
+    up = sigma * rc > tol   # would gain by raising the column: needs an upper bound
+    lo = sigma * rc < -tol  # would gain by lowering it: needs a lower bound
+    if np.any(up & ~np.isfinite(lp.col_upper)) or np.any(lo & ~np.isfinite(lp.col_lower)):
+        return float("inf")
+    bound[up] = lp.col_upper[up]
+    bound[lo] = lp.col_lower[lo]
+    dual = float(np.sum(np.where(np.isfinite(rhs), rhs, 0.0) * y) + np.sum(rc * bound))
+    primal = float(lp.cost @ x)
+    return abs(dual - primal) / max(1.0, abs(primal))
+
+
+_PULP_STATUS = {1: Status.OPTIMAL, 0: Status.UNKNOWN, -1: Status.INFEASIBLE,
+                -2: Status.UNBOUNDED, 2: Status.UNKNOWN}
+
+
+def solve_pulp(lp, prob, solver=None, *, gap_tolerance: float = 1e-6) -> SolverOutcome:
+    """Solve a problem from :func:`to_pulp` (perhaps extended) with any PuLP solver.
+
+    Guards against three known PuLP 3.3 faults: the HiGHS class returns duals
+    with the wrong sign on maximisation problems (flipped back here); both the
+    HiGHS class and CBC report a time- or iteration-limited LP as optimal (the
+    live HiGHS model status is read, and an optimal status must also pass the
+    duality-gap certificate :func:`optimality_gap` when the problem has no
+    constraints of the user's own).
+    """
+    import pulp
+
+    solver = solver or cbc_solver()
+    t0 = time.perf_counter()
+    prob.solve(solver)
+    seconds = time.perf_counter() - t0
+    cols = _sanitise(lp.col_names())
+    var = prob.variablesDict()
+    x = np.array([var[c].varValue if c in var and var[c].varValue is not None else np.nan
+                  for c in cols], dtype=float)
+    status = _PULP_STATUS.get(prob.sol_status, Status.UNKNOWN)
+    message = (f"{pulp.LpStatus.get(prob.status, prob.status)} (solution: "
+               f"{pulp.LpSolution.get(prob.sol_status, prob.sol_status)})")
+    is_highs = isinstance(solver, pulp.HiGHS)
+    if is_highs and getattr(prob, "solverModel", None) is not None:
+        ms = prob.solverModel.getModelStatus()
+        status = STATUS_TABLE.get(ms, Status.UNKNOWN)
+        message = prob.solverModel.modelStatusToString(ms)
+    rows = _sanitise(lp.row_names())
+    cons = {c.name: c for c in prob.constraints()}
+    y = np.array([cons[r].pi if r in cons and cons[r].pi is not None else np.nan
+                  for r in rows], dtype=float)
+    if is_highs and lp.sense == "max":
+        y = -y  # PuLP's HiGHS class negates the costs and never flips the duals back
+    extra = len(cons) > len(rows)
+    if status is Status.OPTIMAL and not extra:
+        if np.any(np.isnan(y)) or np.any(np.isnan(x)):
+            status, message = Status.UNKNOWN, message + " (no duals to certify optimality)"
+        else:
+            gap = optimality_gap(lp, x, y)
+            if gap > gap_tolerance:
+                status = Status.NOT_VERIFIED
+                message += f" (duality gap {gap:.3g}: not optimal)"
+    objective = float(lp.cost @ x) if np.all(np.isfinite(x)) else float("nan")
+    return SolverOutcome(status=status, message=message, objective=objective, x=x,
+                         row_dual=None if np.any(np.isnan(y)) else y, col_dual=None,
+                         method=f"pulp:{type(solver).__name__}", iterations={},
+                         seconds=seconds, options={"extra_constraints": extra},
+                         highs_version=highs_version())
