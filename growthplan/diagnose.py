@@ -18,7 +18,7 @@ import numpy as np
 import pandas as pd
 from scipy import sparse
 
-from .solvers import Status, solve_highs
+from .solvers import Status, infeasible_subset, solve_highs
 
 __all__ = ["Diagnosis", "diagnose", "ELASTIC_BLOCKS"]
 
@@ -44,6 +44,7 @@ class Diagnosis:
     shortfalls: pd.DataFrame
     status: Status
     total_penalty: float
+    infeasible_subset: pd.DataFrame | None = None
 
     def headline(self) -> str:
         """One sentence naming the worst conditions."""
@@ -84,8 +85,31 @@ def _labels(lp, block: str) -> list[tuple[str, str, int, float]]:
              float(lower[i])) for i in range(b.size)]
 
 
-def diagnose(lp, *, weights: dict[str, float] | None = None) -> Diagnosis:
-    """Elastic re-solve of an impossible plan's LP (see the module notes)."""
+IIS_ROW_LIMIT = 20_000  # larger plans skip the (slow) infeasible-subset search by default
+
+
+def _subset(lp) -> pd.DataFrame | None:
+    found = infeasible_subset(lp)
+    if found is None:
+        return None
+    rows, cols = found
+    rn, cn = lp.row_names(), lp.col_names()
+    return pd.DataFrame([("row", rn[r]) for r in rows] + [("column bound", cn[c]) for c in cols],
+                        columns=["kind", "name"])
+
+
+def diagnose(lp, *, weights: dict[str, float] | None = None,
+             subset: bool | None = None) -> Diagnosis:
+    """Elastic re-solve of an impossible plan's LP (see the module notes).
+
+    Parameters
+    ----------
+    weights : dict, optional
+        Penalty per unit of shortfall by block (``"targets"``, ``"labour"``, …).
+    subset : bool, optional
+        Also ask HiGHS for an irreducible infeasible subset (default: for plans
+        of up to 20,000 rows).
+    """
     rows, signs, info, w = [], [], [], []
     for block in ELASTIC_BLOCKS:
         if block not in lp.rows:
@@ -111,9 +135,11 @@ def diagnose(lp, *, weights: dict[str, float] | None = None) -> Diagnosis:
                             col_lower=col_lower, col_upper=col_upper, cost=cost, sense="min",
                             nnz=matrix.nnz)
     out = solve_highs(model, method="simplex")
+    want = subset if subset is not None else m.shape[0] <= IIS_ROW_LIMIT
+    iis = _subset(lp) if want else None
     columns = ["condition", "sector", "year", "required", "achievable", "shortfall", "share"]
     if out.status is not Status.OPTIMAL:
-        return Diagnosis(pd.DataFrame(columns=columns), out.status, float("nan"))
+        return Diagnosis(pd.DataFrame(columns=columns), out.status, float("nan"), iis)
     s = out.x[m.shape[1]:]
     recs = []
     for (block, cond, sector, year, required), short in zip(info, s, strict=True):
@@ -129,4 +155,4 @@ def diagnose(lp, *, weights: dict[str, float] | None = None) -> Diagnosis:
                      short / required if required else np.inf))
     table = pd.DataFrame(recs, columns=columns).sort_values(
         ["share", "shortfall"], ascending=False).reset_index(drop=True)
-    return Diagnosis(table, out.status, float(out.objective))
+    return Diagnosis(table, out.status, float(out.objective), iis)

@@ -88,6 +88,7 @@ class PlanResult:
         self._frames = frames
         self.diagnosis = None
         self.horizons: dict[int, str] | None = None
+        self.runaway: list[str] = []
         import highspy
         import pulp
 
@@ -134,6 +135,17 @@ class PlanResult:
             warnings.warn(text, EndEffectsWarning, stacklevel=3)
         result = cls(plan, lp, outcome, timings=timings, audit=audit, frames=frames,
                      status=status, notes=notes)
+        if status is Status.UNBOUNDED:
+            from .solvers import unbounded_ray
+
+            ray = unbounded_ray(lp)
+            if ray is not None:
+                names = lp.col_names()
+                big = np.argsort(-np.abs(ray))[:10]
+                result.runaway = [names[i] for i in big if abs(ray[i]) > 1e-9]
+                result.warnings.append("Unbounded: these columns can grow without limit: "
+                                       + ", ".join(result.runaway) + ". Check for a sector "
+                                       "whose capacity needs no capital goods.")
         if status in (Status.INFEASIBLE, Status.INFEASIBLE_OR_UNBOUNDED):
             from .diagnose import diagnose
 
@@ -159,7 +171,8 @@ class PlanResult:
             raise PlanInfeasible(f"The plan cannot meet all its conditions ({self.message})."
                                  + detail)
         if self.status is Status.UNBOUNDED:
-            raise PlanUnbounded(f"The plan's objective is unbounded ({self.message}).")
+            cols = f" Runaway columns: {', '.join(self.runaway)}." if self.runaway else ""
+            raise PlanUnbounded(f"The plan's objective is unbounded ({self.message}).{cols}")
         raise SolverFailure(f"No verified optimal plan: status {self.status.value} "
                             f"({self.message}). {' '.join(self.warnings)}".strip())
 

@@ -114,6 +114,30 @@ def highs_version() -> str:
         return "unknown"
 
 
+def _load(h: highspy.Highs, lp) -> None:
+    """Pass ``lp`` to ``h`` column-wise (CSC) in one ``passModel`` call."""
+    m = lp.matrix
+    model = highspy.HighsLp()
+    model.num_col_ = m.shape[1]
+    model.num_row_ = m.shape[0]
+    inf = highspy.kHighsInf
+    model.col_cost_ = np.ascontiguousarray(lp.cost, dtype=np.float64)
+    model.col_lower_ = np.where(np.isfinite(lp.col_lower), lp.col_lower, -inf)
+    model.col_upper_ = np.where(np.isfinite(lp.col_upper), lp.col_upper, inf)
+    model.row_lower_ = np.where(np.isfinite(lp.row_lower), lp.row_lower, -inf)
+    model.row_upper_ = np.where(np.isfinite(lp.row_upper), lp.row_upper, inf)
+    model.sense_ = highspy.ObjSense.kMaximize if lp.sense == "max" else \
+        highspy.ObjSense.kMinimize
+    model.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+    model.a_matrix_.start_ = m.indptr.astype(np.int32)
+    model.a_matrix_.index_ = m.indices.astype(np.int32)
+    model.a_matrix_.value_ = m.data.astype(np.float64)
+    model.a_matrix_.num_col_ = m.shape[1]
+    model.a_matrix_.num_row_ = m.shape[0]
+    if h.passModel(model) == highspy.HighsStatus.kError:
+        raise SolverFailure("HiGHS refused the model (passModel returned an error)")
+
+
 def solve_highs(lp, *, method: str = "auto", time_limit: float | None = None,
                 threads: int | None = None, tolerance: float | None = None,
                 options: dict | None = None, callback=None) -> SolverOutcome:
@@ -146,27 +170,8 @@ def solve_highs(lp, *, method: str = "auto", time_limit: float | None = None,
     if callback is not None:
         h.cbLogging.subscribe(callback)
 
+    _load(h, lp)
     m = lp.matrix
-    model = highspy.HighsLp()
-    model.num_col_ = m.shape[1]
-    model.num_row_ = m.shape[0]
-    inf = highspy.kHighsInf
-    model.col_cost_ = np.ascontiguousarray(lp.cost, dtype=np.float64)
-    model.col_lower_ = np.where(np.isfinite(lp.col_lower), lp.col_lower, -inf)
-    model.col_upper_ = np.where(np.isfinite(lp.col_upper), lp.col_upper, inf)
-    model.row_lower_ = np.where(np.isfinite(lp.row_lower), lp.row_lower, -inf)
-    model.row_upper_ = np.where(np.isfinite(lp.row_upper), lp.row_upper, inf)
-    model.sense_ = highspy.ObjSense.kMaximize if lp.sense == "max" else \
-        highspy.ObjSense.kMinimize
-    model.a_matrix_.format_ = highspy.MatrixFormat.kColwise
-    model.a_matrix_.start_ = m.indptr.astype(np.int32)
-    model.a_matrix_.index_ = m.indices.astype(np.int32)
-    model.a_matrix_.value_ = m.data.astype(np.float64)
-    model.a_matrix_.num_col_ = m.shape[1]
-    model.a_matrix_.num_row_ = m.shape[0]
-    st = h.passModel(model)
-    if st == highspy.HighsStatus.kError:
-        raise SolverFailure("HiGHS refused the model (passModel returned an error)")
     t0 = time.perf_counter()
     h.run()
     seconds = time.perf_counter() - t0
@@ -382,3 +387,38 @@ def solve_pulp(lp, prob, solver=None, *, gap_tolerance: float = 1e-6) -> SolverO
                          method=f"pulp:{type(solver).__name__}", iterations={},
                          seconds=seconds, options={"extra_constraints": extra},
                          highs_version=highs_version())
+
+
+def _quiet(options: dict | None = None) -> highspy.Highs:
+    h = highspy.Highs()
+    for k, v in {"output_flag": False, "random_seed": 0, **(options or {})}.items():
+        _set(h, k, v)
+    return h
+
+
+def infeasible_subset(lp) -> tuple[list[int], list[int]] | None:
+    """Rows and columns of an irreducible infeasible subset, from HiGHS.
+
+    Uses ``iis_strategy`` 2 (from the LP) with the irreducibility bit 4: the
+    default strategy can return a valid but empty set. Returns None when
+    HiGHS finds none.
+    """
+    h = _quiet({"iis_strategy": 2 | 4})
+    _load(h, lp)
+    h.run()
+    st, iis = h.getIis()
+    if st == highspy.HighsStatus.kError:
+        return None
+    rows, cols = list(iis.row_index_), list(iis.col_index_)
+    return (rows, cols) if rows or cols else None
+
+
+def unbounded_ray(lp) -> np.ndarray | None:
+    """A primal ray of an unbounded LP (the direction the columns run away in)."""
+    h = _quiet({"solver": "simplex", "presolve": "off"})
+    _load(h, lp)
+    h.run()
+    st, has_ray, ray = h.getPrimalRay()
+    if st == highspy.HighsStatus.kError or not has_ray:
+        return None
+    return np.asarray(ray, dtype=float)

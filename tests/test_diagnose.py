@@ -56,3 +56,23 @@ def test_labour_shortfall():
     d2 = diagnose(r.lp, weights={"targets": 100.0}).shortfalls
     assert list(d2.condition) == ["labour"]
     assert d2.iloc[0].shortfall == pytest.approx(10.0)
+
+
+def test_infeasible_subset_names_the_conflict():
+    plan = gp.Plan(economy=one_sector(), years=YEARS,
+                   targets=[gp.Target("goods", year=2035, capacity_at_least=250.0)])
+    iis = plan.solve().diagnosis.infeasible_subset
+    assert iis is not None and len(iis) > 0
+    assert any(n.startswith("targets_capacity_goods_2035") for n in iis.name)
+    # the conflict is between the target and the capacity accounts, not labour
+    assert not any(n.startswith("labour") for n in iis.name)
+
+
+def test_unbounded_plan_names_runaway_columns():
+    econ = gp.Economy(sectors=["g"], input_coefficients=[[0.5]],
+                      capital={"g": gp.CapitalSpec(initial_capacity=10, mean_service_life=10)})
+    r = gp.Plan(economy=econ, years=range(2030, 2033)).solve()
+    assert r.status is gp.Status.UNBOUNDED
+    assert any(c.startswith("starts_") or c == "level" for c in r.runaway)
+    with pytest.raises(gp.PlanUnbounded, match="Runaway columns"):
+        r.raise_for_status()
