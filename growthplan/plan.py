@@ -475,7 +475,8 @@ class Plan(Model):
 
     def solve(self, *, method: str = "auto", time_limit: float | None = None,
               threads: int | None = None, tolerance: float | None = None,
-              audit_tolerance: float = 1e-6, options: dict | None = None):
+              audit_tolerance: float = 1e-6, options: dict | None = None,
+              progress: bool = False, stop=None):
         """Solve the plan with HiGHS and audit the result.
 
         Parameters
@@ -492,6 +493,11 @@ class Plan(Model):
             audit accepts.
         options : dict, optional
             Further HiGHS options by name (a bad name or value is an error).
+        progress : bool, default False
+            Show a progress bar fed by HiGHS's log (terminal or notebook).
+        stop : callable or threading.Event, optional
+            Interrupts the solve when true; the result then has status
+            ``interrupted``.
 
         Returns
         -------
@@ -500,16 +506,20 @@ class Plan(Model):
         if isinstance(self.objective, obj.Fastest):
             return self._fastest(method=method, time_limit=time_limit, threads=threads,
                                  tolerance=tolerance, audit_tolerance=audit_tolerance,
-                                 options=options)
+                                 options=options, progress=progress, stop=stop)
         from .result import PlanResult
         from .solvers import solve_stages
 
         t0 = time.perf_counter()
         lp = self.compile()
         t1 = time.perf_counter()
-        lp, outcome = solve_stages(lp, method=method, time_limit=time_limit, threads=threads,
-                                   tolerance=tolerance, options=options,
-                                   tolerance_stage=getattr(self.objective, "tolerance", 0.0))
+        from .progress import solve_progress
+
+        with solve_progress(progress, f"{self.economy.n} sectors × {self.horizon} years") as cb:
+            lp, outcome = solve_stages(
+                lp, method=method, time_limit=time_limit, threads=threads,
+                tolerance=tolerance, options=options, callback=cb, stop=stop,
+                tolerance_stage=getattr(self.objective, "tolerance", 0.0))
         timings = {"validate": self._validate_seconds, "compile": t1 - t0}
         return PlanResult.from_outcome(self, lp, outcome, timings=timings,
                                        audit_tolerance=audit_tolerance)

@@ -106,10 +106,41 @@ def _set(h: highspy.Highs, name: str, value: object) -> None:
         raise invalid(f"options.{name}", "be a HiGHS option with a valid value", value)
 
 
-def highs_version() -> str:
-    h = highspy.Highs
+_BANNER_SHOWN = False
+
+
+def _new_highs() -> highspy.Highs:
+    """A Highs object; the first one in a process is made with stdout muted.
+
+    HiGHS prints a licence banner on stdout when its first object is made,
+    which would land in the middle of command-line output and notebooks.
+    """
+    global _BANNER_SHOWN
+    if _BANNER_SHOWN:
+        return highspy.Highs()
+    import os
+    import sys
+
+    _BANNER_SHOWN = True
     try:
-        return f"{h().versionMajor()}.{h().versionMinor()}.{h().versionPatch()}"
+        sys.stdout.flush()
+        saved = os.dup(1)
+    except (OSError, ValueError):  # no real stdout (some notebook front ends)
+        return highspy.Highs()
+    try:
+        with open(os.devnull, "w") as null:
+            os.dup2(null.fileno(), 1)
+            h = highspy.Highs()
+    finally:
+        os.dup2(saved, 1)
+        os.close(saved)
+    return h
+
+
+def highs_version() -> str:
+    h = _new_highs()
+    try:
+        return f"{h.versionMajor()}.{h.versionMinor()}.{h.versionPatch()}"
     except Exception:  # pragma: no cover - older highspy
         return "unknown"
 
@@ -140,16 +171,24 @@ def _load(h: highspy.Highs, lp) -> None:
 
 def solve_highs(lp, *, method: str = "auto", time_limit: float | None = None,
                 threads: int | None = None, tolerance: float | None = None,
-                options: dict | None = None, callback=None) -> SolverOutcome:
+                options: dict | None = None, callback=None, stop=None) -> SolverOutcome:
     """Solve a :class:`~growthplan.compile.LinearProgram` with HiGHS.
 
     The matrix is passed column-wise (CSC) in one ``passModel`` call.
+
+    Parameters
+    ----------
+    callback : callable, optional
+        Called with each line of HiGHS's log (the console log stays off).
+    stop : callable or threading.Event, optional
+        Polled during simplex and interior-point iterations; when it returns
+        (or is) true the solve stops with status ``interrupted``.
     """
     if method == "auto":
         method = choose_method(lp.nnz)
     if method not in METHODS:
         raise invalid("method", f"be 'auto' or one of {sorted(METHODS)}", method)
-    h = highspy.Highs()
+    h = _new_highs()
     chosen: dict[str, object] = {"output_flag": callback is not None,
                                  "log_to_console": False, "random_seed": 0}
     chosen.update(METHODS[method])
@@ -168,7 +207,16 @@ def solve_highs(lp, *, method: str = "auto", time_limit: float | None = None,
     for k, v in chosen.items():
         _set(h, k, v)
     if callback is not None:
-        h.cbLogging.subscribe(callback)
+        h.cbLogging.subscribe(lambda e: callback(str(e.message)))
+    if stop is not None:
+        check = stop.is_set if hasattr(stop, "is_set") else stop
+
+        def poll(e) -> None:
+            if check():
+                e.interrupt()
+
+        h.cbSimplexInterrupt.subscribe(poll)
+        h.cbIpmInterrupt.subscribe(poll)
 
     _load(h, lp)
     m = lp.matrix
@@ -390,7 +438,7 @@ def solve_pulp(lp, prob, solver=None, *, gap_tolerance: float = 1e-6) -> SolverO
 
 
 def _quiet(options: dict | None = None) -> highspy.Highs:
-    h = highspy.Highs()
+    h = _new_highs()
     for k, v in {"output_flag": False, "random_seed": 0, **(options or {})}.items():
         _set(h, k, v)
     return h

@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import os
+
+os.environ.setdefault("MPLBACKEND", "Agg")  # charts render headless in the tests
 import warnings
 
 import numpy as np

@@ -14,9 +14,8 @@ import argparse
 import time
 import warnings
 
-from bench_plan import economy, make_plan
-
 import pulp
+from bench_plan import economy, make_plan
 
 
 def naive_build(plan) -> float:

@@ -1,0 +1,189 @@
+"""Charts of plan results (matplotlib, the ``plot`` extra).
+
+Every function draws on the Axes it is given (or a new figure) and returns
+the Axes for further styling. Series are told apart by line style, marker and
+hatching as well as colour, so the charts stay readable in greyscale.
+"""
+
+from __future__ import annotations
+
+import itertools
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+__all__ = ["plot_paths", "plot_starts", "plot_labour", "plot_shadow_prices",
+           "plot_ray_distance", "plot_scenarios", "ray_distance", "save_charts"]
+
+_STYLES = ["-", "--", "-.", ":"]
+_MARKERS = ["o", "s", "^", "D", "v", "P", "X", "*", "h", "<"]
+_HATCHES = ["", "//", "..", "xx", "\\\\", "++", "oo", "--", "||", "**"]
+_COLOURS = ["#1b3a5c", "#b5652b", "#4f7d3a", "#7a4e8a", "#9a8a3a", "#3f8f8f", "#8a3b3b",
+            "#5a5a5a", "#2f6fa8", "#c79a3a"]
+
+
+def _plt():
+    try:
+        import matplotlib.pyplot as plt
+    except ImportError as exc:  # pragma: no cover - depends on the extra
+        raise ImportError("charts need matplotlib: pip install 'growthplan[plot]'") from exc
+    return plt
+
+
+def _axes(ax):
+    if ax is not None:
+        return ax
+    _, ax = _plt().subplots(figsize=(8, 4.5), layout="constrained")
+    return ax
+
+
+def _style(i: int) -> dict:
+    return {"linestyle": _STYLES[i % len(_STYLES)], "marker": _MARKERS[i % len(_MARKERS)],
+            "color": _COLOURS[i % len(_COLOURS)], "markersize": 4}
+
+
+def plot_paths(result, what: str = "output", *, sectors=None, index: bool = False, ax=None):
+    """Output or capacity paths by sector.
+
+    Parameters
+    ----------
+    what : {"output", "capacity"}
+    sectors : list of str, optional
+    index : bool, default False
+        Divide each path by its first year (first year = 1).
+    """
+    frame: pd.DataFrame = getattr(result, what)
+    frame = frame[sectors] if sectors else frame
+    if index:
+        frame = frame / frame.iloc[0].replace(0, np.nan)
+    ax = _axes(ax)
+    for i, col in enumerate(frame.columns):
+        ax.plot(frame.index, frame[col], label=str(col), **_style(i))
+    ax.set_xlabel("year")
+    ax.set_ylabel(f"{what} (first year = 1)" if index else what)
+    ax.set_title(f"{what.capitalize()} by sector")
+    ax.legend(ncols=2, fontsize="small", frameon=False)
+    ax.grid(alpha=0.3)
+    return ax
+
+
+def plot_starts(result, *, ax=None):
+    """Capacity starts by sector as stacked bars."""
+    frame = result.starts
+    ax = _axes(ax)
+    bottom = np.zeros(len(frame))
+    for i, col in enumerate(frame.columns):
+        ax.bar(frame.index, frame[col], bottom=bottom, label=str(col),
+               color=_COLOURS[i % len(_COLOURS)], hatch=_HATCHES[i % len(_HATCHES)],
+               edgecolor="white", linewidth=0.5)
+        bottom += frame[col].to_numpy()
+    ax.set_xlabel("year")
+    ax.set_ylabel("capacity started")
+    ax.set_title("Investment: capacity starts by sector")
+    ax.legend(ncols=2, fontsize="small", frameon=False)
+    return ax
+
+
+def plot_labour(result, *, ax=None):
+    """Labour used against labour available, per kind."""
+    frame = result.labour
+    ax = _axes(ax)
+    kinds = list(dict.fromkeys(frame.columns.get_level_values(0)))
+    for i, kind in enumerate(kinds):
+        st = _style(i)
+        ax.plot(frame.index, frame[(kind, "used")], label=f"{kind}: used", **st)
+        if (kind, "available") in frame:
+            ax.plot(frame.index, frame[(kind, "available")], label=f"{kind}: available",
+                    color=st["color"], linestyle=":", linewidth=2)
+    ax.set_xlabel("year")
+    ax.set_ylabel("person-years")
+    ax.set_title("Labour use and supply")
+    ax.legend(fontsize="small", frameon=False)
+    ax.grid(alpha=0.3)
+    return ax
+
+
+def plot_shadow_prices(result, *, current: bool = True, ax=None):
+    """Shadow prices as a year × commodity heat map (current-year terms by default)."""
+    frame = result.shadow_prices_current if current else result.shadow_prices
+    ax = _axes(ax)
+    im = ax.imshow(frame.T.to_numpy(), aspect="auto", cmap="cividis", origin="upper")
+    ax.set_yticks(range(frame.shape[1]), [str(c) for c in frame.columns])
+    step = max(1, len(frame.index) // 8)
+    ax.set_xticks(range(0, len(frame.index), step), [str(y) for y in frame.index[::step]])
+    ax.set_xlabel("year")
+    ax.set_title("Shadow prices" + (" (current-year terms)" if current else " (as solved)"))
+    ax.figure.colorbar(im, ax=ax, label="value per unit")
+    return ax
+
+
+def ray_distance(result) -> pd.Series:
+    """Angle in degrees between each year's capacity vector and the balanced-growth ray."""
+    ray = result.plan.economy.dynamic_balanced_growth().proportions.to_numpy()
+    cap = result.capacity.to_numpy()
+    cos = cap @ ray / (np.linalg.norm(cap, axis=1) * np.linalg.norm(ray))
+    return pd.Series(np.degrees(np.arccos(np.clip(cos, -1, 1))), index=result.capacity.index,
+                     name="degrees from the balanced ray")
+
+
+def plot_ray_distance(result, *, ax=None):
+    """Distance of the plan from the balanced-growth ray per year (the turnpike view)."""
+    d = ray_distance(result)
+    ax = _axes(ax)
+    ax.plot(d.index, d.to_numpy(), **_style(0))
+    ax.set_xlabel("year")
+    ax.set_ylabel("degrees")
+    ax.set_title("Capacity's angle from the balanced-growth ray")
+    ax.set_ylim(bottom=0)
+    ax.grid(alpha=0.3)
+    return ax
+
+
+def plot_scenarios(table: pd.DataFrame, x: str, y: str = "objective", *, by: str | None = None,
+                   ax=None):
+    """Compare scenarios of a sweep: ``y`` against parameter ``x`` (lines per ``by``)."""
+    ax = _axes(ax)
+    ok = table[table["status"] == "optimal"] if "status" in table else table
+    groups = [(None, ok)] if by is None else list(ok.groupby(by, sort=True))
+    for i, (key, part) in enumerate(groups):
+        part = part.sort_values(x)
+        ax.plot(part[x], part[y], label=None if key is None else f"{by} = {key}", **_style(i))
+    ax.set_xlabel(x)
+    ax.set_ylabel(y)
+    ax.set_title(f"Scenarios: {y} by {x}")
+    if by is not None:
+        ax.legend(fontsize="small", frameon=False)
+    ax.grid(alpha=0.3)
+    return ax
+
+
+def save_charts(result, folder: str | Path, *, overwrite: bool = False) -> list[Path]:
+    """Write the standard charts of a result as PNG files into ``folder``."""
+    from .errors import invalid
+
+    plt = _plt()
+    folder = Path(folder)
+    charts = {"output": lambda ax: plot_paths(result, "output", ax=ax),
+              "capacity": lambda ax: plot_paths(result, "capacity", ax=ax),
+              "starts": lambda ax: plot_starts(result, ax=ax),
+              "labour": lambda ax: plot_labour(result, ax=ax),
+              "shadow_prices": lambda ax: plot_shadow_prices(result, ax=ax),
+              "ray_distance": lambda ax: plot_ray_distance(result, ax=ax)}
+    folder.mkdir(parents=True, exist_ok=True)
+    written = []
+    for name, draw in itertools.islice(charts.items(), None):
+        target = folder / f"{name}.png"
+        if target.exists() and not overwrite:
+            raise invalid("charts", "not overwrite existing files (pass overwrite)",
+                          str(target))
+        if name == "labour" and result.labour.empty:
+            continue
+        fig, ax = plt.subplots(figsize=(8, 4.5), layout="constrained")
+        draw(ax)
+        tmp = target.with_name(f".{target.name}.tmp.png")
+        fig.savefig(tmp, dpi=110)
+        plt.close(fig)
+        tmp.replace(target)
+        written.append(target)
+    return written
