@@ -33,9 +33,11 @@ from .plan import (
     TerminalGrowth,
     Trade,
 )
+from .planfile import load_plan_file, plan_file_schema
 from .result import CAUTION, PlanResult
 from .solvers import Status
 from .steady import BalancedGrowth
+from .sweep import SerialExecutor, Sweep, sweep
 from .tables import TransactionsTable, read_transactions
 
 try:
@@ -71,11 +73,16 @@ __all__ = [
     "PlanNotOptimal",
     "PlanUnbounded",
     "Sector",
+    "SerialExecutor",
+    "Sweep",
     "SolverFailure",
     "TransactionsTable",
     "UnproductiveEconomy",
     "__version__",
     "capital",
     "expanding_economy",
+    "load_plan_file",
+    "plan_file_schema",
     "read_transactions",
+    "sweep",
 ]

@@ -1,0 +1,192 @@
+"""Scenario sweeps: many variants of one plan, solved on any executor.
+
+A variant changes plan parameters named by dotted paths into the plan's
+fields, for example ``"labour.0.growth"``, ``"objective.rate"``,
+``"consumption.floor_growth"``, ``"terminal.rate"`` or
+``"economy.capital.energy.mean_service_life"``. Variants come from a grid
+(every combination) or from named scenarios. They run on any
+``concurrent.futures.Executor``: a process pool by default, or a Dask
+distributed client's ``client.get_executor()`` to go past one machine.
+Results come back in the order of the variants, whatever order they finish
+in, and a variant that fails is reported in the table, not raised.
+"""
+
+from __future__ import annotations
+
+import itertools
+import os
+import traceback
+import warnings
+from concurrent.futures import Executor, Future, ProcessPoolExecutor
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from .errors import invalid
+from .plan import Plan
+
+__all__ = ["Sweep", "SerialExecutor", "sweep", "variant"]
+
+
+class SerialExecutor(Executor):
+    """Runs each task at once in this process (for debugging and reference runs)."""
+
+    def submit(self, fn, /, *args, **kwargs) -> Future:
+        fut: Future = Future()
+        try:
+            fut.set_result(fn(*args, **kwargs))
+        except BaseException as exc:  # noqa: BLE001 - handed to the caller via the future
+            fut.set_exception(exc)
+        return fut
+
+
+@dataclass
+class Sweep:
+    """The outcome of :func:`sweep`.
+
+    Attributes
+    ----------
+    table : pandas.DataFrame
+        One row per variant: its name, the parameters, status, objective and
+        key figures (terminal capacity, total starts, peak labour use, solve
+        seconds), or the error of a failed variant.
+    results : list of PlanResult or None
+        In the order of the table (None where the variant failed or results
+        were not kept).
+    """
+
+    table: pd.DataFrame
+    results: list
+
+    @property
+    def failed(self) -> pd.DataFrame:
+        """Rows of the variants that raised an error."""
+        return self.table[self.table["status"] == "error"]
+
+
+def _set_path(data: dict, path: str, value: Any) -> None:
+    parts = path.split(".")
+    node: Any = data
+    for i, part in enumerate(parts[:-1]):
+        if isinstance(node, list):
+            node = node[int(part)]
+        elif isinstance(node, dict):
+            if part not in node or node[part] is None:
+                raise invalid(f"parameter {path!r}", f"name fields of the plan (no "
+                              f"{'.'.join(parts[: i + 1])!r})", value)
+            node = node[part]
+        else:
+            raise invalid(f"parameter {path!r}", "name fields of the plan", value)
+    last = parts[-1]
+    if isinstance(node, list):
+        node[int(last)] = value
+    elif isinstance(node, dict):
+        if last not in node:
+            raise invalid(f"parameter {path!r}", "name an existing field of the plan", value)
+        node[last] = value
+    else:
+        raise invalid(f"parameter {path!r}", "name fields of the plan", value)
+
+
+def variant(plan: Plan, params: dict[str, Any]) -> Plan:
+    """A copy of ``plan`` with the parameters at the dotted paths changed (validated anew)."""
+    touches_economy = any(p.startswith("economy.") for p in params)
+    data = plan.model_dump(exclude=set() if touches_economy else {"economy"})
+    for path, value in params.items():
+        _set_path(data, path, value)
+    if not touches_economy:
+        data["economy"] = plan.economy
+    return Plan(**data)
+
+
+def _figures(result) -> dict[str, Any]:
+    out: dict[str, Any] = {"status": result.status.value, "objective": result.objective,
+                           "solve_seconds": result.timings.get("solve", np.nan)}
+    if result.ok:
+        out["terminal_capacity"] = float(result.capacity.iloc[-1].sum())
+        out["total_starts"] = float(result.starts.to_numpy().sum())
+        lab = result.labour
+        if not lab.empty and (lab.columns.get_level_values(1) == "available").any():
+            kinds = dict.fromkeys(lab.columns.get_level_values(0))
+            out["peak_labour_use"] = max(float((lab[(k, "used")] / lab[(k, "available")])
+                                               .max()) for k in kinds)
+    return out
+
+
+def _run_one(task: tuple) -> tuple[dict, Any]:
+    """Solve one variant (top level, so process pools and Dask can pickle it)."""
+    plan, params, options, keep = task
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            result = variant(plan, params).solve(**options)
+        return _figures(result), (result if keep else None)
+    except Exception as exc:  # a failed variant is data, not the end of the sweep
+        return {"status": "error", "error": f"{type(exc).__name__}: {exc}",
+                "detail": traceback.format_exc(limit=2)}, None
+
+
+def sweep(plan: Plan, grid: dict[str, list] | None = None, *,
+          scenarios: dict[str, dict[str, Any]] | None = None, executor: Executor | None = None,
+          max_workers: int | None = None, keep_results: bool = True, progress: bool = False,
+          solve_options: dict | None = None) -> Sweep:
+    """Solve variants of ``plan`` and gather their key figures.
+
+    Parameters
+    ----------
+    plan : Plan
+    grid : dict of str to list, optional
+        Every combination of these parameter values is a variant.
+    scenarios : dict of str to dict, optional
+        Named variants, each a mapping of parameter paths to values.
+    executor : concurrent.futures.Executor, optional
+        Where to run; default a process pool of ``max_workers`` (the CPU
+        count) created and shut down here. Pass a Dask ``client.get_executor()``
+        for a cluster.
+    keep_results : bool, default True
+        Return each PlanResult too (False sends back only the figures).
+    progress : bool, default False
+        A per-variant progress bar.
+    solve_options : dict, optional
+        Keywords for :meth:`Plan.solve` (method, time_limit, …).
+
+    Returns
+    -------
+    Sweep
+    """
+    from .progress import sweep_progress
+
+    variants: list[tuple[str, dict]] = []
+    if grid:
+        keys = list(grid)
+        for combo in itertools.product(*(grid[k] for k in keys)):
+            params = dict(zip(keys, combo, strict=True))
+            variants.append((", ".join(f"{k}={v}" for k, v in params.items()), params))
+    for name, params in (scenarios or {}).items():
+        variants.append((name, dict(params)))
+    if not variants:
+        raise invalid("grid", "or scenarios name at least one variant", None)
+    tasks = [(plan, params, dict(solve_options or {}), keep_results) for _, params in variants]
+    own = executor is None
+    pool = executor or ProcessPoolExecutor(max_workers=max_workers or os.cpu_count() or 1)
+    try:
+        futures = [pool.submit(_run_one, t) for t in tasks]
+        outcomes: list = [None] * len(futures)
+        with sweep_progress(progress, len(futures)) as bar:
+            for i, fut in enumerate(futures):  # in submission order: deterministic
+                try:
+                    outcomes[i] = fut.result()
+                except Exception as exc:  # the executor itself failed on this variant
+                    outcomes[i] = ({"status": "error", "error": f"{type(exc).__name__}: {exc}"},
+                                   None)
+                bar.update(1)
+    finally:
+        if own:
+            pool.shutdown()
+    rows = []
+    for (name, params), (figures, _) in zip(variants, outcomes, strict=True):
+        rows.append({"scenario": name, **params, **figures})
+    table = pd.DataFrame(rows)
+    return Sweep(table=table, results=[r for _, r in outcomes])
