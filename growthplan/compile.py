@@ -24,9 +24,12 @@ from scipy import sparse
 from . import objectives as obj
 from ._validation import Rule
 
-__all__ = ["Block", "LinearProgram", "PlanData", "compile_plan"]
+__all__ = ["Block", "LinearProgram", "PlanData", "compile_plan", "estimate_size",
+           "SIZE_LIMIT"]
 
 INF = np.inf
+SIZE_LIMIT = 25_000_000  # nonzeros; above this compile_plan refuses unless told otherwise
+BYTES_PER_NONZERO = 60    # peak while building: blocks, the stacked copy and CSC arrays
 
 
 @dataclass(frozen=True)
@@ -282,8 +285,119 @@ class _Builder:
         return sparse.csc_array(sparse.block_array(blocks, format="csc"))
 
 
-def compile_plan(plan) -> LinearProgram:
-    """Compile a validated :class:`~growthplan.Plan` into a :class:`LinearProgram`."""
+def estimate_size(plan) -> dict[str, int]:
+    """Rows, columns, nonzeros and peak build memory of a plan's LP, without building it.
+
+    Counted block by block from the plan's data (exact for rows, columns and
+    nonzeros; memory is ``BYTES_PER_NONZERO`` per nonzero, measured on dense
+    plans).
+    """
+    econ = plan.economy
+    T, n = plan.horizon, econ.n
+    a = np.asarray(econ.input_coefficients)
+    b = np.asarray(econ.capital_coefficients)
+    specs = [econ.capital[k] for k in econ.names]
+    width = max(1, max(s.lead_time for s in specs))
+    w = np.zeros((n, width))
+    for j, sp in enumerate(specs):
+        w[j, : len(sp.spending_profile)] = sp.spending_profile
+    basket = plan.basket()
+    has_k = plan.consumption is not None
+    labour = np.asarray(econ.labour_coefficients) if plan.labour else np.zeros((0, n))
+    if plan.labour:
+        kinds = econ.labour_kinds
+        labour = labour[[kinds.index(ls.kind) for ls in plan.labour]]
+    # capacity expression: entries of G for years 0..T
+    g_rows = np.zeros(T + 1, dtype=np.int64)  # nonzeros of G's rows in year t, all sectors
+    for j, sp in enumerate(specs):
+        surv = sp.survival(max_age=T) != 0
+        for t in range(T + 1):
+            ages = t - sp.lead_time - np.arange(T)
+            ok = ages >= 0
+            g_rows[t] += int(np.count_nonzero(surv[ages[ok]]))
+    nnz_ia = int(np.count_nonzero(np.eye(n) - a))
+    deliv = sum((T - s) * int(np.count_nonzero(b * w[:, s][None, :])) for s in range(width)
+                if s < T)
+    nnz = T * nnz_ia + deliv + (T * int(np.count_nonzero(basket)) if has_k else 0)
+    rows = T * n
+    nnz += T * n + int(g_rows[:T].sum())  # capacity rows
+    rows += T * n
+    if labour.shape[0]:
+        nnz += T * int(np.count_nonzero(labour))
+        rows += T * labour.shape[0]
+    cols = 2 * T * n
+    if has_k:
+        cols += T
+        rows += T
+        nnz += T
+        if plan.consumption.max_fall is not None and T > 1:
+            rows += T - 1
+            nnz += 2 * (T - 1) if plan.consumption.max_fall < 1 else (T - 1)
+    names = econ.names
+    for tg in plan.targets:
+        rows += 1
+        t = tg.year - plan.years[0]
+        if tg.what == "capacity":
+            j = names.index(tg.sector)
+            sp = specs[j]
+            surv = sp.survival(max_age=T) != 0
+            ages = t - sp.lead_time - np.arange(T)
+            nnz += int(np.count_nonzero(surv[ages[ages >= 0]]))
+        else:
+            nnz += 1
+    if plan.terminal is not None:
+        for j, sp in enumerate(specs):
+            surv = sp.survival(max_age=T) != 0
+            for t in range(max(0, T - max(sp.lead_time, 1)), T):
+                rows += 1
+                ages = t - sp.lead_time - np.arange(T)
+                g = np.zeros(T, dtype=bool)
+                g[ages >= 0] = surv[ages[ages >= 0]]
+                g[t] = True  # the start itself (its coefficient 1 − ψ·S(·) stays nonzero)
+                nnz += int(np.count_nonzero(g))
+    from . import objectives as obj
+
+    if any(isinstance(c, obj.TerminalCapacity) for c in obj.components(plan.objective)):
+        cols += 1
+        rows += n
+        nnz += int(g_rows[T]) + n
+    td = plan.trade_data()
+    if td is not None:
+        ni, ne = len(td["import"][0]), len(td["export"][0])
+        cols += T * (ni + ne)
+        nnz += 2 * T * (ni + ne)
+        if ni or ne:
+            rows += T
+    return {"rows": int(rows), "columns": int(cols), "nonzeros": int(nnz),
+            "bytes": int(nnz) * BYTES_PER_NONZERO}
+
+
+def compile_plan(plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
+    """Compile a validated :class:`~growthplan.Plan` into a :class:`LinearProgram`.
+
+    Parameters
+    ----------
+    size_limit : int or None
+        Largest number of nonzeros to build (default 25 million, about 1.5 GB
+        at peak); None builds any size.
+
+    Raises
+    ------
+    InvalidInput
+        When the estimate exceeds ``size_limit``; the message gives the
+        estimate and the ways on.
+    """
+    from .errors import InvalidInput
+
+    if size_limit is not None:
+        est = estimate_size(plan)
+        if est["nonzeros"] > size_limit:
+            raise InvalidInput(
+                f"plan is too large to build: about {est['rows']:,} rows, {est['columns']:,} "
+                f"columns and {est['nonzeros']:,} nonzeros, {est['bytes'] / 2**30:.1f} GiB at "
+                f"peak, above the limit of {size_limit:,} nonzeros. Aggregate sectors "
+                "(TransactionsTable.aggregate), shorten the horizon, or pass "
+                "size_limit=None (or a larger number) to build it anyway.", field="size_limit")
     try:
         d = _plan_data(plan)
     except Rule as exc:

@@ -467,16 +467,26 @@ class Plan(Model):
         return c0 / c0.sum(), "initial capacity"
 
     # -- actions ------------------------------------------------------------
-    def compile(self):
-        """The plan's :class:`~growthplan.compile.LinearProgram`."""
+    def compile(self, *, size_limit: int | None = 25_000_000):
+        """The plan's :class:`~growthplan.compile.LinearProgram`.
+
+        Refuses plans estimated above ``size_limit`` nonzeros (None: no limit);
+        :meth:`estimate_size` gives the estimate without building anything.
+        """
         from .compile import compile_plan
 
-        return compile_plan(self)
+        return compile_plan(self, size_limit=size_limit)
+
+    def estimate_size(self) -> dict[str, int]:
+        """Rows, columns, nonzeros and peak build bytes of this plan's LP."""
+        from .compile import estimate_size
+
+        return estimate_size(self)
 
     def solve(self, *, method: str = "auto", time_limit: float | None = None,
               threads: int | None = None, tolerance: float | None = None,
               audit_tolerance: float = 1e-6, options: dict | None = None,
-              progress: bool = False, stop=None):
+              progress: bool = False, stop=None, size_limit: int | None = 25_000_000):
         """Solve the plan with HiGHS and audit the result.
 
         Parameters
@@ -498,6 +508,8 @@ class Plan(Model):
         stop : callable or threading.Event, optional
             Interrupts the solve when true; the result then has status
             ``interrupted``.
+        size_limit : int or None, default 25,000,000
+            Largest LP (in nonzeros) to build; see :meth:`estimate_size`.
 
         Returns
         -------
@@ -506,12 +518,13 @@ class Plan(Model):
         if isinstance(self.objective, obj.Fastest):
             return self._fastest(method=method, time_limit=time_limit, threads=threads,
                                  tolerance=tolerance, audit_tolerance=audit_tolerance,
-                                 options=options, progress=progress, stop=stop)
+                                 options=options, progress=progress, stop=stop,
+                                 size_limit=size_limit)
         from .result import PlanResult
         from .solvers import solve_stages
 
         t0 = time.perf_counter()
-        lp = self.compile()
+        lp = self.compile(size_limit=size_limit)
         t1 = time.perf_counter()
         from .progress import solve_progress
 

@@ -12,6 +12,7 @@ non-negative at an optimum, whatever the objective's sense.
 
 from __future__ import annotations
 
+import contextlib
 import html
 import os
 import shutil
@@ -330,9 +331,15 @@ class PlanResult:
         os.close(fd)
         tmp = Path(tmp_name)
         try:
-            with pd.ExcelWriter(tmp, engine="openpyxl") as writer:
+            writer = pd.ExcelWriter(tmp, engine="openpyxl")
+            try:
                 for name, frame in tables.items():
                     frame.to_excel(writer, sheet_name=name[:31])
+            except BaseException:
+                with contextlib.suppress(Exception):  # keep the first error, not close()'s
+                    writer.close()
+                raise
+            writer.close()
             os.replace(tmp, target)
         except BaseException:
             tmp.unlink(missing_ok=True)
@@ -361,6 +368,8 @@ class Summary:
                 rows.append(("capacity growth", f"{100 * g:.2f} % a year (sum over sectors)"))
             if r.labour is not None and not r.labour.empty:
                 for kind in r.labour.columns.get_level_values(0).unique():
+                    if (kind, "available") not in r.labour:
+                        continue  # labour is counted but not limited
                     used = r.labour[(kind, "used")]
                     avail = r.labour[(kind, "available")]
                     rows.append((f"labour {kind}", f"up to {100 * (used / avail).max():.1f} % "
