@@ -309,7 +309,7 @@ def estimate_size(plan) -> dict[str, int]:
         labour = labour[[kinds.index(ls.kind) for ls in plan.labour]]
     # capacity expression: entries of G for years 0..T
     g_rows = np.zeros(T + 1, dtype=np.int64)  # nonzeros of G's rows in year t, all sectors
-    for j, sp in enumerate(specs):
+    for sp in specs:
         surv = sp.survival(max_age=T) != 0
         for t in range(T + 1):
             ages = t - sp.lead_time - np.arange(T)
@@ -346,7 +346,7 @@ def estimate_size(plan) -> dict[str, int]:
         else:
             nnz += 1
     if plan.terminal is not None:
-        for j, sp in enumerate(specs):
+        for sp in specs:
             surv = sp.survival(max_age=T) != 0
             for t in range(max(0, T - max(sp.lead_time, 1)), T):
                 rows += 1
