@@ -35,23 +35,32 @@ __all__ = ["LabourSupply", "Consumption", "Target", "StartsCeiling", "TerminalGr
 def _series(value: Any, years: list[int], field: str, growth: float = 0.0) -> np.ndarray:
     """A per-year array from a number (grown at ``growth``), a list, a dict or a Series."""
     t = np.arange(len(years), dtype=float)
-    if isinstance(value, int | float) and not isinstance(value, bool):
-        out = float(value) * (1.0 + growth) ** t
-    elif isinstance(value, dict | pd.Series):
-        items = dict(value)
-        unknown = [y for y in items if int(y) not in years]
-        if unknown:
-            raise Rule(f"give values for plan years {years[0]}..{years[-1]} only", unknown,
-                       field=field)
-        missing = [y for y in years if y not in {int(k) for k in items}]
-        if missing:
-            raise Rule("give a value for every plan year", f"missing {missing}", field=field)
-        out = np.array([float(items[k]) for k in sorted(items, key=int)])
-    else:
-        out = np.asarray(value, dtype=float)
-        if out.shape != (len(years),):
-            raise Rule(f"have one value per plan year ({len(years)})", f"{out.size} values",
-                       field=field)
+    rule = "be a number, a list with one number per plan year, or a mapping of years to numbers"
+    try:
+        if isinstance(value, int | float) and not isinstance(value, bool):
+            out = float(value) * (1.0 + growth) ** t
+        elif isinstance(value, dict | pd.Series):
+            items = {int(k): float(v) for k, v in dict(value).items()}
+            unknown = [y for y in items if y not in years]
+            if unknown:
+                raise Rule(f"give values for plan years {years[0]}..{years[-1]} only", unknown,
+                           field=field)
+            missing = [y for y in years if y not in items]
+            if missing:
+                raise Rule("give a value for every plan year", f"missing {missing}",
+                           field=field)
+            out = np.array([items[y] for y in years])
+        elif isinstance(value, str | bytes | bool) or value is None:
+            raise Rule(rule, value, field=field)
+        else:
+            out = np.asarray(value, dtype=float)
+            if out.shape != (len(years),):
+                raise Rule(f"have one value per plan year ({len(years)})", f"{out.size} values",
+                           field=field)
+    except (TypeError, ValueError) as exc:
+        if isinstance(exc, Rule):
+            raise
+        raise Rule(rule, value, field=field) from None
     if not np.all(np.isfinite(out)) or np.any(out < 0):
         raise Rule("hold finite values >= 0", value, field=field)
     return out

@@ -64,3 +64,14 @@ def _quiet_end_effects():
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", gp.EndEffectsWarning)
         yield
+
+
+def pytest_terminal_summary(terminalreporter):
+    try:
+        from test_fuzz import CASES
+    except ImportError:
+        return
+    if CASES:
+        total = sum(CASES.values())
+        parts = ", ".join(f"{k} {v}" for k, v in sorted(CASES.items()))
+        terminalreporter.write_line(f"fuzzed bad inputs tried: {total} ({parts})")
