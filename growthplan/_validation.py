@@ -83,14 +83,14 @@ class Model(BaseModel):
             raise translate(exc, type(self).__name__) from None
 
     @classmethod
-    def model_validate(cls, obj: Any, *args: Any, **kwargs: Any):  # type: ignore[override]
+    def model_validate(cls, obj: Any, *args: Any, **kwargs: Any):
         try:
             return super().model_validate(obj, *args, **kwargs)
         except ValidationError as exc:
             raise translate(exc, cls.__name__) from None
 
     @classmethod
-    def model_validate_json(cls, json_data: Any, *args: Any, **kwargs: Any):  # type: ignore[override]
+    def model_validate_json(cls, json_data: Any, *args: Any, **kwargs: Any):
         try:
             return super().model_validate_json(json_data, *args, **kwargs)
         except ValidationError as exc:

@@ -136,6 +136,7 @@ def audit_schedules(plan, output: np.ndarray, starts: np.ndarray,
             goods, prices, ceil = td[side]
             if not goods:
                 continue
+            assert flows is not None, f"{side}s are needed when the plan trades"
             for i, g in enumerate(goods):
                 j = names.index(g)
                 supply[:, j] += sign * flows[:, i]
@@ -148,9 +149,11 @@ def audit_schedules(plan, output: np.ndarray, starts: np.ndarray,
         spend = np.zeros(len(years))
         scale = np.zeros(len(years))
         if td["import"][0]:
+            assert imports is not None
             spend += imports @ td["import"][1]
             scale += np.abs(imports) @ td["import"][1]
         if td["export"][0]:
+            assert exports is not None
             spend -= exports @ td["export"][1]
             scale += np.abs(exports) @ td["export"][1]
         add("foreign exchange", spend - td["inflow"], scale + td["inflow"],

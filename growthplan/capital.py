@@ -28,6 +28,7 @@ exact, which is what the capacity accounts of a plan need.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from functools import lru_cache
 from typing import Literal
 
@@ -129,16 +130,19 @@ def _continuous(profile: str, shape: float, scale: float, ages: np.ndarray) -> n
 @lru_cache(maxsize=512)
 def _calibrated(profile: str, mean_life: float, shape: float) -> tuple[float, int]:
     """Scale parameter making the whole-year survival sum equal the mean life."""
+    total: Callable[[float], float]
     if profile == "linear":
-        def total(w: float) -> float:
+        def total_linear(w: float) -> float:
             return float(_linear(np.arange(0, math.ceil(w) + 1.0), w).sum())
+        total = total_linear
         lo, hi = 1e-9, 2.0 * mean_life + 2.0
     else:
         dist = lifetime_distribution(profile, mean_life, shape)
         horizon = int(min(math.ceil(dist.isf(_TAIL) * 3.0) + 2, 100 * mean_life + 1000))
 
-        def total(s: float) -> float:
+        def total_continuous(s: float) -> float:
             return float(_continuous(profile, shape, s, np.arange(horizon, dtype=float)).sum())
+        total = total_continuous
         base = mean_life / special.gamma(1 + 1 / shape) if profile == "weibull" else math.exp(
             math.log(mean_life) - shape**2 / 2)
         lo, hi = base * 1e-3, base * 4.0
@@ -249,6 +253,7 @@ def starts_per_capacity(
     if delta is not None:
         total = (1.0 + g) / (g + delta) if g + delta > 0 else np.inf
     else:
+        assert s is not None, "a survival profile is needed without delta"
         total = _discounted_sum(s, g)
     ratio = (1.0 + g) ** lead_time / total
     if spending is None or len(spending) == 0:

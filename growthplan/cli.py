@@ -13,6 +13,7 @@ import warnings
 from pathlib import Path
 
 import click
+import numpy as np
 
 from .errors import GrowthplanError, InvalidInput
 
@@ -135,7 +136,7 @@ def steady(flows: Path, capital: Path | None, capital_stocks: Path | None) -> No
         bg = econ.balanced_growth()
         table["static_balanced"] = bg.proportions
         click.echo(f"static balanced growth rate {100 * bg.rate:.3f} %")
-        if econ.capital is not None and econ.capital_coefficients.any():
+        if econ.capital is not None and np.any(econ.capital_coefficients):
             dyn = econ.dynamic_balanced_growth()
             click.echo(f"dynamic balanced growth rate with replacement {100 * dyn.rate:.3f} %")
             table["dynamic_balanced"] = dyn.proportions

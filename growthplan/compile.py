@@ -261,7 +261,8 @@ class _Builder:
         return b
 
     def row(self, name: str, shape: tuple[int, ...], labels: tuple[list, ...],
-            coeffs: dict[str, sparse.csr_array], lower: np.ndarray, upper: np.ndarray) -> None:
+            coeffs: dict[str, sparse.csr_array], lower: np.ndarray | float,
+            upper: np.ndarray | float) -> None:
         b = Block(name, self.nrow, shape, labels)
         if b.size == 0:
             return
@@ -430,9 +431,10 @@ def compile_plan(plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
     if kb is not None:
         bal["consumption"] = sparse.kron(eye_t, sparse.csr_array(-d.basket[:, None]),
                                          format="csr")
+    trade = d.trade or {}
     for blk, side, sign in ((imb, "import", 1.0), (exb, "export", -1.0)):
         if blk is not None:
-            goods = d.trade[side][0]
+            goods = trade[side][0]
             sel = np.zeros((n, len(goods)))
             sel[[names.index(g) for g in goods], np.arange(len(goods))] = sign
             bal[blk.name] = sparse.kron(eye_t, sparse.csr_array(sel), format="csr")
@@ -458,7 +460,7 @@ def compile_plan(plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
         if exb is not None:
             fx["exports"] = sparse.kron(eye_t, sparse.csr_array(-exp_price[None, :]),
                                         format="csr")
-        bld.row("foreign_exchange", (T,), (years,), fx, -INF, d.trade["inflow"])
+        bld.row("foreign_exchange", (T,), (years,), fx, -INF, trade["inflow"])
     # 4-5. consumption floor and fall
     if kb is not None:
         bld.row("consumption_floor", (T,), (years,), {"consumption": eye_t}, d.floor, INF)
@@ -499,18 +501,19 @@ def compile_plan(plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
                 coeffs, np.array(t_lower), INF)
     # 7. terminal growth: z_jt − ψ_j G z ≥ ψ_j base_jt in each sector's final window
     if d.psi is not None:
-        sel = [(t, j) for j in range(n) for t in range(T - max(int(d.theta[j]), 1), T)
-               if t >= 0]
-        idx = np.array([t * n + j for t, j in sel])
-        psi = np.array([d.psi[j] for _, j in sel])
-        zsel = sparse.csr_array((np.ones(len(sel)), (np.arange(len(sel)), idx)),
-                                shape=(len(sel), T * n))
+        window = [(t, j) for j in range(n) for t in range(T - max(int(d.theta[j]), 1), T)
+                  if t >= 0]
+        idx = np.array([t * n + j for t, j in window])
+        psi = np.array([d.psi[j] for _, j in window])
+        zsel = sparse.csr_array((np.ones(len(window)), (np.arange(len(window)), idx)),
+                                shape=(len(window), T * n))
         term = zsel - sparse.diags_array(psi) @ g_plan[idx]
-        bld.row("terminal", (len(sel),), ([f"{years[t]}_{names[j]}" for t, j in sel],),
+        bld.row("terminal", (len(window),), ([f"{years[t]}_{names[j]}" for t, j in window],),
                 {"starts": sparse.csr_array(term)},
-                psi * np.array([base[t, j] for t, j in sel]), INF)
+                psi * np.array([base[t, j] for t, j in window]), INF)
     # 8. terminal capacity objective: G_T z − π λ ≥ −base_T
     if lb is not None:
+        assert d.proportions is not None
         bld.row("objective", (n,), (names,),
                 {"starts": sparse.csr_array(g[T * n:]),
                  "level": sparse.csr_array(-d.proportions[:, None])}, -base[T], INF)
@@ -520,25 +523,29 @@ def compile_plan(plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
     def cost_of(o) -> np.ndarray:
         c = np.zeros(ncol)
         if isinstance(o, obj.TerminalCapacity):
+            assert lb is not None
             c[lb.start] = 1.0
         elif isinstance(o, obj.DiscountedConsumption):
+            assert kb is not None
             c[kb.start:kb.stop] = (1.0 + o.rate) ** -np.arange(T, dtype=float)
         elif isinstance(o, obj.LeastLabour):
             c[xb.start:xb.stop] = np.tile(d.labour_all.sum(axis=0), T)
         elif isinstance(o, obj.LeastForeignExchange):
             if imb is not None:
-                c[imb.start:imb.stop] = np.tile(d.trade["import"][1], T)
+                c[imb.start:imb.stop] = np.tile(trade["import"][1], T)
             if exb is not None:
-                c[exb.start:exb.stop] = -np.tile(d.trade["export"][1], T)
+                c[exb.start:exb.stop] = -np.tile(trade["export"][1], T)
         return c
 
     o = plan.objective
     if isinstance(o, obj.Fastest):
         o = o.then
     if isinstance(o, obj.Weighted):
-        cost = sum(t.weight * (1.0 if t.objective.sense == "max" else -1.0)
-                   * cost_of(t.objective) for t in o.terms)
-        stages = [(cost, "max")]
+        weighted = np.zeros(ncol)
+        for term_ in o.terms:
+            weighted += term_.weight * (1.0 if term_.objective.sense == "max" else -1.0) \
+                * cost_of(term_.objective)
+        stages = [(weighted, "max")]
     elif isinstance(o, obj.Lexicographic):
         stages = [(cost_of(p), p.sense) for p in o.objectives]
     else:
@@ -551,7 +558,7 @@ def compile_plan(plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
         col_lower[lb.start] = -INF
     for blk, side in ((imb, "import"), (exb, "export")):
         if blk is not None:
-            col_upper[blk.start:blk.stop] = d.trade[side][2].ravel()
+            col_upper[blk.start:blk.stop] = trade[side][2].ravel()
     return LinearProgram(
         matrix=bld.matrix(), row_lower=np.concatenate(bld.lower),
         row_upper=np.concatenate(bld.upper), col_lower=col_lower, col_upper=col_upper,

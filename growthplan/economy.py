@@ -223,14 +223,14 @@ class Economy(Model):
         if any(isinstance(s, str) and not s.strip() for s in raw):
             raise Rule("be non-empty names", list(raw), field="sectors")
         sectors = [Sector(name=s) if isinstance(s, str) else s for s in raw]
-        names = [s.name if isinstance(s, Sector) else (s.get("name") if isinstance(s, dict)
-                 else s) for s in sectors]
+        names: list[Any] = [s.name if isinstance(s, Sector) else
+                            (s.get("name") if isinstance(s, dict) else s) for s in sectors]
         data["sectors"] = sectors
         if not names:
             raise Rule("name at least one sector", raw, field="sectors")
         if any(not isinstance(x, str) for x in names):
             raise Rule("be a list of text names", names, field="sectors")
-        stripped = [x.strip() for x in names]
+        stripped = [str(x).strip() for x in names]
         if len(set(stripped)) != len(stripped):
             dup = sorted({x for x in stripped if stripped.count(x) > 1})
             raise Rule("be unique", dup, field="sectors")

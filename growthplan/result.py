@@ -20,6 +20,7 @@ import tempfile
 import time
 import warnings
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
@@ -34,6 +35,9 @@ from .errors import (
     invalid,
 )
 from .solvers import Status
+
+if TYPE_CHECKING:
+    from .diagnose import Diagnosis
 
 __all__ = ["PlanResult", "CAUTION"]
 
@@ -87,7 +91,7 @@ class PlanResult:
         self.timings = timings
         self.warnings = notes
         self._frames = frames
-        self.diagnosis = None
+        self.diagnosis: Diagnosis | None = None
         self.horizons: dict[int, str] | None = None
         self.runaway: list[str] = []
         import highspy

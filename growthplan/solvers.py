@@ -10,6 +10,7 @@ from __future__ import annotations
 import enum
 import time
 from dataclasses import dataclass, field
+from typing import Any
 
 import highspy
 import numpy as np
@@ -100,7 +101,7 @@ def choose_method(nonzeros: int) -> str:
     return "ipm" if nonzeros > AUTO_IPM_NONZEROS else "simplex"
 
 
-def _set(h: highspy.Highs, name: str, value: object) -> None:
+def _set(h: highspy.Highs, name: str, value: Any) -> None:
     st = h.setOptionValue(name, value)
     if st != highspy.HighsStatus.kOk:
         raise invalid(f"options.{name}", "be a HiGHS option with a valid value", value)
@@ -529,7 +530,7 @@ def unbounded_ray(lp) -> np.ndarray | None:
     h = _quiet({"solver": "simplex", "presolve": "off"})
     _load(h, lp)
     h.run()
-    st, has_ray, ray = h.getPrimalRay()
+    st, has_ray, ray = h.getPrimalRay()  # type: ignore[attr-defined]
     if st == highspy.HighsStatus.kError or not has_ray:
         return None
     return np.asarray(ray, dtype=float)

@@ -169,12 +169,13 @@ def perron(m, *, method: str = "eigen", tol: float = 1e-12,
             vals, vecs = splinalg.eigs(_as_operator(m).astype(float), k=1, which="LR",
                                        tol=1e-13, maxiter=50 * n)
             rho, raw, used = float(vals[0].real), vecs[:, 0], "sparse-eigen"
-        v = _fix_sign(raw, 1e-9)
-        if v is None:
+        found = _fix_sign(raw, 1e-9)
+        if found is None:
             raise NoBalancedGrowth(
                 "The leading eigenvector has parts of both signs, so the system has no "
                 "balanced-growth ray with non-negative proportions (it is reducible: some "
                 "sectors do not feed the others).")
+        v = found
     else:
         raise invalid("method", "be 'eigen' or 'power'", method)
     mv = m @ v

@@ -31,7 +31,7 @@ import numpy as np
 import pandas as pd
 
 from ._validation import Rule, align_labels, raise_plain
-from .economy import CapitalSpec, Economy
+from .economy import CapitalSpec, Economy, Sector
 from .errors import InvalidInput, invalid
 
 __all__ = ["TransactionsTable", "read_transactions", "read_frame",
@@ -221,7 +221,8 @@ class TransactionsTable:
                               None)
             capacity = pd.Series({k: s.initial_capacity for k, s in spec.items()})
             capital_coefficients = capital_coefficients_from_stocks(capital_stocks, capacity)
-        return Economy(sectors=self.names, input_coefficients=self.input_coefficients(),
+        return Economy(sectors=[Sector(name=n) for n in self.names],
+                       input_coefficients=self.input_coefficients(),
                        capital_coefficients=capital_coefficients,
                        labour_coefficients=self.labour_coefficients(), capital=spec, **kwargs)
 
