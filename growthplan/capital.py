@@ -114,7 +114,9 @@ def lifetime_distribution(profile: str, mean_life: float, shape: float | None = 
 
 
 def _linear(ages: np.ndarray, width: float) -> np.ndarray:
-    return np.clip(1.0 - ages / width, 0.0, 1.0)
+    s = np.clip(1.0 - ages / width, 0.0, 1.0)
+    s[s < _TAIL] = 0.0  # rounding leaves ~1e-16 at the end of the profile: it is zero
+    return s
 
 
 def _continuous(profile: str, shape: float, scale: float, ages: np.ndarray) -> np.ndarray:

@@ -222,7 +222,7 @@ def _scaled(lp, r: np.ndarray, c: np.ndarray):
 def solve_highs(lp, *, method: str = "auto", time_limit: float | None = None,
                 threads: int | None = None, tolerance: float | None = None,
                 options: dict | None = None, callback=None, stop=None,
-                scale: bool = True) -> SolverOutcome:
+                scale: bool | str = "auto") -> SolverOutcome:
     """Solve a :class:`~growthplan.compile.LinearProgram` with HiGHS.
 
     The matrix is passed column-wise (CSC) in one ``passModel`` call.
@@ -234,11 +234,49 @@ def solve_highs(lp, *, method: str = "auto", time_limit: float | None = None,
     stop : callable or threading.Event, optional
         Polled during simplex and interior-point iterations; when it returns
         (or is) true the solve stops with status ``interrupted``.
-    scale : bool, default True
+    scale : {"auto", True, False}
         Equilibrate rows and columns (:func:`equilibrate`) before HiGHS's own
         scaling, so sector units that differ by many orders of magnitude do
         not change the plan; values and duals are unscaled on the way back.
+        ``"auto"`` does so when the matrix entries span more than
+        ``SCALE_RANGE``; a scaled optimum whose duals do not certify optimality
+        of the unscaled LP (:func:`optimality_gap`) is solved again unscaled.
     """
+    if scale == "auto":
+        data = np.abs(lp.matrix.data)
+        data = data[data > 0]
+        scale = bool(data.size) and float(data.max() / data.min()) > SCALE_RANGE
+    if scale:
+        first = _solve_once(lp, method=method, time_limit=time_limit, threads=threads,
+                            tolerance=tolerance, options=options, callback=callback,
+                            stop=stop, scale=True)
+        if first.status is not Status.OPTIMAL or first.row_dual is None:
+            return first
+        gap = optimality_gap(lp, first.x, first.row_dual)
+        first.options["scaled"] = True
+        if gap <= GAP_TOLERANCE:
+            return first
+        second = _solve_once(lp, method=method, time_limit=time_limit, threads=threads,
+                             tolerance=tolerance, options=options, callback=callback,
+                             stop=stop, scale=False)
+        second.options["scaled"] = False
+        second.options["scaled_gap"] = gap
+        return second
+    out = _solve_once(lp, method=method, time_limit=time_limit, threads=threads,
+                      tolerance=tolerance, options=options, callback=callback, stop=stop,
+                      scale=False)
+    out.options["scaled"] = False
+    return out
+
+
+SCALE_RANGE = 1e8   # entries spanning more than this get equilibrated first
+GAP_TOLERANCE = 1e-7
+
+
+def _solve_once(lp, *, method: str, time_limit: float | None, threads: int | None,
+                tolerance: float | None, options: dict | None, callback, stop,
+                scale: bool) -> SolverOutcome:
+    """One HiGHS solve of ``lp`` (scaled or not); see :func:`solve_highs`."""
     if method == "auto":
         method = choose_method(lp.nnz)
     if method not in METHODS:

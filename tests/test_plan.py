@@ -383,3 +383,19 @@ class TestResultTables:
             r = gp.Plan(economy=one_sector(), years=YEARS).solve()
         assert any(issubclass(x.category, gp.EndEffectsWarning) for x in w)
         assert any("end effects" in n for n in r.warnings)
+
+
+@pytest.mark.slow
+@settings(max_examples=150)
+@given(st.integers(0, 10**6), st.integers(2, 12), st.integers(3, 20),
+       st.sampled_from(["geometric", "sudden_exit", "weibull", "linear", "lognormal"]),
+       st.integers(0, 3))
+def test_slow_sweep_cbc_agrees_on_larger_plans(seed, n, T, profile, lead):
+    """A longer sweep of the CBC cross-check over every retirement profile."""
+    plan, _ = _plan(seed, n, T, profile, lead)
+    r = plan.solve()
+    prob, _ = to_pulp(plan.compile())
+    prob.solve(cbc_solver())
+    if r.status is gp.Status.OPTIMAL:
+        assert_optimal(r)
+        assert pulp.value(prob.objective) == pytest.approx(r.objective, rel=1e-6, abs=1e-6)
