@@ -47,6 +47,15 @@ def make_plan(econ: gp.Economy, years: int) -> gp.Plan:
 def naive(plan: gp.Plan) -> tuple[float, float, float]:
     """Build the same LP term by term in PuLP and solve it with PuLP's HiGHS class."""
     t0 = time.perf_counter()
+    prob = naive_problem(plan)
+    t1 = time.perf_counter()
+    prob.solve(pulp.HiGHS(msg=False))
+    t2 = time.perf_counter()
+    return t1 - t0, t2 - t1, pulp.value(prob.objective)
+
+
+def naive_problem(plan: gp.Plan) -> pulp.LpProblem:
+    """The plan's LP written the way a first PuLP model usually is: lpSum of products."""
     econ = plan.economy
     n, T = econ.n, plan.horizon
     a, b = np.asarray(econ.input_coefficients), np.asarray(econ.capital_coefficients)
@@ -74,10 +83,7 @@ def naive(plan: gp.Plan) -> tuple[float, float, float]:
     pi = 1.0 / n
     for j in range(n):
         prob += capacity(T, j) >= pi * lam
-    t1 = time.perf_counter()
-    prob.solve(pulp.HiGHS(msg=False))
-    t2 = time.perf_counter()
-    return t1 - t0, t2 - t1, pulp.value(prob.objective)
+    return prob
 
 
 def run(n: int, years: int, methods: bool, with_naive: bool = True) -> None:
