@@ -33,7 +33,7 @@ from .plan import (
     TerminalGrowth,
     Trade,
 )
-from .planfile import load_plan_file, plan_file_schema
+from .planfile import load_plan_file, plan_file_schema, save_plan_file
 from .result import CAUTION, PlanResult
 from .solvers import Status
 from .steady import BalancedGrowth
@@ -84,5 +84,6 @@ __all__ = [
     "load_plan_file",
     "plan_file_schema",
     "read_transactions",
+    "save_plan_file",
     "sweep",
 ]

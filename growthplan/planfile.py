@@ -32,20 +32,39 @@ from pathlib import Path
 from typing import Any
 
 import yaml
-from pydantic import Field, field_validator
+from pydantic import Field, field_validator, model_validator
 
 from ._validation import Model, Rule
 from .economy import Economy
 from .errors import InvalidInput, invalid
 from .plan import Plan
 
-__all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "plan_file_schema"]
+__all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "save_plan_file",
+           "plan_file_schema"]
 
 
 class EconomyTables(Model):
-    """Where the economy's tables are, relative to the plan file."""
+    """Where the economy's tables are, relative to the plan file.
 
-    flows: str
+    Either ``flows`` (a transactions table) or ``input_coefficients`` (with
+    ``labour_coefficients`` and ``capital_coefficients`` as coefficient
+    tables) describes the technology.
+    """
+
+    @model_validator(mode="after")
+    def _one_source(self) -> EconomyTables:
+        if (self.flows is None) == (self.input_coefficients is None):
+            raise Rule("give exactly one of flows and input_coefficients",
+                       [k for k in ("flows", "input_coefficients") if getattr(self, k)] or None,
+                       field="flows")
+        if self.flows is not None and self.labour_coefficients is not None:
+            raise Rule("come with input_coefficients (flows carry their own labour rows)",
+                       self.labour_coefficients, field="labour_coefficients")
+        return self
+
+    flows: str | None = None
+    input_coefficients: str | None = None
+    labour_coefficients: str | None = None
     capital: str | None = None
     capital_stocks: str | None = None
     capital_coefficients: str | None = None
@@ -188,11 +207,21 @@ def load_plan_file(path: str | Path) -> tuple[Plan, SolveOptions]:
         return p
 
     try:
-        econ = Economy.from_tables(
-            ref(tables.flows, "flows"), capital=ref(tables.capital, "capital"),
-            capital_stocks=ref(tables.capital_stocks, "capital_stocks"),
-            capital_coefficients=ref(tables.capital_coefficients, "capital_coefficients"),
-            consumption_basket=tables.consumption_basket, wage_basket=tables.wage_basket)
+        if tables.flows is not None:
+            econ = Economy.from_tables(
+                ref(tables.flows, "flows"), capital=ref(tables.capital, "capital"),
+                capital_stocks=ref(tables.capital_stocks, "capital_stocks"),
+                capital_coefficients=ref(tables.capital_coefficients, "capital_coefficients"),
+                consumption_basket=tables.consumption_basket, wage_basket=tables.wage_basket)
+        else:
+            from .tables import economy_from_coefficients
+
+            econ = economy_from_coefficients(
+                ref(tables.input_coefficients, "input_coefficients"),
+                capital=ref(tables.capital, "capital"),
+                capital_coefficients=ref(tables.capital_coefficients, "capital_coefficients"),
+                labour_coefficients=ref(tables.labour_coefficients, "labour_coefficients"),
+                consumption_basket=tables.consumption_basket, wage_basket=tables.wage_basket)
     except InvalidInput as exc:
         if str(exc).startswith(str(path)):
             raise
@@ -215,3 +244,74 @@ def load_plan_file(path: str | Path) -> tuple[Plan, SolveOptions]:
     except TypeError as exc:
         raise InvalidInput(f"{path}: plan: {exc}", field="plan") from None
     return plan, spec.solve
+
+
+def _plain(value: Any) -> Any:
+    """Plan field values as YAML-safe Python (lists, dicts, numbers, text)."""
+    import numpy as np
+    import pandas as pd
+
+    if isinstance(value, pd.DataFrame):
+        return {str(c): [float(v) for v in value[c]] for c in value.columns}
+    if isinstance(value, pd.Series):
+        return {int(k): float(v) for k, v in value.items()}
+    if isinstance(value, np.ndarray):
+        return value.tolist()
+    if isinstance(value, np.generic):
+        return value.item()
+    if isinstance(value, dict):
+        return {k: _plain(v) for k, v in value.items()}
+    if isinstance(value, list | tuple):
+        return [_plain(v) for v in value]
+    return value
+
+
+def save_plan_file(plan: Plan, path: str | Path, *, overwrite: bool = False,
+                   solve: SolveOptions | None = None) -> Path:
+    """Write ``plan`` as a YAML plan file with its coefficient tables beside it.
+
+    The tables are ``<stem>_input_coefficients.csv``, ``<stem>_capital_coefficients.csv``,
+    ``<stem>_labour_coefficients.csv`` and ``<stem>_capital.csv`` in the file's folder;
+    :func:`load_plan_file` reads the set back into an equal plan. Nothing is
+    overwritten without ``overwrite=True``, and every file is written aside
+    and renamed into place.
+    """
+    import os
+    import shutil
+    import tempfile
+
+    from .tables import write_coefficient_tables
+
+    path = Path(path)
+    if path.suffix.lower() not in (".yaml", ".yml"):
+        raise invalid("path", "end in .yaml or .yml", str(path))
+    stem = f"{path.stem}_"
+    econ = plan.economy
+    tmp = Path(tempfile.mkdtemp(prefix=f".{path.name}.", dir=path.parent))
+    try:
+        names = write_coefficient_tables(econ, tmp, prefix=stem)
+        targets = [path, *(path.parent / n for n in names.values())]
+        existing = [str(t) for t in targets if t.exists()]
+        if existing and not overwrite:
+            raise invalid("path", "not overwrite existing files (pass overwrite=True)",
+                          existing)
+        economy: dict[str, Any] = dict(names)
+        if econ.consumption_basket is not None:
+            economy["consumption_basket"] = dict(zip(econ.names,
+                                                     econ.consumption_basket.tolist(),
+                                                     strict=True))
+        if econ.wage_basket is not None:
+            economy["wage_basket"] = dict(zip(econ.names, econ.wage_basket.tolist(),
+                                              strict=True))
+        fields = plan.model_dump(exclude={"economy"}, mode="python")
+        fields = _plain({k: v for k, v in fields.items() if v not in (None, [], {})})
+        doc = {"economy": economy, "plan": fields,
+               "solve": (solve or SolveOptions()).model_dump(exclude_none=True)}
+        (tmp / path.name).write_text(
+            "# growthplan plan file (written by save_plan_file)\n"
+            + yaml.safe_dump(doc, sort_keys=False, allow_unicode=True), encoding="utf-8")
+        for name in [*names.values(), path.name]:
+            os.replace(tmp / name, path.parent / name)
+    finally:
+        shutil.rmtree(tmp, ignore_errors=True)
+    return path

@@ -35,9 +35,11 @@ from .economy import CapitalSpec, Economy, Sector
 from .errors import InvalidInput, invalid
 
 __all__ = ["TransactionsTable", "read_transactions", "read_frame",
-           "capital_coefficients_from_stocks"]
+           "capital_coefficients_from_stocks", "capital_table", "economy_from_coefficients",
+           "write_coefficient_tables"]
 
 SPECIAL_ROWS = ("gross_output", "value_added")
+LIST_COLUMNS = ("spending_profile", "investment_history")
 CAPITAL_COLUMNS = set(CapitalSpec.model_fields)
 
 
@@ -257,13 +259,16 @@ def _capital_specs(capital: Any, names: list[str], gross: pd.Series) -> dict[str
         items = {}
         for name, row in frame.iterrows():
             entry = {k: v for k, v in row.items() if not (isinstance(v, float) and np.isnan(v))}
-            if isinstance(entry.get("spending_profile"), str):
-                try:
-                    entry["spending_profile"] = [float(p) for p in
-                                                 entry["spending_profile"].split(";")]
-                except ValueError:
-                    raise invalid(f"capital.{name}.spending_profile",
-                                  "be shares separated by ';'", row["spending_profile"]) from None
+            for key in LIST_COLUMNS:
+                value = entry.get(key)
+                if isinstance(value, str):
+                    try:
+                        entry[key] = [float(p) for p in value.split(";")]
+                    except ValueError:
+                        raise invalid(f"capital.{name}.{key}", "be numbers separated by ';'",
+                                      value) from None
+                elif isinstance(value, int | float | np.number) and not isinstance(value, bool):
+                    entry[key] = [float(value)]  # a one-entry list read as a number
             for k in ("lead_time",):
                 if k in entry and isinstance(entry[k], float) and entry[k].is_integer():
                     entry[k] = int(entry[k])
@@ -316,3 +321,67 @@ def read_transactions(source: Any) -> TransactionsTable:
     fd = body[fd_cols] if fd_cols else None
     va = frame.loc[lower["value_added"], sector_cols] if "value_added" in lower else None
     return TransactionsTable(flows, gross, labour, final_demand=fd, value_added=va)
+
+
+def capital_table(econ: Economy) -> pd.DataFrame:
+    """The economy's capital as a table in the layout :func:`read_frame` reads back."""
+    if econ.capital is None:
+        raise invalid("capital", "be given to write a capital table", None)
+    rows = {}
+    for name, spec in econ.capital.items():
+        row = spec.model_dump()
+        for key in LIST_COLUMNS:
+            if row.get(key) is not None:
+                row[key] = ";".join(repr(float(v)) for v in row[key])
+        rows[name] = row
+    frame = pd.DataFrame.from_dict(rows, orient="index")
+    frame.index.name = "sector"
+    return frame
+
+
+def write_coefficient_tables(econ: Economy, folder, prefix: str = "") -> dict[str, str]:
+    """Write A, B, labour coefficients and capital as CSV files; return their file names."""
+    from pathlib import Path
+
+    folder = Path(folder)
+    names = {"input_coefficients": f"{prefix}input_coefficients.csv",
+             "capital_coefficients": f"{prefix}capital_coefficients.csv"}
+    econ.A.rename_axis("sector").to_csv(folder / names["input_coefficients"],
+                                         float_format="%.17g")
+    econ.B.rename_axis("sector").to_csv(folder / names["capital_coefficients"],
+                                         float_format="%.17g")
+    if econ.labour_coefficients is not None:
+        names["labour_coefficients"] = f"{prefix}labour_coefficients.csv"
+        pd.DataFrame(np.asarray(econ.labour_coefficients), index=pd.Index(
+            econ.labour_kinds, name="kind"), columns=econ.names).to_csv(
+            folder / names["labour_coefficients"], float_format="%.17g")
+    if econ.capital is not None:
+        names["capital"] = f"{prefix}capital.csv"
+        capital_table(econ).to_csv(folder / names["capital"])
+    return names
+
+
+def economy_from_coefficients(input_coefficients, *, capital=None, capital_coefficients=None,
+                              labour_coefficients=None, **kwargs: Any) -> Economy:
+    """An economy from coefficient tables (files or DataFrames) rather than flows.
+
+    ``input_coefficients`` and ``capital_coefficients`` are commodities ×
+    sectors; ``labour_coefficients`` has one row per labour kind; ``capital``
+    is the capital table.
+    """
+    a = _numeric(read_frame(input_coefficients, what="input_coefficients"),
+                 "input_coefficients").fillna(0.0)
+    names = [str(c) for c in a.columns]
+    b = None if capital_coefficients is None else _numeric(
+        read_frame(capital_coefficients, what="capital_coefficients"),
+        "capital_coefficients").fillna(0.0)
+    lab = None if labour_coefficients is None else _numeric(
+        read_frame(labour_coefficients, what="labour_coefficients"), "labour_coefficients")
+    spec = None
+    if capital is not None:
+        spec = _capital_specs(capital if isinstance(capital, pd.DataFrame) else read_frame(
+            capital, what="capital"), names, pd.Series(dtype=float))
+    return Economy(sectors=[Sector(name=n) for n in names], input_coefficients=a,
+                   capital_coefficients=b, labour_coefficients=lab,
+                   labour_kinds=None if lab is None else [str(k) for k in lab.index],
+                   capital=spec, **kwargs)

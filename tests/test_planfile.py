@@ -5,6 +5,7 @@ from __future__ import annotations
 import json
 import shutil
 
+import numpy as np
 import pytest
 import yaml
 
@@ -113,3 +114,27 @@ def test_yaml_is_loaded_safely(folder):
     p.write_text("economy: !!python/object/apply:os.system ['echo hacked']\n")
     with pytest.raises(gp.InvalidInput, match="not valid YAML"):
         load_plan_file(p)
+
+
+def test_save_and_load_round_trip(tmp_path):
+    from growthplan.demo import demo_plan
+    from growthplan.planfile import save_plan_file
+
+    plan = demo_plan()
+    path = save_plan_file(plan, tmp_path / "saved.yaml")
+    assert (tmp_path / "saved_capital.csv").exists()
+    again, _ = load_plan_file(path)
+    assert again.economy == plan.economy
+    assert again.model_dump_json() == plan.model_dump_json()
+    a, b = plan.compile(), again.compile()
+    assert (a.matrix != b.matrix).nnz == 0 and np.array_equal(a.row_lower, b.row_lower)
+    with pytest.raises(gp.InvalidInput, match="overwrite"):
+        save_plan_file(plan, path)
+    save_plan_file(plan, path, overwrite=True)
+
+
+def test_coefficient_tables_need_one_source(folder):
+    d = demo_data()
+    d["economy"]["input_coefficients"] = "a.csv"
+    with pytest.raises(gp.InvalidInput, match="exactly one of flows and input_coefficients"):
+        load_plan_file(write(folder, d))
