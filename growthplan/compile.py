@@ -118,6 +118,8 @@ class LinearProgram:
     data: PlanData
     target_info: list[dict] = field(default_factory=list)
     stages: list[tuple[np.ndarray, str]] = field(default_factory=list)
+    capacity_op: sparse.csr_array | None = None    # C = base + G z, kept for the results
+    deliveries_op: sparse.csr_array | None = None  # capital goods delivered = W z
 
     @property
     def shape(self) -> tuple[int, int]:
@@ -424,10 +426,11 @@ def compile_plan(plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
 
     g = capacity_operator(d)
     g_plan = g[: T * n]
+    w_op = deliveries_operator(d)
     base = d.base
     # 1. commodity balance: (I − A) x_t − W z − h κ_t ≥ g_t + pipeline deliveries
     bal = {"output": sparse.kron(eye_t, sparse.csr_array(np.eye(n) - d.a), format="csr"),
-           "starts": -deliveries_operator(d)}
+           "starts": -w_op}
     if kb is not None:
         bal["consumption"] = sparse.kron(eye_t, sparse.csr_array(-d.basket[:, None]),
                                          format="csr")
@@ -563,4 +566,5 @@ def compile_plan(plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
         matrix=bld.matrix(), row_lower=np.concatenate(bld.lower),
         row_upper=np.concatenate(bld.upper), col_lower=col_lower, col_upper=col_upper,
         cost=cost, sense=sense, rows=bld.rows, cols=bld.cols,
-        row_sign=np.concatenate(bld.sign), data=d, target_info=info, stages=stages)
+        row_sign=np.concatenate(bld.sign), data=d, target_info=info, stages=stages,
+        capacity_op=g, deliveries_op=w_op)

@@ -363,7 +363,9 @@ class Summary:
         rows = [("status", r.status.value + ("" if r.ok else f" ({r.message})")),
                 ("years", f"{p.years[0]}–{p.years[-1]} ({p.horizon})"),
                 ("sectors", str(p.economy.n)),
-                ("objective", f"{type(p.objective).__name__} = {r.objective:.6g}")]
+                ("objective", f"{type(p.objective).__name__} = {r.objective:.6g}"
+                 + (f" (terminal proportions: {r.lp.data.proportions_source})"
+                    if r.lp.data.proportions_source else ""))]
         if r.ok:
             cap = r.capacity
             first, last = cap.iloc[0].sum(), cap.iloc[-1].sum()
@@ -427,8 +429,10 @@ def _frames(plan, lp, outcome) -> tuple[dict, dict]:
     level = float(x[lp.cols["level"].start]) if "level" in lp.cols else None
     from .compile import capacity_operator, deliveries_operator
 
-    cap = (d.base.ravel() + capacity_operator(d) @ starts.ravel()).reshape(T + 1, n)
-    deliv = (deliveries_operator(d) @ starts.ravel()).reshape(T, n) + d.pipe_deliveries
+    g = lp.capacity_op if lp.capacity_op is not None else capacity_operator(d)
+    w = lp.deliveries_op if lp.deliveries_op is not None else deliveries_operator(d)
+    cap = (d.base.ravel() + g @ starts.ravel()).reshape(T + 1, n)
+    deliv = (w @ starts.ravel()).reshape(T, n) + d.pipe_deliveries
     entering = np.zeros((T + 1, n))  # capacity entering service at age 0 in each year
     for j, name in enumerate(names):
         th = int(d.theta[j])
