@@ -399,3 +399,26 @@ def test_slow_sweep_cbc_agrees_on_larger_plans(seed, n, T, profile, lead):
     if r.status is gp.Status.OPTIMAL:
         assert_optimal(r)
         assert pulp.value(prob.objective) == pytest.approx(r.objective, rel=1e-6, abs=1e-6)
+
+
+def test_dual_signs_on_the_wyndor_example():
+    """Hillier & Lieberman, Introduction to Operations Research, the Wyndor Glass example:
+    maximise 3x1 + 5x2 s.t. x1 <= 4, 2x2 <= 12, 3x1 + 2x2 <= 18 -> x = (2, 6), Z = 36,
+    shadow prices (0, 1.5, 1). Checks the one place where HiGHS duals are read."""
+    from types import SimpleNamespace
+
+    from scipy import sparse
+
+    from growthplan.solvers import optimality_gap, solve_highs
+
+    m = sparse.csc_array(np.array([[1.0, 0.0], [0.0, 2.0], [3.0, 2.0]]))
+    lp = SimpleNamespace(matrix=m, cost=np.array([3.0, 5.0]), sense="max",
+                         row_lower=np.full(3, -np.inf), row_upper=np.array([4.0, 12.0, 18.0]),
+                         col_lower=np.zeros(2), col_upper=np.full(2, np.inf), nnz=m.nnz,
+                         row_sign=np.ones(3))
+    for method in ("simplex", "ipm-crossover"):
+        out = solve_highs(lp, method=method)
+        np.testing.assert_allclose(out.x, [2.0, 6.0], atol=1e-9)
+        assert out.objective == pytest.approx(36.0)
+        np.testing.assert_allclose(out.row_dual, [0.0, 1.5, 1.0], atol=1e-9)
+        assert optimality_gap(lp, out.x, out.row_dual) < 1e-12
