@@ -498,6 +498,17 @@ class Plan(Model):
               progress: bool = False, stop=None, size_limit: int | None = 25_000_000):
         """Solve the plan with HiGHS and audit the result.
 
+        The LP, for years ``t = 0..T−1`` (MODEL.md §4)::
+
+            maximise (or minimise) the objective, e.g. λ with C_T ≥ λ π
+            subject to, for every year t and sector or commodity j,
+              x_t + m_t − e_t ≥ A x_t + Σ_s B W_s z_{t−s} + h κ_t + g_t   (balance)
+              x_jt ≤ u_j C_jt,  C_jt = C0_j R_j(t) + Σ_τ S_j(t−τ−θ_j) z_jτ   (capacity)
+              l_k x_t ≤ L_kt                                              (labour)
+              p^m m_t − p^e e_t ≤ F_t                                     (foreign exchange)
+              κ_t ≥ floor_t,  κ_{t+1} ≥ (1 − f) κ_t                        (consumption)
+              targets, starts ceilings, terminal growth,  x, z, κ, m, e ≥ 0
+
         Parameters
         ----------
         method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp"}
@@ -523,6 +534,23 @@ class Plan(Model):
         Returns
         -------
         PlanResult
+
+        Examples
+        --------
+        One sector with a = 0.6, b = 2 and a 20-year geometric life grows at
+        the Harrod–Domar rate (1 − a)/b − δ = 0.15:
+
+        >>> import warnings
+        >>> from growthplan import CapitalSpec, Economy
+        >>> econ = Economy(sectors=["goods"], input_coefficients=[[0.6]],
+        ...                capital_coefficients=[[2.0]],
+        ...                capital={"goods": CapitalSpec(initial_capacity=100,
+        ...                                              mean_service_life=20)})
+        >>> with warnings.catch_warnings():
+        ...     warnings.simplefilter("ignore")
+        ...     result = Plan(economy=econ, years=range(2030, 2035)).solve()
+        >>> result.status.value, round(result.objective, 6), round(100 * 1.15 ** 5, 6)
+        ('optimal', 201.135719, 201.135719)
         """
         if isinstance(self.objective, obj.Fastest):
             return self._fastest(method=method, time_limit=time_limit, threads=threads,

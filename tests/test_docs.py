@@ -26,7 +26,7 @@ def test_readme_tour_runs(tmp_path, monkeypatch):
     assert (tmp_path / "plan-out" / "output.csv").exists()
 
 
-@pytest.mark.parametrize("module", ["errors", "capital", "economy", "expanding"])
+@pytest.mark.parametrize("module", ["errors", "capital", "economy", "expanding", "plan"])
 def test_docstring_examples(module):
     mod = importlib.import_module(f"growthplan.{module}")
     failures, tried = doctest.testmod(mod, optionflags=doctest.NORMALIZE_WHITESPACE)
