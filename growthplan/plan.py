@@ -651,30 +651,44 @@ class Plan(Model):
         return Plan(**fields)
 
     def _fastest(self, **kw: Any):
+        """Bisection over horizons, each a feasibility LP (no objective).
+
+        HiGHS cannot warm-start one horizon from another (each is an LP of
+        another size), so every test starts cold; the shortest feasible
+        horizon is then solved with the ``then`` objective and audited.
+        """
+        import dataclasses
+
+        from .solvers import Status, solve_highs
+
         o = self.objective
         assert isinstance(o, obj.Fastest)
         tried: dict[int, str] = {}
-        results: dict[int, Any] = {}
+        solver_kw = {k: kw[k] for k in ("method", "time_limit", "threads", "tolerance",
+                                        "options", "stop") if k in kw}
 
-        def attempt(years: int):
+        def feasible(years: int) -> bool:
+            lp = self.with_horizon(years).compile(size_limit=kw.get("size_limit", 25_000_000))
+            zero = np.zeros_like(lp.cost)
+            probe = dataclasses.replace(lp, cost=zero, sense="min", stages=[(zero, "min")])
+            status = solve_highs(probe, **solver_kw).status
+            tried[years] = status.value
+            return status is Status.OPTIMAL
+
+        def final(years: int):
             with warnings.catch_warnings():
                 warnings.simplefilter("ignore", EndEffectsWarning)
-                r = self.with_horizon(years).solve(**kw)
-            tried[years] = r.status.value
-            results[years] = r
-            return r
+                result = self.with_horizon(years).solve(**kw)
+            result.horizons = dict(sorted(tried.items()))
+            return result
 
-        top = attempt(o.max_years)
-        if not top.ok:
-            top.horizons = tried
-            return top
+        if not feasible(o.max_years):
+            return final(o.max_years)  # infeasible: the result carries the diagnosis
         lo, hi = 0, o.max_years  # lo infeasible (or none), hi feasible
         while hi - lo > 1:
             mid = (lo + hi) // 2
-            if attempt(mid).ok:
+            if feasible(mid):
                 hi = mid
             else:
                 lo = mid
-        best = results[hi]
-        best.horizons = dict(sorted(tried.items()))
-        return best
+        return final(hi)
