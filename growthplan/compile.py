@@ -375,6 +375,15 @@ def estimate_size(plan) -> dict[str, int]:
             "bytes": int(nnz) * BYTES_PER_NONZERO}
 
 
+def _upper_bound(plan) -> int:
+    """A cheap bound on the nonzeros (no survival profiles computed), >= estimate_size's."""
+    T, n = plan.horizon, plan.economy.n
+    width = max(1, max(s.lead_time for s in plan.economy.capital.values()))
+    kinds = len(plan.labour)
+    return (T * n * n * (1 + width) + T * n * (T + 9) + T * kinds * n + 4 * T
+            + len(plan.targets) * (T + 1) + n * width * (T + 1) + n)
+
+
 def compile_plan(plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
     """Compile a validated :class:`~growthplan.Plan` into a :class:`LinearProgram`.
 
@@ -392,8 +401,8 @@ def compile_plan(plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
     """
     from .errors import InvalidInput
 
-    if size_limit is not None:
-        est = estimate_size(plan)
+    if size_limit is not None and _upper_bound(plan) > size_limit:
+        est = estimate_size(plan)  # exact count only when the cheap bound is not enough
         if est["nonzeros"] > size_limit:
             raise InvalidInput(
                 f"plan is too large to build: about {est['rows']:,} rows, {est['columns']:,} "

@@ -8,6 +8,7 @@ raises for an infeasible or stopped solve.
 from __future__ import annotations
 
 import enum
+import functools
 import time
 from dataclasses import dataclass, field
 from typing import Any
@@ -138,7 +139,9 @@ def _new_highs() -> highspy.Highs:
     return h
 
 
+@functools.cache
 def highs_version() -> str:
+    """HiGHS's version, asked once per process."""
     h = _new_highs()
     try:
         return f"{h.versionMajor()}.{h.versionMinor()}.{h.versionPatch()}"
