@@ -6,10 +6,8 @@ from here.
 
 from importlib.metadata import PackageNotFoundError, version
 
-from . import capital, objectives
-from .audit import Audit
-from .compile import LinearProgram
-from .diagnose import Diagnosis
+from . import backends, capital, objectives
+from .backends import HighsBackend, PulpBackend, Status
 from .economy import CapitalSpec, Economy, Sector
 from .errors import (
     EndEffectsWarning,
@@ -24,6 +22,7 @@ from .errors import (
     UnproductiveEconomy,
 )
 from .expanding import ExpandingEconomy, expanding_economy
+from .lp.program import LinearProgram
 from .plan import (
     Consumption,
     LabourSupply,
@@ -34,10 +33,9 @@ from .plan import (
     Trade,
 )
 from .planfile import load_plan_file, plan_file_schema, save_plan_file
-from .result import CAUTION, PlanResult
-from .solvers import Status
+from .results import CAUTION, Audit, Diagnosis, PlanResult
 from .steady import BalancedGrowth
-from .sweep import SerialExecutor, Sweep, sweep
+from .sweep import SerialExecutor, Sweep, sweep, variant
 from .tables import TransactionsTable, read_transactions
 
 try:
@@ -47,6 +45,10 @@ except PackageNotFoundError:  # running from a source tree
 
 __all__ = [
     "Audit",
+    "HighsBackend",
+    "PulpBackend",
+    "backends",
+    "variant",
     "CAUTION",
     "Consumption",
     "Diagnosis",

@@ -26,7 +26,7 @@ def _fail(exc: Exception) -> None:
 
 
 def _exit_code(result) -> int:
-    from .solvers import Status
+    from . import Status
 
     return {Status.OPTIMAL: EXIT_OK, Status.INFEASIBLE: EXIT_INFEASIBLE,
             Status.UNBOUNDED: EXIT_UNBOUNDED}.get(result.status, EXIT_SOLVER)

@@ -1,17 +1,23 @@
 """What a plan aims for.
 
-Each objective is a small model; :meth:`growthplan.Plan.solve` compiles it
-into the LP's cost vector (MODEL.md §4).
+Each objective is a small model that carries its own cost vector
+(:meth:`Objective.cost`), sense, requirements on the plan
+(:meth:`Objective.check`) and objective stages (:meth:`Objective.stages`);
+the builder asks it for them and knows no objective by name.
 """
 
 from __future__ import annotations
 
-from typing import Annotated, Any, Literal
+from typing import TYPE_CHECKING, Annotated, Any, Literal
 
 import numpy as np
 from pydantic import Field, field_validator
 
 from ._validation import Model, Rule
+
+if TYPE_CHECKING:
+    from .lp.data import PlanData
+    from .lp.program import Block, Stage
 
 __all__ = ["Objective", "TerminalCapacity", "DiscountedConsumption", "LeastLabour",
            "LeastForeignExchange", "Weighted", "WeightedTerm", "Lexicographic", "Fastest",
@@ -27,6 +33,31 @@ class Objective(Model):
     def discount_rate(self) -> float | None:
         """Rate that turns the objective's year weights into present values, if any."""
         return None
+
+    def check(self, plan: Any) -> None:
+        """Raise :class:`Rule` when the plan lacks a part this objective needs."""
+
+    def needs_level(self) -> bool:
+        """Whether the LP needs the terminal level ``λ`` and its rows."""
+        return any(isinstance(c, TerminalCapacity) for c in components(self))
+
+    def cost(self, d: PlanData, cols: dict[str, Block], ncol: int) -> np.ndarray:
+        """Cost vector over the LP's columns, optimised in ``sense``."""
+        raise NotImplementedError
+
+    def stages(self, d: PlanData, cols: dict[str, Block], ncol: int) -> list[Stage]:
+        """The objective stages: one for a simple objective."""
+        from .lp.program import Stage
+
+        return [Stage(self.cost(d, cols, ncol), self.sense)]
+
+    def horizon_search(self) -> Fastest | None:
+        """The horizon search this objective asks for, if any."""
+        return None
+
+
+def _zeros(ncol: int) -> np.ndarray:
+    return np.zeros(ncol)
 
 
 class TerminalCapacity(Objective):
@@ -57,6 +88,18 @@ class TerminalCapacity(Objective):
             raise Rule("hold non-negative weights with a positive sum", v)
         return v
 
+    def check(self, plan: Any) -> None:
+        if self.proportions:
+            unknown = [k for k in self.proportions if k not in plan.economy.names]
+            if unknown:
+                raise Rule("name sectors of the economy", unknown[:5],
+                           field="objective.proportions")
+
+    def cost(self, d: PlanData, cols: dict[str, Block], ncol: int) -> np.ndarray:
+        c = _zeros(ncol)
+        c[cols["level"].start] = 1.0
+        return c
+
 
 class DiscountedConsumption(Objective):
     """Maximise ``Σ_t (1 + r)^-t κ_t``, the discounted consumption level.
@@ -81,6 +124,17 @@ class DiscountedConsumption(Objective):
     def discount_rate(self) -> float | None:
         return self.rate
 
+    def check(self, plan: Any) -> None:
+        if plan.consumption is None:
+            raise Rule("come with a consumption part in the plan (the objective values it)",
+                       None, field="consumption")
+
+    def cost(self, d: PlanData, cols: dict[str, Block], ncol: int) -> np.ndarray:
+        c = _zeros(ncol)
+        k = cols["consumption"]
+        c[k.start:k.stop] = (1.0 + self.rate) ** -np.arange(k.size, dtype=float)
+        return c
+
 
 class LeastLabour(Objective):
     """Minimise the total labour (all kinds, all years) that meets every condition."""
@@ -88,12 +142,36 @@ class LeastLabour(Objective):
     kind: Literal["least_labour"] = "least_labour"
     sense: Literal["max", "min"] = "min"
 
+    def check(self, plan: Any) -> None:
+        if plan.economy.labour_coefficients is None:
+            raise Rule("come with labour coefficients in the economy (the objective counts "
+                       "labour)", None, field="economy.labour_coefficients")
+
+    def cost(self, d: PlanData, cols: dict[str, Block], ncol: int) -> np.ndarray:
+        c = _zeros(ncol)
+        x = cols["output"]
+        c[x.start:x.stop] = np.tile(d.labour_all.sum(axis=0), d.T)
+        return c
+
 
 class LeastForeignExchange(Objective):
     """Minimise the total net foreign-exchange outlay ``Σ_t (p^m·m_t − p^e·e_t)``."""
 
     kind: Literal["least_foreign_exchange"] = "least_foreign_exchange"
     sense: Literal["max", "min"] = "min"
+
+    def check(self, plan: Any) -> None:
+        if plan.trade is None:
+            raise Rule("come with a trade part in the plan (the objective counts foreign "
+                       "exchange)", None, field="trade")
+
+    def cost(self, d: PlanData, cols: dict[str, Block], ncol: int) -> np.ndarray:
+        c = _zeros(ncol)
+        for name, side, sign in (("imports", d.imports, 1.0), ("exports", d.exports, -1.0)):
+            if name in cols and side is not None:
+                b = cols[name]
+                c[b.start:b.stop] = sign * np.tile(side.prices, d.T)
+        return c
 
 
 Simple = Annotated[TerminalCapacity | DiscountedConsumption | LeastLabour | LeastForeignExchange,
@@ -126,6 +204,17 @@ class Weighted(Objective):
                              {"objective": t[0], "weight": t[1]} for t in terms]
         super().__init__(**data)
 
+    def check(self, plan: Any) -> None:
+        for t in self.terms:
+            t.objective.check(plan)
+
+    def cost(self, d: PlanData, cols: dict[str, Block], ncol: int) -> np.ndarray:
+        c = _zeros(ncol)
+        for t in self.terms:
+            sign = 1.0 if t.objective.sense == "max" else -1.0
+            c += t.weight * sign * t.objective.cost(d, cols, ncol)
+        return c
+
 
 class Lexicographic(Objective):
     """Optimise the first objective, then each next one with the earlier ones held.
@@ -148,6 +237,18 @@ class Lexicographic(Objective):
     def discount_rate(self) -> float | None:
         return self.objectives[-1].discount_rate()
 
+    def check(self, plan: Any) -> None:
+        for o in self.objectives:
+            o.check(plan)
+
+    def cost(self, d: PlanData, cols: dict[str, Block], ncol: int) -> np.ndarray:
+        return self.objectives[0].cost(d, cols, ncol)
+
+    def stages(self, d: PlanData, cols: dict[str, Block], ncol: int) -> list[Stage]:
+        from .lp.program import Stage
+
+        return [Stage(o.cost(d, cols, ncol), o.sense, self.tolerance) for o in self.objectives]
+
 
 class Fastest(Objective):
     """The shortest horizon, in whole years up to ``max_years``, that meets every target.
@@ -165,6 +266,21 @@ class Fastest(Objective):
     sense: Literal["max", "min"] = "max"
     max_years: int = Field(ge=1, le=500)
     then: Simple | Weighted = Field(default_factory=TerminalCapacity, discriminator="kind")
+
+    def check(self, plan: Any) -> None:
+        self.then.check(plan)
+
+    def discount_rate(self) -> float | None:
+        return self.then.discount_rate()
+
+    def cost(self, d: PlanData, cols: dict[str, Block], ncol: int) -> np.ndarray:
+        return self.then.cost(d, cols, ncol)
+
+    def stages(self, d: PlanData, cols: dict[str, Block], ncol: int) -> list[Stage]:
+        return self.then.stages(d, cols, ncol)
+
+    def horizon_search(self) -> Fastest | None:
+        return self
 
 
 def components(objective: Objective) -> list[Objective]:

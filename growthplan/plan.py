@@ -16,54 +16,26 @@ Timing conventions (MODEL.md §4, kept everywhere in the library):
 from __future__ import annotations
 
 import time
-import warnings
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import pandas as pd
 from pydantic import Field, PrivateAttr, field_validator, model_validator
 
 from . import objectives as obj
 from ._validation import Model, Rule
 from .economy import Economy
-from .errors import EndEffectsWarning
+from .lp import data as lowering
+from .series import series as _series
+
+if TYPE_CHECKING:
+    from .lp.data import PlanData
+    from .lp.program import LinearProgram
+    from .results.result import PlanResult
+
+MAX_YEARS = 1000  # longer plans are refused before anything is allocated
 
 __all__ = ["LabourSupply", "Consumption", "Target", "StartsCeiling", "TerminalGrowth", "Trade",
            "Plan"]
-
-
-def _series(value: Any, years: list[int], field: str, growth: float = 0.0) -> np.ndarray:
-    """A per-year array from a number (grown at ``growth``), a list, a dict or a Series."""
-    t = np.arange(len(years), dtype=float)
-    rule = "be a number, a list with one number per plan year, or a mapping of years to numbers"
-    try:
-        if isinstance(value, int | float) and not isinstance(value, bool):
-            out = float(value) * (1.0 + growth) ** t
-        elif isinstance(value, dict | pd.Series):
-            items = {int(k): float(v) for k, v in dict(value).items()}
-            unknown = [y for y in items if y not in years]
-            if unknown:
-                raise Rule(f"give values for plan years {years[0]}..{years[-1]} only", unknown,
-                           field=field)
-            missing = [y for y in years if y not in items]
-            if missing:
-                raise Rule("give a value for every plan year", f"missing {missing}",
-                           field=field)
-            out = np.array([items[y] for y in years])
-        elif isinstance(value, str | bytes | bool) or value is None:
-            raise Rule(rule, value, field=field)
-        else:
-            out = np.asarray(value, dtype=float)
-            if out.shape != (len(years),):
-                raise Rule(f"have one value per plan year ({len(years)})", f"{out.size} values",
-                           field=field)
-    except (TypeError, ValueError) as exc:
-        if isinstance(exc, Rule):
-            raise
-        raise Rule(rule, value, field=field) from None
-    if not np.all(np.isfinite(out)) or np.any(out < 0):
-        raise Rule("hold finite values >= 0", value, field=field)
-    return out
 
 
 class LabourSupply(Model):
@@ -85,6 +57,13 @@ class LabourSupply(Model):
     growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
     series: Any = None
     kind: str = "labour"
+
+    @field_validator("start", "growth", mode="before")
+    @classmethod
+    def _number(cls, v: Any) -> Any:
+        if isinstance(v, bool | np.bool_):
+            raise Rule("be a number, not true or false", v)
+        return v
 
     @model_validator(mode="after")
     def _one(self) -> LabourSupply:
@@ -151,17 +130,17 @@ class Target(Model):
         return self
 
     @property
-    def what(self) -> str:
-        """``"output"``, ``"capacity"`` or ``"consumption"``."""
+    def quantity(self) -> str:
+        """What the target bounds: ``"output"``, ``"capacity"`` or ``"consumption"``."""
         for k in ("output", "capacity", "consumption"):
             if getattr(self, f"{k}_at_least") is not None:
                 return k
         raise AssertionError("validated target without a condition")
 
     @property
-    def value(self) -> float:
-        """The required level."""
-        return float(getattr(self, f"{self.what}_at_least"))
+    def required(self) -> float:
+        """The least amount required."""
+        return float(getattr(self, f"{self.quantity}_at_least"))
 
 
 class StartsCeiling(Model):
@@ -170,6 +149,13 @@ class StartsCeiling(Model):
     sector: str
     at_most: float = Field(ge=0, allow_inf_nan=False)
     years: list[int] | None = None
+
+    @field_validator("years")
+    @classmethod
+    def _some(cls, v: list[int] | None) -> list[int] | None:
+        if v is not None and not v:
+            raise Rule("name at least one year (leave it out for every year)", v)
+        return v
 
     def __init__(self, sector: str | None = None, /, **data: Any) -> None:
         if sector is not None:
@@ -268,6 +254,7 @@ class Plan(Model):
                 | obj.Fastest) = Field(default_factory=obj.TerminalCapacity,
                                        discriminator="kind")
     _validate_seconds: float = PrivateAttr(default=0.0)
+    _lowered: Any = PrivateAttr(default=None)
 
     def __init__(self, /, **data: Any) -> None:
         t0 = time.perf_counter()
@@ -278,6 +265,8 @@ class Plan(Model):
     @classmethod
     def _years(cls, v: Any) -> Any:
         if isinstance(v, range):
+            if len(v) > MAX_YEARS:  # refuse before making the list
+                raise Rule(f"span at most {MAX_YEARS} years", f"{len(v)} years")
             v = list(v)
         if isinstance(v, str | bytes) or not hasattr(v, "__iter__"):
             raise Rule("be a range or list of calendar years", v)
@@ -288,7 +277,9 @@ class Plan(Model):
             raise Rule("be whole calendar years", v)
         v = [int(y) for y in v]
         if any(b - a != 1 for a, b in zip(v, v[1:], strict=False)):
-            raise Rule("be consecutive and increasing", v)
+            raise Rule("be consecutive and increasing", v[:5] + ["…"] if len(v) > 5 else v)
+        if len(v) > MAX_YEARS:
+            raise Rule(f"span at most {MAX_YEARS} years", f"{len(v)} years")
         return v
 
     @field_validator("labour", mode="before")
@@ -318,19 +309,19 @@ class Plan(Model):
             raise Rule("give each labour kind once", [ls.kind for ls in self.labour],
                        field="labour")
         if self.consumption is not None:
-            self.consumption_floor()
-            self.basket()
+            lowering.consumption_floor(self)
+            lowering.basket(self)
         first, last = self.years[0], self.years[-1]
         for i, tg in enumerate(self.targets):
             if tg.sector is not None and tg.sector not in names:
                 raise Rule(f"name a sector of the economy ({', '.join(names)})", tg.sector,
                            field=f"targets.{i}.sector")
-            limit = last + 1 if tg.what == "capacity" else last
+            limit = last + 1 if tg.quantity == "capacity" else last
             if not first <= tg.year <= limit:
                 raise Rule(f"be a plan year {first}..{limit}", tg.year,
                            field=f"targets.{i}.year")
-            if tg.what == "consumption" and self.consumption is None:
-                raise Rule("come with a consumption part in the plan", tg.value,
+            if tg.quantity == "consumption" and self.consumption is None:
+                raise Rule("come with a consumption part in the plan", tg.required,
                            field=f"targets.{i}.consumption_at_least")
         for i, sc in enumerate(self.starts_ceilings):
             if sc.sector not in names:
@@ -346,21 +337,13 @@ class Plan(Model):
                 arr = np.asarray(v, dtype=float)
                 if not np.all(np.isfinite(arr)) or np.any(arr < 0):
                     raise Rule("hold finite starts >= 0", v, field=f"under_construction.{k}")
-        for part in obj.components(self.objective):
-            if isinstance(part, obj.DiscountedConsumption) and self.consumption is None:
-                raise Rule("come with a consumption part in the plan (the objective values "
-                           "it)", None, field="consumption")
-            if isinstance(part, obj.LeastLabour) and econ.labour_coefficients is None:
-                raise Rule("come with labour coefficients in the economy (the objective "
-                           "counts labour)", None, field="economy.labour_coefficients")
-            if isinstance(part, obj.LeastForeignExchange) and self.trade is None:
-                raise Rule("come with a trade part in the plan (the objective counts "
-                           "foreign exchange)", None, field="trade")
-            if isinstance(part, obj.TerminalCapacity) and part.proportions:
-                unknown = [k for k in part.proportions if k not in names]
-                if unknown:
-                    raise Rule("name sectors of the economy", unknown,
-                               field="objective.proportions")
+                theta = econ.capital[k].lead_time
+                window = max(theta, 1)
+                if arr.size > window and np.any(arr[: arr.size - window] > 0):
+                    raise Rule(f"list only starts still under construction (at most the lead "
+                               f"time, {theta} years; older starts belong in "
+                               "initial_capacity)", list(v), field=f"under_construction.{k}")
+        self.objective.check(self)
         if self.trade is not None:
             t = self.trade
             for field in ("import_prices", "export_prices", "import_ceilings",
@@ -374,131 +357,58 @@ class Plan(Model):
                 if loose:
                     raise Rule(f"name only commodities with a price in {field[:6]}_prices",
                                loose, field=f"trade.{field}")
-            self.trade_data()
-        self.exogenous_demand()
+            lowering.trade_sides(self)
+        lowering.exogenous_demand(self)
         return self
 
-    # -- derived data ---------------------------------------------------------
+    # -- derived data and delegators ------------------------------------------------
     @property
     def horizon(self) -> int:
         """Number of plan years ``T``."""
         return len(self.years)
 
-    def basket(self) -> np.ndarray:
-        """Consumption basket per unit of consumption level (zeros without one)."""
-        econ = self.economy
-        if self.consumption is not None and self.consumption.basket is not None:
-            b = self.consumption.basket
-            unknown = [k for k in b if k not in econ.names]
-            if unknown:
-                raise Rule("name sectors of the economy", unknown, field="consumption.basket")
-            out = np.array([float(b.get(k, 0.0)) for k in econ.names])
-        elif econ.consumption_basket is not None:
-            out = np.array(econ.consumption_basket)
-        elif self.consumption is not None:
-            raise Rule("be given here or in the economy", None, field="consumption.basket")
-        else:
-            return np.zeros(econ.n)
-        if not np.all(np.isfinite(out)) or np.any(out < 0) or out.sum() <= 0:
-            raise Rule("hold amounts >= 0 with a positive sum", out.tolist(),
-                       field="consumption.basket")
-        return out
+    def validation_seconds(self) -> float:
+        """Seconds spent validating this plan."""
+        return self._validate_seconds
 
-    def consumption_floor(self) -> np.ndarray:
-        """Least consumption level per plan year."""
-        if self.consumption is None:
-            return np.zeros(self.horizon)
-        return _series(self.consumption.floor, self.years, "consumption.floor",
-                       self.consumption.floor_growth)
+    def lowered(self) -> PlanData:
+        """The plan's arrays (:class:`~growthplan.lp.data.PlanData`), computed once and kept."""
+        if self._lowered is None:
+            self._lowered = lowering.lower(self)
+        return self._lowered
 
-    def labour_supply(self) -> np.ndarray:
-        """Labour available, kinds × years (only the kinds with a supply)."""
-        return np.array([ls.path(self.years) for ls in self.labour]).reshape(
-            len(self.labour), self.horizon)
+    def compile(self, *, size_limit: int | None = 25_000_000) -> LinearProgram:
+        """The plan's :class:`~growthplan.lp.program.LinearProgram`.
 
-    def exogenous_demand(self) -> np.ndarray:
-        """Exogenous final demand, years × sectors."""
-        names = self.economy.names
-        out = np.zeros((self.horizon, len(names)))
-        fd = self.final_demand
-        if fd is None:
-            return out
-        if isinstance(fd, pd.DataFrame):
-            unknown = [c for c in fd.columns if c not in names]
-            if unknown:
-                raise Rule("name sectors of the economy", unknown, field="final_demand")
-            fd = {c: fd[c] for c in fd.columns}
-        if not isinstance(fd, dict):
-            raise Rule("map sectors to numbers or per-year series", type(fd).__name__,
-                       field="final_demand")
-        for k, v in fd.items():
-            if k not in names:
-                raise Rule("name sectors of the economy", k, field="final_demand")
-            out[:, names.index(k)] = _series(v, self.years, f"final_demand.{k}",
-                                             self.final_demand_growth)
-        return out
-
-    def trade_data(self) -> dict[str, Any] | None:
-        """Arrays of the trade part: names, prices, ceilings (years × goods), inflow."""
-        if self.trade is None:
-            return None
-        t = self.trade
-        out: dict[str, Any] = {"inflow": _series(t.inflow, self.years, "trade.inflow",
-                                                 t.inflow_growth)}
-        for side in ("import", "export"):
-            prices = getattr(t, f"{side}_prices")
-            goods = [k for k in self.economy.names if k in prices]
-            ceil = np.full((self.horizon, len(goods)), np.inf)
-            for i, g in enumerate(goods):
-                if g in getattr(t, f"{side}_ceilings"):
-                    ceil[:, i] = _series(getattr(t, f"{side}_ceilings")[g], self.years,
-                                         f"trade.{side}_ceilings.{g}")
-            out[side] = (goods, np.array([prices[g] for g in goods]), ceil)
-        return out
-
-    def terminal_proportions(self) -> tuple[np.ndarray, str]:
-        """Proportions ``π`` of the terminal-capacity objective and where they came from."""
-        econ = self.economy
-        o = next((c for c in obj.components(self.objective)
-                  if isinstance(c, obj.TerminalCapacity)), None)
-        if o is not None and o.proportions:
-            p = np.array([float(o.proportions.get(k, 0.0)) for k in econ.names])
-            return p / p.sum(), "given"
-        try:
-            v = econ.dynamic_balanced_growth().proportions.to_numpy()
-            if np.all(v > 1e-12):
-                return v / v.sum(), "balanced growth"
-        except (ValueError, ArithmeticError):
-            pass
-        c0 = np.array([econ.capital[k].initial_capacity for k in econ.names])  # type: ignore
-        if c0.sum() <= 0:
-            return np.full(econ.n, 1.0 / econ.n), "equal"
-        return c0 / c0.sum(), "initial capacity"
-
-    # -- actions ------------------------------------------------------------
-    def compile(self, *, size_limit: int | None = 25_000_000):
-        """The plan's :class:`~growthplan.compile.LinearProgram`.
-
-        Refuses plans estimated above ``size_limit`` nonzeros (None: no limit);
-        :meth:`estimate_size` gives the estimate without building anything.
+        Parameters
+        ----------
+        size_limit : int or None, default 25,000,000
+            Largest LP (in nonzeros) to build; None builds any size.
         """
-        from .compile import compile_plan
+        from .solve import program
 
-        return compile_plan(self, size_limit=size_limit)
+        return program(self, size_limit=size_limit)
 
     def estimate_size(self) -> dict[str, int]:
-        """Rows, columns, nonzeros and peak build bytes of this plan's LP."""
-        from .compile import estimate_size
+        """Rows, columns, nonzeros and peak build bytes of this plan's LP, without building it.
+
+        Returns
+        -------
+        dict
+            ``rows``, ``columns``, ``nonzeros`` and ``bytes``.
+        """
+        from .lp.build import estimate_size
 
         return estimate_size(self)
 
     def solve(self, *, method: str = "auto", time_limit: float | None = None,
               threads: int | None = None, tolerance: float | None = None,
               audit_tolerance: float = 1e-6, options: dict | None = None,
-              progress: bool = False, stop=None, size_limit: int | None = 25_000_000):
-        """Solve the plan with HiGHS and audit the result.
+              progress: bool = False, stop: Any = None,
+              size_limit: int | None = 25_000_000, backend: Any = None) -> PlanResult:
+        """Solve the plan (HiGHS by default) and audit the result.
 
-        The LP, for years ``t = 0..T−1`` (MODEL.md §4)::
+        The LP, for years ``t = 0..T−1``::
 
             maximise (or minimise) the objective, e.g. λ with C_T ≥ λ π
             subject to, for every year t and sector or commodity j,
@@ -513,13 +423,14 @@ class Plan(Model):
         ----------
         method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp"}
             HiGHS method. ``"auto"`` picks by problem size (see the README).
+            When a solve fails, the other method is tried before giving up.
         time_limit : float, optional
             Seconds; a solve that hits it returns status ``time_limit``.
         threads : int, optional
         tolerance : float, optional
             Primal and dual feasibility tolerance of HiGHS.
         audit_tolerance : float, default 1e-6
-            Largest violation, relative to each condition's scale, that the
+            Largest violation, relative to each condition's own terms, that the
             audit accepts.
         options : dict, optional
             Further HiGHS options by name (a bad name or value is an error).
@@ -530,6 +441,10 @@ class Plan(Model):
             ``interrupted``.
         size_limit : int or None, default 25,000,000
             Largest LP (in nonzeros) to build; see :meth:`estimate_size`.
+        backend : Backend, optional
+            Another back end (:class:`growthplan.backends.PulpBackend`, …);
+            then ``method``, ``time_limit``, ``threads``, ``tolerance`` and
+            ``options`` belong to it.
 
         Returns
         -------
@@ -552,143 +467,82 @@ class Plan(Model):
         >>> result.status.value, round(result.objective, 6), round(100 * 1.15 ** 5, 6)
         ('optimal', 201.135719, 201.135719)
         """
-        if isinstance(self.objective, obj.Fastest):
-            return self._fastest(method=method, time_limit=time_limit, threads=threads,
-                                 tolerance=tolerance, audit_tolerance=audit_tolerance,
-                                 options=options, progress=progress, stop=stop,
-                                 size_limit=size_limit)
-        from .result import PlanResult
-        from .solvers import solve_stages
+        from .solve import solve
 
-        t0 = time.perf_counter()
-        lp = self.compile(size_limit=size_limit)
-        t1 = time.perf_counter()
-        from .progress import solve_progress
+        return solve(self, backend=backend, method=method, time_limit=time_limit,
+                     threads=threads, tolerance=tolerance, audit_tolerance=audit_tolerance,
+                     options=options, progress=progress, stop=stop, size_limit=size_limit)
 
-        with solve_progress(progress, f"{self.economy.n} sectors × {self.horizon} years") as cb:
-            lp, outcome = solve_stages(
-                lp, method=method, time_limit=time_limit, threads=threads,
-                tolerance=tolerance, options=options, callback=cb, stop=stop,
-                tolerance_stage=getattr(self.objective, "tolerance", 0.0))
-        timings = {"validate": self._validate_seconds, "compile": t1 - t0}
-        return PlanResult.from_outcome(self, lp, outcome, timings=timings,
-                                       audit_tolerance=audit_tolerance)
-
-    def to_pulp(self, name: str = "growthplan"):
+    def to_pulp(self, name: str = "growthplan") -> Any:
         """A ``pulp.LpProblem`` of this plan, built from the same LinearProgram as ``solve``.
 
         Names carry block, year and sector (``starts_2030_energy``). Add
         constraints of your own and pass the problem to :meth:`solve_pulp`.
+
+        Parameters
+        ----------
+        name : str, default "growthplan"
         """
-        from .solvers import to_pulp
+        from .backends.pulp import to_pulp
+        from .solve import program
 
-        return to_pulp(self.compile(), name)[0]
+        return to_pulp(program(self), name)[0]
 
-    def solve_pulp(self, solver=None, *, problem=None, audit_tolerance: float = 1e-6):
-        """Solve with a PuLP solver (default: PuLP's bundled CBC) and return a PlanResult.
+    def solve_pulp(self, solver: Any = None, *, problem: Any = None,
+                   audit_tolerance: float = 1e-6) -> PlanResult:
+        """Solve with a PuLP solver (default: PuLP's bundled CBC) through the same pipeline.
+
+        Objective stages, the horizon search, the audit and the diagnosis run
+        as with :meth:`solve`.
 
         Parameters
         ----------
         solver : pulp.LpSolver, optional
         problem : pulp.LpProblem, optional
             A problem from :meth:`to_pulp`, perhaps with constraints of your own.
+        audit_tolerance : float, default 1e-6
         """
-        from .result import PlanResult
-        from .solvers import solve_pulp, to_pulp
+        from .solve import solve_pulp
 
-        t0 = time.perf_counter()
-        lp = self.compile()
-        prob = problem if problem is not None else to_pulp(lp)[0]
-        t1 = time.perf_counter()
-        outcome = solve_pulp(lp, prob, solver)
-        return PlanResult.from_outcome(self, lp, outcome,
-                                       timings={"validate": self._validate_seconds,
-                                                "compile": t1 - t0},
-                                       audit_tolerance=audit_tolerance)
+        return solve_pulp(self, solver, problem=problem, audit_tolerance=audit_tolerance)
 
-    def write_mps(self, path, *, overwrite: bool = False):
-        """Write the plan's LP as an MPS file (the objective sense included)."""
-        return self._write(path, overwrite, lambda prob, p: prob.writeMPS(
-            str(p), with_objsense=True))
+    def write_mps(self, path: Any, *, overwrite: bool = False) -> Any:
+        """Write the plan's LP as an MPS file (the objective sense included).
 
-    def write_lp(self, path, *, overwrite: bool = False):
-        """Write the plan's LP in the LP file format."""
-        return self._write(path, overwrite, lambda prob, p: prob.writeLP(str(p)))
+        Parameters
+        ----------
+        path : str or path-like
+        overwrite : bool, default False
+        """
+        from .solve import write_program
 
-    def _write(self, path, overwrite: bool, writer):
-        import os
-        import tempfile
-        from pathlib import Path
+        return write_program(self, path, overwrite=overwrite, kind="mps")
 
-        from .errors import invalid
+    def write_lp(self, path: Any, *, overwrite: bool = False) -> Any:
+        """Write the plan's LP in the LP file format.
 
-        target = Path(path)
-        if target.exists() and not overwrite:
-            raise invalid("path", "not exist yet (pass overwrite=True to replace it)",
-                          str(target))
-        prob = self.to_pulp()
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=target.suffix,
-                                   dir=target.parent)
-        os.close(fd)
-        try:
-            writer(prob, tmp)
-            os.replace(tmp, target)
-        except BaseException:
-            Path(tmp).unlink(missing_ok=True)
-            raise
-        return target
+        Parameters
+        ----------
+        path : str or path-like
+        overwrite : bool, default False
+        """
+        from .solve import write_program
+
+        return write_program(self, path, overwrite=overwrite, kind="lp")
 
     def with_horizon(self, years: int) -> Plan:
-        """This plan over its first ``years`` years, targets moved to the end (see Fastest)."""
+        """This plan over its first ``years`` years, targets moved to the end (see Fastest).
+
+        Parameters
+        ----------
+        years : int
+        """
         first = self.years[0]
         last = first + years - 1
-        targets = [t.model_copy(update={"year": last + 1 if t.what == "capacity" else last})
+        targets = [t.model_copy(update={"year": last + 1 if t.quantity == "capacity" else last})
                    for t in self.targets]
         fields = {k: getattr(self, k) for k in type(self).model_fields}
-        objective = self.objective.then if isinstance(self.objective, obj.Fastest) else \
-            self.objective
+        search = self.objective.horizon_search()
+        objective = search.then if search is not None else self.objective
         fields.update(years=list(range(first, last + 1)), targets=targets, objective=objective)
         return Plan(**fields)
-
-    def _fastest(self, **kw: Any):
-        """Bisection over horizons, each a feasibility LP (no objective).
-
-        HiGHS cannot warm-start one horizon from another (each is an LP of
-        another size), so every test starts cold; the shortest feasible
-        horizon is then solved with the ``then`` objective and audited.
-        """
-        import dataclasses
-
-        from .solvers import Status, solve_highs
-
-        o = self.objective
-        assert isinstance(o, obj.Fastest)
-        tried: dict[int, str] = {}
-        solver_kw = {k: kw[k] for k in ("method", "time_limit", "threads", "tolerance",
-                                        "options", "stop") if k in kw}
-
-        def feasible(years: int) -> bool:
-            lp = self.with_horizon(years).compile(size_limit=kw.get("size_limit", 25_000_000))
-            zero = np.zeros_like(lp.cost)
-            probe = dataclasses.replace(lp, cost=zero, sense="min", stages=[(zero, "min")])
-            status = solve_highs(probe, **solver_kw).status
-            tried[years] = status.value
-            return status is Status.OPTIMAL
-
-        def final(years: int):
-            with warnings.catch_warnings():
-                warnings.simplefilter("ignore", EndEffectsWarning)
-                result = self.with_horizon(years).solve(**kw)
-            result.horizons = dict(sorted(tried.items()))
-            return result
-
-        if not feasible(o.max_years):
-            return final(o.max_years)  # infeasible: the result carries the diagnosis
-        lo, hi = 0, o.max_years  # lo infeasible (or none), hi feasible
-        while hi - lo > 1:
-            mid = (lo + hi) // 2
-            if feasible(mid):
-                hi = mid
-            else:
-                lo = mid
-        return final(hi)

@@ -51,7 +51,7 @@ def test_labour_shortfall():
     assert len(d) == 1 and d.iloc[0].condition == "output target"
     assert d.iloc[0].shortfall == pytest.approx(20.0)
     # weighting the target heavily moves the shortfall to labour
-    from growthplan.diagnose import diagnose
+    from growthplan.results.diagnosis import diagnose
 
     d2 = diagnose(r.lp, weights={"targets": 100.0}).shortfalls
     assert list(d2.condition) == ["labour"]
@@ -63,9 +63,18 @@ def test_infeasible_subset_names_the_conflict():
                    targets=[gp.Target("goods", year=2035, capacity_at_least=250.0)])
     iis = plan.solve().diagnosis.infeasible_subset
     assert iis is not None and len(iis) > 0
-    assert any(n.startswith("targets_capacity_goods_2035") for n in iis.name)
+    assert any(c == "targets" and y == 2035 for c, y in zip(iis.condition, iis.year,
+                                                             strict=True))
+    # in the trade's words, with the years as data
+    assert "the capacity target of goods in 2035" in r_conflict(plan)
     # the conflict is between the target and the capacity accounts, not labour
-    assert not any(n.startswith("labour") for n in iis.name)
+    assert "labour" not in set(iis.condition)
+
+
+def r_conflict(plan):
+    text = plan.solve().diagnosis.conflict()
+    assert "balance of goods in 2030–2034" in text and "cannot all hold together" in text
+    return text
 
 
 def test_unbounded_plan_names_runaway_columns():

@@ -12,8 +12,9 @@ from hypothesis import strategies as st
 from scipy.optimize import linprog
 
 import growthplan as gp
-from growthplan.audit import audit_schedules
-from growthplan.solvers import cbc_solver, to_pulp
+from growthplan.backends.pulp import cbc_solver, to_pulp
+from growthplan.lp.conditions import Schedules
+from growthplan.results.audit import audit
 
 YEARS = range(2030, 2040)
 
@@ -48,7 +49,8 @@ class TestClosedForms:
         # (−C0 R(T)) by 1; K_T / K_0 = C_T / C_0, so the price is the same in K units
         lp, out = r.lp, r.outcome
         cap = lp.rows["capacity"]
-        d_c0 = out.row_dual[cap.start:cap.stop].sum() - out.row_dual[lp.rows["objective"].start]
+        level = lp.rows["terminal_level"]
+        d_c0 = out.row_dual[cap.start:cap.stop].sum() - out.row_dual[level.start]
         assert d_c0 == pytest.approx(1.216653, abs=1e-5)
         bumped = gp.Plan(economy=gp.Economy.model_validate(
             {**econ.model_dump(), "capital": {"k": {**econ.capital["k"].model_dump(),
@@ -272,11 +274,13 @@ class TestAudit:
                                       labour=gp.LabourSupply(start=200)).solve())
 
     def _audit(self, r, output=None, starts=None, capacity=None):
-        return audit_schedules(
-            r.plan, (r.output if output is None else output).to_numpy(),
-            (r.starts if starts is None else starts).to_numpy(), None,
-            reported_capacity=(r.capacity if capacity is None else capacity).to_numpy(),
-            reported_deliveries=r.capital_deliveries.to_numpy(), level=r.level)
+        sched = Schedules(
+            output=(r.output if output is None else output).to_numpy(),
+            starts=(r.starts if starts is None else starts).to_numpy(), consumption=None,
+            level=r.level, imports=None, exports=None,
+            capacity=(r.capacity if capacity is None else capacity).to_numpy(),
+            deliveries=r.capital_deliveries.to_numpy())
+        return audit(r.data, sched)
 
     def test_clean_result_passes(self):
         r = self._solved()
@@ -300,7 +304,7 @@ class TestAudit:
         bad = r.capacity.copy()
         bad.iloc[5, 0] += 0.5
         a = self._audit(r, capacity=bad)
-        assert not a.ok and a.worst.startswith("capacity 2035")
+        assert not a.ok and a.worst.startswith("capacity in service 2035")
 
 
 class TestSolverOutcomes:
@@ -314,11 +318,8 @@ class TestSolverOutcomes:
             r.raise_for_status()
 
     def test_time_limit_is_not_a_plan(self):
-        import sys
-        from pathlib import Path
 
-        sys.path.insert(0, str(Path(__file__).parent / "benchmarks"))
-        from bench_plan import economy, make_plan
+        from helpers import economy, make_plan
 
         r = make_plan(economy(30), 20).solve(method="simplex", time_limit=0.01)
         assert r.status is gp.Status.TIME_LIMIT and r.message == "Time limit reached"
@@ -405,19 +406,19 @@ def test_dual_signs_on_the_wyndor_example():
     """Hillier & Lieberman, Introduction to Operations Research, the Wyndor Glass example:
     maximise 3x1 + 5x2 s.t. x1 <= 4, 2x2 <= 12, 3x1 + 2x2 <= 18 -> x = (2, 6), Z = 36,
     shadow prices (0, 1.5, 1). Checks the one place where HiGHS duals are read."""
-    from types import SimpleNamespace
-
     from scipy import sparse
 
-    from growthplan.solvers import optimality_gap, solve_highs
+    from growthplan.backends.certificate import optimality_gap
+    from growthplan.lp.program import Block, LinearProgram
 
     m = sparse.csc_array(np.array([[1.0, 0.0], [0.0, 2.0], [3.0, 2.0]]))
-    lp = SimpleNamespace(matrix=m, cost=np.array([3.0, 5.0]), sense="max",
-                         row_lower=np.full(3, -np.inf), row_upper=np.array([4.0, 12.0, 18.0]),
-                         col_lower=np.zeros(2), col_upper=np.full(2, np.inf), nnz=m.nnz,
-                         row_sign=np.ones(3))
+    lp = LinearProgram(matrix=m, cost=np.array([3.0, 5.0]), sense="max",
+                       row_lower=np.full(3, -np.inf), row_upper=np.array([4.0, 12.0, 18.0]),
+                       col_lower=np.zeros(2), col_upper=np.full(2, np.inf),
+                       rows={"r": Block("r", 0, (3,), ((1, 2, 3),))},
+                       cols={"x": Block("x", 0, (2,), ((1, 2),))})
     for method in ("simplex", "ipm-crossover"):
-        out = solve_highs(lp, method=method)
+        out = gp.HighsBackend(method).solve(lp)
         np.testing.assert_allclose(out.x, [2.0, 6.0], atol=1e-9)
         assert out.objective == pytest.approx(36.0)
         np.testing.assert_allclose(out.row_dual, [0.0, 1.5, 1.0], atol=1e-9)

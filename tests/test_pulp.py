@@ -2,25 +2,21 @@
 
 from __future__ import annotations
 
-import sys
 import warnings
-from pathlib import Path
 
 import highspy
 import numpy as np
 import pulp
 import pytest
 from conftest import assert_optimal, one_sector
+from helpers import economy, make_plan
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from pulp.apis import coin_api
 from test_plan import _plan
 
 import growthplan as gp
-from growthplan.solvers import optimality_gap
-
-sys.path.insert(0, str(Path(__file__).parent / "benchmarks"))
-from bench_plan import economy, make_plan  # noqa: E402
+from growthplan.backends.certificate import optimality_gap
 
 YEARS = range(2030, 2036)
 

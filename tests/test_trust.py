@@ -14,13 +14,11 @@ import numpy as np
 import pandas as pd
 import pytest
 from conftest import assert_optimal, one_sector, random_economy
+from helpers import economy, make_plan
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import growthplan as gp
-
-sys.path.insert(0, str(Path(__file__).parent / "benchmarks"))
-from bench_plan import economy, make_plan  # noqa: E402
 
 RNG_SEED = 4
 
@@ -130,23 +128,21 @@ class TestSolverFaults:
         assert r.status is gp.Status.ITERATION_LIMIT and not r.ok
 
     def test_status_table_has_one_optimal(self):
-        from growthplan.solvers import STATUS_TABLE
+        from growthplan.backends.highs import STATUS_TABLE
 
         optimal = [k for k, v in STATUS_TABLE.items() if v is gp.Status.OPTIMAL]
         assert set(optimal) <= {highspy.HighsModelStatus.kOptimal,
                                 highspy.HighsModelStatus.kModelEmpty}
 
     def test_audit_failure_is_not_optimal(self, monkeypatch):
-        from growthplan import solvers
-
-        real = solvers.solve_highs
+        real = gp.HighsBackend.solve
 
         def corrupt(*a, **k):
             out = real(*a, **k)
             out.x = out.x * 1.05  # a solver that returns a wrong point as optimal
             return out
 
-        monkeypatch.setattr(solvers, "solve_highs", corrupt)
+        monkeypatch.setattr(gp.HighsBackend, "solve", corrupt)
         r = gp.Plan(economy=one_sector(), years=range(2030, 2035)).solve()
         assert r.status is gp.Status.NOT_VERIFIED and not r.ok
         assert "audit" in r.warnings[0]
@@ -231,9 +227,9 @@ class TestReproducibility:
     def test_across_processes(self):
         script = textwrap.dedent(f"""
             import sys, warnings, hashlib
-            sys.path.insert(0, {str(Path(__file__).parent / "benchmarks")!r})
+            sys.path.insert(0, {str(Path(__file__).parent)!r})
             warnings.simplefilter("ignore")
-            from bench_plan import economy, make_plan
+            from helpers import economy, make_plan
             r = make_plan(economy(30), 12).solve(method="ipm")
             h = hashlib.sha256()
             for name in ("output", "starts", "capacity", "shadow_prices"):

@@ -11,15 +11,19 @@ HiGHS times of both forms and their ratio, from one run each.
 from __future__ import annotations
 
 import argparse
+import sys
 import time
 import warnings
-from types import SimpleNamespace
+from pathlib import Path
 
 import numpy as np
-from bench_plan import economy, make_plan
 from scipy import sparse
 
-from growthplan.solvers import solve_highs
+import growthplan as gp
+from growthplan.lp.program import Block, LinearProgram
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+from helpers import economy, make_plan  # noqa: E402
 
 
 def state_form(lp, delta: float):
@@ -63,9 +67,10 @@ def state_form(lp, delta: float):
     col_lo[-1] = -np.inf
     cost = np.zeros(ncol)
     cost[-1] = 1.0
-    return SimpleNamespace(matrix=a, row_lower=np.concatenate(lo), row_upper=np.concatenate(up),
-                           col_lower=col_lo, col_upper=col_up, cost=cost, sense="max",
-                           nnz=a.nnz)
+    return LinearProgram(matrix=a, row_lower=np.concatenate(lo), row_upper=np.concatenate(up),
+                         col_lower=col_lo, col_upper=col_up, cost=cost, sense="max",
+                         rows={"all": Block("all", 0, (a.shape[0],), (tuple(range(a.shape[0])),))},
+                         cols={"all": Block("all", 0, (ncol,), (tuple(range(ncol)),))})
 
 
 def main() -> None:
@@ -83,9 +88,9 @@ def main() -> None:
               f"state form {st.nnz} nonzeros")
         for method in ("simplex", "ipm"):
             t0 = time.perf_counter()
-            a = solve_highs(lp, method=method)
+            a = gp.HighsBackend(method).solve(lp)
             t1 = time.perf_counter()
-            b = solve_highs(st, method=method)
+            b = gp.HighsBackend(method).solve(st)
             t2 = time.perf_counter()
             print(f"  {method:>7}: expression {t1 - t0:.3f} s, state {t2 - t1:.3f} s, "
                   f"state / expression = {(t2 - t1) / (t1 - t0):.2f} "

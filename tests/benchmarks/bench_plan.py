@@ -13,35 +13,18 @@ by term in PuLP and solves it with PuLP's default HiGHS call. With
 from __future__ import annotations
 
 import argparse
+import sys
 import time
 import warnings
+from pathlib import Path
 
 import numpy as np
 import pulp
 
 import growthplan as gp
-from growthplan.solvers import solve_highs
 
-
-def economy(n: int, seed: int = 1) -> gp.Economy:
-    rng = np.random.default_rng(seed)
-    a = rng.uniform(0, 1, (n, n))
-    a *= 0.6 / a.sum(axis=0).max()
-    b = rng.uniform(0, 1, (n, n))
-    b *= 2.0 / b.sum(axis=0).max()
-    names = [f"s{i}" for i in range(n)]
-    cap = {s: gp.CapitalSpec(initial_capacity=float(rng.uniform(50, 150)),
-                             mean_service_life=20.0) for s in names}
-    return gp.Economy(sectors=names, input_coefficients=a, capital_coefficients=b,
-                      labour_coefficients=[rng.uniform(0.1, 1.0, n)], capital=cap)
-
-
-def make_plan(econ: gp.Economy, years: int) -> gp.Plan:
-    supply = float((np.asarray(econ.labour_coefficients) @ np.full(econ.n, 100.0))[0])
-    return gp.Plan(economy=econ, years=range(2030, 2030 + years),
-                   labour=gp.LabourSupply(start=supply, growth=0.01),
-                   objective=gp.objectives.TerminalCapacity(
-                       proportions={s: 1.0 for s in econ.names}))
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+from helpers import economy, make_plan  # noqa: E402
 
 
 def naive(plan: gp.Plan) -> tuple[float, float, float]:
@@ -62,7 +45,7 @@ def naive_problem(plan: gp.Plan) -> pulp.LpProblem:
     lab = np.asarray(econ.labour_coefficients)[0]
     c0 = [econ.capital[s].initial_capacity for s in econ.names]
     delta = 1 / 20.0
-    supply = plan.labour_supply()[0]
+    supply = plan.lowered().supply[0]
     prob = pulp.LpProblem("naive", pulp.LpMaximize)
     x = [[prob.add_variable(f"x_{t}_{j}", lowBound=0) for j in range(n)] for t in range(T)]
     z = [[prob.add_variable(f"z_{t}_{j}", lowBound=0) for j in range(n)] for t in range(T)]
@@ -110,7 +93,7 @@ def run(n: int, years: int, methods: bool, with_naive: bool = True) -> None:
         print(f"  library end-to-end / naive = {total / (build + solve):.3f}")
     if methods:
         for m in ("simplex", "ipm", "ipm-crossover"):
-            out = solve_highs(lp, method=m)
+            out = gp.HighsBackend(m).solve(lp)
             print(f"  method {m:>13}: {out.seconds:.3f} s, objective {out.objective:.8g}")
 
 

@@ -14,7 +14,8 @@ import argparse
 import time
 import warnings
 
-from bench_plan import economy, make_plan, naive_problem
+from bench_plan import naive_problem
+from helpers import economy, make_plan
 
 
 def naive_build(plan) -> float:

@@ -9,12 +9,15 @@ the serial run; the figures of all three must agree.
 from __future__ import annotations
 
 import argparse
+import sys
 import time
 from concurrent.futures import ProcessPoolExecutor
-
-from bench_plan import economy, make_plan
+from pathlib import Path
 
 import growthplan as gp
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+from helpers import economy, make_plan  # noqa: E402
 
 
 def main() -> None:

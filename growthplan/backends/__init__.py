@@ -1,0 +1,15 @@
+"""Back ends: the solvers a :class:`~growthplan.lp.program.LinearProgram` can be handed to.
+
+Every back end follows :class:`~growthplan.backends.base.Backend`: it solves one
+LP (one objective stage) and returns a back-end-neutral
+:class:`~growthplan.backends.base.SolverOutcome`, and declares what else it
+offers (duals, infeasible subsets, unbounded rays, interrupts, time limits).
+Objective stages, the horizon search, the audit and the diagnosis run above
+the back ends, in :mod:`growthplan.solve`.
+"""
+
+from .base import Backend, Feature, SolverOutcome, Status
+from .highs import HighsBackend
+from .pulp import PulpBackend
+
+__all__ = ["Backend", "Feature", "HighsBackend", "PulpBackend", "SolverOutcome", "Status"]

@@ -1,0 +1,348 @@
+"""HiGHS through highspy: the default back end.
+
+The matrix is passed column-wise (CSC) in one ``passModel`` call; HiGHS's
+model status is mapped to :class:`~growthplan.backends.base.Status` by one
+table and its raw text kept.
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+import os
+import sys
+import threading
+import time
+from typing import Any
+
+import highspy
+import numpy as np
+
+from ..errors import SolverFailure, invalid
+from ..lp.program import LinearProgram
+from .base import Backend, Feature, SolverOutcome, Status
+from .certificate import (
+    GAP_TOLERANCE,
+    SCALE_RANGE,
+    entry_range,
+    equilibrate,
+    optimality_gap,
+    scaled,
+)
+
+__all__ = ["HighsBackend", "STATUS_TABLE", "METHODS", "choose_method", "highs_version",
+           "AUTO_IPM_NONZEROS"]
+
+_MS = highspy.HighsModelStatus
+STATUS_TABLE: dict[object, Status] = {
+    _MS.kOptimal: Status.OPTIMAL,
+    _MS.kInfeasible: Status.INFEASIBLE,
+    _MS.kUnbounded: Status.UNBOUNDED,
+    _MS.kUnboundedOrInfeasible: Status.INFEASIBLE_OR_UNBOUNDED,
+    _MS.kTimeLimit: Status.TIME_LIMIT,
+    _MS.kIterationLimit: Status.ITERATION_LIMIT,
+    _MS.kInterrupt: Status.INTERRUPTED,
+    _MS.kUnknown: Status.UNKNOWN,
+    _MS.kNotset: Status.UNKNOWN,
+    _MS.kModelEmpty: Status.OPTIMAL,
+    _MS.kSolveError: Status.ERROR,
+    _MS.kLoadError: Status.ERROR,
+    _MS.kModelError: Status.ERROR,
+    _MS.kPresolveError: Status.ERROR,
+    _MS.kPostsolveError: Status.ERROR,
+    _MS.kObjectiveBound: Status.UNKNOWN,
+    _MS.kObjectiveTarget: Status.UNKNOWN,
+    _MS.kSolutionLimit: Status.UNKNOWN,
+}
+if hasattr(_MS, "kMemoryLimit"):
+    STATUS_TABLE[_MS.kMemoryLimit] = Status.ERROR
+
+# method name -> HiGHS options
+METHODS: dict[str, dict[str, object]] = {
+    "simplex": {"solver": "simplex"},
+    "ipm": {"solver": "ipm", "run_crossover": "off"},
+    "ipm-crossover": {"solver": "ipm", "run_crossover": "on"},
+    "pdlp": {"solver": "pdlp"},
+    "highs-default": {"solver": "choose"},
+}
+AUTO_IPM_NONZEROS = 40_000
+
+
+def choose_method(nonzeros: int) -> str:
+    """HiGHS method for a plan with this many nonzeros.
+
+    Multi-year plans have dense input and capital blocks repeated over years;
+    on them the interior point method without crossover was many times faster
+    than simplex above about 40,000 nonzeros (``tests/benchmarks/bench_plan.py``),
+    while small plans solve fastest by simplex, which also returns a vertex.
+    """
+    return "ipm" if nonzeros > AUTO_IPM_NONZEROS else "simplex"
+
+
+_LOCK = threading.Lock()
+_STATE: dict[str, Any] = {"banner": False, "threads": None}
+
+
+def _new_highs(threads: int | None = None) -> highspy.Highs:
+    """A Highs object, with the licence banner muted and the thread pool matched.
+
+    HiGHS prints a banner on stdout when its first object is made, which would
+    land in the middle of command-line output and notebooks. Its thread pool
+    is global and keeps the size of the first solve: a later solve asking for
+    another number of threads must reset it first, or HiGHS returns "Not Set".
+    """
+    with _LOCK:
+        if _STATE["threads"] != threads and _STATE["banner"]:
+            highspy.Highs.resetGlobalScheduler(True)
+        _STATE["threads"] = threads
+        if _STATE["banner"]:
+            return highspy.Highs()
+        _STATE["banner"] = True
+        try:
+            sys.stdout.flush()
+            saved = os.dup(1)
+        except (OSError, ValueError):  # no real stdout (some notebook front ends)
+            return highspy.Highs()
+        try:
+            with open(os.devnull, "w") as null:
+                os.dup2(null.fileno(), 1)
+                h = highspy.Highs()
+        finally:
+            os.dup2(saved, 1)
+            os.close(saved)
+        return h
+
+
+@functools.cache
+def highs_version() -> str:
+    """HiGHS's version, asked once per process."""
+    h = _new_highs(_STATE["threads"])
+    try:
+        return f"{h.versionMajor()}.{h.versionMinor()}.{h.versionPatch()}"
+    except Exception:  # pragma: no cover - older highspy
+        return "unknown"
+
+
+def _set(h: highspy.Highs, name: str, value: Any) -> None:
+    st = h.setOptionValue(name, value)
+    if st != highspy.HighsStatus.kOk:
+        raise invalid(f"options.{name}", "be a HiGHS option with a valid value", value)
+
+
+def load(h: highspy.Highs, lp: LinearProgram) -> None:
+    """Pass ``lp`` to ``h`` column-wise (CSC) in one ``passModel`` call."""
+    m = lp.matrix
+    model = highspy.HighsLp()
+    model.num_col_ = m.shape[1]
+    model.num_row_ = m.shape[0]
+    inf = highspy.kHighsInf
+    model.col_cost_ = np.ascontiguousarray(lp.cost, dtype=np.float64)
+    model.col_lower_ = np.where(np.isfinite(lp.col_lower), lp.col_lower, -inf)
+    model.col_upper_ = np.where(np.isfinite(lp.col_upper), lp.col_upper, inf)
+    model.row_lower_ = np.where(np.isfinite(lp.row_lower), lp.row_lower, -inf)
+    model.row_upper_ = np.where(np.isfinite(lp.row_upper), lp.row_upper, inf)
+    model.sense_ = highspy.ObjSense.kMaximize if lp.sense == "max" else \
+        highspy.ObjSense.kMinimize
+    model.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+    model.a_matrix_.start_ = m.indptr.astype(np.int32)
+    model.a_matrix_.index_ = m.indices.astype(np.int32)
+    model.a_matrix_.value_ = m.data.astype(np.float64)
+    model.a_matrix_.num_col_ = m.shape[1]
+    model.a_matrix_.num_row_ = m.shape[0]
+    if h.passModel(model) == highspy.HighsStatus.kError:
+        raise SolverFailure("HiGHS refused the model (passModel returned an error)")
+
+
+class HighsBackend:
+    """HiGHS through highspy.
+
+    Parameters
+    ----------
+    method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "highs-default"}
+        ``"auto"`` picks by problem size (:func:`choose_method`).
+    time_limit : float, optional
+        Seconds per solve.
+    threads : int, optional
+    tolerance : float, optional
+        Primal and dual feasibility tolerance.
+    options : dict, optional
+        Further HiGHS options by name (a bad name or value is an error).
+    scale : {"auto", True, False}
+        Equilibrate rows and columns before HiGHS's own scaling
+        (:func:`~growthplan.backends.certificate.equilibrate`); ``"auto"``
+        does so when the entries span more than ``SCALE_RANGE``. A scaled
+        optimum that the unscaled duals do not certify is solved again unscaled.
+    presolve : bool, default True
+    """
+
+    name = "highs"
+    features = frozenset({Feature.DUALS, Feature.IIS, Feature.RAY, Feature.INTERRUPT,
+                          Feature.TIME_LIMIT})
+
+    def __init__(self, method: str = "auto", *, time_limit: float | None = None,
+                 threads: int | None = None, tolerance: float | None = None,
+                 options: dict[str, Any] | None = None, scale: bool | str = "auto",
+                 presolve: bool = True) -> None:
+        if not isinstance(method, str) or (method != "auto" and method not in METHODS):
+            raise invalid("method", f"be 'auto' or one of {sorted(METHODS)}", method)
+        if time_limit is not None and (isinstance(time_limit, bool) or not isinstance(
+                time_limit, int | float) or not (0 < time_limit < math.inf)):
+            raise invalid("time_limit", "be a number of seconds > 0", time_limit)
+        if threads is not None and (isinstance(threads, bool) or not isinstance(
+                threads, int | np.integer) or threads < 1):
+            raise invalid("threads", "be a whole number >= 1", threads)
+        if tolerance is not None and (isinstance(tolerance, bool) or not isinstance(
+                tolerance, int | float) or not (0 < tolerance < 1)):
+            raise invalid("tolerance", "be in (0, 1)", tolerance)
+        if options is not None and not isinstance(options, dict):
+            raise invalid("options", "be a mapping of HiGHS option names to values", options)
+        if scale not in ("auto", True, False):
+            raise invalid("scale", "be 'auto', True or False", scale)
+        self.method = method
+        self.time_limit = time_limit
+        self.threads = None if threads is None else int(threads)
+        self.tolerance = tolerance
+        self.options = dict(options or {})
+        self.scale = scale
+        self.presolve = presolve
+
+    def __repr__(self) -> str:
+        return f"HighsBackend(method={self.method!r})"
+
+    def _variant(self, **changes: Any) -> HighsBackend:
+        kw: dict[str, Any] = {"time_limit": self.time_limit, "threads": self.threads,
+              "tolerance": self.tolerance, "options": self.options, "scale": self.scale,
+              "presolve": self.presolve}
+        method = changes.pop("method", self.method)
+        kw.update(changes)
+        return HighsBackend(method, **kw)
+
+    def alternatives(self) -> list[Backend]:
+        """Interior point and simplex stand in for each other; then simplex without presolve."""
+        other = "simplex" if self.method in ("ipm", "ipm-crossover", "pdlp", "auto") else "ipm"
+        out: list[Backend] = [self._variant(method=other, scale=True)]
+        if other != "simplex" or self.method == "auto":
+            out.append(self._variant(method="simplex", scale=True, presolve=False))
+        else:
+            out.append(self._variant(method="simplex", scale=False, presolve=False))
+        return out
+
+    def solve(self, lp: LinearProgram, *, stop: Any = None,
+              callback: Any = None) -> SolverOutcome:
+        """Solve ``lp``; see the class notes on scaling."""
+        scale = self.scale
+        if scale == "auto":
+            scale = entry_range(lp) > SCALE_RANGE
+        if not scale:
+            out = self._once(lp, stop, callback, scale=False)
+            out.options["scaled"] = False
+            return out
+        first = self._once(lp, stop, callback, scale=True)
+        first.options["scaled"] = True
+        if first.status is not Status.OPTIMAL or first.row_dual is None:
+            return first
+        gap = optimality_gap(lp, first.x, first.row_dual)
+        if gap <= GAP_TOLERANCE:
+            return first
+        second = self._once(lp, stop, callback, scale=False)
+        second.options["scaled"] = False
+        second.options["scaled_gap"] = gap
+        return second
+
+    def _highs(self, method: str, callback: Any, stop: Any) -> tuple[highspy.Highs, dict]:
+        h = _new_highs(self.threads)
+        chosen: dict[str, object] = {"output_flag": callback is not None,
+                                     "log_to_console": False, "random_seed": 0}
+        chosen.update(METHODS[method])
+        if not self.presolve:
+            chosen["presolve"] = "off"
+        if self.time_limit is not None:
+            chosen["time_limit"] = float(self.time_limit)
+        if self.threads is not None:
+            chosen["threads"] = self.threads
+        if self.tolerance is not None:
+            chosen["primal_feasibility_tolerance"] = float(self.tolerance)
+            chosen["dual_feasibility_tolerance"] = float(self.tolerance)
+        chosen.update(self.options)
+        for k, v in chosen.items():
+            _set(h, k, v)
+        if callback is not None:
+            h.cbLogging.subscribe(lambda e: callback(str(e.message)))
+        if stop is not None:
+            check = stop.is_set if hasattr(stop, "is_set") else stop
+
+            def poll(e: Any) -> None:
+                if check():
+                    e.interrupt()
+
+            h.cbSimplexInterrupt.subscribe(poll)
+            h.cbIpmInterrupt.subscribe(poll)
+        return h, chosen
+
+    def _once(self, lp: LinearProgram, stop: Any, callback: Any, *,
+              scale: bool) -> SolverOutcome:
+        method = choose_method(lp.nnz) if self.method == "auto" else self.method
+        h, chosen = self._highs(method, callback, stop)
+        r = c = None
+        if scale:
+            r, c = equilibrate(lp)
+            load(h, scaled(lp, r, c))
+        else:
+            load(h, lp)
+        t0 = time.perf_counter()
+        h.run()
+        seconds = time.perf_counter() - t0
+        ms = h.getModelStatus()
+        status = STATUS_TABLE.get(ms, Status.UNKNOWN)
+        info = h.getInfo()
+        sol = h.getSolution()
+        ncol = lp.shape[1]
+        x = np.array(sol.col_value) if sol.value_valid else np.full(ncol, np.nan)
+        row_dual = np.array(sol.row_dual) if sol.dual_valid else None
+        col_dual = np.array(sol.col_dual) if sol.dual_valid else None
+        if r is not None and c is not None:
+            x = x * c
+            row_dual = None if row_dual is None else row_dual * r
+            col_dual = None if col_dual is None else col_dual / c
+        if status is Status.OPTIMAL and not sol.value_valid:
+            status = Status.UNKNOWN
+        objective = float(lp.cost @ x) if sol.value_valid else float("nan")
+        iters = {"simplex": int(info.simplex_iteration_count),
+                 "ipm": int(info.ipm_iteration_count),
+                 "crossover": int(getattr(info, "crossover_iteration_count", 0)),
+                 "pdlp": int(getattr(info, "pdlp_iteration_count", 0))}
+        return SolverOutcome(status=status, message=h.modelStatusToString(ms),
+                             objective=objective, x=x, row_dual=row_dual, method=method,
+                             col_dual=col_dual,
+                             iterations=iters, seconds=seconds, options=dict(chosen),
+                             solver_version=f"HiGHS {highs_version()}")
+
+    def iis(self, lp: LinearProgram) -> tuple[list[int], list[int]] | None:
+        """Rows and columns of an irreducible infeasible subset (None when HiGHS finds none).
+
+        Uses ``iis_strategy`` 2 (from the LP) with the irreducibility bit 4: the
+        default strategy can return a valid but empty set.
+        """
+        h = _new_highs(self.threads)
+        for k, v in {"output_flag": False, "random_seed": 0, "iis_strategy": 2 | 4}.items():
+            _set(h, k, v)
+        load(h, lp)
+        h.run()
+        st, iis = h.getIis()
+        if st == highspy.HighsStatus.kError:
+            return None
+        rows, cols = list(iis.row_index_), list(iis.col_index_)
+        return (rows, cols) if rows or cols else None
+
+    def ray(self, lp: LinearProgram) -> np.ndarray | None:
+        """A primal ray of an unbounded LP (the direction the columns run away in)."""
+        h = _new_highs(self.threads)
+        for k, v in {"output_flag": False, "random_seed": 0, "solver": "simplex",
+                     "presolve": "off"}.items():
+            _set(h, k, v)
+        load(h, lp)
+        h.run()
+        st, has_ray, ray = h.getPrimalRay()  # type: ignore[attr-defined]
+        if st == highspy.HighsStatus.kError or not has_ray:
+            return None
+        return np.asarray(ray, dtype=float)

@@ -1,0 +1,187 @@
+"""Plan arrays → :class:`~growthplan.lp.program.LinearProgram`.
+
+Columns (the decisions) are laid out here; rows come from the condition
+families in :mod:`growthplan.lp.conditions`, each a whole sparse block.
+
+Capacity in service is written as a linear expression in past starts,
+``C_jt = base_jt + Σ_τ S_j(t − τ − θ_j) z_jτ`` (``base``: capacity from before
+the plan), not as state variables: the expression form holds for every
+retirement profile (a state recursion exists only for the geometric one) and
+adds no rows or columns. Measured against the state form on the same plans
+(``tests/benchmarks/bench_capacity_form.py``, geometric retirement) the state
+form took 1.02–1.14 times as long with interior point and 1.04–1.95 times
+with simplex at 30×20 and 60×25.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+import numpy as np
+from scipy import sparse
+
+from ..errors import InvalidInput
+from .conditions import CONDITIONS, Context
+from .data import PlanData
+from .program import Block, LinearProgram
+
+if TYPE_CHECKING:
+    from ..plan import Plan
+
+__all__ = ["build", "build_plan", "estimate_size", "columns", "capacity_operator",
+           "deliveries_operator", "SIZE_LIMIT", "BYTES_PER_NONZERO"]
+
+SIZE_LIMIT = 25_000_000  # nonzeros; larger plans are refused unless told otherwise
+BYTES_PER_NONZERO = 60   # peak while building: blocks, the stacked copy and CSC arrays
+
+
+def capacity_operator(d: PlanData) -> sparse.csr_array:
+    """``G`` with ``C = base + G z``: rows (t, j) for t = 0..T, columns starts (τ, j)."""
+    T, n = d.T, d.n
+    t = np.arange(T + 1)[:, None, None]
+    tau = np.arange(T)[None, :, None]
+    j = np.arange(n)[None, None, :]
+    age = t - tau - d.theta[None, None, :]
+    age_b, t_b, tau_b, j_b = np.broadcast_arrays(age, t, tau, j)
+    mask = age_b >= 0
+    vals = d.surv[j_b[mask], age_b[mask]]
+    keep = vals != 0
+    rows = (t_b[mask] * n + j_b[mask])[keep]
+    cols = (tau_b[mask] * n + j_b[mask])[keep]
+    return sparse.csr_array((vals[keep], (rows, cols)), shape=((T + 1) * n, T * n))
+
+
+def deliveries_operator(d: PlanData) -> sparse.csr_array:
+    """``W`` with capital goods delivered = ``W z``: rows (t, commodity), columns (τ, sector)."""
+    T, n = d.T, d.n
+    out = sparse.csr_array((T * n, T * n))
+    for s in range(min(d.spending.shape[1], T)):  # deliveries after the plan are not rows
+        share = d.b * d.spending[:, s][None, :]
+        if not np.any(share):
+            continue
+        shift = sparse.eye_array(T, T, k=-s, format="csr")
+        out = out + sparse.kron(shift, sparse.csr_array(share), format="csr")
+    return sparse.csr_array(out)
+
+
+def columns(d: PlanData) -> list[tuple[str, tuple[int, ...], tuple[tuple, ...]]]:
+    """The decision columns: (name, shape, labels) in order."""
+    years, names = tuple(d.years), tuple(d.names)
+    out: list[tuple[str, tuple[int, ...], tuple[tuple, ...]]] = [
+        ("output", (d.T, d.n), (years, names)), ("starts", (d.T, d.n), (years, names))]
+    if d.has_consumption:
+        out.append(("consumption", (d.T,), (years,)))
+    if d.proportions is not None:
+        out.append(("level", (), ()))
+    for name, side in (("imports", d.imports), ("exports", d.exports)):
+        if d.trades and side is not None and side.goods:
+            out.append((name, (d.T, len(side.goods)), (years, tuple(side.goods))))
+    return out
+
+
+def _count(d: PlanData) -> dict[str, int]:
+    cols = {name: int(np.prod(shape)) if shape else 1 for name, shape, _ in columns(d)}
+    rows = nnz = 0
+    for cond in CONDITIONS:
+        if cond.applies(d):
+            r, z = cond.count(d, cols)
+            rows, nnz = rows + r, nnz + z
+    return {"rows": rows, "columns": sum(cols.values()), "nonzeros": nnz,
+            "bytes": nnz * BYTES_PER_NONZERO}
+
+
+def estimate_size(plan: Plan | PlanData) -> dict[str, int]:
+    """Rows, columns, nonzeros and peak build bytes of a plan's LP, without building it.
+
+    The sum of each condition family's own count (exact for rows, columns and
+    nonzeros; memory is ``BYTES_PER_NONZERO`` per nonzero, measured on dense
+    plans).
+    """
+    d = plan if isinstance(plan, PlanData) else plan.lowered()
+    return _count(d)
+
+
+def _upper_bound(plan: Plan) -> int:
+    """A cheap bound on the nonzeros (no survival profiles computed), ≥ the exact count."""
+    T, n = len(plan.years), plan.economy.n
+    assert plan.economy.capital is not None
+    width = max(1, max(s.lead_time for s in plan.economy.capital.values()))
+    return (T * n * n * (1 + width) + T * n * (T + 9) + T * len(plan.labour) * n + 4 * T
+            + len(plan.targets) * (T + 1) + n * width * (T + 1) + n + T * n * 2)
+
+
+def guard_size(plan: Plan, size_limit: int | None) -> None:
+    """Refuse a plan whose LP would exceed ``size_limit`` nonzeros, before building anything."""
+    if size_limit is None or _upper_bound(plan) <= size_limit:
+        return
+    est = estimate_size(plan)  # the exact count only when the cheap bound is not enough
+    if est["nonzeros"] > size_limit:
+        raise InvalidInput(
+            f"plan is too large to build: about {est['rows']:,} rows, {est['columns']:,} "
+            f"columns and {est['nonzeros']:,} nonzeros, {est['bytes'] / 2**30:.1f} GiB at "
+            f"peak, above the limit of {size_limit:,} nonzeros. Aggregate sectors "
+            "(TransactionsTable.aggregate), shorten the horizon, or pass "
+            "size_limit=None (or a larger number) to build it anyway.", field="size_limit")
+
+
+def build(d: PlanData, *, objective=None) -> LinearProgram:
+    """Build the LP of a lowered plan.
+
+    Parameters
+    ----------
+    d : PlanData
+    objective : Objective, optional
+        Default: the plan's own. ``False`` builds a feasibility problem (zero cost).
+    """
+    cols: dict[str, Block] = {}
+    ncol = 0
+    for name, shape, labels in columns(d):
+        cols[name] = Block(name, ncol, shape, labels)
+        ncol = cols[name].stop
+    ctx = Context(d, cols, ncol, capacity_operator(d), deliveries_operator(d))
+    rows: dict[str, Block] = {}
+    lines, lowers, uppers = [], [], []
+    nrow = 0
+    for cond in CONDITIONS:
+        if not cond.applies(d):
+            continue
+        rb = cond.build(ctx)
+        if rb is None:
+            continue
+        block = Block(rb.name, nrow, rb.shape, rb.labels)
+        if block.size == 0:
+            continue
+        rows[rb.name] = block
+        nrow = block.stop
+        lines.append([rb.coeffs.get(c) if rb.coeffs.get(c) is not None
+                      else sparse.csr_array((block.size, b.size)) for c, b in cols.items()])
+        lowers.append(np.broadcast_to(np.asarray(rb.lower, float).ravel(), (block.size,)))
+        uppers.append(np.broadcast_to(np.asarray(rb.upper, float).ravel(), (block.size,)))
+    matrix = sparse.csc_array(sparse.block_array(lines, format="csc"))
+    col_lower = np.zeros(ncol)
+    col_upper = np.full(ncol, np.inf)
+    z = cols["starts"]
+    col_upper[z.start:z.stop] = d.upper_starts.ravel()
+    if "level" in cols:
+        col_lower[cols["level"].start] = -np.inf
+    for name, side in (("imports", d.imports), ("exports", d.exports)):
+        if name in cols and side is not None:
+            col_upper[cols[name].start:cols[name].stop] = side.ceilings.ravel()
+    o = d.objective if objective is None else objective
+    if o is False:
+        from .program import Stage
+
+        stages = [Stage(np.zeros(ncol), "min")]
+    else:
+        stages = o.stages(d, cols, ncol)
+    return LinearProgram(
+        matrix=matrix, row_lower=np.concatenate(lowers), row_upper=np.concatenate(uppers),
+        col_lower=col_lower, col_upper=col_upper, cost=stages[0].cost, sense=stages[0].sense,
+        rows=rows, cols=cols, stages=stages, data=d,
+        operators={"capacity": ctx.capacity, "deliveries": ctx.deliveries})
+
+
+def build_plan(plan: Plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
+    """Guard the size, lower the plan (once) and build its LP."""
+    guard_size(plan, size_limit)
+    return build(plan.lowered())

@@ -1,0 +1,73 @@
+"""Commodity balances: supply covers intermediate use, capital goods, consumption and demand.
+
+``(I − A) x_t + m_t − e_t − W z − h κ_t ≥ g_t + pipeline deliveries_t``
+(free disposal: a surplus is allowed). Hard in the diagnosis: a balance is
+physics, not a wish.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from scipy import sparse
+
+from . import Check, Condition, Context, RowBlock, Schedules
+
+
+class Balance(Condition):
+    def __init__(self) -> None:
+        super().__init__(name="balance", elastic=False, words="balance")
+
+    def count(self, d, cols):
+        T, n = d.T, d.n
+        nnz = T * int(np.count_nonzero(np.eye(n) - d.a))
+        for s in range(min(d.spending.shape[1], T)):
+            nnz += (T - s) * int(np.count_nonzero(d.b * d.spending[:, s][None, :]))
+        if "consumption" in cols:
+            nnz += T * int(np.count_nonzero(d.basket))
+        nnz += cols.get("imports", 0) + cols.get("exports", 0)
+        return T * n, nnz
+
+    def build(self, ctx: Context) -> RowBlock:
+        d = ctx.data
+        T, n = d.T, d.n
+        eye_t = sparse.eye_array(T, format="csr")
+        coeffs: dict[str, sparse.sparray] = {
+            "output": sparse.kron(eye_t, sparse.csr_array(np.eye(n) - d.a), format="csr"),
+            "starts": -ctx.deliveries}
+        if "consumption" in ctx.cols:
+            coeffs["consumption"] = sparse.kron(eye_t, sparse.csr_array(-d.basket[:, None]),
+                                                format="csr")
+        for col, side, sign in (("imports", d.imports, 1.0), ("exports", d.exports, -1.0)):
+            if col in ctx.cols and side is not None:
+                sel = np.zeros((n, len(side.goods)))
+                sel[side.index, np.arange(len(side.goods))] = sign
+                coeffs[col] = sparse.kron(eye_t, sparse.csr_array(sel), format="csr")
+        return RowBlock("balance", (T, n), (tuple(d.years), tuple(d.names)), coeffs,
+                        d.demand + d.pipe_deliveries, np.inf)
+
+    def audit(self, d, s: Schedules) -> list[Check]:
+        kappa = np.zeros(d.T) if s.consumption is None else s.consumption
+        deliv = s.deliveries_check
+        assert deliv is not None
+        intermediate = s.output @ d.a.T
+        cons = kappa[:, None] * d.basket[None, :]
+        use = intermediate + deliv + cons + d.demand
+        supply = s.output.copy()
+        traded = np.zeros_like(supply)
+        for flows, side, sign in ((s.imports, d.imports, 1.0), (s.exports, d.exports, -1.0)):
+            if side is not None and side.goods:
+                assert flows is not None
+                for i, j in enumerate(side.index):
+                    supply[:, j] += sign * flows[:, i]
+                    traded[:, j] += np.abs(flows[:, i])
+        scale = np.abs(s.output) + np.abs(intermediate) + np.abs(deliv) + np.abs(cons) \
+            + d.demand + traded
+        labels = [("balance", y, c) for y in d.years for c in d.names]
+        groups = np.tile(np.arange(d.n), d.T)
+        return [Check("balance", (use - supply).ravel(), scale.ravel(), labels, groups),
+                Check("reported deliveries", np.abs(s.deliveries - deliv).ravel(),
+                      np.abs(deliv).ravel(), [("deliveries", y, c) for y in d.years
+                                              for c in d.names], groups)]
+
+    def describe(self, label):
+        return f"the balance of {label[2]} in {label[1]}"

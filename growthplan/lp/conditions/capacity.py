@@ -1,0 +1,59 @@
+"""Capacity: output of each sector within the capacity in service.
+
+``x_jt − u_j (G z)_jt ≤ u_j base_jt`` where ``C = base + G z`` is the
+capacity in service (see :mod:`growthplan.lp.build`). Hard in the diagnosis.
+The audit also checks starts against their ceilings and every schedule
+against its sign.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from scipy import sparse
+
+from . import Check, Condition, Context, RowBlock, Schedules, capacity_nnz_by_row
+
+
+class Capacity(Condition):
+    def __init__(self) -> None:
+        super().__init__(name="capacity", elastic=False, words="capacity")
+
+    def count(self, d, cols):
+        g = capacity_nnz_by_row(d)[: d.T]
+        return d.T * d.n, d.T * d.n + int(g.sum())
+
+    def build(self, ctx: Context) -> RowBlock:
+        d = ctx.data
+        T, n = d.T, d.n
+        u = np.tile(d.util, T)
+        g_plan = ctx.capacity[: T * n]
+        return RowBlock("capacity", (T, n), (tuple(d.years), tuple(d.names)),
+                        {"output": sparse.eye_array(T * n, format="csr"),
+                         "starts": sparse.csr_array(-(sparse.diags_array(u) @ g_plan))},
+                        -np.inf, d.base[:T] * d.util[None, :])
+
+    def audit(self, d, s: Schedules) -> list[Check]:
+        cap = s.capacity_check
+        assert cap is not None
+        groups = np.tile(np.arange(d.n), d.T)
+        grid = [(y, c) for y in d.years for c in d.names]
+        checks = [
+            Check("capacity", (s.output - d.util * cap[:-1]).ravel(),
+                  (np.abs(s.output) + d.util * np.abs(cap[:-1])).ravel(),
+                  [("capacity", *g) for g in grid], groups),
+            Check("reported capacity", np.abs(s.capacity - cap).ravel(), np.abs(cap).ravel(),
+                  [("capacity in service", y, c) for y in [*d.years, d.years[-1] + 1]
+                   for c in d.names], np.tile(np.arange(d.n), d.T + 1)),
+            Check("non-negative output", -s.output.ravel(), np.abs(s.output).ravel(),
+                  [("output", *g) for g in grid], groups),
+            Check("non-negative starts", -s.starts.ravel(), np.abs(s.starts).ravel(),
+                  [("starts", *g) for g in grid], groups)]
+        for j, rows, at_most in d.ceilings:
+            got = s.starts[rows, j]
+            checks.append(Check("starts ceiling", got - at_most, np.abs(got) + at_most,
+                                [("starts ceiling", d.years[r], d.names[j]) for r in rows],
+                                np.full(len(rows), j)))
+        return checks
+
+    def describe(self, label):
+        return f"the capacity of {label[2]} in {label[1]}"

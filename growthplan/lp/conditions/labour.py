@@ -1,0 +1,43 @@
+"""Labour: labour used of each kind within its supply, ``l_k · x_t ≤ L_kt``. Elastic."""
+
+from __future__ import annotations
+
+import numpy as np
+from scipy import sparse
+
+from . import Check, Condition, Context, RowBlock, Schedules
+
+
+class Labour(Condition):
+    def __init__(self) -> None:
+        super().__init__(name="labour", elastic=True, words="labour")
+
+    def applies(self, d):
+        return d.labour.shape[0] > 0
+
+    def count(self, d, cols):
+        return d.T * d.labour.shape[0], d.T * int(np.count_nonzero(d.labour))
+
+    def build(self, ctx: Context) -> RowBlock:
+        d = ctx.data
+        rows = sparse.kron(sparse.eye_array(d.T, format="csr"), sparse.csr_array(d.labour),
+                           format="csr")
+        return RowBlock("labour", (d.T, len(d.labour_kinds)),
+                        (tuple(d.years), tuple(d.labour_kinds)), {"output": rows}, -np.inf,
+                        d.supply.T)
+
+    def audit(self, d, s: Schedules) -> list[Check]:
+        out = []
+        for k, kind in enumerate(d.labour_kinds):
+            used = s.output @ d.labour[k]
+            scale = np.abs(s.output) @ d.labour[k] + d.supply[k]
+            out.append(Check("labour", used - d.supply[k], scale,
+                             [("labour", y, kind) for y in d.years], np.full(d.T, k)))
+        return out
+
+    def shortfall_label(self, label):
+        return ("labour", str(label[2]), label[1])
+
+    def describe(self, label):
+        kind = "" if label[2] == "labour" else f" of kind {label[2]}"
+        return f"the labour supply{kind} in {label[1]}"

@@ -1,0 +1,45 @@
+"""The terminal level: capacity after the plan at least ``λ`` times the proportions ``π``.
+
+``G_T z − π λ ≥ −base_T``; its rows exist when a terminal-capacity objective
+is optimised. Hard in the diagnosis (``λ`` is free, so they always hold).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from scipy import sparse
+
+from . import Check, Condition, Context, RowBlock, Schedules, capacity_nnz_by_row
+
+
+class TerminalLevel(Condition):
+    def __init__(self) -> None:
+        super().__init__(name="terminal_level", elastic=False, words="terminal level")
+
+    def applies(self, d):
+        return d.proportions is not None
+
+    def count(self, d, cols):
+        assert d.proportions is not None
+        return d.n, int(capacity_nnz_by_row(d)[d.T].sum()) + int(np.count_nonzero(d.proportions))
+
+    def build(self, ctx: Context) -> RowBlock:
+        d = ctx.data
+        assert d.proportions is not None
+        return RowBlock("terminal_level", (d.n,), (tuple(d.names),),
+                        {"starts": sparse.csr_array(ctx.capacity[d.T * d.n:]),
+                         "level": sparse.csr_array(-d.proportions[:, None])},
+                        -d.base[d.T], np.inf)
+
+    def audit(self, d, s: Schedules) -> list[Check]:
+        if s.level is None:
+            return []
+        cap = s.capacity_check
+        assert cap is not None and d.proportions is not None
+        return [Check("terminal level", s.level * d.proportions - cap[-1],
+                      np.abs(s.level) * d.proportions + np.abs(cap[-1]),
+                      [("terminal level", d.years[-1] + 1, c) for c in d.names],
+                      np.arange(d.n))]
+
+    def describe(self, label):
+        return f"the terminal capacity of {label[1]}"

@@ -1,0 +1,81 @@
+"""Targets: at-least conditions on output, capacity or consumption in named years. Elastic.
+
+A capacity target may name the year after the plan (terminal capacity).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from scipy import sparse
+
+from . import Check, Condition, Context, RowBlock, Schedules, capacity_nnz_by_row
+
+
+class Targets(Condition):
+    def __init__(self) -> None:
+        super().__init__(name="targets", elastic=True, words="target")
+
+    def applies(self, d):
+        return bool(d.targets)
+
+    def count(self, d, cols):
+        g = capacity_nnz_by_row(d)
+        nnz = sum(int(g[tg.t, tg.j]) if tg.quantity == "capacity" else 1 for tg in d.targets)
+        return len(d.targets), nnz
+
+    def build(self, ctx: Context) -> RowBlock:
+        d = ctx.data
+        T, n = d.T, d.n
+        parts: dict[str, list] = {"output": [], "starts": [], "consumption": []}
+        lower = []
+        for tg in d.targets:
+            row = {c: sparse.csr_array((1, ctx.width(c))) for c in parts if c in ctx.cols}
+            if tg.quantity == "output":
+                assert tg.j is not None
+                row["output"] = sparse.csr_array(([1.0], ([0], [tg.t * n + tg.j])),
+                                                 shape=(1, T * n))
+                lower.append(tg.required)
+            elif tg.quantity == "capacity":
+                assert tg.j is not None
+                row["starts"] = sparse.csr_array(ctx.capacity[[tg.t * n + tg.j]])
+                lower.append(tg.required - d.base[tg.t, tg.j])
+            else:
+                coef = 1.0 if tg.j is None else float(d.basket[tg.j])
+                row["consumption"] = sparse.csr_array(([coef], ([0], [tg.t])), shape=(1, T))
+                lower.append(tg.required)
+            for c in row:
+                parts[c].append(row[c])
+        coeffs = {c: sparse.csr_array(sparse.vstack(v)) for c, v in parts.items() if v}
+        labels = tuple((tg.year, tg.sector or "", tg.quantity) for tg in d.targets)
+        return RowBlock("targets", (len(d.targets),), (labels,), coeffs, np.array(lower),
+                        np.inf)
+
+    def audit(self, d, s: Schedules) -> list[Check]:
+        cap = s.capacity_check
+        assert cap is not None
+        kappa = np.zeros(d.T) if s.consumption is None else s.consumption
+        viol, scale, labels, groups = [], [], [], []
+        for tg in d.targets:
+            if tg.quantity == "output":
+                got = s.output[tg.t, tg.j]
+            elif tg.quantity == "capacity":
+                got = cap[tg.t, tg.j]
+            else:
+                got = kappa[tg.t] * (1.0 if tg.j is None else d.basket[tg.j])
+            viol.append(tg.required - got)
+            scale.append(tg.required + abs(got))
+            labels.append(("target", tg.year, tg.sector or "", tg.quantity))
+            groups.append(tg.index)
+        return [Check("target", np.array(viol), np.array(scale), labels, np.array(groups))]
+
+    def required(self, d, block, lower, upper):
+        return np.array([tg.required for tg in d.targets])
+
+    def shortfall_label(self, label):
+        year, sector, quantity = label[1]
+        return (f"{quantity} target", sector, year)
+
+    def describe(self, label):
+        year, sector, quantity = label[1]
+        where = f" of {sector}" if sector else ""
+        return f"the {quantity} target{where} in {year}"

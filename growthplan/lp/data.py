@@ -1,0 +1,311 @@
+"""Every array the LP, the audit and the results need, computed once from a validated plan.
+
+:func:`lower` is the only place that reads the pydantic models on the way
+to the solver: survival profiles, the capacity from before the plan, the
+pipeline of unfinished construction, per-year series and the terminal
+proportions are computed here once and shared by the builder, the audit and
+the result tables.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+from .. import objectives as obj
+from .._validation import Rule
+from ..series import series
+
+if TYPE_CHECKING:
+    from ..plan import Plan
+
+__all__ = ["PlanData", "TargetData", "TradeSide", "lower", "basket", "consumption_floor",
+           "labour_supply", "exogenous_demand", "trade_sides", "terminal_proportions"]
+
+
+@dataclass(frozen=True)
+class TargetData:
+    """One target as numbers: what, where (sector index ``j`` or None), when (``t``)."""
+
+    index: int
+    quantity: str       # "output", "capacity" or "consumption"
+    sector: str | None
+    j: int | None
+    year: int
+    t: int
+    required: float
+
+
+@dataclass(frozen=True)
+class TradeSide:
+    """Importable (or exportable) goods: names, positions, prices, ceilings (years × goods)."""
+
+    goods: list[str]
+    index: np.ndarray
+    prices: np.ndarray
+    ceilings: np.ndarray
+
+
+@dataclass
+class PlanData:
+    """A validated plan as arrays (``T`` years, ``n`` sectors)."""
+
+    names: list[str]
+    years: list[int]
+    a: np.ndarray
+    b: np.ndarray
+    labour: np.ndarray               # kinds with a supply × sectors
+    labour_kinds: list[str]
+    labour_all: np.ndarray           # every kind × sectors
+    labour_all_kinds: list[str]
+    supply: np.ndarray               # kinds with a supply × years
+    basket: np.ndarray
+    has_consumption: bool
+    floor: np.ndarray
+    max_fall: float | None
+    demand: np.ndarray               # years × sectors
+    theta: np.ndarray
+    spending: np.ndarray             # sectors × max(1, max lead time)
+    util: np.ndarray
+    surv: np.ndarray                 # sectors × (T + 2): S(0..T+1)
+    surv_full: list[np.ndarray]      # each sector's whole survival profile
+    geometric_rate: np.ndarray       # δ for geometric profiles, NaN for the others
+    initial: np.ndarray              # (T+1) × sectors: initial capacity still in service
+    pipeline: list[np.ndarray]       # per sector: starts made before the plan, oldest first
+    base: np.ndarray                 # (T+1) × sectors: initial + pipeline capacity
+    pipe_deliveries: np.ndarray      # years × commodities
+    upper_starts: np.ndarray         # years × sectors
+    ceilings: list[tuple[int, list[int], float]]  # (sector, year indices, at most)
+    targets: list[TargetData]
+    proportions: np.ndarray | None
+    proportions_source: str
+    terminal_rate: float | None
+    psi: np.ndarray | None
+    imports: TradeSide | None
+    exports: TradeSide | None
+    inflow: np.ndarray | None
+    objective: Any
+    extra: dict[str, Any] = field(default_factory=dict)
+
+    @property
+    def T(self) -> int:  # noqa: N802 - the trade's symbol
+        """Number of plan years."""
+        return len(self.years)
+
+    @property
+    def n(self) -> int:
+        """Number of sectors."""
+        return len(self.names)
+
+    @property
+    def trades(self) -> bool:
+        """Whether the plan has a foreign-exchange condition."""
+        return self.inflow is not None and bool(
+            (self.imports is not None and self.imports.goods)
+            or (self.exports is not None and self.exports.goods))
+
+
+# -- per-year series and derived vectors (also used by Plan's validation) ------------------
+
+def basket(plan: Plan) -> np.ndarray:
+    """Consumption basket per unit of consumption level (zeros without one)."""
+    econ = plan.economy
+    if plan.consumption is not None and plan.consumption.basket is not None:
+        b = plan.consumption.basket
+        unknown = [k for k in b if k not in econ.names]
+        if unknown:
+            raise Rule("name sectors of the economy", unknown, field="consumption.basket")
+        out = np.array([float(b.get(k, 0.0)) for k in econ.names])
+    elif econ.consumption_basket is not None:
+        out = np.array(econ.consumption_basket)
+    elif plan.consumption is not None:
+        raise Rule("be given here or in the economy", None, field="consumption.basket")
+    else:
+        return np.zeros(econ.n)
+    if not np.all(np.isfinite(out)) or np.any(out < 0) or out.sum() <= 0:
+        raise Rule("hold amounts >= 0 with a positive sum", out.tolist(),
+                   field="consumption.basket")
+    return out
+
+
+def consumption_floor(plan: Plan) -> np.ndarray:
+    """Least consumption level per plan year."""
+    if plan.consumption is None:
+        return np.zeros(len(plan.years))
+    return series(plan.consumption.floor, plan.years, "consumption.floor",
+                  plan.consumption.floor_growth)
+
+
+def labour_supply(plan: Plan) -> np.ndarray:
+    """Labour available, kinds with a supply × years."""
+    rows = [series(ls.start if ls.series is None else ls.series, plan.years,
+                   f"labour.{i}.series" if ls.series is not None else f"labour.{i}.start",
+                   ls.growth) for i, ls in enumerate(plan.labour)]
+    return np.array(rows).reshape(len(plan.labour), len(plan.years))
+
+
+def exogenous_demand(plan: Plan) -> np.ndarray:
+    """Exogenous final demand, years × sectors."""
+    import pandas as pd
+
+    names = plan.economy.names
+    out = np.zeros((len(plan.years), len(names)))
+    fd = plan.final_demand
+    if fd is None:
+        return out
+    if isinstance(fd, pd.DataFrame):
+        unknown = [c for c in fd.columns if c not in names]
+        if unknown:
+            raise Rule("name sectors of the economy", unknown[:5], field="final_demand")
+        fd = {c: fd[c] for c in fd.columns}
+    if not isinstance(fd, dict):
+        raise Rule("map sectors to numbers or per-year series", type(fd).__name__,
+                   field="final_demand")
+    for k, v in fd.items():
+        if k not in names:
+            raise Rule("name sectors of the economy", k, field="final_demand")
+        out[:, names.index(k)] = series(v, plan.years, f"final_demand.{k}",
+                                        plan.final_demand_growth)
+    return out
+
+
+def trade_sides(plan: Plan) -> tuple[TradeSide | None, TradeSide | None, np.ndarray | None]:
+    """Imports, exports and the foreign-exchange inflow per year (None without trade)."""
+    t = plan.trade
+    if t is None:
+        return None, None, None
+    inflow = series(t.inflow, plan.years, "trade.inflow", t.inflow_growth)
+    names = plan.economy.names
+    sides = []
+    for side in ("import", "export"):
+        prices = getattr(t, f"{side}_prices")
+        ceil_in = getattr(t, f"{side}_ceilings")
+        goods = [k for k in names if k in prices]
+        ceil = np.full((len(plan.years), len(goods)), np.inf)
+        for i, g in enumerate(goods):
+            if g in ceil_in:
+                ceil[:, i] = series(ceil_in[g], plan.years, f"trade.{side}_ceilings.{g}")
+        sides.append(TradeSide(goods, np.array([names.index(g) for g in goods], dtype=int),
+                               np.array([prices[g] for g in goods], dtype=float), ceil))
+    return sides[0], sides[1], inflow
+
+
+def terminal_proportions(plan: Plan) -> tuple[np.ndarray, str]:
+    """Proportions ``π`` of the terminal-capacity objective and where they came from."""
+    econ = plan.economy
+    o = next((c for c in obj.components(plan.objective)
+              if isinstance(c, obj.TerminalCapacity)), None)
+    if o is not None and o.proportions:
+        p = np.array([float(o.proportions.get(k, 0.0)) for k in econ.names])
+        return p / p.sum(), "given"
+    try:
+        v = econ.dynamic_balanced_growth().proportions.to_numpy()
+        if np.all(v > 1e-12):
+            return v / v.sum(), "balanced growth"
+    except (ValueError, ArithmeticError):
+        pass
+    c0 = np.array([econ.capital[k].initial_capacity for k in econ.names])  # type: ignore[index]
+    if c0.sum() <= 0:
+        return np.full(econ.n, 1.0 / econ.n), "equal"
+    return c0 / c0.sum(), "initial capacity"
+
+
+def _pipeline_capacity(theta: int, starts: np.ndarray, surv: np.ndarray, T: int) -> np.ndarray:
+    """Capacity in service in years 0..T from starts made before the plan (oldest first)."""
+    out = np.zeros(T + 1)
+    for back, amount in enumerate(starts[::-1], start=1):
+        enter = theta - back  # plan year in which this start enters service
+        ages = np.arange(T + 1) - enter
+        ok = (ages >= 0) & (ages < surv.size)
+        out[ok] += amount * surv[ages[ok]]
+    return out
+
+
+def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> PlanData:
+    """The arrays of a validated plan.
+
+    Parameters
+    ----------
+    plan : Plan
+    proportions : (array, str), optional
+        Terminal proportions and their source, when already known (the
+        horizon search lowers many plans of the same economy).
+    """
+    econ = plan.economy
+    names, years = econ.names, list(plan.years)
+    T, n = len(years), econ.n
+    assert econ.capital is not None  # Plan's validation requires it
+    specs = [econ.capital[k] for k in names]
+    theta = np.array([s.lead_time for s in specs], dtype=int)
+    width = int(max(1, theta.max()))
+    spending = np.zeros((n, width))
+    for j, s in enumerate(specs):
+        spending[j, : len(s.spending_profile or [])] = s.spending_profile
+    surv_full = [np.asarray(s.survival(), dtype=float) for s in specs]
+    surv = np.zeros((n, T + 2))
+    for j, prof in enumerate(surv_full):
+        k = min(prof.size, T + 2)
+        surv[j, :k] = prof[:k]
+    geo = np.array([s.declining_balance / s.mean_service_life if s.retirement == "geometric"
+                    else np.nan for s in specs])
+    initial = np.array([s.initial_capacity * s.initial_survival(T) for s in specs]).T.reshape(
+        T + 1, n).copy()
+    b = np.asarray(econ.capital_coefficients, dtype=float)
+    base = initial.copy()
+    pipe_del = np.zeros((T, n))
+    pipeline = [np.zeros(0) for _ in names]
+    for sector, past in (plan.under_construction or {}).items():
+        j = names.index(sector)
+        v = np.asarray(past, dtype=float)
+        pipeline[j] = v
+        base[:, j] += _pipeline_capacity(int(theta[j]), v, surv_full[j], T)
+        for back, amount in enumerate(v[::-1], start=1):
+            for s_ in range(width):
+                if 0 <= s_ - back < T:
+                    pipe_del[s_ - back] += b[:, j] * spending[j, s_] * amount
+    util = np.array([s.max_utilisation for s in specs], dtype=float)
+    upper = np.full((T, n), np.inf)
+    ceilings = []
+    for sc in plan.starts_ceilings:
+        j = names.index(sc.sector)
+        rows = [years.index(y) for y in sc.years] if sc.years else list(range(T))
+        upper[rows, j] = np.minimum(upper[rows, j], sc.at_most)
+        ceilings.append((j, rows, float(sc.at_most)))
+    kinds = list(econ.labour_kinds or [])
+    labour_all = (np.asarray(econ.labour_coefficients, dtype=float)
+                  if econ.labour_coefficients is not None else np.zeros((0, n)))
+    sup_kinds = [ls.kind for ls in plan.labour]
+    labour = labour_all[[kinds.index(k) for k in sup_kinds]] if sup_kinds else np.zeros((0, n))
+    targets = []
+    for i, tg in enumerate(plan.targets):
+        jt = names.index(tg.sector) if tg.sector is not None else None
+        targets.append(TargetData(i, tg.quantity, tg.sector, jt, tg.year, tg.year - years[0],
+                                  tg.required))
+    prop, source = None, ""
+    if any(isinstance(c, obj.TerminalCapacity) for c in obj.components(plan.objective)):
+        prop, source = proportions if proportions is not None else terminal_proportions(plan)
+    rate = plan.terminal.rate if plan.terminal is not None else None
+    psi = None if rate is None else np.array([s.starts_per_capacity(rate) for s in specs])
+    imports, exports, inflow = trade_sides(plan)
+    data = PlanData(
+        names=list(names), years=years, a=np.asarray(econ.input_coefficients, dtype=float),
+        b=b, labour=labour, labour_kinds=sup_kinds, labour_all=labour_all,
+        labour_all_kinds=kinds, supply=labour_supply(plan), basket=basket(plan),
+        has_consumption=plan.consumption is not None, floor=consumption_floor(plan),
+        max_fall=plan.consumption.max_fall if plan.consumption else None,
+        demand=exogenous_demand(plan), theta=theta, spending=spending, util=util, surv=surv,
+        surv_full=surv_full, geometric_rate=geo, initial=initial, pipeline=pipeline,
+        base=base, pipe_deliveries=pipe_del, upper_starts=upper, ceilings=ceilings,
+        targets=targets, proportions=prop, proportions_source=source, terminal_rate=rate,
+        psi=psi, imports=imports, exports=exports, inflow=inflow, objective=plan.objective)
+    for arr_name in ("initial", "base", "surv", "pipe_deliveries", "demand", "supply"):
+        arr = getattr(data, arr_name)
+        if not np.all(np.isfinite(arr)):
+            from ..errors import InvalidInput
+
+            raise InvalidInput(f"the plan's {arr_name.replace('_', ' ')} must be finite numbers. "
+                               "Got a non-finite value: check service lives, past growth and "
+                               "investment histories.", field=arr_name)
+    return data

@@ -1,0 +1,145 @@
+"""Independent audit of a solved plan.
+
+Capacity in service and capital deliveries are recomputed from the starts
+vintage by vintage with plain loops, never from the LP matrix; then every
+condition family checks its own conditions from the schedules
+(:meth:`~growthplan.lp.conditions.Condition.audit`). A violation is measured
+relative to the condition's own terms: ``violation / max(scale, floor)``,
+``scale`` the sum of the absolute values of its terms and ``floor`` 1e-9
+times the largest scale of the same condition kind for the same sector,
+commodity or kind. A sector in tiny units is so judged by its own numbers,
+and NaN counts as a violation, never as zero.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from ..lp.conditions import CONDITIONS, Check, Schedules
+from ..lp.data import PlanData
+
+__all__ = ["Audit", "audit", "recompute_capacity", "recompute_deliveries", "FLOOR"]
+
+FLOOR = 1e-9
+
+
+@dataclass(frozen=True)
+class Audit:
+    """Result of the audit.
+
+    Attributes
+    ----------
+    ok : bool
+        Whether every condition holds within ``tolerance`` (and nothing is NaN).
+    max_violation : float
+        Largest relative violation found.
+    max_absolute : float
+        Largest absolute violation (in the condition's own units).
+    worst : str
+        Which condition it is.
+    tolerance : float
+    checks : pandas.DataFrame
+        One row per kind of condition: count, largest relative and absolute violation.
+    """
+
+    ok: bool
+    max_violation: float
+    max_absolute: float
+    worst: str
+    tolerance: float
+    checks: pd.DataFrame
+
+    def __repr__(self) -> str:
+        return (f"Audit(ok={self.ok}, max_violation={self.max_violation:.3g} "
+                f"(relative), worst={self.worst!r})")
+
+
+def recompute_capacity(d: PlanData, starts: np.ndarray) -> np.ndarray:
+    """Capacity in service in years ``0..T`` from the starts, vintage by vintage."""
+    T = d.T
+    cap = d.initial.copy()
+    for j in range(d.n):
+        s = d.surv_full[j]
+        theta = int(d.theta[j])
+        vintages = [(-(k + 1), v) for k, v in enumerate(d.pipeline[j][::-1])]
+        vintages += [(tau, starts[tau, j]) for tau in range(T)]
+        for tau, amount in vintages:
+            for t in range(max(tau + theta, 0), T + 1):
+                age = t - tau - theta
+                if age < s.size:
+                    cap[t, j] += amount * s[age]
+    return cap
+
+
+def recompute_deliveries(d: PlanData, starts: np.ndarray) -> np.ndarray:
+    """Capital goods delivered by commodity in each plan year."""
+    T = d.T
+    out = np.zeros((T, d.n))
+    for j in range(d.n):
+        vintages = [(-(k + 1), v) for k, v in enumerate(d.pipeline[j][::-1])]
+        vintages += [(tau, starts[tau, j]) for tau in range(T)]
+        for tau, amount in vintages:
+            for s, share in enumerate(d.spending[j]):
+                if share and 0 <= tau + s < T:
+                    out[tau + s] += d.b[:, j] * share * amount
+    return out
+
+
+def _relative(c: Check) -> tuple[np.ndarray, np.ndarray]:
+    viol = np.asarray(c.violation, dtype=float)
+    viol = np.where(np.isnan(viol), np.inf, np.maximum(viol, 0.0))
+    scale = np.abs(np.asarray(c.scale, dtype=float))
+    scale = np.where(np.isnan(scale), np.inf, scale)
+    group = np.zeros(viol.size, int) if c.group is None else np.asarray(c.group, int)
+    floor = np.zeros(viol.size)
+    if viol.size:
+        top = np.zeros(group.max() + 1)
+        np.maximum.at(top, group, np.where(np.isfinite(scale), scale, 0.0))
+        floor = np.maximum(FLOOR * top[group], 1e-300)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        rel = np.where(viol == 0, 0.0, viol / np.maximum(scale, floor))
+    return np.nan_to_num(rel, nan=np.inf), viol
+
+
+def audit(d: PlanData, s: Schedules, *, tolerance: float = 1e-6) -> Audit:
+    """Check every condition of the plan against the schedules.
+
+    Parameters
+    ----------
+    d : PlanData
+        The plan's arrays.
+    s : Schedules
+        The solution; its ``capacity_check`` and ``deliveries_check`` are
+        filled in here by the independent recomputation.
+    tolerance : float, default 1e-6
+        Largest relative violation accepted.
+    """
+    s.capacity_check = recompute_capacity(d, s.starts)
+    s.deliveries_check = recompute_deliveries(d, s.starts)
+    rows = []
+    worst, worst_rel, worst_abs = "", 0.0, 0.0
+    for cond in CONDITIONS:
+        if not cond.applies(d):
+            continue
+        for c in cond.audit(d, s):
+            if np.size(c.violation) == 0:
+                continue
+            rel, viol = _relative(c)
+            k = int(np.argmax(rel))
+            label = " ".join(str(p) for p in c.labels[k] if p != "")
+            rows.append({"condition": c.kind, "count": int(rel.size),
+                         "max_relative": float(rel[k]), "max_absolute": float(viol.max()),
+                         "where": label})
+            if rel[k] > worst_rel or (worst == "" and rel[k] > 0):
+                worst, worst_rel, worst_abs = label, float(rel[k]), float(viol[k])
+    table = pd.DataFrame(rows, columns=["condition", "count", "max_relative", "max_absolute",
+                                        "where"]).set_index("condition")
+    finite = all(np.all(np.isfinite(a)) for a in (s.output, s.starts, s.capacity,
+                                                   s.deliveries) if a is not None)
+    ok = bool(worst_rel <= tolerance and finite)
+    return Audit(ok=ok, max_violation=worst_rel if finite else float("inf"),
+                 max_absolute=worst_abs, worst=worst or "none", tolerance=tolerance,
+                 checks=table)

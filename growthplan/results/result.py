@@ -1,0 +1,297 @@
+"""PlanResult: the solved plan as labelled schedules, shadow prices, audit and diagnosis.
+
+numpy inside, pandas at the edge: tables are built lazily from the solution's
+arrays in :mod:`growthplan.results.tables` (years as rows, sectors,
+commodities or kinds as columns); :meth:`PlanResult.tidy` gives the long form.
+Every table is returned as a copy, so editing one never changes the audited
+plan or what its exports write.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import shutil
+import tempfile
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+import pandas as pd
+
+from ..backends.base import SolverOutcome, Status
+from ..errors import PlanInfeasible, PlanNotOptimal, PlanUnbounded, SolverFailure, invalid
+from ..lp.conditions import Schedules
+from ..lp.program import LinearProgram
+from . import tables
+from .audit import Audit
+from .summary import CAUTION, Summary, key_figures
+
+if TYPE_CHECKING:
+    from .diagnosis import Diagnosis
+
+__all__ = ["PlanResult", "CAUTION"]
+
+
+class PlanResult:
+    """The outcome of :meth:`growthplan.Plan.solve`.
+
+    Attributes
+    ----------
+    plan : Plan
+        The plan that was solved.
+    status : Status
+    ok : bool
+        True only for an optimal solve that passed the audit.
+    objective : float
+    message : str
+        The solver's own status text.
+    audit : Audit or None
+    timings : dict of str to float
+        Seconds for validate, compile, solve, post-process and audit.
+    solver : dict
+        Method, iterations, options and versions.
+    warnings : list of str
+
+    Notes
+    -----
+    The schedule tables (``output``, ``starts``, ``shadow_prices``, …) are
+    available only when ``ok`` is true; on any other result they raise
+    :class:`~growthplan.PlanNotOptimal`, so a stopped or unverified solve
+    cannot be mistaken for a plan. ``raw_solution`` still holds the solver's
+    numbers for inspection.
+    """
+
+    def __init__(self, plan: Any, lp: LinearProgram, outcome: SolverOutcome, *,
+                 status: Status, timings: dict[str, float], audit: Audit | None = None,
+                 schedules: Schedules | None = None, notes: list[str] | None = None,
+                 diagnosis: Diagnosis | None = None, backend: str = "highs") -> None:
+        self.plan = plan
+        self.lp = lp
+        self.data = lp.data
+        self.outcome = outcome
+        self.status = status
+        self.objective = outcome.objective
+        self.message = outcome.message
+        self.audit = audit
+        self.timings = timings
+        self.warnings = list(notes or [])
+        self.diagnosis = diagnosis
+        self.horizons: dict[int, str] | None = None
+        self.runaway: list[str] = []
+        self._schedules = schedules
+        self._frames: dict[str, Any] | None = None
+        import highspy
+        import pulp
+
+        from .. import __version__
+        from ..backends.highs import highs_version
+        self.solver = {"backend": backend, "method": outcome.method,
+                       "iterations": outcome.iterations, "seconds": outcome.seconds,
+                       "options": dict(outcome.options),
+                       "versions": {"growthplan": __version__, "highs": highs_version(),
+                                    "highspy": getattr(highspy, "__version__", ""),
+                                    "pulp": pulp.__version__}}
+
+    # -- status -----------------------------------------------------------------
+    @property
+    def ok(self) -> bool:
+        """True for an optimal, audited plan."""
+        return self.status is Status.OPTIMAL
+
+    def raise_for_status(self) -> PlanResult:
+        """Raise the matching growthplan error unless the plan is optimal and audited."""
+        if self.ok:
+            return self
+        if self.status is Status.INFEASIBLE:
+            detail = ""
+            if self.diagnosis is not None:
+                detail = " " + self.diagnosis.headline()
+            raise PlanInfeasible(f"The plan cannot meet all its conditions ({self.message})."
+                                 + detail)
+        if self.status is Status.UNBOUNDED:
+            cols = f" Runaway columns: {', '.join(self.runaway)}." if self.runaway else ""
+            raise PlanUnbounded(f"The plan's objective is unbounded ({self.message}).{cols}")
+        raise SolverFailure(f"No verified optimal plan: status {self.status.value} "
+                            f"({self.message}). {' '.join(self.warnings)}".strip())
+
+    @property
+    def raw_solution(self) -> np.ndarray:
+        """The solver's column values, whatever the status."""
+        return self.outcome.x
+
+    def _get(self, name: str) -> Any:
+        if not self.ok:
+            raise PlanNotOptimal(
+                f"{name} is only available for an optimal, audited plan; this result has "
+                f"status {self.status.value!r} ({self.message}). See result.status, "
+                "result.diagnosis or result.raw_solution.")
+        if self._frames is None:
+            assert self._schedules is not None and self.data is not None
+            self._frames = tables.frames(self.data, self.lp, self.outcome, self._schedules,
+                                         self.plan.objective.discount_rate())
+        value = self._frames[name]
+        # a copy: editing a returned table never changes the audited plan (cheap with
+        # pandas' copy-on-write)
+        return value.copy() if isinstance(value, pd.DataFrame | pd.Series) else value
+
+    # -- schedules --------------------------------------------------------------
+    output = property(lambda self: self._get("output"), doc="Output, years × sectors.")
+    capacity = property(lambda self: self._get("capacity"),
+                        doc="Capacity in service, years (and the year after) × sectors.")
+    utilisation = property(lambda self: self._get("utilisation"),
+                           doc="Output over capacity in service.")
+    starts = property(lambda self: self._get("starts"), doc="Capacity starts, years × sectors.")
+    capital_deliveries = property(lambda self: self._get("capital_deliveries"),
+                                  doc="Capital goods delivered, years × commodities.")
+    retirements = property(lambda self: self._get("retirements"),
+                           doc="Capacity retired during each year, years × sectors.")
+    labour = property(lambda self: self._get("labour"),
+                      doc="Labour used and available, years × (kind, used/available).")
+    consumption = property(lambda self: self._get("consumption"),
+                           doc="Consumption level and commodities consumed, years × columns.")
+    surplus = property(lambda self: self._get("surplus"),
+                       doc="Free-disposal slack of each commodity balance.")
+    shadow_prices = property(lambda self: self._get("shadow_prices"),
+                             doc="Value of one more unit of each commodity per year, as solved.")
+    shadow_prices_current = property(
+        lambda self: self._get("shadow_prices_current"),
+        doc="Shadow prices undiscounted to current-year terms (see the README).")
+    labour_values = property(lambda self: self._get("labour_values"),
+                             doc="Value of one more person-year, years × kinds.")
+    quasi_rents = property(lambda self: self._get("quasi_rents"),
+                           doc="Value of one more unit of capacity, years × sectors.")
+    target_values = property(lambda self: self._get("target_values"),
+                             doc="Each target with its value (cost of the requirement).")
+    imports = property(lambda self: self._get("imports"), doc="Imports, years × commodities.")
+    exports = property(lambda self: self._get("exports"), doc="Exports, years × commodities.")
+    shadow_exchange_rate = property(
+        lambda self: self._get("shadow_exchange_rate"),
+        doc="Value of one more unit of foreign exchange per year (0 when the balance is slack).")
+
+    @property
+    def level(self) -> float | None:
+        """Terminal-capacity level ``λ`` (terminal-capacity objective only)."""
+        return self._get("level")
+
+    def tidy(self) -> pd.DataFrame:
+        """All year × sector schedules in long form: year, sector, quantity, value."""
+        parts = []
+        for name in ("output", "capacity", "utilisation", "starts", "capital_deliveries",
+                     "retirements", "surplus", "shadow_prices", "shadow_prices_current",
+                     "quasi_rents"):
+            f = self._get(name)
+            long = f.rename_axis(index="year", columns="sector").stack().rename("value")
+            parts.append(long.reset_index().assign(quantity=name))
+        out = pd.concat(parts, ignore_index=True)
+        return out[["year", "sector", "quantity", "value"]]
+
+    # -- analysis ---------------------------------------------------------------
+    def bottlenecks(self, *, top: int | None = 20, threshold: float = 1e-9) -> pd.DataFrame:
+        """Binding conditions ranked by their value (shadow price) per year.
+
+        Returns
+        -------
+        DataFrame with columns condition, year, name, value, ranked by value
+        within each year, years in order (``top`` rows per year at most).
+        """
+        rows = []
+        for cond, frame in (("commodity", self.shadow_prices), ("capacity", self.quasi_rents),
+                            ("labour", self.labour_values)):
+            for year, series in frame.iterrows():
+                for name, v in series.items():
+                    if v > threshold:
+                        rows.append({"condition": cond, "year": year, "name": name,
+                                     "value": float(v)})
+        out = pd.DataFrame(rows, columns=["condition", "year", "name", "value"])
+        if out.empty:
+            return out
+        out = out.sort_values(["year", "value"], ascending=[True, False])
+        if top is not None:
+            out = out.groupby("year", sort=True).head(top)
+        return out.reset_index(drop=True)
+
+    def summary(self) -> Summary:
+        """A short report: text in a terminal (``print``), a table in a notebook."""
+        return Summary(self)
+
+    def key_figures(self) -> dict[str, Any]:
+        """The figures the summary and scenario tables share (status, objective, totals)."""
+        return key_figures(self)
+
+    def __repr__(self) -> str:
+        return (f"PlanResult(status={self.status.value!r}, objective={self.objective:.6g}, "
+                f"years={self.plan.years[0]}..{self.plan.years[-1]}, "
+                f"sectors={self.plan.economy.n})")
+
+    # -- export -----------------------------------------------------------------
+    def _tables(self) -> dict[str, pd.DataFrame]:
+        names = ["output", "capacity", "utilisation", "starts", "capital_deliveries",
+                 "retirements", "labour", "consumption", "surplus", "shadow_prices",
+                 "shadow_prices_current", "labour_values", "quasi_rents", "target_values",
+                 "imports", "exports"]
+        out = {n: self._get(n) for n in names}
+        fx = self._get("shadow_exchange_rate")
+        if not fx.isna().all():
+            out["shadow_exchange_rate"] = fx.to_frame()
+        assert self.audit is not None
+        out["audit"] = self.audit.checks.reset_index()
+        return {k: v for k, v in out.items() if v is not None and not v.empty}
+
+    def to_csv(self, folder: str | os.PathLike, *, overwrite: bool = False) -> Path:
+        """Write every table as ``<name>.csv`` into a new folder.
+
+        The folder is written beside its final place and renamed into it, so
+        an interrupted export never leaves a half-written folder; an existing
+        folder is replaced only with ``overwrite=True``.
+        """
+        target = Path(folder)
+        if target.exists() and not overwrite:
+            raise invalid("folder", "not exist yet (pass overwrite=True to replace it)",
+                          str(target))
+        tables = self._tables()
+        target.parent.mkdir(parents=True, exist_ok=True)
+        tmp = Path(tempfile.mkdtemp(prefix=f".{target.name}.", dir=target.parent))
+        try:
+            for name, frame in tables.items():
+                frame.to_csv(tmp / f"{name}.csv")
+            (tmp / "summary.txt").write_text(str(self.summary()), encoding="utf-8")
+            if target.exists():
+                old = target.with_name(f".{target.name}.old-{os.getpid()}")
+                target.rename(old)
+                tmp.rename(target)
+                shutil.rmtree(old, ignore_errors=True)
+            else:
+                tmp.rename(target)
+        except BaseException:
+            shutil.rmtree(tmp, ignore_errors=True)
+            raise
+        return target
+
+    def to_excel(self, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
+        """Write every table as a sheet of one workbook (written aside, then renamed)."""
+        target = Path(path)
+        if target.exists() and not overwrite:
+            raise invalid("path", "not exist yet (pass overwrite=True to replace it)",
+                          str(target))
+        tables = self._tables()
+        target.parent.mkdir(parents=True, exist_ok=True)
+        fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".xlsx",
+                                        dir=target.parent)
+        os.close(fd)
+        tmp = Path(tmp_name)
+        try:
+            writer = pd.ExcelWriter(tmp, engine="openpyxl")
+            try:
+                for name, frame in tables.items():
+                    frame.to_excel(writer, sheet_name=name[:31])
+            except BaseException:
+                with contextlib.suppress(Exception):  # keep the first error, not close()'s
+                    writer.close()
+                raise
+            writer.close()
+            os.replace(tmp, target)
+        except BaseException:
+            tmp.unlink(missing_ok=True)
+            raise
+        return target

@@ -1,0 +1,109 @@
+"""The summary of a plan result and the key figures it shares with scenario tables."""
+
+from __future__ import annotations
+
+import html
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+if TYPE_CHECKING:
+    from .result import PlanResult
+
+__all__ = ["CAUTION", "Summary", "key_figures"]
+
+CAUTION = ("Planning estimates: results rest on the coefficients and assumptions supplied "
+           "and do not replace professional judgement or the decisions of the responsible "
+           "authorities.")
+
+
+def key_figures(result: PlanResult) -> dict[str, Any]:
+    """Status, objective, solve time and, for an optimal plan, its totals.
+
+    Returns
+    -------
+    dict
+        ``status``, ``objective``, ``solve_seconds`` and, when the plan is
+        optimal, ``terminal_capacity`` (sum over sectors), ``total_starts`` and
+        ``peak_labour_use`` (largest share of a labour supply used).
+    """
+    out: dict[str, Any] = {"status": result.status.value, "objective": result.objective,
+                           "solve_seconds": result.timings.get("solve", np.nan)}
+    if result.ok:
+        out["terminal_capacity"] = float(result.capacity.iloc[-1].sum())
+        out["total_starts"] = float(result.starts.to_numpy().sum())
+        lab = result.labour
+        if not lab.empty and (lab.columns.get_level_values(1) == "available").any():
+            kinds = dict.fromkeys(lab.columns.get_level_values(0))
+            out["peak_labour_use"] = max(float((lab[(k, "used")] / lab[(k, "available")])
+                                               .max()) for k in kinds
+                                         if (k, "available") in lab)
+    return out
+
+
+class Summary:
+    """Printable and notebook-renderable summary of a :class:`PlanResult`."""
+
+    def __init__(self, result: PlanResult) -> None:
+        self.result = result
+
+    def _lines(self) -> list[tuple[str, str]]:
+        r = self.result
+        p = r.plan
+        rows = [("status", r.status.value + ("" if r.ok else f" ({r.message})")),
+                ("years", f"{p.years[0]}–{p.years[-1]} ({p.horizon})"),
+                ("sectors", str(p.economy.n)),
+                ("objective", f"{type(p.objective).__name__} = {r.objective:.6g}"
+                 + (f" (terminal proportions: {r.data.proportions_source})"
+                    if r.data is not None and r.data.proportions_source else ""))]
+        if r.ok:
+            cap = r.capacity
+            first, last = cap.iloc[0].sum(), cap.iloc[-1].sum()
+            if first > 0 and last > 0:
+                g = (last / first) ** (1.0 / p.horizon) - 1
+                rows.append(("capacity growth", f"{100 * g:.2f} % a year (sum over sectors)"))
+            if r.labour is not None and not r.labour.empty:
+                for kind in r.labour.columns.get_level_values(0).unique():
+                    if (kind, "available") not in r.labour:
+                        continue  # labour is counted but not limited
+                    used = r.labour[(kind, "used")]
+                    avail = r.labour[(kind, "available")]
+                    rows.append((f"labour {kind}", f"up to {100 * (used / avail).max():.1f} % "
+                                 "of supply used"))
+            b = r.bottlenecks(top=3)
+            if not b.empty:
+                first_year = b[b.year == b.year.min()]
+                rows.append((f"bottlenecks {b.year.min()}",
+                             ", ".join(f"{c} {n}" for c, n in
+                                       zip(first_year.condition, first_year.name, strict=True))))
+            assert r.audit is not None
+            rows.append(("audit", f"largest violation {r.audit.max_violation:.2g} (relative, "
+                         f"tolerance {r.audit.tolerance:g})"))
+        rows.append(("solver", f"{r.outcome.solver_version or 'HiGHS'}, method "
+                     f"{r.solver['method']}, {r.timings.get('solve', 0):.3f} s"))
+        total = sum(r.timings.values())
+        rows.append(("time", f"{total:.3f} s in all (" + ", ".join(
+            f"{k} {v:.3f}" for k, v in r.timings.items()) + ")"))
+        for w in r.warnings:
+            rows.append(("note", w))
+        if r.diagnosis is not None:
+            rows.append(("diagnosis", r.diagnosis.headline()))
+            if r.diagnosis.conflict():
+                rows.append(("conflict", r.diagnosis.conflict()))
+        return rows
+
+    def __str__(self) -> str:
+        rows = self._lines()
+        width = max(len(k) for k, _ in rows)
+        body = "\n".join(f"{k:<{width}}  {v}" for k, v in rows)
+        return f"growthplan result\n{body}\n\n{CAUTION}"
+
+    def __repr__(self) -> str:
+        return str(self)
+
+    def _repr_html_(self) -> str:
+        cells = "".join(f"<tr><th style='text-align:left'>{html.escape(k)}</th>"
+                        f"<td style='text-align:left'>{html.escape(v)}</td></tr>"
+                        for k, v in self._lines())
+        return (f"<table><caption>growthplan result</caption>{cells}</table>"
+                f"<p><em>{html.escape(CAUTION)}</em></p>")

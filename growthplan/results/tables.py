@@ -1,0 +1,152 @@
+"""Labelled tables of a solved plan: the one place where years and sector names are attached.
+
+Shadow prices are reported as *values*: the improvement of the objective per
+unit by which a condition is relaxed (one more unit of a commodity in a year,
+one more unit of capacity, one more person-year); non-negative at an optimum
+whatever the objective's sense.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from ..backends.base import SolverOutcome
+from ..lp.conditions import Schedules
+from ..lp.data import PlanData
+from ..lp.program import LinearProgram
+
+__all__ = ["schedules", "frames", "current_prices"]
+
+
+def schedules(d: PlanData, lp: LinearProgram, x: np.ndarray) -> Schedules:
+    """The solution's schedules as arrays (capacity and deliveries through the operators)."""
+    T, n = d.T, d.n
+    output = lp.cols["output"].take(x)
+    starts = lp.cols["starts"].take(x)
+    kappa = lp.cols["consumption"].take(x) if "consumption" in lp.cols else None
+    level = float(x[lp.cols["level"].start]) if "level" in lp.cols else None
+    g, w = lp.operators["capacity"], lp.operators["deliveries"]
+    cap = (d.base.ravel() + g @ starts.ravel()).reshape(T + 1, n)
+    deliv = (w @ starts.ravel()).reshape(T, n) + d.pipe_deliveries
+    imports = lp.cols["imports"].take(x) if "imports" in lp.cols else None
+    exports = lp.cols["exports"].take(x) if "exports" in lp.cols else None
+    return Schedules(output=output, starts=starts, consumption=kappa, level=level,
+                     imports=imports, exports=exports, capacity=cap, deliveries=deliv)
+
+
+def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
+           discount_rate: float | None) -> dict[str, Any]:
+    """Every table of the result, labelled."""
+    names, years = d.names, d.years
+    T, n = d.T, d.n
+    idx = pd.Index(years, name="year")
+    cols = pd.Index(names, name="sector")
+    goods = pd.Index(names, name="commodity")
+    output, starts, cap, kappa = s.output, s.starts, s.capacity, s.consumption
+    entering = np.zeros((T + 1, n))  # capacity entering service at age 0 in each year
+    for j in range(n):
+        th = int(d.theta[j])
+        for tau in range(T):
+            if tau + th <= T:
+                entering[tau + th, j] += starts[tau, j]
+        for back, amount in enumerate(d.pipeline[j][::-1], start=1):
+            if 0 <= th - back <= T:
+                entering[th - back, j] += amount
+    retire = cap[:-1] + entering[1:] - cap[1:]
+    out: dict[str, Any] = {}
+
+    def frame(a: np.ndarray, index: pd.Index = idx, columns: pd.Index = cols) -> pd.DataFrame:
+        return pd.DataFrame(a, index=index, columns=columns)
+
+    out["output"] = frame(output)
+    out["starts"] = frame(starts)
+    out["capacity"] = frame(cap, index=pd.Index([*years, years[-1] + 1], name="year"))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        out["utilisation"] = frame(np.where(cap[:-1] > 0, output / cap[:-1], np.nan))
+    out["capital_deliveries"] = frame(s.deliveries, columns=goods)
+    out["retirements"] = frame(np.maximum(retire, 0.0) * (np.abs(retire) > 1e-12))
+    if d.labour.shape[0]:
+        used = output @ d.labour.T
+        lab = {}
+        for k, kind in enumerate(d.labour_kinds):
+            lab[(kind, "used")] = used[:, k]
+            lab[(kind, "available")] = d.supply[k]
+        out["labour"] = pd.DataFrame(lab, index=idx)
+    elif d.labour_all.shape[0]:
+        used = output @ d.labour_all.T
+        out["labour"] = pd.DataFrame({(kind, "used"): used[:, k]
+                                      for k, kind in enumerate(d.labour_all_kinds)}, index=idx)
+    else:
+        out["labour"] = pd.DataFrame(index=idx)
+    if kappa is not None:
+        cons = pd.DataFrame(kappa[:, None] * d.basket[None, :], index=idx, columns=cols)
+        cons.insert(0, "level", kappa)
+        out["consumption"] = cons
+    else:
+        out["consumption"] = pd.DataFrame(index=idx)
+    use = output @ d.a.T + s.deliveries + d.demand
+    if kappa is not None:
+        use = use + kappa[:, None] * d.basket
+    supply = output.copy()
+    for key, side, direction, flows in (("imports", d.imports, 1.0, s.imports),
+                                        ("exports", d.exports, -1.0, s.exports)):
+        if flows is not None and side is not None:
+            for i, j in enumerate(side.index):
+                supply[:, j] += direction * flows[:, i]
+            out[key] = pd.DataFrame(flows, index=idx,
+                                    columns=pd.Index(side.goods, name="commodity"))
+        else:
+            out[key] = pd.DataFrame(index=idx)
+    out["surplus"] = frame(supply - use, columns=goods)
+    dual = outcome.row_dual
+    if dual is None:
+        dual = np.full(lp.shape[0], np.nan)
+    sign = 1.0 if lp.sense == "max" else -1.0
+    value = sign * lp.row_sign * dual
+    value = np.where(np.abs(value) < 1e-12, 0.0, value)
+    prices = lp.rows["balance"].take(value)
+    out["shadow_prices"] = frame(prices, columns=goods)
+    out["shadow_prices_current"] = frame(current_prices(prices, output, discount_rate),
+                                         columns=goods)
+    out["quasi_rents"] = frame(lp.rows["capacity"].take(value))
+    if "labour" in lp.rows:
+        out["labour_values"] = pd.DataFrame(lp.rows["labour"].take(value), index=idx,
+                                            columns=pd.Index(d.labour_kinds, name="kind"))
+    else:
+        out["labour_values"] = pd.DataFrame(index=idx)
+    tv = pd.DataFrame([(t.quantity, t.sector or "", t.year, t.required) for t in d.targets],
+                      columns=["condition", "sector", "year", "required"])
+    if "targets" in lp.rows:
+        tv["value"] = lp.rows["targets"].take(value)
+    out["target_values"] = tv
+    out["level"] = s.level
+    if "foreign_exchange" in lp.rows:
+        out["shadow_exchange_rate"] = pd.Series(lp.rows["foreign_exchange"].take(value),
+                                                index=idx, name="shadow_exchange_rate")
+    else:
+        out["shadow_exchange_rate"] = pd.Series(np.full(T, np.nan), index=idx,
+                                                name="shadow_exchange_rate")
+    return out
+
+
+def current_prices(prices: np.ndarray, output: np.ndarray,
+                   discount_rate: float | None) -> np.ndarray:
+    """Shadow prices in current-year terms.
+
+    With a discounted objective at rate ``r`` the year-``t`` prices are
+    multiplied by ``(1 + r)^t``. Otherwise each year's prices are divided by
+    that year's price of the first year's output bundle and multiplied by the
+    first year's, so the bundle keeps its first-year value; the ratio between
+    years is the plan's implied own rate of interest.
+    """
+    t = np.arange(prices.shape[0], dtype=float)
+    if discount_rate is not None:
+        return prices * (1.0 + discount_rate) ** t[:, None]
+    weights = output[0] if output[0].sum() > 0 else np.ones(prices.shape[1])
+    index = prices @ weights
+    with np.errstate(divide="ignore", invalid="ignore"):
+        scale = np.where(index > 1e-300, index[0] / index, np.nan)
+    return prices * scale[:, None]

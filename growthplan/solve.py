@@ -1,0 +1,344 @@
+"""The whole pipeline, top to bottom.
+
+1. lower the validated plan to arrays, once (:func:`growthplan.lp.data.lower`);
+2. build the LP from the condition families (:func:`growthplan.lp.build.build`);
+3. optimise each objective stage on a back end, falling back to another
+   method when a solve fails (:func:`optimise`); the horizon search of
+   :class:`~growthplan.objectives.Fastest` runs here too, above any back end;
+4. read the schedules from the solution and audit them independently;
+5. diagnose a plan that is impossible (an elastic re-solve, which always has
+   a solution), and confirm every verdict of infeasibility by it.
+
+``Plan.solve``, ``Plan.solve_pulp``, ``Plan.to_pulp`` and ``Plan.write_mps``
+delegate here.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+import warnings
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+from .backends.base import FAILED, Feature, SolverOutcome, Status
+from .backends.highs import HighsBackend
+from .backends.pulp import PulpBackend, to_pulp
+from .errors import EndEffectsWarning, InvalidInput, invalid
+from .lp.build import SIZE_LIMIT, build, guard_size
+from .lp.data import lower, terminal_proportions
+from .lp.program import LinearProgram
+from .results.audit import audit
+from .results.diagnosis import diagnose
+from .results.result import PlanResult
+from .results.tables import schedules
+
+if TYPE_CHECKING:
+    from .plan import Plan
+
+__all__ = ["solve", "solve_pulp", "program", "optimise", "write_program"]
+
+END_EFFECTS = ("No terminal condition: investment in the last years only serves the "
+               "objective, so end-of-plan starts may be too low (end effects). Give "
+               "terminal=TerminalGrowth(rate=...) to value the years after the plan.")
+
+
+def _check_tolerance(audit_tolerance: Any) -> float:
+    if isinstance(audit_tolerance, bool) or not isinstance(audit_tolerance, int | float) \
+            or not (0 < audit_tolerance < 1) or math.isnan(audit_tolerance):
+        raise invalid("audit_tolerance", "be a number in (0, 1)", audit_tolerance)
+    return float(audit_tolerance)
+
+
+def program(plan: Plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
+    """The plan's LP (size guarded; the plan is lowered once and the arrays cached)."""
+    guard_size(plan, size_limit)
+    return build(plan.lowered())
+
+
+def run(lp: LinearProgram, backend: Any, *, stop: Any = None, callback: Any = None
+        ) -> SolverOutcome:
+    """One solve of ``lp``; when it fails, the back end's alternatives are tried in turn."""
+    out = backend.solve(lp, stop=stop, callback=callback)
+    if out.status not in FAILED:
+        return out
+    tried = [f"{out.method}: {out.status.value} ({out.message})"]
+    for alt in backend.alternatives():
+        again = alt.solve(lp, stop=stop, callback=callback)
+        if again.status not in FAILED:
+            again.options["fallback_from"] = tried
+            return again
+        tried.append(f"{again.method}: {again.status.value} ({again.message})")
+    out.options["fallback_from"] = tried[1:]
+    return out
+
+
+def optimise(lp: LinearProgram, backend: Any, *, stop: Any = None, callback: Any = None
+             ) -> tuple[LinearProgram, SolverOutcome]:
+    """Solve ``lp`` through its objective stages.
+
+    After each stage but the last its optimum ``f*`` is held by an added row
+    (``c·v ≥ f* − tol·max(1, |f*|)`` when maximising, the mirror when
+    minimising) and the next stage's cost is optimised.
+
+    Returns
+    -------
+    (lp, outcome) : the LP of the last stage and its outcome
+    """
+    from scipy import sparse
+
+    stages = lp.stages or []
+    outcome = run(lp, backend, stop=stop, callback=callback)
+    held: list[float] = []
+    for i, stage in enumerate(stages[1:], start=1):
+        if outcome.status is not Status.OPTIMAL:
+            break
+        prev = stages[i - 1]
+        f = float(prev.cost @ outcome.x)
+        slack = prev.tolerance * max(1.0, abs(f))
+        held.append(f)
+        lo, up = (f - slack, np.inf) if prev.sense == "max" else (-np.inf, f + slack)
+        lp = lp.add_rows("held_objective", sparse.csr_array(prev.cost[None, :]),
+                         np.array([lo]), np.array([up]), (f"stage_{i}",))
+        lp = lp.replace(cost=stage.cost, sense=stage.sense)
+        outcome = run(lp, backend, stop=stop, callback=callback)
+    outcome.options["held_optima"] = held
+    return lp, outcome
+
+
+def _backend(backend: Any, method: str, time_limit: float | None, threads: int | None,
+             tolerance: float | None, options: dict | None) -> Any:
+    if backend is not None:
+        return backend
+    return HighsBackend(method, time_limit=time_limit, threads=threads, tolerance=tolerance,
+                        options=options)
+
+
+def solve(plan: Plan, *, backend: Any = None, method: str = "auto",
+          time_limit: float | None = None, threads: int | None = None,
+          tolerance: float | None = None, audit_tolerance: float = 1e-6,
+          options: dict | None = None, progress: bool = False, stop: Any = None,
+          size_limit: int | None = SIZE_LIMIT) -> PlanResult:
+    """Solve a plan on a back end (default HiGHS) and audit the result.
+
+    See :meth:`growthplan.Plan.solve` for the parameters; ``backend`` is any
+    :class:`~growthplan.backends.base.Backend` (then ``method``,
+    ``time_limit``, ``threads``, ``tolerance`` and ``options`` are the back
+    end's business).
+    """
+    tol = _check_tolerance(audit_tolerance)
+    be = _backend(backend, method, time_limit, threads, tolerance, options)
+    search = plan.objective.horizon_search()
+    if search is not None:
+        return _fastest(plan, be, search.max_years, tol, progress, stop, size_limit)
+    return _fixed(plan, be, tol, progress, stop, size_limit)
+
+
+def solve_pulp(plan: Plan, solver: Any = None, *, problem: Any = None,
+               audit_tolerance: float = 1e-6) -> PlanResult:
+    """Solve with a PuLP solver through the same pipeline (stages, horizon search, audit)."""
+    if problem is not None and plan.objective.horizon_search() is not None:
+        raise InvalidInput("problem must not be given with a Fastest objective: the horizon "
+                           "search builds a problem per horizon. Got a problem.",
+                           field="problem")
+    return solve(plan, backend=PulpBackend(solver, problem=problem),
+                 audit_tolerance=audit_tolerance)
+
+
+def _fixed(plan: Plan, backend: Any, tol: float, progress: bool, stop: Any,
+           size_limit: int | None, data: Any = None) -> PlanResult:
+    from .progress import solve_progress
+
+    t0 = time.perf_counter()
+    guard_size(plan, size_limit)
+    d = data if data is not None else plan.lowered()
+    lp = build(d)
+    t1 = time.perf_counter()
+    with solve_progress(progress, f"{d.n} sectors × {d.T} years") as cb:
+        final_lp, outcome = optimise(lp, backend, stop=stop, callback=cb)
+    timings = {"validate": plan.validation_seconds(), "compile": t1 - t0}
+    return _finish(plan, lp, final_lp, outcome, backend, tol, timings, stop)
+
+
+def _audited(final_lp: LinearProgram, outcome: SolverOutcome, tol: float):
+    d = final_lp.data
+    assert d is not None
+    t0 = time.perf_counter()
+    sched = schedules(d, final_lp, outcome.x)
+    _audited.post_process = time.perf_counter() - t0  # type: ignore[attr-defined]
+    return sched, audit(d, sched, tolerance=tol)
+
+
+def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: SolverOutcome,
+            backend: Any, tol: float, timings: dict[str, float], stop: Any) -> PlanResult:
+    t0 = time.perf_counter()
+    status = outcome.status
+    notes: list[str] = []
+    sched = rep = None
+    if status is Status.OPTIMAL:
+        sched, rep = _audited(final_lp, outcome, tol)
+        if not rep.ok:
+            # another method may get it right (interior point on badly scaled plans)
+            for alt in backend.alternatives():
+                again = alt.solve(final_lp, stop=stop)
+                if again.status is Status.OPTIMAL:
+                    s2, r2 = _audited(final_lp, again, tol)
+                    if r2.ok:
+                        again.options["fallback_from"] = [
+                            f"{outcome.method}: audit violation {rep.max_violation:.3g}"]
+                        outcome, sched, rep = again, s2, r2
+                        break
+        if not rep.ok:
+            status = Status.NOT_VERIFIED
+            notes.append(f"The solver said optimal but the audit found a violation of "
+                         f"{rep.max_violation:.3g} (relative) at {rep.worst}; the plan is "
+                         "not returned as optimal.")
+    t1 = time.perf_counter()
+    post = getattr(_audited, "post_process", 0.0) if sched is not None else 0.0
+    timings = {**timings, "solve": outcome.seconds, "post_process": post,
+               "audit": t1 - t0 - post}
+    diagnosis = None
+    stopped = stop is not None and (stop.is_set() if hasattr(stop, "is_set") else stop())
+    if status in (FAILED - {Status.NOT_VERIFIED}) | {Status.INFEASIBLE} and not stopped:
+        t2 = time.perf_counter()
+        diagnosis = diagnose(lp, backend=backend)
+        timings["diagnose"] = time.perf_counter() - t2
+        if diagnosis.confirmed:
+            if status is not Status.INFEASIBLE:
+                notes.append(f"The solver reported {status.value} ({outcome.message}); the "
+                             "elastic re-solve confirms that the plan is infeasible.")
+            status = Status.INFEASIBLE
+        elif diagnosis.status is Status.OPTIMAL:
+            # the plan is feasible: the solver's verdict was wrong or it gave up
+            notes.append(f"The solver reported {status.value} ({outcome.message}) but the "
+                         "elastic re-solve found a plan meeting every condition.")
+            for alt in backend.alternatives():
+                again = alt.solve(final_lp, stop=stop)
+                if again.status is Status.OPTIMAL:
+                    s2, r2 = _audited(final_lp, again, tol)
+                    if r2.ok:
+                        again.options["fallback_from"] = [f"{outcome.method}: {status.value}"]
+                        outcome, sched, rep, status = again, s2, r2, Status.OPTIMAL
+                        diagnosis = None
+                        break
+                elif again.status is Status.UNBOUNDED:
+                    outcome, status, diagnosis = again, Status.UNBOUNDED, None
+                    break
+            if status is Status.INFEASIBLE:
+                status = Status.UNKNOWN
+    if plan.terminal is None and status is Status.OPTIMAL:
+        notes.append(END_EFFECTS)
+        warnings.warn(END_EFFECTS, EndEffectsWarning, stacklevel=4)
+    result = PlanResult(plan, final_lp, outcome, status=status, timings=timings, audit=rep,
+                        schedules=sched, notes=notes, diagnosis=diagnosis,
+                        backend=getattr(backend, "name", type(backend).__name__))
+    if status is Status.UNBOUNDED:
+        ray_backend = backend if Feature.RAY in getattr(backend, "features", ()) \
+            else HighsBackend()
+        ray = ray_backend.ray(final_lp)
+        if ray is not None:
+            labels = final_lp.col_labels()
+            big = np.argsort(-np.abs(ray))[:10]
+            result.runaway = [" ".join(map(str, labels[i])) for i in big if abs(ray[i]) > 1e-9]
+            result.warnings.append("Unbounded: these columns can grow without limit: "
+                                   + ", ".join(result.runaway) + ". Check for a sector "
+                                   "whose capacity needs no capital goods.")
+    return result
+
+
+def _fastest(plan: Plan, backend: Any, max_years: int, tol: float, progress: bool,
+             stop: Any, size_limit: int | None) -> PlanResult:
+    """Bisection over horizons, each a feasibility LP (no objective).
+
+    A horizon counts as feasible when its LP solves; any other verdict is
+    checked by the elastic re-solve. The shortest feasible horizon is then
+    solved with the ``then`` objective and audited.
+    """
+    proportions = terminal_proportions(plan) if plan.objective.needs_level() else None
+    tried: dict[int, str] = {}
+    cache: dict[int, tuple[Any, Any]] = {}
+
+    def lowered(years: int) -> tuple[Any, Any]:
+        if years not in cache:
+            sub = plan.with_horizon(years)
+            guard_size(sub, size_limit)
+            cache[years] = (sub, lower(sub, proportions=proportions))
+        return cache[years]
+
+    def feasible(years: int) -> bool:
+        _, d = lowered(years)
+        probe = build(d, objective=False)
+        out = run(probe, backend, stop=stop)
+        if out.status is Status.OPTIMAL:
+            tried[years] = Status.OPTIMAL.value
+            return True
+        if out.status in (Status.INTERRUPTED, Status.TIME_LIMIT):
+            raise _Stopped(out)
+        verdict = diagnose(probe, subset=False)
+        ok = verdict.status is Status.OPTIMAL and not verdict.confirmed
+        tried[years] = Status.OPTIMAL.value if ok else Status.INFEASIBLE.value
+        return ok
+
+    def final(years: int) -> PlanResult:
+        sub, d = lowered(years)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", EndEffectsWarning)
+            result = _fixed(sub, backend, tol, progress, stop, size_limit, data=d)
+        if sub.terminal is None and result.ok:
+            warnings.warn(END_EFFECTS, EndEffectsWarning, stacklevel=4)
+        result.horizons = dict(sorted(tried.items()))
+        return result
+
+    try:
+        if not feasible(max_years):
+            return final(max_years)  # infeasible: the result carries the diagnosis
+        lo, hi = 0, max_years  # lo infeasible (or none), hi feasible
+        while hi - lo > 1:
+            mid = (lo + hi) // 2
+            if feasible(mid):
+                hi = mid
+            else:
+                lo = mid
+    except _Stopped as exc:
+        sub, d = lowered(max_years)
+        lp = build(d)
+        result = PlanResult(sub, lp, exc.outcome, status=exc.outcome.status,
+                            timings={"solve": exc.outcome.seconds},
+                            backend=getattr(backend, "name", ""))
+        result.horizons = dict(sorted(tried.items()))
+        return result
+    return final(hi)
+
+
+class _Stopped(Exception):
+    def __init__(self, outcome: SolverOutcome) -> None:
+        super().__init__(outcome.status.value)
+        self.outcome = outcome
+
+
+def write_program(plan: Plan, path: Any, *, overwrite: bool, kind: str) -> Path:
+    """Write the plan's LP as an MPS (``kind="mps"``, objective sense included) or LP file."""
+    import os
+    import tempfile
+
+    target = Path(path)
+    if target.exists() and not overwrite:
+        raise invalid("path", "not exist yet (pass overwrite=True to replace it)", str(target))
+    if target.is_dir():
+        raise invalid("path", "be a file, not a folder", str(target))
+    prob = to_pulp(program(plan))[0]
+    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=target.suffix,
+                               dir=target.parent if str(target.parent) else ".")
+    os.close(fd)
+    try:
+        if kind == "mps":
+            prob.writeMPS(str(tmp), with_objsense=True)
+        else:
+            prob.writeLP(str(tmp))
+        os.replace(tmp, target)
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise
+    return target
