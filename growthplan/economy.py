@@ -14,7 +14,7 @@ from typing import Any
 
 import numpy as np
 import pandas as pd
-from pydantic import Field, field_validator, model_validator
+from pydantic import Field, PrivateAttr, field_validator, model_validator
 
 from . import capital as cap
 from . import steady
@@ -72,6 +72,7 @@ class CapitalSpec(Model):
     retirement: str = "geometric"
     shape: float | None = None
     declining_balance: float = 1.0
+    _survival_cache: dict = PrivateAttr(default_factory=dict)
     lead_time: int = 1
     spending_profile: list[float] | None = None
     max_utilisation: float = 1.0
@@ -137,9 +138,16 @@ class CapitalSpec(Model):
         return self
 
     def survival(self, max_age: int | None = None) -> np.ndarray:
-        """Survival profile ``S(a)`` of new vintages."""
-        return cap.survival(self.retirement, self.mean_service_life, shape=self.shape,
-                            declining_balance=self.declining_balance, max_age=max_age)
+        """Survival profile ``S(a)`` of new vintages (computed once per ``max_age``, read-only)."""
+        # the spec is frozen, so its profile never changes: keep it (the balanced-growth
+        # search and the plan's lowering ask for it many times)
+        cache = self._survival_cache
+        if max_age not in cache:
+            prof = cap.survival(self.retirement, self.mean_service_life, shape=self.shape,
+                                declining_balance=self.declining_balance, max_age=max_age)
+            prof.setflags(write=False)
+            cache[max_age] = prof
+        return cache[max_age]
 
     def initial_survival(self, horizon: int) -> np.ndarray:
         """Share of the initial capacity still in service in years ``0..horizon``."""

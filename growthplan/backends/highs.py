@@ -153,6 +153,20 @@ def load(h: highspy.Highs, lp: LinearProgram) -> None:
         raise SolverFailure("HiGHS refused the model (passModel returned an error)")
 
 
+CERTIFY_TOLERANCE = 1e-6  # relative duality gap above which an "optimal" is not believed
+
+
+def _certified(lp: LinearProgram, out: SolverOutcome) -> SolverOutcome:
+    """Demote an optimum whose duals do not certify it (so another method is tried)."""
+    if out.status is Status.OPTIMAL and out.row_dual is not None:
+        gap = optimality_gap(lp, out.x, out.row_dual)
+        out.options["gap"] = gap
+        if gap > CERTIFY_TOLERANCE:
+            out.status = Status.NOT_VERIFIED
+            out.message += f" (duality gap {gap:.3g}: not certified)"
+    return out
+
+
 class HighsBackend:
     """HiGHS through highspy.
 
@@ -236,7 +250,7 @@ class HighsBackend:
         if not scale:
             out = self._once(lp, stop, callback, scale=False)
             out.options["scaled"] = False
-            return out
+            return _certified(lp, out)
         first = self._once(lp, stop, callback, scale=True)
         first.options["scaled"] = True
         if first.status is not Status.OPTIMAL or first.row_dual is None:
@@ -247,7 +261,7 @@ class HighsBackend:
         second = self._once(lp, stop, callback, scale=False)
         second.options["scaled"] = False
         second.options["scaled_gap"] = gap
-        return second
+        return _certified(lp, second)
 
     def _highs(self, method: str, callback: Any, stop: Any) -> tuple[highspy.Highs, dict]:
         h = _new_highs(self.threads)
@@ -340,7 +354,10 @@ class HighsBackend:
         for k, v in {"output_flag": False, "random_seed": 0, "solver": "simplex",
                      "presolve": "off"}.items():
             _set(h, k, v)
-        load(h, lp)
+        try:
+            load(h, lp)
+        except SolverFailure:
+            return None
         h.run()
         st, has_ray, ray = h.getPrimalRay()  # type: ignore[attr-defined]
         if st == highspy.HighsStatus.kError or not has_ray:
