@@ -13,8 +13,8 @@ from scipy import sparse
 
 from ..lp.program import LinearProgram
 
-__all__ = ["equilibrate", "scaled", "optimality_gap", "entry_range", "SCALE_RANGE",
-           "GAP_TOLERANCE"]
+__all__ = ["equilibrate", "scaled", "optimality_gap", "valid_ray", "entry_range",
+           "SCALE_RANGE", "GAP_TOLERANCE"]
 
 SCALE_RANGE = 1e8     # matrices whose entries span more than this are equilibrated first
 GAP_TOLERANCE = 1e-7  # relative duality gap that certifies an optimum
@@ -68,13 +68,18 @@ def scaled(lp: LinearProgram, r: np.ndarray, c: np.ndarray) -> LinearProgram:
                           col_upper=lp.col_upper / c, stages=[])
 
 
-def optimality_gap(lp: LinearProgram, x: np.ndarray, y: np.ndarray) -> float:
+def optimality_gap(lp: LinearProgram, x: np.ndarray, y: np.ndarray, *,
+                   strict: bool = False) -> float:
     """Relative gap between the primal objective and the dual bound of ``(x, y)``.
 
     ``y`` are row duals in the model's own sense (d objective / d row bound).
     Duals of the wrong sign for their row, or reduced costs that point at a
     missing bound, make the dual bound infinite. Zero (to rounding) certifies
     that ``x`` is optimal.
+
+    The gap is relative to ``max(1, |primal|)``; with ``strict`` it is relative
+    to ``max(|primal|, |dual|)`` alone, for programmes whose units make the
+    objective's own size far from 1 (entries spanning more than ``SCALE_RANGE``).
     """
     sigma = 1.0 if lp.sense == "max" else -1.0
     row_sign = lp.row_sign
@@ -96,4 +101,27 @@ def optimality_gap(lp: LinearProgram, x: np.ndarray, y: np.ndarray) -> float:
     bound[lo] = lp.col_lower[lo]
     dual = float(np.sum(np.where(np.isfinite(rhs), rhs, 0.0) * y) + np.sum(rc * bound))
     primal = float(lp.cost @ x)
+    if strict:
+        size = max(abs(primal), abs(dual))
+        return abs(dual - primal) / size if size > 0 else 0.0
     return abs(dual - primal) / max(1.0, abs(primal))
+
+
+def valid_ray(lp: LinearProgram, ray: np.ndarray, tol: float = 1e-7) -> bool:
+    """Whether ``ray`` is a direction of unbounded improvement of ``lp``.
+
+    Every row with a finite upper (lower) bound must not rise (fall) along it,
+    every column with a finite bound must not cross it, and the objective must
+    improve; each to ``tol`` relative to the size of the terms.
+    """
+    if ray is None or not np.all(np.isfinite(ray)) or not np.any(ray):
+        return False
+    r = ray / np.abs(ray).max()
+    ar = lp.matrix @ r
+    size = np.abs(lp.matrix) @ np.abs(r) + 1e-300
+    rows_ok = np.all(np.where(np.isfinite(lp.row_upper), ar <= tol * size, True)) and \
+        np.all(np.where(np.isfinite(lp.row_lower), ar >= -tol * size, True))
+    cols_ok = np.all(np.where(np.isfinite(lp.col_upper), r <= tol, True)) and \
+        np.all(np.where(np.isfinite(lp.col_lower), r >= -tol, True))
+    gain = float(lp.cost @ r) * (1.0 if lp.sense == "max" else -1.0)
+    return bool(rows_ok and cols_ok and gain > tol * float(np.abs(lp.cost) @ np.abs(r)))

@@ -28,6 +28,7 @@ from .certificate import (
     equilibrate,
     optimality_gap,
     scaled,
+    valid_ray,
 )
 
 __all__ = ["HighsBackend", "STATUS_TABLE", "METHODS", "choose_method", "highs_version",
@@ -156,10 +157,10 @@ def load(h: highspy.Highs, lp: LinearProgram) -> None:
 CERTIFY_TOLERANCE = 1e-6  # relative duality gap above which an "optimal" is not believed
 
 
-def _certified(lp: LinearProgram, out: SolverOutcome) -> SolverOutcome:
+def _certified(lp: LinearProgram, out: SolverOutcome, strict: bool = False) -> SolverOutcome:
     """Demote an optimum whose duals do not certify it (so another method is tried)."""
     if out.status is Status.OPTIMAL and out.row_dual is not None:
-        gap = optimality_gap(lp, out.x, out.row_dual)
+        gap = optimality_gap(lp, out.x, out.row_dual, strict=strict)
         out.options["gap"] = gap
         if gap > CERTIFY_TOLERANCE:
             out.status = Status.NOT_VERIFIED
@@ -238,30 +239,48 @@ class HighsBackend:
         if other != "simplex" or self.method == "auto":
             out.append(self._variant(method="simplex", scale=True, presolve=False))
         else:
-            out.append(self._variant(method="simplex", scale=False, presolve=False))
+            out.append(self._variant(method="simplex", scale=True, presolve=False))
         return out
 
     def solve(self, lp: LinearProgram, *, stop: Any = None,
               callback: Any = None) -> SolverOutcome:
-        """Solve ``lp``; see the class notes on scaling."""
-        scale = self.scale
-        if scale == "auto":
-            scale = entry_range(lp) > SCALE_RANGE
+        """Solve ``lp``; see the class notes on scaling.
+
+        An optimum is returned only when its duals certify it (a relative
+        duality gap below ``CERTIFY_TOLERANCE``), an unbounded verdict only with
+        a valid ray; otherwise the status is ``not_verified`` or ``unknown`` and
+        the pipeline tries another method.
+        """
+        return self.confirm_unbounded(lp, self._solve(lp, stop, callback))
+
+    def _solve(self, lp: LinearProgram, stop: Any, callback: Any) -> SolverOutcome:
+        wide = entry_range(lp) > SCALE_RANGE
+        scale = wide if self.scale == "auto" else self.scale
         if not scale:
             out = self._once(lp, stop, callback, scale=False)
             out.options["scaled"] = False
-            return _certified(lp, out)
+            return _certified(lp, out, strict=wide)
         first = self._once(lp, stop, callback, scale=True)
         first.options["scaled"] = True
         if first.status is not Status.OPTIMAL or first.row_dual is None:
             return first
-        gap = optimality_gap(lp, first.x, first.row_dual)
+        gap = optimality_gap(lp, first.x, first.row_dual, strict=wide)
+        first.options["gap"] = gap
         if gap <= GAP_TOLERANCE:
             return first
         second = self._once(lp, stop, callback, scale=False)
         second.options["scaled"] = False
         second.options["scaled_gap"] = gap
-        return _certified(lp, second)
+        return _certified(lp, second, strict=wide)
+
+    def confirm_unbounded(self, lp: LinearProgram, out: SolverOutcome) -> SolverOutcome:
+        """Demote an "unbounded" verdict that no valid ray backs (so another method is tried)."""
+        if out.status is Status.UNBOUNDED:
+            ray = self.ray(lp)
+            if ray is None or not valid_ray(lp, ray):
+                out.status = Status.UNKNOWN
+                out.message += " (no valid unbounded ray: not confirmed)"
+        return out
 
     def _highs(self, method: str, callback: Any, stop: Any) -> tuple[highspy.Highs, dict]:
         h = _new_highs(self.threads)
@@ -298,11 +317,17 @@ class HighsBackend:
         method = choose_method(lp.nnz) if self.method == "auto" else self.method
         h, chosen = self._highs(method, callback, stop)
         r = c = None
-        if scale:
-            r, c = equilibrate(lp)
-            load(h, scaled(lp, r, c))
-        else:
-            load(h, lp)
+        try:
+            if scale:
+                r, c = equilibrate(lp)
+                load(h, scaled(lp, r, c))
+            else:
+                load(h, lp)
+        except SolverFailure as exc:
+            return SolverOutcome(status=Status.ERROR, message=str(exc), objective=float("nan"),
+                                 x=np.full(lp.shape[1], np.nan), row_dual=None, method=method,
+                                 options=dict(chosen),
+                                 solver_version=f"HiGHS {highs_version()}")
         t0 = time.perf_counter()
         h.run()
         seconds = time.perf_counter() - t0
@@ -354,12 +379,18 @@ class HighsBackend:
         for k, v in {"output_flag": False, "random_seed": 0, "solver": "simplex",
                      "presolve": "off"}.items():
             _set(h, k, v)
+        c = None
         try:
-            load(h, lp)
+            if entry_range(lp) > SCALE_RANGE:
+                r, c = equilibrate(lp)
+                load(h, scaled(lp, r, c))
+            else:
+                load(h, lp)
         except SolverFailure:
             return None
         h.run()
         st, has_ray, ray = h.getPrimalRay()  # type: ignore[attr-defined]
         if st == highspy.HighsStatus.kError or not has_ray:
             return None
-        return np.asarray(ray, dtype=float)
+        out = np.asarray(ray, dtype=float)
+        return out * c if c is not None else out
