@@ -6,8 +6,6 @@ crash on the way to one. Independent references are named beside each check.
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 import pytest
 from conftest import assert_infeasible, assert_optimal, one_sector
