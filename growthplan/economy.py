@@ -65,6 +65,20 @@ class CapitalSpec(Model):
     investment_history : list of float, optional
         Capacity that entered service in past years, oldest first, the last in
         plan year 0; overrides ``past_growth`` (perpetual inventory).
+
+    Notes
+    -----
+    Validation computes the survival profile, the survival of today's stock
+    and the perpetual-inventory stock once and refuses the spec when any of
+    them is not finite, so a NaN never reaches a plan. Lives are at most
+    1000 years except for the geometric profile, lead times at most 100 years.
+    With ``past_growth < 0`` the steady-state age structure weighs age ``a`` by
+    ``S(a)(1+g0)^-a``; it is refused when that sum diverges (the profile's tail
+    ratio ``lim S(a+1)/S(a)`` divided by ``1 + g0`` is 1 or more: any negative
+    ``g0`` for the lognormal profile or a Weibull shape below 1) or when the
+    ages beyond the profile's cut at 1e-12 would change it by more than 1e-9.
+    The geometric profile is memoryless: today's age structure does not matter
+    and ``past_growth`` is not used.
     """
 
     initial_capacity: float = Field(ge=0, allow_inf_nan=False)
@@ -97,6 +111,8 @@ class CapitalSpec(Model):
     def _lead(cls, v: Any) -> Any:
         if isinstance(v, bool) or not _is_number(v) or not np.isfinite(v) or v < 0 or v != int(v):
             raise Rule("be a whole number of years >= 0", v)
+        if v > cap.MAX_LEAD_TIME:  # before the default spending profile is allocated
+            raise Rule(f"be at most {cap.MAX_LEAD_TIME} years", v)
         return int(v)
 
     @field_validator("max_utilisation", mode="before")
@@ -129,12 +145,39 @@ class CapitalSpec(Model):
             raise Rule("be > 0", self.declining_balance, field="declining_balance")
         if self.shape is not None and not (np.isfinite(self.shape) and self.shape > 0):
             raise Rule("be > 0", self.shape, field="shape")
+        if self.retirement != "geometric" and self.mean_service_life > cap.MAX_LIFE:
+            raise Rule(f"be at most {cap.MAX_LIFE:g} years for the {self.retirement} profile "
+                       "(its arrays grow with the life)", self.mean_service_life,
+                       field="mean_service_life")
         if self.investment_history is not None:
             h = np.asarray(self.investment_history, dtype=float)
             if h.size == 0 or not np.all(np.isfinite(h)) or np.any(h < 0):
                 raise Rule("be a non-empty list of non-negative numbers",
                            self.investment_history, field="investment_history")
+            if h.size > cap.MAX_AGE:
+                raise Rule(f"cover at most {cap.MAX_AGE} years", f"{h.size} years",
+                           field="investment_history")
+        self._check_finite()
         return self
+
+    def _check_finite(self) -> None:
+        """Every derived capital array is finite, or the spec is refused."""
+        s = self.survival()
+        if not (np.all(np.isfinite(s)) and s.size and s[0] == 1.0):
+            raise Rule("give a finite survival profile", self.mean_service_life,
+                       field="mean_service_life")
+        if self.investment_history is not None:
+            h = np.asarray(self.investment_history[::-1], dtype=float)[: s.size]
+            with np.errstate(over="ignore", invalid="ignore"):
+                stock = float(np.sum(s[: h.size] * h))
+            if not np.isfinite(stock):
+                raise Rule("give a finite perpetual-inventory stock (the surviving sum of "
+                           "its vintages overflows)", self.investment_history,
+                           field="investment_history")
+        r = self.initial_survival(1)  # raises InvalidInput naming past_growth or the history
+        if not np.all(np.isfinite(r)):
+            raise Rule("give a finite survival of today's stock", self.past_growth,
+                       field="past_growth")
 
     def survival(self, max_age: int | None = None) -> np.ndarray:
         """Survival profile ``S(a)`` of new vintages."""
@@ -147,8 +190,10 @@ class CapitalSpec(Model):
         if self.retirement == "geometric" and hist is None:  # memoryless: age does not matter
             return (1.0 - self.declining_balance / self.mean_service_life) ** np.arange(
                 horizon + 1, dtype=float)
-        return cap.initial_survival(self.survival(), horizon, past_growth=self.past_growth,
-                                    history=hist)
+        return cap.initial_survival(
+            self.survival(), horizon, past_growth=self.past_growth, history=hist,
+            tail=cap.tail_ratio(self.retirement, self.mean_service_life, shape=self.shape,
+                                declining_balance=self.declining_balance))
 
     def _per_capacity(self, g: float) -> tuple[float, float]:
         geometric = self.retirement == "geometric"
