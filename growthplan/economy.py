@@ -464,11 +464,15 @@ class Economy(Model):
         else:
             m = a
         irreducible, period = steady.structure(m)
-        rho, v, used, it, res = steady.perron(m, method=method, tol=tol, max_iter=max_iter)
+        rho, v, used, it, res, unique = steady.perron(m, method=method, tol=tol,
+                                                      max_iter=max_iter)
         notes = []
         if not irreducible:
             notes.append("reducible: some sectors do not feed all others; proportions may "
                          "have zeros")
+        if not unique:
+            notes.append("not unique: the Perron root is repeated (independent parts grow "
+                         "at the same limit); these proportions are one balanced ray of many")
         if period > 1:
             notes.append(f"periodic with period {period}: the plain power iteration "
                          "would oscillate; the damped one converges")
@@ -479,7 +483,7 @@ class Economy(Model):
             rate=1.0 / rho - 1.0, factor=1.0 / rho,
             proportions=pd.Series(v, index=pd.Index(names), name="proportion"),
             spectral_radius=rho, method=used, iterations=it, residual=res,
-            irreducible=irreducible, period=period, notes=notes)
+            irreducible=irreducible, period=period, notes=notes, unique=unique)
 
     def dynamic_balanced_growth(self) -> steady.BalancedGrowth:
         """Balanced growth of the dynamic Leontief model with capital replacement.
