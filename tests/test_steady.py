@@ -272,3 +272,35 @@ class TestExpandingEconomy:
     def test_bad_shapes(self):
         with pytest.raises(ValueError, match="outputs"):
             gp.expanding_economy(np.ones((2, 2)), np.ones((2, 3)))
+
+
+class TestDecomposableExpandingEconomy:
+    """Kemeny, Morgenstern & Thompson (1956), Econometrica 24: α* = β* is guaranteed only
+    for an irreducible (indecomposable) system; a decomposable one may have several
+    expansion factors, α* the largest and β* the smallest."""
+
+    def test_diagonal_outputs_closed_form(self):
+        # P = I, Q = diag(2, 3): good 2 alone grows threefold (α* = 3); good 1 priced alone
+        # earns only 2 (β* = 2). Closed form, derived by hand from the definitions.
+        r = gp.expanding_economy(np.eye(2), np.diag([2.0, 3.0]))
+        assert r.expansion_factor == pytest.approx(3.0, rel=1e-9)
+        assert r.interest_factor == pytest.approx(2.0, rel=1e-9)
+        np.testing.assert_allclose(r.intensities, [0.0, 1.0], atol=1e-9)
+        assert r.value_of_output == pytest.approx(0.0, abs=1e-9)
+
+    def test_docstring_states_the_irreducibility_condition(self):
+        # Regression: the module claimed α* = β* "under their conditions" without saying
+        # which, and the diag(2, 3) system contradicts a reading that includes it.
+        doc = gp.expanding_economy.__module__
+        import importlib
+
+        text = importlib.import_module(doc).__doc__
+        assert "irreducible" in text and "diag(2, 3)" in text
+
+    def test_irreducible_joint_production_equal_factors(self):
+        # An irreducible system: α* = β* (Kemeny–Morgenstern–Thompson).
+        p = np.array([[0.2, 0.4], [0.3, 0.1]])
+        q = np.array([[1.0, 0.3], [0.2, 0.9]])
+        r = gp.expanding_economy(p, q)
+        assert r.expansion_factor == pytest.approx(r.interest_factor, rel=1e-8)
+        assert r.value_of_output > 0
