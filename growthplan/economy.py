@@ -9,6 +9,7 @@ of output, one row per labour kind.
 from __future__ import annotations
 
 import json
+import warnings
 from functools import cached_property
 from typing import Any
 
@@ -19,7 +20,7 @@ from pydantic import Field, field_validator, model_validator
 from . import capital as cap
 from . import steady
 from ._validation import Matrix, Model, Rule, Vector, align_matrix, align_vector
-from .errors import UnproductiveEconomy
+from .errors import TinyCoefficientsWarning, UnproductiveEconomy
 
 __all__ = ["Sector", "CapitalSpec", "Economy"]
 
@@ -237,6 +238,14 @@ class Economy(Model):
     wage_basket : array_like or Series, optional
         Commodities consumed per person-year of labour (closes the model).
 
+    Notes
+    -----
+    Input, capital and labour coefficients below :data:`TINY_COEFFICIENT`
+    (1e-12) times the largest entry of their column (the same sector) are set
+    to zero with a :class:`~growthplan.errors.TinyCoefficientsWarning` naming
+    the first ten cells: they are far below the LP solver's tolerances and
+    could make it misjudge a plan. The caller's arrays are never changed.
+
     Examples
     --------
     >>> econ = Economy(sectors=["farm", "mill"],
@@ -318,6 +327,8 @@ class Economy(Model):
             raise Rule(f"be square with one row and column per sector ({n}×{n})",
                        f"shape {a.shape}", field="input_coefficients")
         _nonneg(a, "input_coefficients", self.names)
+        object.__setattr__(self, "input_coefficients",
+                           _drop_tiny(a, "input_coefficients", self.names, self.names))
         b = self.capital_coefficients
         if b is None:
             b = np.zeros((n, n))
@@ -327,6 +338,8 @@ class Economy(Model):
             raise Rule(f"be square with one row and column per sector ({n}×{n})",
                        f"shape {b.shape}", field="capital_coefficients")
         _nonneg(b, "capital_coefficients", self.names)
+        object.__setattr__(self, "capital_coefficients",
+                           _drop_tiny(b, "capital_coefficients", self.names, self.names))
         lab = self.labour_coefficients
         if lab is not None:
             if lab.ndim != 2 or lab.shape[1] != n:
@@ -339,6 +352,8 @@ class Economy(Model):
                 raise Rule(f"name each of the {lab.shape[0]} labour kinds once", kinds,
                            field="labour_kinds")
             object.__setattr__(self, "labour_kinds", list(kinds))
+            object.__setattr__(self, "labour_coefficients",
+                               _drop_tiny(lab, "labour_coefficients", list(kinds), self.names))
         elif self.labour_kinds:
             raise Rule("come with labour_coefficients", self.labour_kinds,
                        field="labour_kinds")
@@ -568,6 +583,29 @@ class Economy(Model):
 
     def __repr__(self) -> str:
         return f"Economy({self.n} sectors: {', '.join(self.names[:6])}{'…' if self.n > 6 else ''})"
+
+
+TINY_COEFFICIENT = 1e-12  # relative to the largest entry of the same column
+
+
+def _drop_tiny(m: np.ndarray, field: str, rows: list[str], cols: list[str]) -> np.ndarray:
+    """A read-only copy of ``m`` without entries negligible next to their column."""
+    if m.size == 0:
+        return m
+    top = m.max(axis=0)
+    tiny = (m > 0) & (m < TINY_COEFFICIENT * top[None, :])
+    if not tiny.any():
+        return m
+    out = m.copy()
+    out[tiny] = 0.0
+    out.setflags(write=False)
+    cells = np.argwhere(tiny)
+    listed = ", ".join(f"[{rows[i]}, {cols[j]}] = {m[i, j]:.3g}" for i, j in cells[:10])
+    more = f" and {len(cells) - 10} more" if len(cells) > 10 else ""
+    warnings.warn(f"{field}: {len(cells)} entries below {TINY_COEFFICIENT:g} times the "
+                  f"largest entry of their column were set to zero (row, sector): {listed}{more}.",
+                  TinyCoefficientsWarning, stacklevel=2)
+    return out
 
 
 def _nonneg(m: np.ndarray, field: str, names: list[str]) -> None:
