@@ -239,8 +239,9 @@ def survival(
         if delta >= 1.0:
             s = np.array([1.0])
         else:
-            end = max_age if max_age is not None else min(
-                int(math.log(_TAIL) / math.log1p(-delta)), MAX_AGE)
+            # a vanishing δ (a life near 1e300) gives an infinite length: cap it first
+            end = max_age if max_age is not None else int(min(
+                math.log(_TAIL) / math.log1p(-delta), MAX_AGE))
             s = (1.0 - delta) ** np.arange(end + 1, dtype=float)
     else:
         scale, horizon = _calibrated(profile, float(mean_life), float(shape or 0.0))

@@ -382,20 +382,26 @@ def dynamic_growth(a: np.ndarray, b: np.ndarray, deliveries_per_capacity,
     """
     def radius(g: float) -> float:
         k = np.array([f(g) for f in deliveries_per_capacity])
-        return spectral_radius(a + b * (k / utilisation)[None, :])
+        with np.errstate(over="ignore", invalid="ignore"):
+            mat = a + b * (k / utilisation)[None, :]
+        # huge capital coefficients overflow: that capital cannot be replaced at g
+        return spectral_radius(mat) if np.all(np.isfinite(mat)) else math.inf
 
-    lo, hi = 0.0, 0.0
-    while radius(lo) >= 1:  # no growth even at g = 0: look for the rate of decline
-        lo = -0.02 if lo == 0 else lo * 2
-        if lo < -0.9:
-            raise NoBalancedGrowth("Even shrinking at 90 % a year the economy cannot "
-                                   "replace its capital: no balanced growth path exists.")
-    hi = lo + 0.1
-    while radius(hi) < 1:
-        lo, hi = hi, (hi + 0.1) * 2
-        if hi > g_max:
-            raise NoBalancedGrowth("Balanced growth is unbounded: capital coefficients are "
-                                   "too small to limit growth.")
+    # bracket the root with radius(lo) < 1 <= radius(hi); the radius rises with g
+    if radius(0.0) >= 1:  # no growth even at g = 0: look for the rate of decline
+        hi, lo = 0.0, -0.02
+        while radius(lo) >= 1:
+            if lo <= -0.9:
+                raise NoBalancedGrowth("Even shrinking at 90 % a year the economy cannot "
+                                       "replace its capital: no balanced growth path exists.")
+            hi, lo = lo, max(2.0 * lo, -0.9)
+    else:
+        lo, hi = 0.0, 0.1
+        while radius(hi) < 1:
+            lo, hi = hi, 2.0 * hi + 0.1
+            if hi > g_max:
+                raise NoBalancedGrowth("Balanced growth is unbounded: capital coefficients "
+                                       "are too small to limit growth.")
     g = optimize.brentq(lambda x: radius(x) - 1.0, lo, hi, xtol=1e-14, rtol=1e-13)
     k = np.array([f(g) for f in deliveries_per_capacity])
     m = a + b * (k / utilisation)[None, :]

@@ -224,6 +224,15 @@ class TestDynamicBalancedGrowth:
                        capital={"x": gp.CapitalSpec(initial_capacity=1, mean_service_life=20)})
         assert e.dynamic_balanced_growth().rate == pytest.approx(0.15, abs=1e-10)
 
+    def test_fast_decline_closed_form(self):
+        # Regression: the bracket search stepped backwards below g = -0.5 and returned a
+        # "rate" below -1. Closed form (one sector, geometric δ): g = (1 - a)/b - δ,
+        # here 0.1/0.2 - 0.9 = -0.4.
+        e = gp.Economy(sectors=["x"], input_coefficients=[[0.9]], capital_coefficients=[[0.2]],
+                       capital={"x": gp.CapitalSpec(initial_capacity=1,
+                                                    mean_service_life=1 / 0.9)})
+        assert e.dynamic_balanced_growth().rate == pytest.approx(-0.4, abs=1e-10)
+
     def test_harrod_domar(self):
         # Harrod–Domar g = s/v: s = 0.12, v = 3 -> 0.04 (Encyclopaedia Britannica,
         # "Harrod-Domar equation"); s = 0.06 -> 0.02 and s = 0.15 -> 0.05 (from memory:
