@@ -23,6 +23,28 @@ serves, counting the year it enters):
 A continuous survival function sampled at whole ages sums to about ``L + 1/2``
 (the trapezoid rule); calibrating the scale instead keeps the discrete mean
 exact, which is what the capacity accounts of a plan need.
+
+Bounds
+------
+Arrays grow with the service life, so lives are bounded before anything is
+allocated: at most :data:`MAX_LIFE` (1000) years for every profile but the
+geometric one, whose arrays are cut at :data:`MAX_AGE` ages whatever its life
+(it is memoryless and mostly used in closed form). Requested ages
+(``max_age``, plan horizons) are at most :data:`MAX_AGE`, lead times at most
+:data:`MAX_LEAD_TIME` (100) years.
+
+Steady-state age structure
+--------------------------
+Today's stock built by vintages that grew at ``g0`` a year weighs age ``a`` by
+``S(a)(1+g0)^-a``. With ``g0 < 0`` old vintages weigh more, and the weighted
+sum ``Σ_a S(a)(1+g0)^-a`` converges only when the profile's tail falls faster
+than ``1 + g0``: with the tail ratio ``r = lim S(a+1)/S(a)`` (0 for profiles
+that end, ``1 − δ`` for the geometric one, 1 for the lognormal and the Weibull
+with shape < 1, ``exp(−1/λ)`` for the Weibull with shape 1) the sum diverges
+when ``r/(1+g0) ≥ 1``. Such an age structure is refused, and so is one whose
+sum still depends on where the profile is cut at 1e-12: when the terms beyond
+the cut, bounded by a geometric series with the last observed ratio, exceed
+:data:`TRUNCATION_TOL` of the sum.
 """
 
 from __future__ import annotations
@@ -47,6 +69,10 @@ __all__ = [
     "starts_per_capacity",
     "initial_survival",
     "perpetual_inventory",
+    "tail_ratio",
+    "MAX_LIFE",
+    "MAX_AGE",
+    "MAX_LEAD_TIME",
 ]
 
 Profile = Literal["sudden_exit", "linear", "geometric", "weibull", "lognormal"]
@@ -54,7 +80,10 @@ PROFILES: tuple[str, ...] = ("sudden_exit", "linear", "geometric", "weibull", "l
 DEFAULT_SHAPE = {"weibull": 2.0, "lognormal": 0.5}
 SHAPE_RANGE = {"weibull": (0.3, 20.0), "lognormal": (0.01, 2.0)}
 _TAIL = 1e-12
-MAX_AGE = 5000  # default length of a geometric profile with a very long life
+MAX_AGE = 5000  # longest array: a geometric profile with a very long life, max_age, horizons
+MAX_LIFE = 1000.0  # longest mean service life of the profiles whose arrays grow with it
+MAX_LEAD_TIME = 100  # longest construction lead time in years
+TRUNCATION_TOL = 1e-9  # largest share of a weighted age sum left beyond the profile's cut
 
 
 def _check(profile: str, mean_life: float, shape: float | None, declining_balance: float):
@@ -62,6 +91,9 @@ def _check(profile: str, mean_life: float, shape: float | None, declining_balanc
         raise invalid("retirement", f"be one of {', '.join(PROFILES)}", profile)
     if not (np.isfinite(mean_life) and mean_life >= 1):
         raise invalid("mean_service_life", "be a finite number >= 1 year", mean_life)
+    if profile != "geometric" and mean_life > MAX_LIFE:
+        raise invalid("mean_service_life", f"be at most {MAX_LIFE:g} years for the {profile} "
+                      "profile (its arrays grow with the life)", mean_life)
     if profile in DEFAULT_SHAPE:
         shape = DEFAULT_SHAPE[profile] if shape is None else shape
         lo, hi = SHAPE_RANGE[profile]
@@ -192,8 +224,8 @@ def survival(
     5.0
     """
     shape = _check(profile, mean_life, shape, declining_balance)
-    if max_age is not None and (int(max_age) != max_age or max_age < 0):
-        raise invalid("max_age", "be a whole number >= 0", max_age)
+    if max_age is not None and (int(max_age) != max_age or not 0 <= max_age <= MAX_AGE):
+        raise invalid("max_age", f"be a whole number in [0, {MAX_AGE}]", max_age)
     if profile != "geometric" and mean_life - 1.0 < 1e-12:
         s = np.array([1.0])
     elif profile == "sudden_exit":
@@ -207,8 +239,9 @@ def survival(
         if delta >= 1.0:
             s = np.array([1.0])
         else:
-            end = max_age if max_age is not None else min(
-                int(math.log(_TAIL) / math.log1p(-delta)), MAX_AGE)
+            # a vanishing δ (a life near 1e300) gives an infinite length: cap it first
+            end = max_age if max_age is not None else int(min(
+                math.log(_TAIL) / math.log1p(-delta), MAX_AGE))
             s = (1.0 - delta) ** np.arange(end + 1, dtype=float)
     else:
         scale, horizon = _calibrated(profile, float(mean_life), float(shape or 0.0))
@@ -230,8 +263,50 @@ def survival(
 
 
 def _discounted_sum(s: np.ndarray, g: float) -> float:
-    with np.errstate(over="ignore"):
-        return float(np.sum(s * (1.0 + g) ** -np.arange(s.size, dtype=float)))
+    """``Σ_a S(a)(1+g)^-a``; ``inf`` when it overflows (never NaN)."""
+    with np.errstate(over="ignore", invalid="ignore"):
+        w = (1.0 + g) ** -np.arange(s.size, dtype=float)
+        total = float(np.sum(np.where(s > 0, s * w, 0.0)))
+    return total if not math.isnan(total) else math.inf
+
+
+def tail_ratio(
+    profile: str, mean_life: float, *, shape: float | None = None,
+    declining_balance: float = 1.0,
+) -> float | None:
+    """Limit of ``S(a+1)/S(a)`` beyond the end of the discretised profile.
+
+    ``None`` for a profile that ends (sudden exit, linear, a one-year life):
+    nothing is cut off. Otherwise the profile was cut where it fell below
+    1e-12 and the ratio tells how fast the rest falls: ``1 − δ`` for the
+    geometric profile, 0 for the Weibull with shape > 1, ``exp(−1/λ)`` for
+    shape 1, and 1 for the Weibull with shape < 1 and the lognormal (tails
+    that fall slower than any geometric rate).
+
+    Examples
+    --------
+    >>> tail_ratio("geometric", 20)
+    0.95
+    >>> tail_ratio("lognormal", 20)
+    1.0
+    >>> tail_ratio("sudden_exit", 20) is None
+    True
+    """
+    shape = _check(profile, mean_life, shape, declining_balance)
+    if profile in ("sudden_exit", "linear") or (
+            profile != "geometric" and mean_life - 1.0 < 1e-12):
+        return None
+    if profile == "geometric":
+        return max(0.0, 1.0 - declining_balance / mean_life)
+    if profile == "lognormal":
+        return 1.0
+    assert shape is not None
+    if shape > 1.0:
+        return 0.0
+    if shape < 1.0:
+        return 1.0
+    scale, _ = _calibrated(profile, float(mean_life), float(shape))
+    return math.exp(-1.0 / scale)
 
 
 def starts_per_capacity(
@@ -300,6 +375,7 @@ def initial_survival(
     *,
     past_growth: float = 0.0,
     history: np.ndarray | None = None,
+    tail: float | None = None,
 ) -> np.ndarray:
     """Share ``R(t)``, ``t = 0..horizon``, of today's capacity still in service in year ``t``.
 
@@ -308,7 +384,7 @@ def initial_survival(
     s : numpy.ndarray
         Survival profile ``S(a)``.
     horizon : int
-        Last year ``t`` wanted.
+        Last year ``t`` wanted (at most :data:`MAX_AGE`).
     past_growth : float, default 0.0
         Today's stock has the steady age structure of vintages that grew at
         this rate (used when ``history`` is None).
@@ -316,28 +392,82 @@ def initial_survival(
         Capacity that entered service in each past year, oldest first, the last
         entry in plan year 0 (age 0 then). The perpetual inventory of these
         vintages gives the stock and its survival.
+    tail : float, optional
+        Ratio ``S(a+1)/S(a)`` beyond the end of ``s`` when ``s`` was cut off
+        (see :func:`tail_ratio`); None when the profile ends with ``s``.
 
     Returns
     -------
     numpy.ndarray
         ``R(0..horizon)`` with ``R(0) = 1``.
+
+    Raises
+    ------
+    InvalidInput
+        When the steady-state age sum ``Σ_a S(a)(1+g0)^-a`` diverges or depends
+        on where the profile is cut (see the module notes), or no capacity of
+        the history is in service in year 0.
+
+    Notes
+    -----
+    Vintage weights are scaled so the largest is 1 before they are summed
+    (in logarithms for the steady state), so neither a fast decline in the
+    past nor a history near the largest float overflows; ``R`` only needs
+    their ratios.
     """
-    ages_needed = horizon + (len(history) if history is not None else s.size) + 1
-    full = np.zeros(ages_needed + s.size)
-    full[: s.size] = s
+    if not (int(horizon) == horizon and 0 <= horizon <= MAX_AGE):
+        raise invalid("horizon", f"be a whole number in [0, {MAX_AGE}]", horizon)
+    horizon = int(horizon)
+    s = np.asarray(s, dtype=float)
     if history is None:
-        age = np.arange(s.size, dtype=float)
-        vint = (1.0 + past_growth) ** -age  # vintage of age a today
+        if not (np.isfinite(past_growth) and past_growth > -1):
+            raise invalid("past_growth", "be a finite number > -1", past_growth)
+        logw = -np.arange(s.size, dtype=float) * math.log1p(past_growth)
+        vint = np.exp(logw - logw.max())  # vintage of age a today, the largest weighs 1
+        if past_growth < 0 and tail is not None:
+            _check_age_sum(s, vint, past_growth, tail)
     else:
-        vint = np.asarray(history, dtype=float)[::-1]
-        age = np.arange(vint.size, dtype=float)
-    idx = age.astype(int)
-    t = np.arange(horizon + 1)
-    stock = (full[idx[None, :] + t[:, None]] * vint[None, :]).sum(axis=1)
-    if stock[0] <= 0:
+        h = np.asarray(history, dtype=float)
+        if h.ndim != 1 or h.size == 0 or not np.all(np.isfinite(h)) or np.any(h < 0):
+            raise invalid("investment_history", "be a non-empty list of finite numbers >= 0",
+                          history)
+        top = float(h.max())
+        vint = (h / top if top > 0 else h)[::-1]
+    full = np.zeros(vint.size + horizon)
+    m = min(full.size, s.size)
+    full[:m] = s[:m]
+    stock = np.correlate(full, vint, mode="valid")  # stock[t] = Σ_a S(a+t) vint[a]
+    if not stock[0] > 0:
         raise invalid("investment_history", "leave a positive stock in service in year 0",
                       history)
-    return stock / stock[0]
+    out = stock / stock[0]
+    if not np.all(np.isfinite(out)):  # cannot happen with scaled weights; never pass NaN on
+        raise invalid("past_growth", "give a finite survival of today's stock", past_growth)
+    return out
+
+
+def _check_age_sum(s: np.ndarray, vint: np.ndarray, g0: float, tail: float) -> None:
+    """Refuse a steady-state age sum that diverges or depends on the profile's cut."""
+    q = 1.0 / (1.0 + g0)
+    why = ("so the steady-state age sum Σ S(a)(1+past_growth)^-a converges")
+    if tail * q >= 1.0:
+        rule = ("be >= 0 with this retirement profile (its tail falls slower than any "
+                f"geometric rate), {why}" if tail >= 1.0 else
+                f"be > {tail - 1.0:.6g} with this retirement profile (its tail falls by "
+                f"the factor {tail:.6g} a year), {why}")
+        raise invalid("past_growth", rule, g0)
+    terms = s * vint
+    total = float(terms.sum())
+    last = max(tail, s[-1] / s[-2] if s.size >= 2 and s[-2] > 0 else 0.0) * q
+    if last >= 1.0 or not total > 0:
+        rest = math.inf
+    else:
+        rest = float(terms[-1]) * last / (1.0 - last)
+    if rest > TRUNCATION_TOL * total:
+        raise invalid("past_growth", "be high enough that the steady-state age sum "
+                      "Σ S(a)(1+past_growth)^-a does not depend on where the profile is cut "
+                      f"(the ages beyond the cut would add more than {TRUNCATION_TOL:g} "
+                      "of it)", g0)
 
 
 def perpetual_inventory(
@@ -363,6 +493,20 @@ def perpetual_inventory(
     numpy.ndarray
         ``K_t`` for the same years as ``investment``.
     """
+    if not (int(lead_time) == lead_time and 0 <= lead_time <= MAX_LEAD_TIME):
+        raise invalid("lead_time", f"be a whole number of years in [0, {MAX_LEAD_TIME}]",
+                      lead_time)
+    lead_time = int(lead_time)
     inv = np.asarray(investment, dtype=float)
+    if inv.ndim != 1 or not np.all(np.isfinite(inv)):
+        raise invalid("investment", "be a 1-dimensional list of finite numbers", investment)
     shifted = np.concatenate([np.zeros(lead_time), inv])[: inv.size]
-    return np.convolve(shifted, s)[: inv.size]
+    top = float(np.max(np.abs(shifted))) if shifted.size else 0.0
+    if top == 0:
+        return np.zeros(inv.size)
+    with np.errstate(over="ignore", invalid="ignore"):  # summed scaled, then checked
+        stock = np.convolve(shifted / top, s)[: inv.size] * top
+    if not np.all(np.isfinite(stock)):
+        raise invalid("investment", "keep the perpetual-inventory stock finite (the surviving "
+                      "sum of its vintages overflows)", investment)
+    return stock

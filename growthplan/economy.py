@@ -9,6 +9,7 @@ of output, one row per labour kind.
 from __future__ import annotations
 
 import json
+import warnings
 from functools import cached_property
 from typing import Any
 
@@ -19,7 +20,7 @@ from pydantic import Field, PrivateAttr, field_validator, model_validator
 from . import capital as cap
 from . import steady
 from ._validation import Matrix, Model, Rule, Vector, align_matrix, align_vector
-from .errors import UnproductiveEconomy
+from .errors import TinyCoefficientsWarning, UnproductiveEconomy
 
 __all__ = ["Sector", "CapitalSpec", "Economy"]
 
@@ -65,6 +66,20 @@ class CapitalSpec(Model):
     investment_history : list of float, optional
         Capacity that entered service in past years, oldest first, the last in
         plan year 0; overrides ``past_growth`` (perpetual inventory).
+
+    Notes
+    -----
+    Validation computes the survival profile, the survival of today's stock
+    and the perpetual-inventory stock once and refuses the spec when any of
+    them is not finite, so a NaN never reaches a plan. Lives are at most
+    1000 years except for the geometric profile, lead times at most 100 years.
+    With ``past_growth < 0`` the steady-state age structure weighs age ``a`` by
+    ``S(a)(1+g0)^-a``; it is refused when that sum diverges (the profile's tail
+    ratio ``lim S(a+1)/S(a)`` divided by ``1 + g0`` is 1 or more: any negative
+    ``g0`` for the lognormal profile or a Weibull shape below 1) or when the
+    ages beyond the profile's cut at 1e-12 would change it by more than 1e-9.
+    The geometric profile is memoryless: today's age structure does not matter
+    and ``past_growth`` is not used.
     """
 
     initial_capacity: float = Field(ge=0, allow_inf_nan=False)
@@ -98,6 +113,8 @@ class CapitalSpec(Model):
     def _lead(cls, v: Any) -> Any:
         if isinstance(v, bool) or not _is_number(v) or not np.isfinite(v) or v < 0 or v != int(v):
             raise Rule("be a whole number of years >= 0", v)
+        if v > cap.MAX_LEAD_TIME:  # before the default spending profile is allocated
+            raise Rule(f"be at most {cap.MAX_LEAD_TIME} years", v)
         return int(v)
 
     @field_validator("max_utilisation", mode="before")
@@ -130,12 +147,39 @@ class CapitalSpec(Model):
             raise Rule("be > 0", self.declining_balance, field="declining_balance")
         if self.shape is not None and not (np.isfinite(self.shape) and self.shape > 0):
             raise Rule("be > 0", self.shape, field="shape")
+        if self.retirement != "geometric" and self.mean_service_life > cap.MAX_LIFE:
+            raise Rule(f"be at most {cap.MAX_LIFE:g} years for the {self.retirement} profile "
+                       "(its arrays grow with the life)", self.mean_service_life,
+                       field="mean_service_life")
         if self.investment_history is not None:
             h = np.asarray(self.investment_history, dtype=float)
             if h.size == 0 or not np.all(np.isfinite(h)) or np.any(h < 0):
                 raise Rule("be a non-empty list of non-negative numbers",
                            self.investment_history, field="investment_history")
+            if h.size > cap.MAX_AGE:
+                raise Rule(f"cover at most {cap.MAX_AGE} years", f"{h.size} years",
+                           field="investment_history")
+        self._check_finite()
         return self
+
+    def _check_finite(self) -> None:
+        """Every derived capital array is finite, or the spec is refused."""
+        s = self.survival()
+        if not (np.all(np.isfinite(s)) and s.size and s[0] == 1.0):
+            raise Rule("give a finite survival profile", self.mean_service_life,
+                       field="mean_service_life")
+        if self.investment_history is not None:
+            h = np.asarray(self.investment_history[::-1], dtype=float)[: s.size]
+            with np.errstate(over="ignore", invalid="ignore"):
+                stock = float(np.sum(s[: h.size] * h))
+            if not np.isfinite(stock):
+                raise Rule("give a finite perpetual-inventory stock (the surviving sum of "
+                           "its vintages overflows)", self.investment_history,
+                           field="investment_history")
+        r = self.initial_survival(1)  # raises InvalidInput naming past_growth or the history
+        if not np.all(np.isfinite(r)):
+            raise Rule("give a finite survival of today's stock", self.past_growth,
+                       field="past_growth")
 
     def survival(self, max_age: int | None = None) -> np.ndarray:
         """Survival profile ``S(a)`` of new vintages (computed once per ``max_age``, read-only)."""
@@ -155,8 +199,10 @@ class CapitalSpec(Model):
         if self.retirement == "geometric" and hist is None:  # memoryless: age does not matter
             return (1.0 - self.declining_balance / self.mean_service_life) ** np.arange(
                 horizon + 1, dtype=float)
-        return cap.initial_survival(self.survival(), horizon, past_growth=self.past_growth,
-                                    history=hist)
+        return cap.initial_survival(
+            self.survival(), horizon, past_growth=self.past_growth, history=hist,
+            tail=cap.tail_ratio(self.retirement, self.mean_service_life, shape=self.shape,
+                                declining_balance=self.declining_balance))
 
     def _per_capacity(self, g: float) -> tuple[float, float]:
         geometric = self.retirement == "geometric"
@@ -199,6 +245,14 @@ class Economy(Model):
         Commodities per unit of the plan's consumption level.
     wage_basket : array_like or Series, optional
         Commodities consumed per person-year of labour (closes the model).
+
+    Notes
+    -----
+    Input, capital and labour coefficients below :data:`TINY_COEFFICIENT`
+    (1e-12) times the largest entry of their column (the same sector) are set
+    to zero with a :class:`~growthplan.errors.TinyCoefficientsWarning` naming
+    the first ten cells: they are far below the LP solver's tolerances and
+    could make it misjudge a plan. The caller's arrays are never changed.
 
     Examples
     --------
@@ -281,6 +335,8 @@ class Economy(Model):
             raise Rule(f"be square with one row and column per sector ({n}×{n})",
                        f"shape {a.shape}", field="input_coefficients")
         _nonneg(a, "input_coefficients", self.names)
+        object.__setattr__(self, "input_coefficients",
+                           _drop_tiny(a, "input_coefficients", self.names, self.names))
         b = self.capital_coefficients
         if b is None:
             b = np.zeros((n, n))
@@ -290,6 +346,8 @@ class Economy(Model):
             raise Rule(f"be square with one row and column per sector ({n}×{n})",
                        f"shape {b.shape}", field="capital_coefficients")
         _nonneg(b, "capital_coefficients", self.names)
+        object.__setattr__(self, "capital_coefficients",
+                           _drop_tiny(b, "capital_coefficients", self.names, self.names))
         lab = self.labour_coefficients
         if lab is not None:
             if lab.ndim != 2 or lab.shape[1] != n:
@@ -302,6 +360,8 @@ class Economy(Model):
                 raise Rule(f"name each of the {lab.shape[0]} labour kinds once", kinds,
                            field="labour_kinds")
             object.__setattr__(self, "labour_kinds", list(kinds))
+            object.__setattr__(self, "labour_coefficients",
+                               _drop_tiny(lab, "labour_coefficients", list(kinds), self.names))
         elif self.labour_kinds:
             raise Rule("come with labour_coefficients", self.labour_kinds,
                        field="labour_kinds")
@@ -427,11 +487,15 @@ class Economy(Model):
         else:
             m = a
         irreducible, period = steady.structure(m)
-        rho, v, used, it, res = steady.perron(m, method=method, tol=tol, max_iter=max_iter)
+        rho, v, used, it, res, unique = steady.perron(m, method=method, tol=tol,
+                                                      max_iter=max_iter)
         notes = []
         if not irreducible:
             notes.append("reducible: some sectors do not feed all others; proportions may "
                          "have zeros")
+        if not unique:
+            notes.append("not unique: the Perron root is repeated (independent parts grow "
+                         "at the same limit); these proportions are one balanced ray of many")
         if period > 1:
             notes.append(f"periodic with period {period}: the plain power iteration "
                          "would oscillate; the damped one converges")
@@ -442,7 +506,7 @@ class Economy(Model):
             rate=1.0 / rho - 1.0, factor=1.0 / rho,
             proportions=pd.Series(v, index=pd.Index(names), name="proportion"),
             spectral_radius=rho, method=used, iterations=it, residual=res,
-            irreducible=irreducible, period=period, notes=notes)
+            irreducible=irreducible, period=period, notes=notes, unique=unique)
 
     def dynamic_balanced_growth(self) -> steady.BalancedGrowth:
         """Balanced growth of the dynamic Leontief model with capital replacement.
@@ -527,6 +591,29 @@ class Economy(Model):
 
     def __repr__(self) -> str:
         return f"Economy({self.n} sectors: {', '.join(self.names[:6])}{'…' if self.n > 6 else ''})"
+
+
+TINY_COEFFICIENT = 1e-12  # relative to the largest entry of the same column
+
+
+def _drop_tiny(m: np.ndarray, field: str, rows: list[str], cols: list[str]) -> np.ndarray:
+    """A read-only copy of ``m`` without entries negligible next to their column."""
+    if m.size == 0:
+        return m
+    top = m.max(axis=0)
+    tiny = (m > 0) & (m < TINY_COEFFICIENT * top[None, :])
+    if not tiny.any():
+        return m
+    out = m.copy()
+    out[tiny] = 0.0
+    out.setflags(write=False)
+    cells = np.argwhere(tiny)
+    listed = ", ".join(f"[{rows[i]}, {cols[j]}] = {m[i, j]:.3g}" for i, j in cells[:10])
+    more = f" and {len(cells) - 10} more" if len(cells) > 10 else ""
+    warnings.warn(f"{field}: {len(cells)} entries below {TINY_COEFFICIENT:g} times the "
+                  f"largest entry of their column were set to zero (row, sector): {listed}{more}.",
+                  TinyCoefficientsWarning, stacklevel=2)
+    return out
 
 
 def _nonneg(m: np.ndarray, field: str, names: list[str]) -> None:

@@ -22,6 +22,7 @@ __all__ = [
     "PlanNotOptimal",
     "GrowthplanWarning",
     "EndEffectsWarning",
+    "TinyCoefficientsWarning",
     "invalid",
     "show",
 ]
@@ -80,6 +81,15 @@ class GrowthplanWarning(UserWarning):
 
 class EndEffectsWarning(GrowthplanWarning):
     """The plan has no terminal condition, so its last years under-invest."""
+
+
+class TinyCoefficientsWarning(GrowthplanWarning):
+    """Coefficients negligible next to their column were set to zero.
+
+    An entry below 1e-12 times the largest entry of its column is far under
+    the solver's tolerances and can make it misjudge the plan (an input of
+    1e-30 beside inputs of 0.2 made the plan look unbounded).
+    """
 
 
 def show(value: Any) -> str:

@@ -5,7 +5,23 @@ factor is ``α* = max α`` such that ``Q y ≥ α P y`` for some intensities
 ``y ≥ 0``, ``Σ y = 1``; the interest factor is ``β* = min β`` such that
 ``pᵀ Q ≤ β pᵀ P`` for some prices ``p ≥ 0``, ``Σ p = 1``. Both are found by
 bisection over a linear feasibility test (Kemeny, Morgenstern and Thompson,
-1956). Under their conditions ``α* = β*``; otherwise both are reported.
+1956). Always ``β* ≤ α*``.
+
+When ``α* = β*``
+----------------
+Kemeny, Morgenstern and Thompson show that, when every process uses some
+input and every good is produced by some process, there is at least one and
+at most ``min(goods, processes)`` expansion factors with an economic solution
+(``pᵀ Q y > 0``); ``β*`` is the smallest of them and ``α*`` the largest. They
+coincide, and the factor is unique, when the system is irreducible
+(indecomposable): no subset of goods and processes can grow on its own, so
+every good is used or produced in a way that links all processes — for a
+single-product system ``Q = I``, ``P = A`` that is an irreducible ``A``, where
+``α* = β* = 1/ρ(A)``. A decomposable system can have several factors and then
+``α* > β*``: with ``P = I`` and ``Q = diag(2, 3)`` the second good alone grows
+threefold, so ``α* = 3``, while the first good priced alone earns only 2, so
+``β* = 2`` (at ``α*`` the intensities and at ``β*`` the prices then give
+``pᵀ Q y = 0``, shown in :attr:`ExpandingEconomy.value_of_output`).
 """
 
 from __future__ import annotations
@@ -106,6 +122,12 @@ def expanding_economy(inputs, outputs, *, tol: float = 1e-11) -> ExpandingEconom
     >>> r = expanding_economy(a, [[1, 0], [0, 1]])
     >>> round(r.expansion_factor, 6)
     3.038324
+
+    A decomposable system has two factors, and ``α* > β*``:
+
+    >>> r = expanding_economy([[1, 0], [0, 1]], [[2, 0], [0, 3]])
+    >>> round(r.expansion_factor, 6), round(r.interest_factor, 6)
+    (3.0, 2.0)
     """
     goods = procs = None
     if isinstance(inputs, pd.DataFrame):

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import NamedTuple
 
 import numpy as np
 import pandas as pd
@@ -16,6 +17,8 @@ from scipy.sparse import linalg as splinalg
 
 from .errors import NoBalancedGrowth, invalid
 
+_ARPACK_FAILURES = (splinalg.ArpackNoConvergence, splinalg.ArpackError)
+
 __all__ = [
     "BalancedGrowth",
     "spectral_radius",
@@ -23,11 +26,14 @@ __all__ = [
     "leontief_inverse",
     "structure",
     "perron",
+    "Perron",
     "power_iteration",
     "dynamic_growth",
 ]
 
 DENSE_LIMIT = 400  # above this many sectors, eigen-solvers work on sparse matrices
+DENSE_FALLBACK = 3000  # when ARPACK fails, a dense eigen-solve up to this size
+ARPACK_STEPS = 1000  # restarts before ARPACK is given up (it converges in a few when it can)
 
 
 @dataclass(frozen=True)
@@ -45,7 +51,10 @@ class BalancedGrowth:
     spectral_radius : float
         Perron root of the matrix whose inverse gives the growth factor.
     method : str
-        ``"eigen"``, ``"sparse-eigen"``, ``"power"`` or ``"root"``.
+        What produced the proportions: ``"eigen"``, ``"sparse-eigen"``,
+        ``"power"`` (also when a repeated Perron root left the eigen-solver's
+        vector with mixed signs), ``"lp"`` (the non-negative null space of
+        ``M − ρI`` found by a linear programme) or ``"root"``.
     iterations : int
         Power-iteration steps (0 for direct eigen-solvers).
     residual : float
@@ -54,6 +63,12 @@ class BalancedGrowth:
         Whether every sector feeds every other, directly or indirectly.
     period : int
         Index of imprimitivity (1 for a primitive matrix).
+    unique : bool
+        False when the Perron root is repeated with several independent
+        eigenvectors (independent parts of a reducible economy with the same
+        growth limit): the proportions are then one balanced ray of many.
+    notes : list of str
+        Plain-language remarks on the structure.
     """
 
     rate: float
@@ -66,6 +81,7 @@ class BalancedGrowth:
     irreducible: bool = True
     period: int = 1
     notes: list[str] = field(default_factory=list)
+    unique: bool = True
 
     def __repr__(self) -> str:
         top = ", ".join(f"{k}={v:.4f}" for k, v in self.proportions.items())
@@ -77,17 +93,54 @@ def _as_operator(m):
     return sparse.csr_array(m) if not sparse.issparse(m) else m
 
 
+def _dense(m) -> np.ndarray:
+    return m.toarray() if sparse.issparse(m) else np.asarray(m, dtype=float)
+
+
+def _shift_invert(m) -> tuple[float, np.ndarray]:
+    """Perron root and vector by ARPACK in shift-invert mode about ``σ`` just above ``ρ``.
+
+    For a non-negative matrix every eigenvalue has ``|λ| ≤ ρ``, and ``ρ`` is at
+    most the smallest of the largest column and row sums. For a real
+    ``σ > ρ``, ``|σ − λ| ≥ σ − Re λ ≥ σ − ρ`` with equality only at ``λ = ρ``
+    (Perron–Frobenius theory), so ``ρ`` is the eigenvalue nearest ``σ``, found
+    in a few steps even when a long cycle puts every eigenvalue on ``|λ| = ρ``
+    (where plain ARPACK does not converge).
+    """
+    op = sparse.csc_array(_as_operator(m).astype(float))
+    mag = abs(op)
+    bound = float(min(mag.sum(axis=0).max(), mag.sum(axis=1).max()))
+    sigma = bound * (1.0 + 1e-6) + 1e-300
+    vals, vecs = splinalg.eigs(op, k=1, sigma=sigma, which="LM", tol=1e-13,
+                               maxiter=ARPACK_STEPS)
+    return float(vals[0].real), vecs[:, 0]
+
+
 def spectral_radius(m) -> float:
-    """Spectral radius of a non-negative matrix (dense ``eig`` or ARPACK for large n)."""
+    """Spectral radius of a non-negative matrix (dense ``eig`` or ARPACK for large n).
+
+    When ARPACK does not converge (long cycles put many eigenvalues on the
+    circle ``|λ| = ρ``) its shift-invert mode takes over (see
+    :func:`perron`), then the dense solver up to :data:`DENSE_FALLBACK`
+    sectors, the damped power iteration beyond.
+    """
     n = m.shape[0]
     if n == 0:
         return 0.0
     if n <= DENSE_LIMIT:
-        dense = m.toarray() if sparse.issparse(m) else np.asarray(m)
-        return float(np.max(np.abs(np.linalg.eigvals(dense))))
-    vals = splinalg.eigs(_as_operator(m).astype(float), k=1, which="LM",
-                         return_eigenvectors=False, tol=1e-12, maxiter=20 * n)
-    return float(np.abs(vals[0]))
+        return float(np.max(np.abs(np.linalg.eigvals(_dense(m)))))
+    try:
+        vals = splinalg.eigs(_as_operator(m).astype(float), k=1, which="LM",
+                             return_eigenvectors=False, tol=1e-12, maxiter=ARPACK_STEPS)
+        return float(np.abs(vals[0]))
+    except _ARPACK_FAILURES:
+        pass
+    try:
+        return abs(_shift_invert(m)[0])
+    except (*_ARPACK_FAILURES, RuntimeError):
+        if n <= DENSE_FALLBACK:
+            return float(np.max(np.abs(np.linalg.eigvals(_dense(m)))))
+        return power_iteration(m)[0]
 
 
 def hawkins_simon(a: np.ndarray) -> tuple[bool, np.ndarray]:
@@ -140,47 +193,149 @@ def _fix_sign(v: np.ndarray, tol: float) -> np.ndarray | None:
     return v / v.sum()
 
 
+class Perron(NamedTuple):
+    """Result of :func:`perron`."""
+
+    rho: float
+    vector: np.ndarray
+    method: str
+    iterations: int
+    residual: float
+    unique: bool
+
+
+def _residual(m, v: np.ndarray, rho: float) -> float:
+    return float(np.abs(m @ v - rho * v).sum() / np.abs(v).sum())
+
+
+def _accept(m) -> float:
+    """Largest residual ``‖Mv − ρv‖₁/‖v‖₁`` accepted for a computed Perron vector."""
+    norm = float(abs(m).sum(axis=0).max()) if m.shape[0] else 0.0
+    return 1e-9 * max(1.0, norm)
+
+
+def _nullity(m, rho: float, vals: np.ndarray | None) -> int:
+    """Independent eigenvectors for ``rho``: numerical nullity of ``M − ρI``.
+
+    Checked by an SVD only when the eigenvalues show ``rho`` more than once
+    (a defective root such as a Jordan block has a repeated eigenvalue but one
+    eigenvector, so counting eigenvalues alone would overstate it).
+    """
+    n = m.shape[0]
+    if vals is not None:
+        close = np.abs(vals - rho) <= 1e-6 * max(abs(rho), 1e-300)
+        if np.count_nonzero(close) < 2:
+            return 1
+    if n > DENSE_FALLBACK:
+        return 1  # too large to decide by an SVD; reported as unique
+    sv = np.linalg.svd(_dense(m) - rho * np.eye(n), compute_uv=False)
+    return max(1, int(np.count_nonzero(sv <= 1e-9 * max(1.0, float(sv[0]) if sv.size else 1.0))))
+
+
+def _nonneg_null_vector(m, rho: float) -> np.ndarray | None:
+    """A vector ``v ≥ 0``, ``Σ v = 1`` with least ``‖(M − ρI) v‖₁``, by a linear programme."""
+    n = m.shape[0]
+    shifted = sparse.csr_array(_as_operator(m).astype(float)) - rho * sparse.eye_array(n)
+    eye = sparse.eye_array(n)
+    # variables (v, s+, s-): minimise Σ s+ + Σ s-  s.t.  (M − ρI) v − s+ + s- = 0, Σ v = 1
+    a_eq = sparse.vstack([sparse.hstack([shifted, -eye, eye]),
+                          sparse.hstack([sparse.csr_array(np.ones((1, n))),
+                                         sparse.csr_array((1, 2 * n))])]).tocsc()
+    b_eq = np.zeros(n + 1)
+    b_eq[-1] = 1.0
+    c = np.concatenate([np.zeros(n), np.ones(2 * n)])
+    res = optimize.linprog(c, A_eq=a_eq, b_eq=b_eq, bounds=(0, None), method="highs")
+    if res.status != 0:
+        return None
+    v = np.clip(res.x[:n], 0.0, None)
+    return v / v.sum() if v.sum() > 0 else None
+
+
 def perron(m, *, method: str = "eigen", tol: float = 1e-12,
-           max_iter: int = 100_000) -> tuple[float, np.ndarray, str, int, float]:
+           max_iter: int = 100_000) -> Perron:
     """Perron root and a non-negative Perron vector of ``m``.
+
+    By Perron–Frobenius theory every non-negative matrix has a non-negative
+    eigenvector for its spectral radius ``ρ``. When the eigen-solver returns
+    one with parts of both signs, ``ρ`` is a repeated root (independent parts
+    of a reducible matrix with the same growth limit) and its eigenspace holds
+    non-negative vectors the solver did not pick. They are then found by the
+    damped power iteration from equal proportions (the ray that iteration
+    reaches) or, when it is slow, by a linear programme for ``v ≥ 0``,
+    ``Σ v = 1`` with least ``‖(M − ρI) v‖₁``; either is kept only when its
+    residual is below ``1e-9 · max(1, ‖M‖₁)``. A repeated root with several
+    independent eigenvectors is reported as not unique, and then the power
+    iteration's ray is returned whatever the solver picked, so the two methods
+    agree.
+
+    Above :data:`DENSE_LIMIT` sectors ARPACK is used; when it does not
+    converge (long cycles), its shift-invert mode about a real shift just
+    above ``ρ`` (``ρ`` is then the nearest eigenvalue), then a dense solve up
+    to :data:`DENSE_FALLBACK` sectors and the damped power iteration beyond.
 
     Returns
     -------
-    (rho, vector, method, iterations, residual)
+    Perron
+        ``(rho, vector, method, iterations, residual, unique)``.
 
     Raises
     ------
     NoBalancedGrowth
-        When the leading eigenvector has parts of both signs (a reducible
-        system without a non-negative ray) or the iteration fails.
+        When no non-negative vector satisfies ``M v = ρ v`` to the tolerance
+        (only possible for a matrix with negative entries) or the iteration
+        fails.
     """
     n = m.shape[0]
     if method == "power":
         rho, v, it = power_iteration(m, tol=tol, max_iter=max_iter)
-        used = "power"
-    elif method == "eigen":
-        it = 0
-        if n <= DENSE_LIMIT:
-            dense = m.toarray() if sparse.issparse(m) else np.asarray(m)
-            vals, vecs = np.linalg.eig(dense)
-            k = int(np.argmax(vals.real))
-            rho, raw, used = float(vals[k].real), vecs[:, k], "eigen"
-        else:
-            vals, vecs = splinalg.eigs(_as_operator(m).astype(float), k=1, which="LR",
-                                       tol=1e-13, maxiter=50 * n)
-            rho, raw, used = float(vals[0].real), vecs[:, 0], "sparse-eigen"
-        found = _fix_sign(raw, 1e-9)
-        if found is None:
-            raise NoBalancedGrowth(
-                "The leading eigenvector has parts of both signs, so the system has no "
-                "balanced-growth ray with non-negative proportions (it is reducible: some "
-                "sectors do not feed the others).")
-        v = found
-    else:
+        # above the dense limit an SVD would cost O(n³): reported as unique
+        unique = n > DENSE_LIMIT or _nullity(m, rho, np.linalg.eigvals(_dense(m))) == 1
+        return Perron(rho, v, "power", it, _residual(m, v, rho), unique)
+    if method != "eigen":
         raise invalid("method", "be 'eigen' or 'power'", method)
-    mv = m @ v
-    residual = float(np.abs(mv - rho * v).sum() / np.abs(v).sum())
-    return rho, v, used, it, residual
+    vals: np.ndarray | None = None
+    raw: np.ndarray | None = None
+    used = "eigen"
+    if n > DENSE_LIMIT:
+        try:
+            top, vecs = splinalg.eigs(_as_operator(m).astype(float), k=1, which="LR",
+                                      tol=1e-13, maxiter=ARPACK_STEPS)
+            rho, raw, used = float(top[0].real), vecs[:, 0], "sparse-eigen"
+        except _ARPACK_FAILURES:
+            try:
+                rho, raw = _shift_invert(m)
+                used = "sparse-eigen"
+            except (*_ARPACK_FAILURES, RuntimeError):
+                raw = None
+            if raw is None and n > DENSE_FALLBACK:
+                rho, v, it = power_iteration(m, tol=tol, max_iter=max_iter)
+                return Perron(rho, v, "power", it, _residual(m, v, rho), True)
+    if raw is None:
+        vals, vecs = np.linalg.eig(_dense(m))
+        k = int(np.argmax(vals.real))
+        rho, raw = float(vals[k].real), vecs[:, k]
+    limit = _accept(m)
+    found = _fix_sign(raw, 1e-9)
+    # a positive vector from ARPACK is taken as unique (an SVD would cost O(n³))
+    nullity = 1 if (found is not None and vals is None) else _nullity(m, rho, vals)
+    it = 0
+    if found is None or nullity > 1:
+        nnz = m.nnz if sparse.issparse(m) else n * n
+        steps = int(min(max_iter, 20_000, max(200, 5e8 // max(nnz, 1))))
+        try:
+            _, p_v, p_it = power_iteration(m, tol=tol, max_iter=steps)
+        except NoBalancedGrowth:
+            p_v = None
+        if p_v is not None and _residual(m, p_v, rho) <= limit:
+            found, used, it = p_v, "power", p_it
+        elif found is None:
+            found, used = _nonneg_null_vector(m, rho), "lp"
+    if found is None or _residual(m, found, rho) > limit:
+        raise NoBalancedGrowth(
+            "No eigenvector of the Perron root has non-negative parts only (to a residual "
+            f"of {limit:.1e}), so the system has no balanced-growth ray with non-negative "
+            "proportions.")
+    return Perron(rho, found, used, it, _residual(m, found, rho), nullity == 1)
 
 
 def power_iteration(m, *, tol: float = 1e-12, max_iter: int = 100_000,
@@ -227,25 +382,30 @@ def dynamic_growth(a: np.ndarray, b: np.ndarray, deliveries_per_capacity,
     """
     def radius(g: float) -> float:
         k = np.array([f(g) for f in deliveries_per_capacity])
-        return spectral_radius(a + b * (k / utilisation)[None, :])
+        with np.errstate(over="ignore", invalid="ignore"):
+            mat = a + b * (k / utilisation)[None, :]
+        # huge capital coefficients overflow: that capital cannot be replaced at g
+        return spectral_radius(mat) if np.all(np.isfinite(mat)) else math.inf
 
-    lo, hi = 0.0, 0.0
-    while radius(lo) >= 1:  # no growth even at g = 0: look for the rate of decline
-        lo = -0.02 if lo == 0 else lo * 2
-        if lo < -0.9:
-            raise NoBalancedGrowth("Even shrinking at 90 % a year the economy cannot "
-                                   "replace its capital: no balanced growth path exists.")
-    hi = lo + 0.1
-    while radius(hi) < 1:
-        lo, hi = hi, (hi + 0.1) * 2
-        if hi > g_max:
-            raise NoBalancedGrowth("Balanced growth is unbounded: capital coefficients are "
-                                   "too small to limit growth.")
+    # bracket the root with radius(lo) < 1 <= radius(hi); the radius rises with g
+    if radius(0.0) >= 1:  # no growth even at g = 0: look for the rate of decline
+        hi, lo = 0.0, -0.02
+        while radius(lo) >= 1:
+            if lo <= -0.9:
+                raise NoBalancedGrowth("Even shrinking at 90 % a year the economy cannot "
+                                       "replace its capital: no balanced growth path exists.")
+            hi, lo = lo, max(2.0 * lo, -0.9)
+    else:
+        lo, hi = 0.0, 0.1
+        while radius(hi) < 1:
+            lo, hi = hi, 2.0 * hi + 0.1
+            if hi > g_max:
+                raise NoBalancedGrowth("Balanced growth is unbounded: capital coefficients "
+                                       "are too small to limit growth.")
     g = optimize.brentq(lambda x: radius(x) - 1.0, lo, hi, xtol=1e-14, rtol=1e-13)
     k = np.array([f(g) for f in deliveries_per_capacity])
     m = a + b * (k / utilisation)[None, :]
-    _, v, _, _, _ = perron(m)
-    return float(g), v
+    return float(g), perron(m).vector
 
 
 def fmt_rate(g: float) -> str:

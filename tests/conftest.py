@@ -68,6 +68,14 @@ def _quiet_end_effects():
 
 def pytest_terminal_summary(terminalreporter):
     try:
+        from test_numerics_hostile import HOSTILE
+    except ImportError:
+        HOSTILE = None
+    if HOSTILE:
+        cases = sum(v for k, v in HOSTILE.items() if "analysis" not in k)
+        parts = ", ".join(f"{k} {v}" for k, v in sorted(HOSTILE.items()))
+        terminalreporter.write_line(f"hostile numerics cases: {cases} ({parts})")
+    try:
         from test_fuzz import CASES
     except ImportError:
         return

@@ -151,3 +151,106 @@ class TestInitialSurvival:
         s = cap.survival("sudden_exit", 4)
         np.testing.assert_allclose(cap.initial_survival(s, 4, past_growth=0.0),
                                    [1, 0.75, 0.5, 0.25, 0])
+
+
+class TestNonFiniteIntermediates:
+    """Regression: extreme past growth, lives or histories never give NaN or inf."""
+
+    def spec(self, **kw):
+        import growthplan as gp
+
+        return gp.CapitalSpec(initial_capacity=100.0, **kw)
+
+    def test_weibull_with_fast_past_decline_is_refused_not_nan(self):
+        # Before: R(t) = [nan, nan, ...] from 10**a overflowing in the age weights.
+        with pytest.raises(ValueError, match=r"past_growth must .*Got -0\.9\."):
+            self.spec(mean_service_life=60, retirement="weibull", past_growth=-0.9)
+
+    def test_linear_thousand_years_fast_decline_is_finite(self):
+        # Before: 2**1998 overflowed to inf and R(t) was NaN. The profile ends, so the sum
+        # converges; scaled weights give the exact ratios. Closed form for the oldest-
+        # dominated stock: each year the weight doubles with age, so the stock halves
+        # every year as the oldest vintages leave (geometric series, ratio 1/2).
+        r = self.spec(mean_service_life=1000, retirement="linear",
+                      past_growth=-0.5).initial_survival(30)
+        assert np.all(np.isfinite(r)) and r[0] == 1.0
+        assert np.all(np.diff(r) <= 0)
+        np.testing.assert_allclose(r[1:4] / r[:3], 0.5, rtol=1e-2)
+
+    def test_lognormal_negative_past_growth_diverges_and_is_refused(self):
+        # Before: accepted silently; the answer depended on where the profile was cut.
+        # The lognormal tail falls slower than any geometric rate (S(a+1)/S(a) -> 1), so
+        # Σ S(a)(1+g)^-a diverges for every g < 0 (ratio test).
+        for g in (-0.3, -0.01):
+            with pytest.raises(ValueError, match="past_growth must be >= 0"):
+                self.spec(mean_service_life=20, retirement="lognormal", past_growth=g)
+        assert self.spec(mean_service_life=20, retirement="lognormal",
+                         past_growth=0.0).initial_survival(3)[0] == 1.0
+
+    def test_weibull_shape_one_converges_only_above_tail_rate(self):
+        # Shape 1 is geometric in the tail: S(a+1)/S(a) = exp(-1/λ); the sum converges
+        # iff exp(-1/λ)/(1+g) < 1 (ratio test on a geometric series).
+        tail = cap.tail_ratio("weibull", 10, shape=1.0)
+        assert 0 < tail < 1
+        with pytest.raises(ValueError, match="past_growth must be >"):
+            cap.initial_survival(cap.survival("weibull", 10, shape=1.0), 5,
+                                 past_growth=tail - 1 - 1e-3, tail=tail)
+        r = cap.initial_survival(cap.survival("weibull", 10, shape=1.0), 5,
+                                 past_growth=0.0, tail=tail)
+        assert np.all(np.isfinite(r))
+
+    def test_huge_history_is_refused_not_nan(self):
+        # Before: the stock 1e308 + 1e308 overflowed and R(t) was NaN.
+        with pytest.raises(ValueError, match=r"investment_history must .*finite"):
+            self.spec(mean_service_life=10, retirement="sudden_exit",
+                      investment_history=[1e308, 1e308])
+
+    def test_survival_of_a_huge_history_is_scaled(self):
+        # The shape of R does not depend on the units of the history: scaled sums.
+        s = cap.survival("sudden_exit", 3)
+        r = cap.initial_survival(s, 4, history=[1e308, 1e308, 1e308])
+        np.testing.assert_allclose(r, [1, 2 / 3, 1 / 3, 0, 0])
+
+    def test_perpetual_inventory_overflow_is_refused(self):
+        with pytest.raises(ValueError, match="investment must keep"):
+            cap.perpetual_inventory([1e308, 1e308, 1e308], cap.survival("sudden_exit", 5))
+
+    def test_discounted_sum_never_nan(self):
+        s = cap.survival("weibull", 60)
+        start, _ = cap.starts_per_capacity(s, -0.999)
+        assert np.isfinite(start)
+
+
+class TestBounds:
+    """Regression: sizes are bounded before arrays are allocated."""
+
+    def test_huge_life_refused_before_allocating(self):
+        import growthplan as gp
+
+        # Before: a sudden-exit life of 1e7 allocated (1e7)² cells for the initial survival.
+        for profile in ("sudden_exit", "linear", "weibull", "lognormal"):
+            with pytest.raises(ValueError, match="at most 1000 years"):
+                gp.CapitalSpec(initial_capacity=1, mean_service_life=1e7, retirement=profile)
+            with pytest.raises(ValueError, match="at most 1000 years"):
+                cap.survival(profile, 1e7)
+
+    def test_geometric_long_life_is_kept_bounded(self):
+        # The geometric profile is memoryless and closed-form: any life, bounded arrays.
+        assert cap.survival("geometric", 1e7).size <= cap.MAX_AGE + 1
+
+    def test_max_age_and_lead_time_bounded(self):
+        import growthplan as gp
+
+        with pytest.raises(ValueError, match="max_age"):
+            cap.survival("geometric", 10, max_age=10**9)
+        with pytest.raises(ValueError, match="lead_time must be at most 100"):
+            gp.CapitalSpec(initial_capacity=1, mean_service_life=10, lead_time=10**9)
+        with pytest.raises(ValueError, match="horizon"):
+            cap.initial_survival(cap.survival("linear", 5), 10**9)
+
+    def test_thousand_year_profiles_stay_small(self):
+        # At the bound every profile fits in memory and keeps its mean (module docstring).
+        for profile in ("sudden_exit", "linear", "weibull", "lognormal"):
+            s = cap.survival(profile, 1000)
+            assert s.sum() == pytest.approx(1000, rel=1e-6)
+            assert s.size < 200_000

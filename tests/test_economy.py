@@ -194,3 +194,38 @@ def test_leontief_inverse_property(a):
     inv = econ.leontief_inverse().to_numpy()
     np.testing.assert_allclose((np.eye(len(a)) - a) @ inv, np.eye(len(a)), atol=1e-9)
     assert (inv >= -1e-12).all()
+
+
+class TestTinyCoefficients:
+    """Regression: an input of 1e-30 beside inputs of 0.2 is far below the solver's
+    tolerances (common practice: drop entries negligible next to their column)."""
+
+    def test_tiny_entries_are_zeroed_with_a_warning_naming_cells(self):
+        a = np.array([[0.2, 1e-30], [0.2, 0.2]])
+        b = np.array([[1.0, 2.0], [1e-20, 0.0]])
+        lab = np.array([[0.5, 0.3], [1e-16, 0.0]])
+        with pytest.warns(gp.errors.TinyCoefficientsWarning) as rec:
+            e = gp.Economy(sectors=["farm", "mill"], input_coefficients=a,
+                           capital_coefficients=b, labour_coefficients=lab,
+                           labour_kinds=["skilled", "unskilled"])
+        text = " ".join(str(w.message) for w in rec)
+        assert "[farm, mill] = 1e-30" in text and "[mill, farm] = 1e-20" in text
+        assert "[unskilled, farm] = 1e-16" in text
+        assert e.input_coefficients[0, 1] == 0.0 and e.capital_coefficients[1, 0] == 0.0
+        assert e.labour_coefficients[1, 0] == 0.0
+        assert a[0, 1] == 1e-30 and b[1, 0] == 1e-20  # the caller's arrays are untouched
+
+    def test_small_but_not_negligible_entries_are_kept(self):
+        import warnings
+
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")
+            e = gp.Economy(sectors=["a", "b"], input_coefficients=[[0.2, 1e-9], [0.2, 0.2]])
+        assert e.input_coefficients[0, 1] == 1e-9
+
+    def test_at_most_ten_cells_are_named(self):
+        n = 15
+        a = np.full((n, n), 1e-20)
+        a[0] = 0.5
+        with pytest.warns(gp.errors.TinyCoefficientsWarning, match="and 200 more"):
+            gp.Economy(sectors=[f"s{i}" for i in range(n)], input_coefficients=a)

@@ -46,6 +46,8 @@ class TestStaticBalancedGrowth:
         # the guard itself: a leading eigenvector (1, -1) is refused, not returned
         with pytest.raises(gp.NoBalancedGrowth):
             steady.perron(np.array([[0.0, -1.0], [-1.0, 0.0]]))
+        with pytest.raises(gp.NoBalancedGrowth):
+            steady.perron(np.array([[1.0, -1.0], [-1.0, 1.0]]))
 
     def test_reducible_with_zero_part(self):
         bg = econ([[0.5, 0.3], [0.0, 0.2]]).balanced_growth()
@@ -96,6 +98,107 @@ class TestStaticBalancedGrowth:
         assert bg.spectral_radius == pytest.approx(rho, rel=1e-8)
 
 
+def two_equal_blocks(rng: np.random.Generator) -> np.ndarray:
+    """Two independent copies of one irreducible block, feeding a slower third part,
+    with the sectors shuffled: a reducible matrix whose Perron root is repeated."""
+    from scipy.linalg import block_diag
+
+    k = int(rng.integers(2, 6))
+    b = rng.uniform(0, 1, (k, k))
+    b *= 0.5 / max(abs(np.linalg.eigvals(b)))
+    a = block_diag(b, b, rng.uniform(0, 0.05, (2, 2)))
+    a[: 2 * k, 2 * k:] = rng.uniform(0, 0.1, (2 * k, 2))
+    p = rng.permutation(len(a))
+    return a[np.ix_(p, p)]
+
+
+def cycle(n: int, w: float) -> np.ndarray:
+    """Sector i feeds sector i+1 and the last feeds the first, each with weight w."""
+    a = np.zeros((n, n))
+    a[np.arange(1, n), np.arange(n - 1)] = w
+    a[0, n - 1] = w
+    return a
+
+
+class TestRepeatedPerronRoot:
+    """Perron–Frobenius theory: a non-negative matrix always has a non-negative
+    eigenvector for its spectral radius, so a repeated root never means "no ray"."""
+
+    def test_independent_equal_blocks_have_a_ray(self):
+        # Regression: numpy's eigenvector for the repeated root mixed the two blocks with
+        # opposite signs and NoBalancedGrowth was raised (about a quarter of these cases).
+        rng = np.random.default_rng(1)
+        mixed = 0
+        for _ in range(40):
+            a = two_equal_blocks(rng)
+            vals, vecs = np.linalg.eig(a)  # numpy as the reference solver
+            raw = np.real(vecs[:, np.argmax(vals.real)])
+            mixed += bool(raw.max() > 1e-9 and raw.min() < -1e-9)
+            bg = econ(a).balanced_growth()
+            assert bg.spectral_radius == pytest.approx(0.5, rel=1e-9)
+            assert (bg.proportions >= 0).all() and bg.residual < 1e-9
+            assert not bg.unique and any("not unique" in n for n in bg.notes)
+            power = econ(a).balanced_growth(method="power")
+            np.testing.assert_allclose(bg.proportions, power.proportions, atol=1e-8)
+        assert mixed > 0  # the path under test was taken
+
+    def test_diagonal_repeated_root(self):
+        # diag(0.5, 0.5): every non-negative vector is a ray; the damped power iteration
+        # from equal proportions stays there (closed form), and it is flagged not unique.
+        bg = econ([[0.5, 0.0], [0.0, 0.5]]).balanced_growth()
+        assert bg.factor == pytest.approx(2.0)
+        np.testing.assert_allclose(bg.proportions, [0.5, 0.5])
+        assert not bg.unique
+
+    def test_defective_root_is_unique(self):
+        # Jordan block: the root 0.5 is repeated but has the one eigenvector (1, 0).
+        bg = econ([[0.5, 0.1], [0.0, 0.5]]).balanced_growth()
+        assert bg.unique
+        np.testing.assert_allclose(bg.proportions, [1.0, 0.0], atol=1e-12)
+
+    def test_lp_finds_the_non_negative_null_space(self):
+        from growthplan import steady
+
+        a = two_equal_blocks(np.random.default_rng(7))
+        v = steady._nonneg_null_vector(a, 0.5)
+        assert v is not None and (v >= 0).all() and v.sum() == pytest.approx(1.0)
+        assert np.abs(a @ v - 0.5 * v).sum() < 1e-9
+
+
+class TestLongCycles:
+    """Closed form: a cycle of length n with every weight w has ρ = w (its eigenvalues
+    are w times the n-th roots of unity), period n and uniform Perron vector."""
+
+    def test_cycle_of_500_sectors(self):
+        # Regression: ARPACK raised ArpackNoConvergence (every eigenvalue has |λ| = ρ).
+        a = cycle(500, 0.5)
+        bg = econ(a).balanced_growth()
+        assert bg.spectral_radius == pytest.approx(0.5, rel=1e-10)
+        assert bg.irreducible and bg.period == 500 and bg.unique
+        np.testing.assert_allclose(bg.proportions, 1 / 500, rtol=1e-8)
+
+    def test_spectral_radius_of_long_cycle(self):
+        from growthplan import steady
+
+        # a chord 0 -> 210 breaks the symmetry; reference: numpy.linalg.eigvals, dense
+        a = cycle(420, 0.4)
+        a[210, 0] = 0.3
+        assert steady.spectral_radius(a) == pytest.approx(max(abs(np.linalg.eigvals(a))),
+                                                          rel=1e-9)
+        assert steady.spectral_radius(cycle(600, 0.7)) == pytest.approx(0.7, rel=1e-10)
+
+    def test_structure_is_a_graph_test(self):
+        from scipy.linalg import block_diag
+
+        from growthplan import steady
+
+        assert steady.structure(cycle(2000, 0.5)) == (True, 2000)
+        a = cycle(700, 0.5)
+        a[0, 0] = 0.1  # a self-loop makes it aperiodic
+        assert steady.structure(a) == (True, 1)
+        assert steady.structure(block_diag(cycle(300, 0.5), cycle(300, 0.5)))[0] is False
+
+
 class TestDynamicBalancedGrowth:
     """Derived closed form: x = A x + (g + δ) B x, so g* + δ = 1/ρ((I − A)^-1 B)."""
 
@@ -120,6 +223,15 @@ class TestDynamicBalancedGrowth:
         e = gp.Economy(sectors=["x"], input_coefficients=[[0.6]], capital_coefficients=[[2.0]],
                        capital={"x": gp.CapitalSpec(initial_capacity=1, mean_service_life=20)})
         assert e.dynamic_balanced_growth().rate == pytest.approx(0.15, abs=1e-10)
+
+    def test_fast_decline_closed_form(self):
+        # Regression: the bracket search stepped backwards below g = -0.5 and returned a
+        # "rate" below -1. Closed form (one sector, geometric δ): g = (1 - a)/b - δ,
+        # here 0.1/0.2 - 0.9 = -0.4.
+        e = gp.Economy(sectors=["x"], input_coefficients=[[0.9]], capital_coefficients=[[0.2]],
+                       capital={"x": gp.CapitalSpec(initial_capacity=1,
+                                                    mean_service_life=1 / 0.9)})
+        assert e.dynamic_balanced_growth().rate == pytest.approx(-0.4, abs=1e-10)
 
     def test_harrod_domar(self):
         # Harrod–Domar g = s/v: s = 0.12, v = 3 -> 0.04 (Encyclopaedia Britannica,
@@ -169,3 +281,35 @@ class TestExpandingEconomy:
     def test_bad_shapes(self):
         with pytest.raises(ValueError, match="outputs"):
             gp.expanding_economy(np.ones((2, 2)), np.ones((2, 3)))
+
+
+class TestDecomposableExpandingEconomy:
+    """Kemeny, Morgenstern & Thompson (1956), Econometrica 24: α* = β* is guaranteed only
+    for an irreducible (indecomposable) system; a decomposable one may have several
+    expansion factors, α* the largest and β* the smallest."""
+
+    def test_diagonal_outputs_closed_form(self):
+        # P = I, Q = diag(2, 3): good 2 alone grows threefold (α* = 3); good 1 priced alone
+        # earns only 2 (β* = 2). Closed form, derived by hand from the definitions.
+        r = gp.expanding_economy(np.eye(2), np.diag([2.0, 3.0]))
+        assert r.expansion_factor == pytest.approx(3.0, rel=1e-9)
+        assert r.interest_factor == pytest.approx(2.0, rel=1e-9)
+        np.testing.assert_allclose(r.intensities, [0.0, 1.0], atol=1e-9)
+        assert r.value_of_output == pytest.approx(0.0, abs=1e-9)
+
+    def test_docstring_states_the_irreducibility_condition(self):
+        # Regression: the module claimed α* = β* "under their conditions" without saying
+        # which, and the diag(2, 3) system contradicts a reading that includes it.
+        doc = gp.expanding_economy.__module__
+        import importlib
+
+        text = importlib.import_module(doc).__doc__
+        assert "irreducible" in text and "diag(2, 3)" in text
+
+    def test_irreducible_joint_production_equal_factors(self):
+        # An irreducible system: α* = β* (Kemeny–Morgenstern–Thompson).
+        p = np.array([[0.2, 0.4], [0.3, 0.1]])
+        q = np.array([[1.0, 0.3], [0.2, 0.9]])
+        r = gp.expanding_economy(p, q)
+        assert r.expansion_factor == pytest.approx(r.interest_factor, rel=1e-8)
+        assert r.value_of_output > 0
