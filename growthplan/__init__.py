@@ -19,6 +19,7 @@ from .errors import (
     PlanNotOptimal,
     PlanUnbounded,
     SolverFailure,
+    TinyCoefficientsWarning,
     UnproductiveEconomy,
 )
 from .expanding import ExpandingEconomy, expanding_economy
@@ -78,6 +79,7 @@ __all__ = [
     "SerialExecutor",
     "Sweep",
     "SolverFailure",
+    "TinyCoefficientsWarning",
     "TransactionsTable",
     "UnproductiveEconomy",
     "__version__",

@@ -367,6 +367,23 @@ class Plan(Model):
         """Number of plan years ``T``."""
         return len(self.years)
 
+    def model_copy(self, *, update: dict[str, Any] | None = None, deep: bool = False) -> Plan:
+        """A copy, validated again when ``update`` changes fields (its arrays are not shared).
+
+        Parameters
+        ----------
+        update : dict, optional
+            Fields to change; the copy goes through every check of construction.
+        deep : bool, default False
+        """
+        if update:
+            fields = {k: getattr(self, k) for k in type(self).model_fields}
+            fields.update(update)
+            return Plan(**fields)
+        out = super().model_copy(deep=deep)
+        out._lowered = None
+        return out
+
     def validation_seconds(self) -> float:
         """Seconds spent validating this plan."""
         return self._validate_seconds

@@ -113,3 +113,17 @@ def test_fastest_horizon_never_crashes_on_short_horizons():
         else:
             assert_optimal(r)
             assert r.plan.horizon == 3
+
+
+def test_a_copy_with_new_targets_is_solved_with_them():
+    """model_copy(update=...) validates again and never reuses the original's arrays."""
+    from growthplan.demo import demo_plan
+
+    plan = demo_plan()
+    assert_optimal(plan.solve())
+    huge = plan.targets[0].model_copy(update={"capacity_at_least": 1e7})
+    copy = plan.model_copy(update={"targets": [huge, plan.targets[1]]})
+    assert_infeasible(copy.solve())
+    with pytest.raises(gp.InvalidInput, match="targets"):
+        plan.model_copy(update={"targets": [gp.Target("nowhere", year=2030,
+                                                      output_at_least=1.0)]})
