@@ -92,16 +92,8 @@ def maxima() -> dict[str, float]:
     return out
 
 
-NEAR = pytest.mark.xfail(strict=True, reason=(
-    "the diagnosis's shortfall on the demo's energy target is about 5.7e-4 too large "
-    "(3.8e-8 of the requirement, documented as about 1e-9), so gaps under 4 % of M miss "
-    "the 1e-6 relative check"))
-
-
 def sweep(n: int) -> list:
-    return [pytest.param(case, k, n, marks=[NEAR] if case == "energy-2034"
-                         and 3.0 ** (k / n) < 1.04 else [])
-            for case in CASES for k in range(1, n + 1)]
+    return [pytest.param(case, k, n) for case in CASES for k in range(1, n + 1)]
 
 
 def check(case: str, value: float, m: float) -> None:
@@ -142,9 +134,6 @@ def test_maximum_is_reachable(maxima):
         assert_infeasible(plan_with(case, m * (1 + 1e-6)).solve())
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "Plan.model_copy(update=...) keeps the private cache of lowered arrays (_lowered), so "
-    "the copy is solved with the original targets: an impossible target comes back optimal"))
 def test_model_copy_with_new_targets_is_solved_with_them():
     plan = demo_plan()
     assert_optimal(plan.solve())  # fills the plan's cache of lowered arrays
@@ -154,12 +143,8 @@ def test_model_copy_with_new_targets_is_solved_with_them():
     assert_infeasible(copy.solve())
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "growthplan.results.diagnosis documents the shortfall as the least one to about 1e-9 "
-    "relative; on the demo's energy target at M · 3^(1/25) the simplex re-solve at "
-    "tolerance 1e-9 reports it 5.7e-4 too large, 3.8e-8 of the requirement"))
 def test_shortfall_accuracy_as_documented(maxima):
     m = maxima["energy-2034"]
     value = m * 3.0 ** (1 / 25)
     short = plan_with("energy-2034", value).solve().diagnosis.shortfalls
-    assert float(short["shortfall"].iloc[0]) == pytest.approx(value - m, abs=1e-8 * value)
+    assert float(short["shortfall"].iloc[0]) == pytest.approx(value - m, abs=1e-9 * value)
