@@ -16,6 +16,7 @@ Timing conventions (MODEL.md §4, kept everywhere in the library):
 from __future__ import annotations
 
 import time
+from collections.abc import Mapping
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -367,7 +368,7 @@ class Plan(Model):
         """Number of plan years ``T``."""
         return len(self.years)
 
-    def model_copy(self, *, update: dict[str, Any] | None = None, deep: bool = False) -> Plan:
+    def model_copy(self, *, update: Mapping[str, Any] | None = None, deep: bool = False) -> Plan:
         """A copy, validated again when ``update`` changes fields (its arrays are not shared).
 
         Parameters
