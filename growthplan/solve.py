@@ -162,12 +162,15 @@ def _fixed(plan: Plan, backend: Any, tol: float, progress: bool, stop: Any,
     return _finish(plan, lp, final_lp, outcome, backend, tol, timings, stop)
 
 
-def _audited(final_lp: LinearProgram, outcome: SolverOutcome, tol: float):
+def _audited(final_lp: LinearProgram, outcome: SolverOutcome, tol: float,
+             seconds: dict[str, float] | None = None) -> tuple[Any, Any]:
+    """The schedules of a solution and their audit (reading them timed into ``seconds``)."""
     d = final_lp.data
     assert d is not None
     t0 = time.perf_counter()
     sched = schedules(d, final_lp, outcome.x)
-    _audited.post_process = time.perf_counter() - t0  # type: ignore[attr-defined]
+    if seconds is not None:
+        seconds["post_process"] = time.perf_counter() - t0
     return sched, audit(d, sched, tolerance=tol)
 
 
@@ -177,8 +180,9 @@ def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: Sol
     status = outcome.status
     notes: list[str] = []
     sched = rep = None
+    post: dict[str, float] = {"post_process": 0.0}
     if status is Status.OPTIMAL:
-        sched, rep = _audited(final_lp, outcome, tol)
+        sched, rep = _audited(final_lp, outcome, tol, post)
         if not rep.ok:
             # another method may get it right (interior point on badly scaled plans)
             for alt in backend.alternatives():
@@ -196,9 +200,8 @@ def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: Sol
                          f"{rep.max_violation:.3g} (relative) at {rep.worst}; the plan is "
                          "not returned as optimal.")
     t1 = time.perf_counter()
-    post = getattr(_audited, "post_process", 0.0) if sched is not None else 0.0
-    timings = {**timings, "solve": outcome.seconds, "post_process": post,
-               "audit": t1 - t0 - post}
+    timings = {**timings, "solve": outcome.seconds, "post_process": post["post_process"],
+               "audit": t1 - t0 - post["post_process"]}
     diagnosis = None
     stopped = stop is not None and (stop.is_set() if hasattr(stop, "is_set") else stop())
     if status in (FAILED - {Status.NOT_VERIFIED}) | {Status.INFEASIBLE} and not stopped:
