@@ -24,6 +24,8 @@ from .errors import (
     UnproductiveEconomy,
 )
 from .expanding import ExpandingEconomy, expanding_economy
+from .io.planfile import load_plan_file, plan_file_schema, save_plan_file
+from .io.tables import TransactionsTable, read_transactions
 from .plan import (
     Consumption,
     LabourSupply,
@@ -33,12 +35,10 @@ from .plan import (
     TerminalGrowth,
     Trade,
 )
-from .planfile import load_plan_file, plan_file_schema, save_plan_file
 from .result import CAUTION, PlanResult
 from .solvers import Status
 from .steady import BalancedGrowth
 from .sweep import SerialExecutor, Sweep, sweep
-from .tables import TransactionsTable, read_transactions
 
 try:
     __version__ = version("growthplan")

@@ -11,7 +11,7 @@ import yaml
 
 import growthplan as gp
 from growthplan.demo import DEMO_DIR
-from growthplan.planfile import load_plan_file, plan_file_schema
+from growthplan.io.planfile import load_plan_file, plan_file_schema
 
 
 @pytest.fixture
@@ -118,7 +118,7 @@ def test_yaml_is_loaded_safely(folder):
 
 def test_save_and_load_round_trip(tmp_path):
     from growthplan.demo import demo_plan
-    from growthplan.planfile import save_plan_file
+    from growthplan.io.planfile import save_plan_file
 
     plan = demo_plan()
     path = save_plan_file(plan, tmp_path / "saved.yaml")

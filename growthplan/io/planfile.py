@@ -4,7 +4,7 @@ The file points at its tables by paths relative to the file itself. Layout
 (YAML; TOML has the same keys)::
 
     economy:
-      flows: flows.csv                  # transactions table (see growthplan.tables)
+      flows: flows.csv                  # transactions table (see growthplan.io.tables)
       capital: capital.csv              # one row per sector
       capital_stocks: capital_stocks.csv  # or capital_coefficients: b.csv
       consumption_basket: {food: 0.5, services: 0.5}
@@ -34,10 +34,10 @@ from typing import Any
 import yaml
 from pydantic import Field, field_validator, model_validator
 
-from ._validation import Model, Rule
-from .economy import Economy
-from .errors import InvalidInput, invalid
-from .plan import Plan
+from .._validation import Model, Rule
+from ..economy import Economy
+from ..errors import InvalidInput, invalid
+from ..plan import Plan
 
 __all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "save_plan_file",
            "plan_file_schema"]

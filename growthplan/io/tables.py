@@ -30,9 +30,9 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from ._validation import Rule, align_labels, raise_plain
-from .economy import CapitalSpec, Economy, Sector
-from .errors import InvalidInput, invalid
+from .._validation import Rule, align_labels, raise_plain
+from ..economy import CapitalSpec, Economy, Sector
+from ..errors import InvalidInput, invalid
 
 __all__ = ["TransactionsTable", "read_transactions", "read_frame",
            "capital_coefficients_from_stocks", "capital_table", "economy_from_coefficients",
