@@ -26,6 +26,8 @@ from __future__ import annotations
 
 import csv
 import io
+import re
+from collections import Counter
 from pathlib import Path
 from typing import Any
 
@@ -84,28 +86,43 @@ def read_frame(source: Any, *, what: str = "table") -> pd.DataFrame:
     return frame
 
 
+_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?")
+
+
+def _csv_cell(cell: str) -> Any:
+    """A CSV cell: None when empty, a float when it is a plain decimal number, else text.
+
+    Python's ``float`` rounds correctly, so numbers written with 17 significant
+    digits read back exactly; words such as ``NA``, ``nan`` or ``None`` stay text.
+    """
+    cell = cell.strip()
+    if not cell:
+        return None
+    return float(cell) if _NUMBER.fullmatch(cell) else cell
+
+
 def _read_csv(raw: bytes, path: Path, what: str) -> pd.DataFrame:
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
         raise invalid(what, "be UTF-8 text", str(path),
                       hint=f"({exc.reason} at byte {exc.start})") from None
+    if "\0" in text:
+        raise invalid(what, "be a text table (it holds a NUL byte)", str(path))
     try:
-        header = next(csv.reader(io.StringIO(text)), [])
+        # the csv module, not pandas: no guessing of missing values ("NA" is a sector,
+        # not a gap) and no per-column cost on a very wide file
+        rows: list[list[Any]] = []
+        for i, row in enumerate(csv.reader(io.StringIO(text, newline=""), strict=True)):
+            labels = [c.strip() or None for c in (row if i == 0 else row[:1])]
+            rows.append(labels if i == 0 else labels + [_csv_cell(c) for c in row[1:]])
     except csv.Error as exc:
-        raise invalid(what, "be a readable table", str(path), hint=f"({exc})") from None
-    labels = [h.strip() for h in header[1:]]
-    dup = sorted({h for h in labels if labels.count(h) > 1})
-    if dup:
-        raise invalid(f"{what} ({path.name})", "have each column label once", dup)
-    try:
-        # Labels as text and only empty cells missing: "NA" is a sector, not a gap.
-        frame = pd.read_csv(io.StringIO(text), index_col=0, skipinitialspace=True,
-                            keep_default_na=False, na_values=[""], dtype={0: str})
-    except (ValueError, pd.errors.ParserError, IndexError, OverflowError) as exc:
-        raise invalid(what, "be a readable table", str(path),
-                      hint=f"({show(str(exc).splitlines()[0] if str(exc) else exc)})") from None
-    return _drop_blank_rows(frame, path, what)
+        raise invalid(what, "be a readable CSV table", str(path), hint=f"({exc})") from None
+    return _frame_from_rows(rows, path, what)
+
+
+def _repeated(labels: list[str]) -> list[str]:
+    return sorted(k for k, n in Counter(labels).items() if n > 1)
 
 
 def _drop_blank_rows(frame: pd.DataFrame, path: Path, what: str) -> pd.DataFrame:
@@ -164,7 +181,7 @@ def _workbook_rows(raw: bytes, path: Path, what: str) -> list[list[Any]]:
 def _frame_from_rows(rows: list[list[Any]], path: Path, what: str) -> pd.DataFrame:
     rows = [r for r in rows if any(v is not None for v in r)]
     if not rows:
-        raise invalid(what, "hold a table (the first sheet is empty)", str(path))
+        raise invalid(what, "hold a table (it is empty)", str(path))
     width = max(len(r) for r in rows)
     rows = [list(r) + [None] * (width - len(r)) for r in rows]
     used = [j for j in range(width) if any(r[j] is not None for r in rows)]
@@ -175,7 +192,7 @@ def _frame_from_rows(rows: list[list[Any]], path: Path, what: str) -> pd.DataFra
         raise invalid(f"{what} ({path.name})", "have a label at the top of every column",
                       f"none in column {missing[0] + 1}")
     labels = [str(h).strip() for h in header[1:]]
-    dup = sorted({h for h in labels if labels.count(h) > 1})
+    dup = _repeated(labels)
     if dup:
         raise invalid(f"{what} ({path.name})", "have each column label once", dup)
     index = pd.Index([r[0] for r in body], dtype=object,
@@ -186,14 +203,29 @@ def _frame_from_rows(rows: list[list[Any]], path: Path, what: str) -> pd.DataFra
     return _drop_blank_rows(frame, path, what)
 
 
+def _to_number(v: Any) -> float:
+    """A cell as a float; NaN for anything that is not a number (text, true/false, lists)."""
+    if isinstance(v, bool | np.bool_) or (isinstance(v, str) and "_" in v):
+        return np.nan
+    try:
+        return float(v)
+    except (TypeError, ValueError, OverflowError):
+        return np.nan
+
+
 def _numeric(frame: pd.DataFrame, what: str) -> pd.DataFrame:
-    out = frame.apply(pd.to_numeric, errors="coerce")
-    bad = out.isna() & frame.notna()
-    if bad.to_numpy().any():
-        r, c = np.argwhere(bad.to_numpy())[0]
+    """The table as floats; a cell that holds something else than a number is named."""
+    if all(pd.api.types.is_numeric_dtype(t) and not pd.api.types.is_bool_dtype(t)
+           for t in frame.dtypes):
+        return frame.astype(float)
+    cells = frame.to_numpy(dtype=object)
+    numbers = np.frompyfunc(_to_number, 1, 1)(cells).astype(float)
+    bad = np.isnan(numbers) & ~pd.isna(cells)
+    if bad.any():
+        r, c = np.argwhere(bad)[0]
         raise invalid(f"{what}[{frame.index[r]}, {frame.columns[c]}]", "be a number",
                       frame.iat[r, c])
-    return out
+    return pd.DataFrame(numbers, index=frame.index, columns=frame.columns)
 
 
 class TransactionsTable:
