@@ -104,6 +104,8 @@ def _stat(path: Path) -> os.stat_result | None:
         return os.stat(path)
     except FileNotFoundError:
         return None
+    except NotADirectoryError:
+        raise invalid("path", "be inside a folder, not a file", str(path)) from None
     except (OSError, ValueError) as exc:
         if isinstance(exc, ValueError):  # an embedded NUL byte
             raise invalid("path", "be a valid path", str(path)) from None
