@@ -23,6 +23,8 @@ from .errors import (
     UnproductiveEconomy,
 )
 from .expanding import ExpandingEconomy, expanding_economy
+from .io.planfile import load_plan_file, plan_file_schema, save_plan_file
+from .io.tables import TransactionsTable, read_transactions
 from .lp.program import LinearProgram
 from .plan import (
     Consumption,
@@ -33,11 +35,9 @@ from .plan import (
     TerminalGrowth,
     Trade,
 )
-from .planfile import load_plan_file, plan_file_schema, save_plan_file
 from .results import CAUTION, Audit, Diagnosis, PlanResult
 from .steady import BalancedGrowth
 from .sweep import SerialExecutor, Sweep, sweep, variant
-from .tables import TransactionsTable, read_transactions
 
 try:
     __version__ = version("growthplan")

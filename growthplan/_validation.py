@@ -8,6 +8,7 @@ reaches the user.
 
 from __future__ import annotations
 
+import re
 from collections.abc import Sequence
 from typing import Annotated, Any
 
@@ -62,6 +63,7 @@ def translate(exc: ValidationError, model: str) -> GrowthplanError:
             field = loc or model
             rule = err["msg"][0].lower() + err["msg"][1:]
             rule = rule.replace("input should be", "be").replace("value error, ", "")
+            rule = re.sub(r"'([^']{60})[^']+'", r"'\1...'", rule)  # a quoted input, shortened
             text = f"{field} must {rule}. Got {show(err.get('input'))}."
         first_field = first_field or field
         messages.append(text)

@@ -83,7 +83,7 @@ def main() -> None:
 @click.option("--time-limit", type=float, default=None, help="Seconds for the solver.")
 def solve(plan_file: Path, out, excel, charts, overwrite: bool, progress: bool, method,
           time_limit) -> None:
-    from .planfile import load_plan_file
+    from .io.planfile import load_plan_file
 
     try:
         plan, opts = load_plan_file(plan_file)
@@ -102,7 +102,7 @@ def solve(plan_file: Path, out, excel, charts, overwrite: bool, progress: bool, 
 @main.command(help="Check a plan file without solving: validation and productiveness.")
 @click.argument("plan_file", type=click.Path(path_type=Path))
 def check(plan_file: Path) -> None:
-    from .planfile import load_plan_file
+    from .io.planfile import load_plan_file
 
     try:
         plan, _ = load_plan_file(plan_file)
@@ -147,7 +147,7 @@ def steady(flows: Path, capital: Path | None, capital_stocks: Path | None) -> No
 
 @main.command(help="Print the JSON Schema of plan files.")
 def schema() -> None:
-    from .planfile import plan_file_schema
+    from .io.planfile import plan_file_schema
 
     click.echo(json.dumps(plan_file_schema(), indent=2))
 
@@ -160,7 +160,7 @@ def schema() -> None:
 @click.option("--progress/--no-progress", default=True, show_default=True)
 def demo(out, excel, charts, overwrite: bool, progress: bool) -> None:
     from .demo import DEMO_DIR, PLAN_FILE
-    from .planfile import load_plan_file
+    from .io.planfile import load_plan_file
 
     try:
         plan, _ = load_plan_file(DEMO_DIR / PLAN_FILE)

@@ -9,8 +9,8 @@ from __future__ import annotations
 from pathlib import Path
 
 from .economy import Economy
+from .io.planfile import load_plan_file
 from .plan import Plan
-from .planfile import load_plan_file
 
 __all__ = ["DEMO_DIR", "PLAN_FILE", "demo_economy", "demo_plan"]
 

@@ -556,7 +556,7 @@ class Economy(Model):
         go to :meth:`TransactionsTable.to_economy` (``capital``,
         ``capital_coefficients``, ``capital_stocks``) and to the economy.
         """
-        from .tables import TransactionsTable
+        from .io.tables import TransactionsTable
 
         table = TransactionsTable(flows, gross_output, labour, final_demand=final_demand,
                                   value_added=value_added)
@@ -567,9 +567,9 @@ class Economy(Model):
                     capital_stocks=None, **kwargs: Any) -> Economy:
         """Build an economy from table files (CSV or Excel) or DataFrames.
 
-        See :mod:`growthplan.tables` for the layout of each table.
+        See :mod:`growthplan.io.tables` for the layout of each table.
         """
-        from .tables import read_frame, read_transactions
+        from .io.tables import read_frame, read_transactions
 
         table = read_transactions(flows)
         return table.to_economy(

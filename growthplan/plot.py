@@ -7,7 +7,6 @@ hatching as well as colour, so the charts stay readable in greyscale.
 
 from __future__ import annotations
 
-import itertools
 from pathlib import Path
 
 import numpy as np
@@ -158,9 +157,18 @@ def plot_scenarios(table: pd.DataFrame, x: str, y: str = "objective", *, by: str
     return ax
 
 
-def save_charts(result, folder: str | Path, *, overwrite: bool = False) -> list[Path]:
-    """Write the standard charts of a result as PNG files into ``folder``."""
-    from .errors import invalid
+def save_charts(result, folder: str | Path, *, overwrite: bool = False,
+                protect=()) -> list[Path]:
+    """Write the standard charts of a result as PNG files into ``folder``.
+
+    The charts are drawn into a temporary folder and moved in together, so
+    an error or an interrupt leaves none of them or all of them. An existing,
+    non-empty folder is written only with ``overwrite=True``, and then only
+    the files growthplan wrote there before are replaced (see
+    :func:`growthplan.io.atomic_folder`; ``protect`` lists input files the
+    folder must not hold).
+    """
+    from .io.atomic import atomic_folder
 
     plt = _plt()
     folder = Path(folder)
@@ -170,20 +178,16 @@ def save_charts(result, folder: str | Path, *, overwrite: bool = False) -> list[
               "labour": lambda ax: plot_labour(result, ax=ax),
               "shadow_prices": lambda ax: plot_shadow_prices(result, ax=ax),
               "ray_distance": lambda ax: plot_ray_distance(result, ax=ax)}
-    folder.mkdir(parents=True, exist_ok=True)
-    written = []
-    for name, draw in itertools.islice(charts.items(), None):
-        target = folder / f"{name}.png"
-        if target.exists() and not overwrite:
-            raise invalid("charts", "not overwrite existing files (pass overwrite)",
-                          str(target))
-        if name == "labour" and result.labour.empty:
-            continue
-        fig, ax = plt.subplots(figsize=(8, 4.5), layout="constrained")
-        draw(ax)
-        tmp = target.with_name(f".{target.name}.tmp.png")
-        fig.savefig(tmp, dpi=110)
-        plt.close(fig)
-        tmp.replace(target)
-        written.append(target)
-    return written
+    names = []
+    with atomic_folder(folder, overwrite=overwrite, protect=protect, kind="charts") as tmp:
+        for name, draw in charts.items():
+            if name == "labour" and result.labour.empty:
+                continue
+            fig, ax = plt.subplots(figsize=(8, 4.5), layout="constrained")
+            try:
+                draw(ax)
+                fig.savefig(tmp / f"{name}.png", dpi=110)
+            finally:
+                plt.close(fig)
+            names.append(f"{name}.png")
+    return [folder / n for n in names]

@@ -78,8 +78,23 @@ def pytest_terminal_summary(terminalreporter):
     try:
         from test_fuzz import CASES
     except ImportError:
-        return
+        CASES = None
     if CASES:
         total = sum(CASES.values())
         parts = ", ".join(f"{k} {v}" for k, v in sorted(CASES.items()))
         terminalreporter.write_line(f"fuzzed bad inputs tried: {total} ({parts})")
+    try:
+        from test_io_hostile import OUTCOMES
+    except ImportError:
+        OUTCOMES = None
+    if OUTCOMES:
+        outcomes: dict[str, int] = {}
+        for (_, outcome), n in OUTCOMES.items():
+            outcomes[outcome] = outcomes.get(outcome, 0) + n
+        families: dict[str, list[str]] = {}
+        for (family, outcome), n in sorted(OUTCOMES.items()):
+            families.setdefault(family, []).append(f"{outcome} {n}")
+        terminalreporter.write_line(
+            f"hostile file inputs tried: {sum(outcomes.values())} ("
+            + ", ".join(f"{k} {v}" for k, v in sorted(outcomes.items())) + "; by family: "
+            + "; ".join(f"{f} {', '.join(p)}" for f, p in families.items()) + ")")

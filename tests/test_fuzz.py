@@ -15,7 +15,7 @@ from hypothesis import strategies as st
 
 import growthplan as gp
 from growthplan.demo import DEMO_DIR
-from growthplan.planfile import load_plan_file
+from growthplan.io.planfile import load_plan_file
 
 CASES: Counter = Counter()  # reported at the end of the run (conftest)
 

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import os
 import shutil
 
 import numpy as np
@@ -11,7 +12,7 @@ import yaml
 
 import growthplan as gp
 from growthplan.demo import DEMO_DIR
-from growthplan.planfile import load_plan_file, plan_file_schema
+from growthplan.io.planfile import load_plan_file, plan_file_schema
 
 
 @pytest.fixture
@@ -118,7 +119,7 @@ def test_yaml_is_loaded_safely(folder):
 
 def test_save_and_load_round_trip(tmp_path):
     from growthplan.demo import demo_plan
-    from growthplan.planfile import save_plan_file
+    from growthplan.io.planfile import save_plan_file
 
     plan = demo_plan()
     path = save_plan_file(plan, tmp_path / "saved.yaml")
@@ -138,3 +139,183 @@ def test_coefficient_tables_need_one_source(folder):
     d["economy"]["input_coefficients"] = "a.csv"
     with pytest.raises(gp.InvalidInput, match="exactly one of flows and input_coefficients"):
         load_plan_file(write(folder, d))
+
+
+# -- hostile plan files (regressions) ------------------------------------------------------
+
+def test_billion_laughs_is_refused_before_expansion(folder):
+    # the classic 9-level entity expansion (common practice: "billion laughs"), in YAML
+    # aliases; expanded it would be 10**9 strings
+    lines = ['l0: &l0 ["lol", "lol", "lol", "lol", "lol", "lol", "lol", "lol", "lol"]']
+    lines += [f"l{i}: &l{i} [" + ", ".join([f"*l{i - 1}"] * 9) + "]" for i in range(1, 10)]
+    text = (folder / "plan.yaml").read_text().replace(
+        "  labour: {start: 4900, growth: 0.012}",
+        "  labour: {series: *l9}")
+    p = folder / "laughs.yaml"
+    p.write_text("\n".join(lines) + "\n" + text)
+    assert len(p.read_bytes()) < 3000
+    with pytest.raises(gp.InvalidInput, match=r"laughs.yaml, line 1: .*anchors or aliases"):
+        load_plan_file(p)
+
+
+def test_duplicate_key_names_key_and_both_lines(folder):
+    p = folder / "plan.yaml"
+    p.write_text(p.read_text().replace("  final_demand_growth: 0.03\n",
+                                       "  final_demand_growth: 0.03\n  terminal: {rate: 0.1}\n"))
+    with pytest.raises(gp.InvalidInput) as err:
+        load_plan_file(p)
+    msg = str(err.value)
+    lines = p.read_text().splitlines()
+    first = next(i for i, s in enumerate(lines) if s.startswith("  terminal:")) + 1
+    second = max(i for i, s in enumerate(lines) if s.startswith("  terminal:")) + 1
+    assert f"line {second}" in msg and f"first on line {first}" in msg and "'terminal'" in msg
+
+
+@pytest.mark.parametrize("series", ["{2027: 9000, '2027': 9100}",
+                                    "{2027.7: 9000}"])
+def test_year_keys_must_be_whole_and_once(folder, series):
+    p = folder / "plan.yaml"
+    p.write_text(p.read_text().replace("    floor: 9000 ", f"    floor: {series} "))
+    with pytest.raises(gp.InvalidInput, match="2027"):
+        load_plan_file(p)
+
+
+@pytest.mark.parametrize("years, match", [("{first: on, last: 2041}", "whole years"),
+                                          ("{first: 2027, last: yes}", "whole years"),
+                                          ("{first: 2027.5, last: 2041}", "whole years"),
+                                          ("{first: 2027, last: 9999}", "at most 1000 years"),
+                                          ("[2027, true]", "whole years")])
+def test_years_refused_at_file_level(folder, years, match):
+    p = folder / "plan.yaml"
+    p.write_text(p.read_text().replace("{first: 2027, last: 2041}", years))
+    with pytest.raises(gp.InvalidInput, match=match):
+        load_plan_file(p)
+
+
+def test_key_yaml_reads_as_false_is_refused(folder):
+    # YAML 1.1 reads an unquoted no/off as false (common practice: the "Norway problem")
+    p = folder / "plan.yaml"
+    p.write_text(p.read_text().replace("    food: 0.32", "    no: 0.32"))
+    with pytest.raises(gp.InvalidInput, match="key 'no'.*false"):
+        load_plan_file(p)
+
+
+def test_deep_nesting_and_size_are_refused(folder):
+    p = folder / "plan.yaml"
+    p.write_text("x: " + "[" * 150 + "]" * 150 + "\n" + p.read_text())
+    with pytest.raises(gp.InvalidInput, match="nest at most 100"):
+        load_plan_file(p)
+    big = folder / "big.yaml"
+    with open(big, "wb") as f:
+        f.truncate((5 << 20) + 1)
+    with pytest.raises(gp.InvalidInput, match="5 MB"):
+        load_plan_file(big)
+
+
+@pytest.mark.parametrize("name", ["../flows.csv", "../../../../../../../etc/passwd",
+                                  "/etc/passwd", "outside.csv"])
+def test_tables_stay_in_the_plan_folder(folder, name):
+    inner = folder / "inner"
+    inner.mkdir()
+    (inner / "capital.csv").write_text((folder / "capital.csv").read_text())
+    (inner / "capital_stocks.csv").write_text((folder / "capital_stocks.csv").read_text())
+    os.symlink(folder / "flows.csv", inner / "outside.csv")
+    d = demo_data()
+    d["economy"]["flows"] = name
+    p = write(inner, d)
+    with pytest.raises(gp.InvalidInput, match="plan file's folder"):
+        load_plan_file(p)
+    if name in ("../flows.csv", "outside.csv"):
+        plan, _ = load_plan_file(p, allow_outside=True)
+        assert plan.economy.n == 10
+
+
+@pytest.mark.parametrize("kind", ["folder", "fifo", "device", "huge"])
+def test_special_table_files_are_not_read(folder, kind, monkeypatch):
+    from growthplan.io import tables
+
+    d = demo_data()
+    target = folder / "special.csv"
+    if kind == "folder":
+        target.mkdir()
+    elif kind == "fifo":
+        os.mkfifo(target)  # reading it would block for ever
+    elif kind == "device":
+        os.symlink("/dev/zero", target)  # reading it would never end
+    else:
+        monkeypatch.setattr(tables, "TABLE_MAX_BYTES", 500)
+        target.write_text((folder / "flows.csv").read_text())
+    d["economy"]["flows"] = "special.csv"
+    with pytest.raises(gp.InvalidInput, match="special.csv"):
+        load_plan_file(write(folder, d), allow_outside=kind == "device")
+
+
+def test_os_errors_name_the_file_on_one_line(folder):
+    (folder / "dir.yaml").mkdir()
+    for p in (folder / "dir.yaml", folder / "missing.yaml"):
+        with pytest.raises(gp.InvalidInput) as err:
+            load_plan_file(p)
+        assert p.name in str(err.value) and "\n" not in str(err.value)
+
+
+@pytest.mark.skipif(os.name != "posix" or os.geteuid() == 0,
+                    reason="permissions do not bind the superuser")
+def test_unreadable_plan_file(folder):
+    p = folder / "plan.yaml"
+    p.chmod(0)
+    try:
+        with pytest.raises(gp.InvalidInput, match="permission denied"):
+            load_plan_file(p)
+    finally:
+        p.chmod(0o644)
+
+
+def test_long_values_are_shortened_in_messages(folder):
+    d = demo_data()
+    d["plan"]["objective"]["kind"] = "x" * 100_000
+    with pytest.raises(gp.InvalidInput) as err:
+        load_plan_file(write(folder, d))
+    assert len(str(err.value)) < 1000
+    d = demo_data()
+    d["economy"]["flows"] = "y" * 100_000 + ".csv"
+    with pytest.raises(gp.InvalidInput) as err:
+        load_plan_file(write(folder, d))
+    assert len(str(err.value)) < 1000
+
+
+def test_numeric_and_na_sector_names_survive_the_round_trip(tmp_path):
+    from growthplan.demo import demo_economy
+
+    econ = demo_economy()
+    names = ["NA", "01", "1e3", "null", "None", "nan", "2030", "true", "1.50", "N/A"]
+    renamed = gp.Economy(
+        sectors=names, input_coefficients=econ.A.to_numpy(),
+        capital_coefficients=econ.B.to_numpy(), labour_coefficients=econ.labour_coefficients,
+        capital=dict(zip(names, econ.capital.values(), strict=True)),
+        consumption_basket=econ.consumption_basket)
+    plan = gp.Plan(economy=renamed, years=range(2027, 2031), labour={"start": 4900.0},
+                   consumption={"floor": 9000.0}, final_demand={"01": 100.0, "NA": 50.0},
+                   targets=[gp.Target("1e3", year=2029, capacity_at_least=10.0)])
+    path = gp.save_plan_file(plan, tmp_path / "odd.yaml")
+    again, _ = load_plan_file(path)
+    assert again.economy.names == names
+    assert again.economy == renamed
+    assert again.model_dump_json() == plan.model_dump_json()
+
+
+def test_save_leaves_nothing_when_a_table_fails(tmp_path, monkeypatch):
+    from growthplan.demo import demo_plan
+    from growthplan.io import planfile
+
+    calls = []
+
+    def failing(key, frame, path):
+        calls.append(key)
+        if len(calls) == 2:
+            raise KeyboardInterrupt
+        frame.to_csv(path)
+
+    monkeypatch.setattr(planfile, "_write_csv", failing)
+    with pytest.raises(KeyboardInterrupt):
+        planfile.save_plan_file(demo_plan(), tmp_path / "p.yaml")
+    assert list(tmp_path.iterdir()) == []

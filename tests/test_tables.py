@@ -104,3 +104,105 @@ def test_demo_tables_load():
     assert econ.spectral_radius() < 1
     assert econ.capital["energy"].lead_time == 3
     assert econ.capital["energy"].spending_profile == [0.2, 0.4, 0.4]
+
+
+# -- hostile and unusual table files (regressions) ------------------------------------------
+
+def flows_text(a="s1", b="s2") -> str:
+    # Miller & Blair (2009), ch. 2 table, as in Z and X above
+    return (f"sector,{a},{b},final_demand\n{a},150,500,350\n{b},200,100,1700\n"
+            "gross_output,1000,2000,\nlabour,100,300,\n")
+
+
+@pytest.mark.parametrize("label", ["NA", "null", "None", "nan", "N/A", "#N/A", "NaN"])
+def test_sector_labels_that_look_missing_are_kept(tmp_path, label):
+    p = tmp_path / "flows.csv"
+    p.write_text(flows_text(a=label))
+    econ = gp.Economy.from_tables(p)
+    assert econ.names == [label, "s2"]
+    np.testing.assert_allclose(econ.input_coefficients, [[0.15, 0.25], [0.20, 0.05]])
+
+
+@pytest.mark.parametrize("cell", ["NA", "nan", "null", "None"])
+def test_a_missing_value_word_in_a_cell_is_not_zero(tmp_path, cell):
+    p = tmp_path / "flows.csv"
+    p.write_text(flows_text().replace("s1,150", f"s1,{cell}"))
+    with pytest.raises(gp.InvalidInput, match=r"flows\[s1, s1\] must be a number"):
+        gp.Economy.from_tables(p)
+
+
+def test_all_numeric_labels_keep_their_spelling(tmp_path):
+    p = tmp_path / "flows.csv"
+    p.write_text(flows_text(a="01", b="1e3"))
+    assert gp.Economy.from_tables(p).names == ["01", "1e3"]
+
+
+def test_huge_integer_cell_is_invalid_input(tmp_path):
+    p = tmp_path / "flows.csv"
+    p.write_text(flows_text().replace("s1,150", "s1," + "9" * 400))
+    with pytest.raises(gp.InvalidInput, match="flows"):
+        gp.Economy.from_tables(p)
+
+
+@pytest.mark.parametrize("text, match", [
+    (flows_text().replace("sector,s1,s2", "sector,s1,s1"), "column label once"),
+    (flows_text() + ",5,5,5\n", "label in the first column"),
+    (flows_text().replace("s1,150", 's1,"150'), "readable"),
+])
+def test_malformed_csv_layout(tmp_path, text, match):
+    p = tmp_path / "flows.csv"
+    p.write_text(text)
+    with pytest.raises(gp.InvalidInput, match=match):
+        gp.Economy.from_tables(p)
+
+
+def _workbook(path, formula=None):
+    import openpyxl
+
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "flows"
+    for line in flows_text().splitlines():
+        ws.append([float(v) if v.isdigit() else (v or None) for v in line.split(",")])
+    if formula:
+        ws[formula] = "=100+50"  # written by a script: no saved result
+    wb.save(path)
+
+
+def test_excel_formula_without_saved_result_is_refused(tmp_path):
+    _workbook(tmp_path / "ok.xlsx")
+    econ = gp.Economy.from_tables(tmp_path / "ok.xlsx")
+    np.testing.assert_allclose(econ.input_coefficients, [[0.15, 0.25], [0.20, 0.05]])
+    _workbook(tmp_path / "f.xlsx", formula="B2")
+    with pytest.raises(gp.InvalidInput, match=r"f.xlsx, sheet 'flows', cell B2"):
+        gp.Economy.from_tables(tmp_path / "f.xlsx")
+
+
+@pytest.mark.parametrize("content", [b"not a workbook", b"PK\x03\x04" + b"\0" * 64, b""])
+def test_corrupt_workbook_names_the_file(tmp_path, content):
+    p = tmp_path / "broken.xlsx"
+    p.write_bytes(content)
+    with pytest.raises(gp.InvalidInput, match="broken.xlsx"):
+        gp.Economy.from_tables(p)
+
+
+def test_folder_as_table_names_the_path(tmp_path):
+    (tmp_path / "flows.csv").mkdir()
+    with pytest.raises(gp.InvalidInput, match="flows.csv") as err:
+        gp.Economy.from_tables(tmp_path / "flows.csv")
+    assert "\n" not in str(err.value)
+
+
+def test_numpy_integers_accepted_where_ints_are(tmp_path):
+    cap = pd.DataFrame({"initial_capacity": np.array([1000, 1000], dtype=np.int64),
+                        "mean_service_life": np.array([20, 10], dtype=np.int32),
+                        "lead_time": np.array([2, 1], dtype=np.int64),
+                        "spending_profile": ["0.5;0.5", np.int64(1)]}, index=["s1", "s2"])
+    stocks = pd.DataFrame([[500.0, 800.0], [300.0, 600.0]], index=["s1", "s2"],
+                          columns=["s1", "s2"])
+    econ = gp.Economy.from_flows(Z, X, capital=cap, capital_stocks=stocks)
+    assert econ.capital["s1"].lead_time == 2 and econ.capital["s2"].spending_profile == [1.0]
+    p = tmp_path / "flows.csv"
+    p.write_text(flows_text())
+    econ = gp.Economy.from_tables(p, capital=cap, capital_stocks=stocks)
+    assert econ.capital["s2"].mean_service_life == 10

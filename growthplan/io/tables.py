@@ -24,15 +24,21 @@ capital stocks by using sector divided by capacity.
 
 from __future__ import annotations
 
+import csv
+import io
+import re
+from collections import Counter
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 import pandas as pd
 
-from ._validation import Rule, align_labels, raise_plain
-from .economy import CapitalSpec, Economy, Sector
-from .errors import InvalidInput, invalid
+from .._validation import Rule, align_labels, raise_plain
+from ..economy import CapitalSpec, Economy, Sector
+from ..errors import InvalidInput, invalid, show
+from ._files import read_regular_file
+from .atomic import atomic_files
 
 __all__ = ["TransactionsTable", "read_transactions", "read_frame",
            "capital_coefficients_from_stocks", "capital_table", "economy_from_coefficients",
@@ -43,35 +49,183 @@ LIST_COLUMNS = ("spending_profile", "investment_history")
 CAPITAL_COLUMNS = set(CapitalSpec.model_fields)
 
 
+TABLE_MAX_BYTES = 64 << 20
+"""Largest table file read (64 MB): a 1,000-sector table at full precision is ~20 MB."""
+TABLE_MAX_CELLS = 4_000_000
+"""Most cells read from one workbook sheet (a compressed workbook can expand a lot)."""
+
+
 def read_frame(source: Any, *, what: str = "table") -> pd.DataFrame:
-    """A DataFrame from a DataFrame, a CSV file or an Excel workbook (first sheet)."""
+    """A DataFrame from a DataFrame, a CSV file or an Excel workbook (first sheet).
+
+    The first column holds the row labels. Labels are read as text, so
+    sectors named ``NA``, ``null``, ``None``, ``nan`` or ``007`` keep their
+    names; only an empty cell is missing. Only regular files up to
+    :data:`TABLE_MAX_BYTES` are read; workbooks are refused when a formula
+    has no saved result (its value would read as blank).
+
+    Raises
+    ------
+    InvalidInput
+        One line naming ``what`` and the file.
+    """
     if isinstance(source, pd.DataFrame):
         return source.copy()
     path = Path(source)
-    if not path.exists():
-        raise invalid(what, "name an existing file", str(path))
-    try:
-        if path.suffix.lower() in (".xlsx", ".xlsm", ".xls"):
-            frame = pd.read_excel(path, index_col=0)
-        else:
-            frame = pd.read_csv(path, index_col=0, skipinitialspace=True, encoding="utf-8")
-    except UnicodeDecodeError as exc:
-        raise invalid(what, "be UTF-8 text", str(path), hint=f"({exc.reason})") from None
-    except (ValueError, pd.errors.ParserError) as exc:
-        raise invalid(what, "be a readable table", str(path), hint=str(exc)) from None
+    suffix = path.suffix.lower()
+    raw = read_regular_file(path, what=what, limit=TABLE_MAX_BYTES)
+    if suffix in (".xlsx", ".xlsm"):
+        frame = _frame_from_rows(_workbook_rows(raw, path, what), path, what)
+    elif suffix == ".xls":
+        raise invalid(what, "be CSV or an .xlsx workbook (save the old .xls format as "
+                      ".xlsx)", str(path))
+    else:
+        frame = _read_csv(raw, path, what)
     frame.index = frame.index.map(lambda x: str(x).strip())
     frame.columns = [str(c).strip() for c in frame.columns]
     return frame
 
 
+_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?")
+
+
+def _csv_cell(cell: str) -> Any:
+    """A CSV cell: None when empty, a float when it is a plain decimal number, else text.
+
+    Python's ``float`` rounds correctly, so numbers written with 17 significant
+    digits read back exactly; words such as ``NA``, ``nan`` or ``None`` stay text.
+    """
+    cell = cell.strip()
+    if not cell:
+        return None
+    return float(cell) if _NUMBER.fullmatch(cell) else cell
+
+
+def _read_csv(raw: bytes, path: Path, what: str) -> pd.DataFrame:
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise invalid(what, "be UTF-8 text", str(path),
+                      hint=f"({exc.reason} at byte {exc.start})") from None
+    if "\0" in text:
+        raise invalid(what, "be a text table (it holds a NUL byte)", str(path))
+    try:
+        # the csv module, not pandas: no guessing of missing values ("NA" is a sector,
+        # not a gap) and no per-column cost on a very wide file
+        rows: list[list[Any]] = []
+        for i, row in enumerate(csv.reader(io.StringIO(text, newline=""), strict=True)):
+            labels = [c.strip() or None for c in (row if i == 0 else row[:1])]
+            rows.append(labels if i == 0 else labels + [_csv_cell(c) for c in row[1:]])
+    except csv.Error as exc:
+        raise invalid(what, "be a readable CSV table", str(path), hint=f"({exc})") from None
+    return _frame_from_rows(rows, path, what)
+
+
+def _repeated(labels: list[str]) -> list[str]:
+    return sorted(k for k, n in Counter(labels).items() if n > 1)
+
+
+def _drop_blank_rows(frame: pd.DataFrame, path: Path, what: str) -> pd.DataFrame:
+    """Drop rows with no label and no values; a row with values needs a label."""
+    unlabelled = frame.index.isna() | (frame.index.map(lambda x: str(x).strip()) == "")
+    if not unlabelled.any():
+        return frame
+    values = frame[unlabelled].notna().any(axis=1).to_numpy()
+    if values.any():
+        row = int(np.flatnonzero(unlabelled)[np.argmax(values)]) + 2  # 1-based, after header
+        raise invalid(f"{what} ({path.name})", "have a label in the first column of every "
+                      "row with values", f"an unlabelled row {row}")
+    return frame[~unlabelled]
+
+
+def _workbook_rows(raw: bytes, path: Path, what: str) -> list[list[Any]]:
+    """Values of the first sheet; formulas without a saved result are refused.
+
+    ``data_only=True`` gives the value a spreadsheet program saved with each
+    formula, or None when none was saved (files written by scripts); the
+    second, formula-keeping load tells those apart from blank cells.
+    """
+    import openpyxl
+
+    try:
+        values_wb = openpyxl.load_workbook(io.BytesIO(raw), read_only=True, data_only=True)
+        formula_wb = openpyxl.load_workbook(io.BytesIO(raw), read_only=True, data_only=False)
+        if not values_wb.worksheets:
+            raise invalid(what, "have a worksheet", str(path))
+        sheet, fsheet = values_wb.worksheets[0], formula_wb.worksheets[0]
+        rows: list[list[Any]] = []
+        cells = 0
+        for vrow, frow in zip(sheet.iter_rows(), fsheet.iter_rows(), strict=False):
+            cells += len(vrow)
+            if cells > TABLE_MAX_CELLS:
+                raise invalid(what, f"have at most {TABLE_MAX_CELLS:,} cells in its sheet",
+                              str(path))
+            for v, f in zip(vrow, frow, strict=False):
+                if v.value is None and getattr(f, "data_type", None) == "f":
+                    raise invalid(f"{what} ({path.name}, sheet {sheet.title!r}, cell "
+                                  f"{f.coordinate})", "hold a value, not a formula without "
+                                  "a saved result (open and save the workbook in a "
+                                  "spreadsheet program, or paste values)",
+                                  show(str(f.value)))
+            rows.append([c.value for c in vrow])
+        values_wb.close()
+        formula_wb.close()
+    except InvalidInput:
+        raise
+    except Exception as exc:  # noqa: BLE001 - a corrupt workbook raises anything
+        raise invalid(what, "be a readable .xlsx workbook", str(path),
+                      hint=f"({type(exc).__name__})") from None
+    return rows
+
+
+def _frame_from_rows(rows: list[list[Any]], path: Path, what: str) -> pd.DataFrame:
+    rows = [r for r in rows if any(v is not None for v in r)]
+    if not rows:
+        raise invalid(what, "hold a table (it is empty)", str(path))
+    width = max(len(r) for r in rows)
+    rows = [list(r) + [None] * (width - len(r)) for r in rows]
+    used = [j for j in range(width) if any(r[j] is not None for r in rows)]
+    width = used[-1] + 1
+    header, body = rows[0][:width], [r[:width] for r in rows[1:]]
+    missing = [j for j in range(1, width) if header[j] is None]
+    if missing:
+        raise invalid(f"{what} ({path.name})", "have a label at the top of every column",
+                      f"none in column {missing[0] + 1}")
+    labels = [str(h).strip() for h in header[1:]]
+    dup = _repeated(labels)
+    if dup:
+        raise invalid(f"{what} ({path.name})", "have each column label once", dup)
+    index = pd.Index([r[0] for r in body], dtype=object,
+                     name=None if header[0] is None else str(header[0]))
+    data = [[np.nan if v is None else v for v in r[1:]] for r in body]
+    frame = pd.DataFrame(data, index=index, columns=labels, dtype=object).infer_objects()
+    frame.index = frame.index.map(lambda x: x if x is None else str(x))
+    return _drop_blank_rows(frame, path, what)
+
+
+def _to_number(v: Any) -> float:
+    """A cell as a float; NaN for anything that is not a number (text, true/false, lists)."""
+    if isinstance(v, bool | np.bool_) or (isinstance(v, str) and "_" in v):
+        return np.nan
+    try:
+        return float(v)
+    except (TypeError, ValueError, OverflowError):
+        return np.nan
+
+
 def _numeric(frame: pd.DataFrame, what: str) -> pd.DataFrame:
-    out = frame.apply(pd.to_numeric, errors="coerce")
-    bad = out.isna() & frame.notna()
-    if bad.to_numpy().any():
-        r, c = np.argwhere(bad.to_numpy())[0]
+    """The table as floats; a cell that holds something else than a number is named."""
+    if all(pd.api.types.is_numeric_dtype(t) and not pd.api.types.is_bool_dtype(t)
+           for t in frame.dtypes):
+        return frame.astype(float)
+    cells = frame.to_numpy(dtype=object)
+    numbers = np.frompyfunc(_to_number, 1, 1)(cells).astype(float)
+    bad = np.isnan(numbers) & ~pd.isna(cells)
+    if bad.any():
+        r, c = np.argwhere(bad)[0]
         raise invalid(f"{what}[{frame.index[r]}, {frame.columns[c]}]", "be a number",
                       frame.iat[r, c])
-    return out
+    return pd.DataFrame(numbers, index=frame.index, columns=frame.columns)
 
 
 class TransactionsTable:
@@ -258,7 +412,8 @@ def _capital_specs(capital: Any, names: list[str], gross: pd.Series) -> dict[str
                           unknown)
         items = {}
         for name, row in frame.iterrows():
-            entry = {k: v for k, v in row.items() if not (isinstance(v, float) and np.isnan(v))}
+            entry = {k: v.item() if isinstance(v, np.generic) else v for k, v in row.items()
+                     if not (isinstance(v, float) and np.isnan(v))}
             for key in LIST_COLUMNS:
                 value = entry.get(key)
                 if isinstance(value, str):
@@ -339,26 +494,40 @@ def capital_table(econ: Economy) -> pd.DataFrame:
     return frame
 
 
-def write_coefficient_tables(econ: Economy, folder, prefix: str = "") -> dict[str, str]:
-    """Write A, B, labour coefficients and capital as CSV files; return their file names."""
-    from pathlib import Path
-
-    folder = Path(folder)
-    names = {"input_coefficients": f"{prefix}input_coefficients.csv",
-             "capital_coefficients": f"{prefix}capital_coefficients.csv"}
-    econ.A.rename_axis("sector").to_csv(folder / names["input_coefficients"],
-                                         float_format="%.17g")
-    econ.B.rename_axis("sector").to_csv(folder / names["capital_coefficients"],
-                                         float_format="%.17g")
+def _coefficient_frames(econ: Economy, prefix: str) -> dict[str, tuple[str, pd.DataFrame]]:
+    """The coefficient tables of ``econ`` by plan-file key: (file name, table)."""
+    out = {"input_coefficients": (f"{prefix}input_coefficients.csv",
+                                  econ.A.rename_axis("sector")),
+           "capital_coefficients": (f"{prefix}capital_coefficients.csv",
+                                    econ.B.rename_axis("sector"))}
     if econ.labour_coefficients is not None:
-        names["labour_coefficients"] = f"{prefix}labour_coefficients.csv"
-        pd.DataFrame(np.asarray(econ.labour_coefficients), index=pd.Index(
-            econ.labour_kinds, name="kind"), columns=econ.names).to_csv(
-            folder / names["labour_coefficients"], float_format="%.17g")
+        out["labour_coefficients"] = (f"{prefix}labour_coefficients.csv", pd.DataFrame(
+            np.asarray(econ.labour_coefficients), columns=econ.names,
+            index=pd.Index(econ.labour_kinds, name="kind")))
     if econ.capital is not None:
-        names["capital"] = f"{prefix}capital.csv"
-        capital_table(econ).to_csv(folder / names["capital"])
-    return names
+        out["capital"] = (f"{prefix}capital.csv", capital_table(econ))
+    return out
+
+
+def _write_csv(key: str, frame: pd.DataFrame, path: Path) -> None:
+    # 17 significant digits read back to the same float (IEEE 754 double round trip)
+    frame.to_csv(path, float_format=None if key == "capital" else "%.17g")
+
+
+def write_coefficient_tables(econ: Economy, folder, prefix: str = "", *,
+                             overwrite: bool = False) -> dict[str, str]:
+    """Write A, B, labour coefficients and capital as CSV files; return their file names.
+
+    The files appear together or not at all (see :mod:`growthplan.io.atomic`);
+    existing files are replaced only with ``overwrite=True``.
+    """
+    folder = Path(folder)
+    frames = _coefficient_frames(econ, prefix)
+    with atomic_files([folder / name for name, _ in frames.values()],
+                      overwrite=overwrite) as temps:
+        for (key, (_, frame)), tmp in zip(frames.items(), temps, strict=True):
+            _write_csv(key, frame, tmp)
+    return {key: name for key, (name, _) in frames.items()}
 
 
 def economy_from_coefficients(input_coefficients, *, capital=None, capital_coefficients=None,

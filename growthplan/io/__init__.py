@@ -1,0 +1,77 @@
+"""Files in and out: plan files, transactions tables and the atomic writer.
+
+:mod:`~growthplan.io.planfile` reads and writes YAML/TOML plan files,
+:mod:`~growthplan.io.tables` reads transactions and coefficient tables (CSV
+or Excel), and :mod:`~growthplan.io.atomic` is the one writer every export
+goes through (written aside, renamed into place only on success).
+
+The names below are loaded on first use, so that ``growthplan.io.atomic``
+can be imported by any module (results, plans) without importing the plan
+model in turn.
+"""
+
+from __future__ import annotations
+
+import importlib
+from typing import TYPE_CHECKING, Any
+
+from .atomic import atomic_file, atomic_files, atomic_folder
+
+if TYPE_CHECKING:
+    from .planfile import (
+        EconomyTables,
+        PlanFile,
+        SolveOptions,
+        load_plan_file,
+        plan_file_schema,
+        save_plan_file,
+    )
+    from .tables import (
+        TransactionsTable,
+        capital_coefficients_from_stocks,
+        capital_table,
+        economy_from_coefficients,
+        read_frame,
+        read_transactions,
+        write_coefficient_tables,
+    )
+
+_LAZY = {
+    "EconomyTables": "planfile", "PlanFile": "planfile", "SolveOptions": "planfile",
+    "load_plan_file": "planfile", "plan_file_schema": "planfile", "save_plan_file": "planfile",
+    "TransactionsTable": "tables", "capital_coefficients_from_stocks": "tables",
+    "capital_table": "tables", "economy_from_coefficients": "tables", "read_frame": "tables",
+    "read_transactions": "tables", "write_coefficient_tables": "tables",
+}
+
+__all__ = [
+    "EconomyTables",
+    "PlanFile",
+    "SolveOptions",
+    "TransactionsTable",
+    "atomic_file",
+    "atomic_files",
+    "atomic_folder",
+    "capital_coefficients_from_stocks",
+    "capital_table",
+    "economy_from_coefficients",
+    "load_plan_file",
+    "plan_file_schema",
+    "read_frame",
+    "read_transactions",
+    "save_plan_file",
+    "write_coefficient_tables",
+]
+
+
+def __getattr__(name: str) -> Any:
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    value = getattr(importlib.import_module(f"{__name__}.{module}"), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(__all__)

@@ -1,0 +1,481 @@
+"""Plan files: a plan and its economy in one YAML or TOML file.
+
+The file points at its tables by paths relative to the file itself. Layout
+(YAML; TOML has the same keys)::
+
+    economy:
+      flows: flows.csv                  # transactions table (see growthplan.io.tables)
+      capital: capital.csv              # one row per sector
+      capital_stocks: capital_stocks.csv  # or capital_coefficients: b.csv
+      consumption_basket: {food: 0.5, services: 0.5}
+    plan:
+      years: {first: 2027, last: 2041}  # or a list of years
+      labour: {start: 4900, growth: 0.012}
+      consumption: {floor: 9000, floor_growth: 0.02, max_fall: 0.0}
+      final_demand: {services: 1500}
+      final_demand_growth: 0.03
+      targets:
+        - {sector: energy, year: 2034, capacity_at_least: 3400}
+      terminal: {rate: 0.04}
+      objective: {kind: terminal_capacity}
+    solve: {method: auto, time_limit: 600}
+
+Everything under ``plan`` is validated by :class:`~growthplan.Plan` itself;
+:func:`plan_file_schema` publishes the JSON Schema of the whole file.
+
+A plan file may come from anyone, so it is read defensively: at most
+:data:`PLAN_FILE_MAX_BYTES`, parsed once by a safe YAML loader (the C one
+where installed) that refuses anchors and aliases (no "billion laughs"),
+nesting deeper than :data:`MAX_DEPTH`, repeated keys (``2030`` and
+``"2030"`` count as the same key) and keys YAML would turn into true/false,
+decimals or null. Tables must lie in the plan file's folder or below it.
+"""
+
+from __future__ import annotations
+
+import os
+import tomllib
+from pathlib import Path
+from typing import Any
+
+import yaml
+from pydantic import Field, field_validator, model_validator
+from yaml.composer import Composer
+from yaml.events import AliasEvent
+from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
+
+from .._validation import Model, Rule
+from ..economy import Economy
+from ..errors import InvalidInput, invalid, show
+from ..plan import Plan
+from ._files import read_regular_file
+from .atomic import atomic_files
+from .tables import _coefficient_frames, _write_csv, economy_from_coefficients
+
+__all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "save_plan_file",
+           "plan_file_schema", "PLAN_FILE_MAX_BYTES", "MAX_DEPTH", "MAX_YEARS"]
+
+PLAN_FILE_MAX_BYTES = 5 << 20
+"""Largest plan file read (5 MB); real ones are a few kB."""
+MAX_DEPTH = 100
+"""Deepest nesting of mappings and lists in a plan file."""
+MAX_YEARS = 1000
+"""Longest plan: ``last`` at most this many years after ``first``."""
+
+
+class EconomyTables(Model):
+    """Where the economy's tables are, relative to the plan file.
+
+    Either ``flows`` (a transactions table) or ``input_coefficients`` (with
+    ``labour_coefficients`` and ``capital_coefficients`` as coefficient
+    tables) describes the technology.
+    """
+
+    @model_validator(mode="after")
+    def _one_source(self) -> EconomyTables:
+        if (self.flows is None) == (self.input_coefficients is None):
+            raise Rule("give exactly one of flows and input_coefficients",
+                       [k for k in ("flows", "input_coefficients") if getattr(self, k)] or None,
+                       field="flows")
+        if self.flows is not None and self.labour_coefficients is not None:
+            raise Rule("come with input_coefficients (flows carry their own labour rows)",
+                       self.labour_coefficients, field="labour_coefficients")
+        return self
+
+    flows: str | None = None
+    input_coefficients: str | None = None
+    labour_coefficients: str | None = None
+    capital: str | None = None
+    capital_stocks: str | None = None
+    capital_coefficients: str | None = None
+    consumption_basket: dict[str, float] | None = None
+    wage_basket: dict[str, float] | None = None
+
+
+class SolveOptions(Model):
+    """Solver settings stored with the plan."""
+
+    method: str = "auto"
+    time_limit: float | None = Field(default=None, gt=0)
+    threads: int | None = Field(default=None, ge=1)
+    tolerance: float | None = Field(default=None, gt=0, lt=1)
+
+
+class PlanFile(Model):
+    """The whole plan file: economy tables, the plan, solver settings."""
+
+    economy: EconomyTables
+    plan: dict[str, Any]
+    solve: SolveOptions = Field(default_factory=SolveOptions)
+
+    @field_validator("plan")
+    @classmethod
+    def _plan(cls, v: dict[str, Any]) -> dict[str, Any]:
+        if "economy" in v:
+            raise Rule("not contain 'economy' (it is a section of its own)", "economy")
+        if "years" not in v:
+            raise Rule("give years (a list, or first and last)", sorted(v))
+        return v
+
+
+def plan_file_schema() -> dict:
+    """JSON Schema of a plan file, with the plan section's own schema filled in."""
+    schema = PlanFile.model_json_schema()
+    plan_schema = Plan.model_json_schema(mode="validation")
+    plan_schema.get("properties", {}).pop("economy", None)
+    if "required" in plan_schema:
+        plan_schema["required"] = [r for r in plan_schema["required"] if r != "economy"]
+    defs = schema.setdefault("$defs", {})
+    defs.update(plan_schema.pop("$defs", {}))
+    defs["PlanSection"] = plan_schema
+    schema["properties"]["plan"] = {"$ref": "#/$defs/PlanSection"}
+    return schema
+
+
+class _Refused(Exception):
+    """A YAML construct the plan-file loader will not build, with its line."""
+
+    def __init__(self, line: int, message: str) -> None:
+        super().__init__(message)
+        self.line = line
+
+
+def _quoted(text: str) -> str:
+    return show(text)
+
+
+class _Checks:
+    """Loader checks made while the one parse builds the document."""
+
+    _depth = 0
+
+    def compose_node(self, parent: Node | None, index: Any) -> Node:
+        event = self.peek_event()  # type: ignore[attr-defined]
+        line = event.start_mark.line + 1
+        if isinstance(event, AliasEvent) or getattr(event, "anchor", None) is not None:
+            mark = "*" if isinstance(event, AliasEvent) else "&"
+            raise _Refused(line, str(invalid(
+                "plan file", "not use YAML anchors or aliases (write each value out)",
+                f"{mark}{event.anchor}")))
+        self._depth += 1
+        try:
+            if self._depth > MAX_DEPTH:
+                raise _Refused(line, str(invalid("plan file", f"nest at most {MAX_DEPTH} "
+                                                 "levels deep", f"level {self._depth}")))
+            return super().compose_node(parent, index)  # type: ignore[misc]
+        finally:
+            self._depth -= 1
+
+    def construct_mapping(self, node: MappingNode, deep: bool = False) -> dict:
+        if isinstance(node, MappingNode):
+            seen: dict[str, int] = {}
+            for key_node, _ in node.value:
+                line = key_node.start_mark.line + 1
+                if not isinstance(key_node, ScalarNode) or key_node.tag.endswith(":merge"):
+                    what = ("merge key (<<)" if isinstance(key_node, ScalarNode)
+                            else "list or mapping")
+                    raise _Refused(line, f"a key must be a name or a whole year. Got a {what}.")
+                key = self.construct_object(key_node, deep=True)  # type: ignore[attr-defined]
+                text = _quoted(key_node.value)
+                if isinstance(key, bool) or key is None:
+                    raise _Refused(line, f"key {text} must be a name or a whole year; YAML "
+                                   f"reads it as {str(key).lower() if key is not None else 'null'}"
+                                   f". Got {text} (write it in quotes to mean the name).")
+                if not isinstance(key, int | str):
+                    raise _Refused(line, f"key {text} must be a name or a whole year. "
+                                   f"Got a {type(key).__name__} (write it in quotes to mean "
+                                   "the name).")
+                norm = str(key)
+                if norm in seen:
+                    raise _Refused(line, f"key {show(norm)} must appear once in its mapping. "
+                                   f"Got it again (first on line {seen[norm]}).")
+                seen[norm] = line
+        return super().construct_mapping(node, deep=deep)  # type: ignore[misc]
+
+
+class _PyLoader(_Checks, yaml.SafeLoader):
+    """Safe pure-Python loader with the plan-file checks."""
+
+
+if hasattr(yaml, "CSafeLoader"):
+    class _CLoader(_Checks, Composer, yaml.CSafeLoader):
+        """libyaml's parser with the Python composer, so every node passes the checks."""
+
+        def __init__(self, stream: str) -> None:
+            yaml.CSafeLoader.__init__(self, stream)
+            Composer.__init__(self)
+
+    _Loader: type = _CLoader
+else:  # pragma: no cover - libyaml not installed
+    _Loader = _PyLoader
+
+
+def _yaml_load(text: str) -> tuple[Any, Node | None]:
+    """The document and its node tree, from one parse."""
+    loader = _Loader(text)
+    try:
+        node = loader.get_single_node()
+        return (None if node is None else loader.construct_document(node)), node
+    finally:
+        loader.dispose()
+
+
+def _depth_exceeds(data: Any, limit: int) -> bool:
+    """Whether nested dicts and lists go deeper than ``limit`` (without recursion)."""
+    stack = [(data, 1)]
+    while stack:
+        node, depth = stack.pop()
+        if isinstance(node, dict | list):
+            if depth > limit:
+                return True
+            stack.extend((v, depth + 1) for v in (node.values() if isinstance(node, dict)
+                                                  else node))
+    return False
+
+
+def _line_of(root: Node | None, path: list[str]) -> int | None:
+    """Line (1-based) of a dotted field in the YAML node tree, where it can tell."""
+    node = root
+    line = None
+    for part in path:
+        if isinstance(node, MappingNode):
+            nxt = None
+            for k, v in node.value:
+                if str(k.value) == part:
+                    line, nxt = k.start_mark.line + 1, v
+                    break
+            if nxt is None:
+                return line
+            node = nxt
+        elif isinstance(node, SequenceNode) and part.isdigit() and int(part) < len(
+                node.value):
+            node = node.value[int(part)]
+            line = node.start_mark.line + 1
+        else:
+            return line
+    return line
+
+
+def _read(path: Path) -> tuple[dict, Node | None]:
+    suffix = path.suffix.lower()
+    if suffix not in (".toml", ".yaml", ".yml"):
+        raise invalid(f"{path}", "end in .yaml, .yml or .toml", suffix or "no suffix")
+    raw = read_regular_file(path, what="plan file", limit=PLAN_FILE_MAX_BYTES)
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        raise invalid(f"{path}", "be UTF-8 text", f"byte {exc.start}") from None
+    node = None
+    try:
+        if suffix == ".toml":
+            data = tomllib.loads(text)
+            if _depth_exceeds(data, MAX_DEPTH):
+                raise invalid(f"{path}", f"nest at most {MAX_DEPTH} levels deep", "deeper")
+        else:
+            data, node = _yaml_load(text)
+    except _Refused as exc:
+        raise InvalidInput(f"{path}, line {exc.line}: {exc}", field="plan file") from None
+    except yaml.YAMLError as exc:
+        mark = getattr(exc, "problem_mark", None)
+        where = f" (line {mark.line + 1})" if mark is not None else ""
+        problem = getattr(exc, "problem", None) or str(exc).splitlines()[0]
+        raise InvalidInput(f"{path}{where}: not valid YAML: {show(problem)[1:-1]}.",
+                           field="plan file") from None
+    except tomllib.TOMLDecodeError as exc:
+        raise InvalidInput(f"{path}: not valid TOML: {show(str(exc))[1:-1]}.",
+                           field="plan file") from None
+    except (ValueError, RecursionError, OverflowError, MemoryError) as exc:
+        if isinstance(exc, InvalidInput):
+            raise
+        kind = "TOML" if suffix == ".toml" else "YAML"
+        raise InvalidInput(f"{path}: not valid {kind}: {show(str(exc))[1:-1]}.",
+                           field="plan file") from None
+    if not isinstance(data, dict):
+        raise invalid(f"{path}", "hold a mapping with economy and plan sections",
+                      type(data).__name__)
+    return data, node
+
+
+def _located(exc: InvalidInput, path: Path, node: Node | None,
+             prefix: list[str]) -> InvalidInput:
+    field = exc.field or ""
+    parts = prefix + [p for p in field.split(".") if p]
+    line = _line_of(node, parts)
+    where = f"{path}" + (f", line {line}" if line else "")
+    return InvalidInput(f"{where}: {'.'.join(prefix) + '.' if prefix else ''}{exc}",
+                        field=".".join(parts))
+
+
+def _whole(value: Any) -> bool:
+    return isinstance(value, int) and not isinstance(value, bool)
+
+
+def _years(years: Any) -> Any:
+    """Plan-file checks of ``years`` (first/last or a list) before the plan sees them."""
+    if isinstance(years, dict):
+        if set(years) != {"first", "last"}:
+            raise invalid("years", "be a list or have exactly first and last", sorted(years))
+        first, last = years["first"], years["last"]
+        if not (_whole(first) and _whole(last)):
+            raise invalid("years", "have whole years for first and last (not true/false, "
+                          "on/off, yes/no or decimals)", years)
+        if last < first:
+            raise invalid("years", "have first <= last", years)
+        if last - first > MAX_YEARS:
+            raise invalid("years", f"span at most {MAX_YEARS} years", f"{first}..{last}")
+        return list(range(first, last + 1))
+    if isinstance(years, list):
+        bad = [y for y in years if not _whole(y)]
+        if bad:
+            raise invalid("years", "hold whole years (not true/false, on/off, yes/no or "
+                          "decimals)", bad[0])
+        if len(years) > MAX_YEARS + 1 or (years and max(years) - min(years) > MAX_YEARS):
+            raise invalid("years", f"span at most {MAX_YEARS} years",
+                          f"{min(years)}..{max(years)}")
+    return years
+
+
+def load_plan_file(path: str | os.PathLike, *,
+                   allow_outside: bool = False) -> tuple[Plan, SolveOptions]:
+    """Read a plan file and its tables into a validated :class:`Plan`.
+
+    Parameters
+    ----------
+    path : path
+        A ``.yaml``, ``.yml`` or ``.toml`` plan file.
+    allow_outside : bool, default False
+        Read tables outside the plan file's folder. By default a table path
+        must stay in that folder or below it (after following symbolic
+        links), so a plan file received from someone else cannot make the
+        library read arbitrary files.
+
+    Returns
+    -------
+    (plan, solve_options)
+
+    Raises
+    ------
+    InvalidInput
+        Naming the file, the field and (for YAML) the line.
+    """
+    path = Path(path)
+    data, node = _read(path)
+    try:
+        spec = PlanFile.model_validate(data)
+    except InvalidInput as exc:
+        raise _located(exc, path, node, []) from None
+    fields = dict(spec.plan)
+    try:
+        if "years" in fields:
+            fields["years"] = _years(fields["years"])
+    except InvalidInput as exc:
+        raise _located(exc, path, node, ["plan"]) from None
+    base = path.parent
+    try:
+        base_resolved = base.resolve()
+    except (OSError, RuntimeError) as exc:
+        raise invalid("plan file", "be in a folder that can be reached", str(path),
+                      hint=str(exc)) from None
+    tables = spec.economy
+
+    def ref(name: str | None, field: str) -> Path | None:
+        if name is None:
+            return None
+        if "\0" in name:
+            raise _located(invalid(field, "be a file name", name), path, node, ["economy"])
+        target = base / name
+        if not allow_outside:
+            try:
+                resolved = target.resolve()
+            except (OSError, RuntimeError) as exc:  # a symbolic link loop
+                raise _located(invalid(field, "name a reachable table file", name,
+                                       hint=f"({exc})"), path, node, ["economy"]) from None
+            if resolved != base_resolved and base_resolved not in resolved.parents:
+                raise _located(invalid(field, "name a table in the plan file's folder or "
+                                       "below it (load_plan_file(..., allow_outside=True) "
+                                       "reads others)", name), path, node, ["economy"])
+        if not os.path.lexists(target):
+            raise _located(invalid(field, "name an existing table file (relative to the plan "
+                                   "file)", name), path, node, ["economy"])
+        return target
+
+    try:
+        if tables.flows is not None:
+            econ = Economy.from_tables(
+                ref(tables.flows, "flows"), capital=ref(tables.capital, "capital"),
+                capital_stocks=ref(tables.capital_stocks, "capital_stocks"),
+                capital_coefficients=ref(tables.capital_coefficients, "capital_coefficients"),
+                consumption_basket=tables.consumption_basket, wage_basket=tables.wage_basket)
+        else:
+            econ = economy_from_coefficients(
+                ref(tables.input_coefficients, "input_coefficients"),
+                capital=ref(tables.capital, "capital"),
+                capital_coefficients=ref(tables.capital_coefficients, "capital_coefficients"),
+                labour_coefficients=ref(tables.labour_coefficients, "labour_coefficients"),
+                consumption_basket=tables.consumption_basket, wage_basket=tables.wage_basket)
+    except InvalidInput as exc:
+        if str(exc).startswith(str(path)):
+            raise
+        raise InvalidInput(f"{path}: economy tables: {exc}", field=exc.field) from None
+    try:
+        plan = Plan(economy=econ, **fields)
+    except InvalidInput as exc:
+        raise _located(exc, path, node, ["plan"]) from None
+    except TypeError as exc:
+        raise InvalidInput(f"{path}: plan: {show(str(exc))[1:-1]}", field="plan") from None
+    return plan, spec.solve
+
+
+def _plain(value: Any) -> Any:
+    """Plan field values as YAML-safe Python (lists, dicts, numbers, text)."""
+    import numpy as np
+    import pandas as pd
+
+    if isinstance(value, pd.DataFrame):
+        return {str(c): [float(v) for v in value[c]] for c in value.columns}
+    if isinstance(value, pd.Series):
+        return {int(k): float(v) for k, v in value.items()}
+    if isinstance(value, np.ndarray):
+        return value.tolist()
+    if isinstance(value, np.generic):
+        return value.item()
+    if isinstance(value, dict):
+        return {k: _plain(v) for k, v in value.items()}
+    if isinstance(value, list | tuple):
+        return [_plain(v) for v in value]
+    return value
+
+
+def save_plan_file(plan: Plan, path: str | os.PathLike, *, overwrite: bool = False,
+                   solve: SolveOptions | None = None) -> Path:
+    """Write ``plan`` as a YAML plan file with its coefficient tables beside it.
+
+    The tables are ``<stem>_input_coefficients.csv``, ``<stem>_capital_coefficients.csv``,
+    ``<stem>_labour_coefficients.csv`` and ``<stem>_capital.csv`` in the file's folder;
+    :func:`load_plan_file` reads the set back into an equal plan. Nothing is
+    overwritten without ``overwrite=True``, and the files appear together or
+    not at all (see :mod:`growthplan.io.atomic`).
+    """
+    path = Path(path)
+    if path.suffix.lower() not in (".yaml", ".yml"):
+        raise invalid("path", "end in .yaml or .yml", str(path))
+    econ = plan.economy
+    frames = _coefficient_frames(econ, f"{path.stem}_")
+    economy: dict[str, Any] = {key: name for key, (name, _) in frames.items()}
+    if econ.consumption_basket is not None:
+        economy["consumption_basket"] = dict(zip(econ.names, econ.consumption_basket.tolist(),
+                                                 strict=True))
+    if econ.wage_basket is not None:
+        economy["wage_basket"] = dict(zip(econ.names, econ.wage_basket.tolist(), strict=True))
+    fields = plan.model_dump(exclude={"economy"}, mode="python")
+    fields = _plain({k: v for k, v in fields.items() if v not in (None, [], {})})
+    doc = {"economy": economy, "plan": fields,
+           "solve": (solve or SolveOptions()).model_dump(exclude_none=True)}
+    targets = [path, *(path.parent / name for name, _ in frames.values())]
+    with atomic_files(targets, overwrite=overwrite) as (plan_tmp, *table_tmps):
+        for (key, (_, frame)), tmp in zip(frames.items(), table_tmps, strict=True):
+            _write_csv(key, frame, tmp)
+        plan_tmp.write_text("# growthplan plan file (written by save_plan_file)\n"
+                            + yaml.safe_dump(doc, sort_keys=False, allow_unicode=True),
+                            encoding="utf-8")
+    return path
