@@ -323,25 +323,12 @@ class _Stopped(Exception):
 
 def write_program(plan: Plan, path: Any, *, overwrite: bool, kind: str) -> Path:
     """Write the plan's LP as an MPS (``kind="mps"``, objective sense included) or LP file."""
-    import os
-    import tempfile
+    from .io.atomic import atomic_file
 
-    target = Path(path)
-    if target.exists() and not overwrite:
-        raise invalid("path", "not exist yet (pass overwrite=True to replace it)", str(target))
-    if target.is_dir():
-        raise invalid("path", "be a file, not a folder", str(target))
     prob = to_pulp(program(plan))[0]
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=target.suffix,
-                               dir=target.parent if str(target.parent) else ".")
-    os.close(fd)
-    try:
+    with atomic_file(path, overwrite=overwrite) as tmp:
         if kind == "mps":
             prob.writeMPS(str(tmp), with_objsense=True)
         else:
             prob.writeLP(str(tmp))
-        os.replace(tmp, target)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return target
+    return Path(path)

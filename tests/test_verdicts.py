@@ -235,3 +235,37 @@ class TestPlanInputs:
     def test_plans_of_absurd_length_are_refused_before_allocating(self):
         with pytest.raises(gp.InvalidInput, match="1000"):
             gp.Plan(economy=one_sector(), years=range(0, 100_000_000))
+
+
+class TestExports:
+    def test_overwrite_keeps_files_the_library_did_not_write(self, tmp_path):
+        r = assert_optimal(gp.Plan(economy=one_sector(), years=range(2030, 2035)).solve())
+        out = tmp_path / "plan-out"
+        r.to_csv(out)
+        mine = out / "my-notes.txt"
+        mine.write_text("keep me", encoding="utf-8")
+        r.to_csv(out, overwrite=True)
+        assert mine.read_text(encoding="utf-8") == "keep me"
+        assert (out / "output.csv").is_file()
+
+    def test_a_folder_holding_the_inputs_is_refused(self, tmp_path):
+        r = assert_optimal(gp.Plan(economy=one_sector(), years=range(2030, 2035)).solve())
+        plan_file = tmp_path / "plan.yaml"
+        plan_file.write_text("years: {}", encoding="utf-8")
+        with pytest.raises(gp.InvalidInput):
+            r.to_csv(tmp_path, overwrite=True, protect=[plan_file])
+        assert plan_file.read_text(encoding="utf-8") == "years: {}"
+
+    def test_exports_have_normal_permissions(self, tmp_path):
+        import os
+        import stat
+
+        r = assert_optimal(gp.Plan(economy=one_sector(), years=range(2030, 2035)).solve())
+        umask = os.umask(0o022)
+        try:
+            folder = r.to_csv(tmp_path / "out")
+            book = r.to_excel(tmp_path / "plan.xlsx")
+        finally:
+            os.umask(umask)
+        assert stat.S_IMODE(folder.stat().st_mode) == 0o755
+        assert stat.S_IMODE(book.stat().st_mode) == 0o644

@@ -11,8 +11,7 @@ from __future__ import annotations
 
 import contextlib
 import os
-import shutil
-import tempfile
+from collections.abc import Iterable
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -20,7 +19,7 @@ import numpy as np
 import pandas as pd
 
 from ..backends.base import SolverOutcome, Status
-from ..errors import PlanInfeasible, PlanNotOptimal, PlanUnbounded, SolverFailure, invalid
+from ..errors import PlanInfeasible, PlanNotOptimal, PlanUnbounded, SolverFailure
 from ..lp.conditions import Schedules
 from ..lp.program import LinearProgram
 from . import tables
@@ -238,49 +237,57 @@ class PlanResult:
         out["audit"] = self.audit.checks.reset_index()
         return {k: v for k, v in out.items() if v is not None and not v.empty}
 
-    def to_csv(self, folder: str | os.PathLike, *, overwrite: bool = False) -> Path:
-        """Write every table as ``<name>.csv`` into a new folder.
+    def to_csv(self, folder: str | os.PathLike, *, overwrite: bool = False,
+               protect: Iterable[str | os.PathLike] = ()) -> Path:
+        """Write every table as ``<name>.csv``, with ``summary.txt``, into a folder.
 
-        The folder is written beside its final place and renamed into it, so
-        an interrupted export never leaves a half-written folder; an existing
-        folder is replaced only with ``overwrite=True``.
+        Parameters
+        ----------
+        folder : str or path-like
+            A new folder, written aside and renamed into place, so an
+            interrupted export never leaves half a folder.
+        overwrite : bool, default False
+            Write into an existing folder: only files an earlier export of the
+            library wrote there are replaced; other files are never touched.
+        protect : iterable of paths
+            Input files (the plan file and its tables); a folder holding one is
+            refused.
+
+        Returns
+        -------
+        pathlib.Path
+            The folder.
         """
-        target = Path(folder)
-        if target.exists() and not overwrite:
-            raise invalid("folder", "not exist yet (pass overwrite=True to replace it)",
-                          str(target))
+        from ..io.atomic import atomic_folder
+
         tables = self._tables()
-        target.parent.mkdir(parents=True, exist_ok=True)
-        tmp = Path(tempfile.mkdtemp(prefix=f".{target.name}.", dir=target.parent))
-        try:
+        with atomic_folder(folder, overwrite=overwrite, protect=protect, kind="tables") as tmp:
             for name, frame in tables.items():
                 frame.to_csv(tmp / f"{name}.csv")
             (tmp / "summary.txt").write_text(str(self.summary()), encoding="utf-8")
-            if target.exists():
-                old = target.with_name(f".{target.name}.old-{os.getpid()}")
-                target.rename(old)
-                tmp.rename(target)
-                shutil.rmtree(old, ignore_errors=True)
-            else:
-                tmp.rename(target)
-        except BaseException:
-            shutil.rmtree(tmp, ignore_errors=True)
-            raise
-        return target
+        return Path(folder)
 
-    def to_excel(self, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
-        """Write every table as a sheet of one workbook (written aside, then renamed)."""
-        target = Path(path)
-        if target.exists() and not overwrite:
-            raise invalid("path", "not exist yet (pass overwrite=True to replace it)",
-                          str(target))
+    def to_excel(self, path: str | os.PathLike, *, overwrite: bool = False,
+                 protect: Iterable[str | os.PathLike] = ()) -> Path:
+        """Write every table as a sheet of one workbook.
+
+        Parameters
+        ----------
+        path : str or path-like
+            The workbook, written aside and renamed into place.
+        overwrite : bool, default False
+            Replace an existing workbook.
+        protect : iterable of paths
+            Input files that must never be overwritten.
+
+        Returns
+        -------
+        pathlib.Path
+        """
+        from ..io.atomic import atomic_file
+
         tables = self._tables()
-        target.parent.mkdir(parents=True, exist_ok=True)
-        fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".xlsx",
-                                        dir=target.parent)
-        os.close(fd)
-        tmp = Path(tmp_name)
-        try:
+        with atomic_file(path, overwrite=overwrite, protect=protect) as tmp:
             writer = pd.ExcelWriter(tmp, engine="openpyxl")
             try:
                 for name, frame in tables.items():
@@ -290,8 +297,4 @@ class PlanResult:
                     writer.close()
                 raise
             writer.close()
-            os.replace(tmp, target)
-        except BaseException:
-            tmp.unlink(missing_ok=True)
-            raise
-        return target
+        return Path(path)
