@@ -16,8 +16,9 @@ def test_nothing_private_leaks():
 
 
 def test_modules_import():
-    for mod in ("economy", "tables", "capital", "steady", "expanding", "plan", "compile",
-                "solvers", "result", "audit", "objectives", "cli", "errors"):
+    for mod in ("economy", "io", "io.tables", "io.planfile", "io.atomic", "capital", "steady",
+                "expanding", "plan", "compile", "solvers", "result", "audit", "objectives",
+                "cli", "errors"):
         importlib.import_module(f"growthplan.{mod}")
 
 
