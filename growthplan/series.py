@@ -22,7 +22,7 @@ def _year(key: Any, field: str) -> int:
         return int(key)
     if isinstance(key, float | np.floating) and float(key).is_integer():
         return int(key)
-    if isinstance(key, str) and key.strip().lstrip("-").isdigit():
+    if isinstance(key, str) and key.isascii() and key.isdigit():
         return int(key)
     raise Rule("have whole years as keys", key, field=field)
 
@@ -56,7 +56,8 @@ def series(value: Any, years: list[int], field: str, growth: float = 0.0) -> np.
     t = np.arange(len(years), dtype=float)
     if isinstance(value, int | float | np.integer | np.floating) and not isinstance(
             value, bool | np.bool_):
-        out = float(value) * (1.0 + growth) ** t
+        with np.errstate(over="ignore", invalid="ignore"):
+            out = float(value) * (1.0 + growth) ** t
     elif isinstance(value, dict | pd.Series):
         items: dict[int, float] = {}
         for k, v in dict(value).items():

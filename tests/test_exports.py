@@ -28,7 +28,8 @@ def test_modules_import():
     mods = _modules()
     for sub in ("growthplan.solve", "growthplan.lp.build", "growthplan.lp.conditions.balance",
                 "growthplan.backends.highs", "growthplan.backends.pulp",
-                "growthplan.results.audit", "growthplan.results.diagnosis"):
+                "growthplan.results.audit", "growthplan.results.diagnosis",
+                "growthplan.io.tables", "growthplan.io.planfile", "growthplan.io.atomic"):
         assert sub in mods
     for mod in mods:
         if mod != "growthplan.plot":  # needs the optional matplotlib extra

@@ -319,3 +319,19 @@ def test_save_leaves_nothing_when_a_table_fails(tmp_path, monkeypatch):
     with pytest.raises(KeyboardInterrupt):
         planfile.save_plan_file(demo_plan(), tmp_path / "p.yaml")
     assert list(tmp_path.iterdir()) == []
+
+
+def test_plan_file_inputs_protect_them_from_exports(folder):
+    from growthplan.io import atomic_folder, plan_file_inputs
+
+    inputs = plan_file_inputs(folder / "plan.yaml")
+    assert sorted(p.name for p in inputs) == ["capital.csv", "capital_stocks.csv",
+                                              "flows.csv", "plan.yaml"]
+    with pytest.raises(gp.InvalidInput, match="input files"):
+        with atomic_folder(folder, overwrite=True, protect=inputs):
+            pass
+
+
+def test_table_source_of_the_wrong_type(folder):
+    with pytest.raises(gp.InvalidInput, match="capital must be a DataFrame or the path"):
+        gp.Economy.from_tables(folder / "flows.csv", capital={"energy": {}})

@@ -134,7 +134,13 @@ def test_a_missing_value_word_in_a_cell_is_not_zero(tmp_path, cell):
 def test_all_numeric_labels_keep_their_spelling(tmp_path):
     p = tmp_path / "flows.csv"
     p.write_text(flows_text(a="01", b="1e3"))
-    assert gp.Economy.from_tables(p).names == ["01", "1e3"]
+    stocks = tmp_path / "stocks.csv"  # a label column with numbers only
+    stocks.write_text("sector,01,1e3\n01,500,800\n1e3,300,600\n")
+    cap = {"01": {"mean_service_life": 20, "initial_capacity": 1000.0},
+           "1e3": {"mean_service_life": 10, "initial_capacity": 1000.0}}
+    econ = gp.Economy.from_tables(p, capital=pd.DataFrame(cap).T, capital_stocks=stocks)
+    assert econ.names == ["01", "1e3"]
+    np.testing.assert_allclose(econ.capital_coefficients, [[0.5, 0.8], [0.3, 0.6]])
 
 
 def test_huge_integer_cell_is_invalid_input(tmp_path):
@@ -148,7 +154,7 @@ def test_huge_integer_cell_is_invalid_input(tmp_path):
     (flows_text().replace("sector,s1,s2", "sector,s1,s1"), "column label once"),
     (flows_text() + ",5,5,5\n", "label in the first column"),
     (flows_text().replace("s1,150", 's1,"150'), "readable"),
-])
+], ids=["duplicate column", "unlabelled row", "unclosed quote"])
 def test_malformed_csv_layout(tmp_path, text, match):
     p = tmp_path / "flows.csv"
     p.write_text(text)
@@ -178,7 +184,8 @@ def test_excel_formula_without_saved_result_is_refused(tmp_path):
         gp.Economy.from_tables(tmp_path / "f.xlsx")
 
 
-@pytest.mark.parametrize("content", [b"not a workbook", b"PK\x03\x04" + b"\0" * 64, b""])
+@pytest.mark.parametrize("content", [b"not a workbook", b"PK\x03\x04" + b"\0" * 64, b""],
+                         ids=["text", "zip header", "empty"])
 def test_corrupt_workbook_names_the_file(tmp_path, content):
     p = tmp_path / "broken.xlsx"
     p.write_bytes(content)

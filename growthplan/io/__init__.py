@@ -23,6 +23,7 @@ if TYPE_CHECKING:
         PlanFile,
         SolveOptions,
         load_plan_file,
+        plan_file_inputs,
         plan_file_schema,
         save_plan_file,
     )
@@ -38,7 +39,8 @@ if TYPE_CHECKING:
 
 _LAZY = {
     "EconomyTables": "planfile", "PlanFile": "planfile", "SolveOptions": "planfile",
-    "load_plan_file": "planfile", "plan_file_schema": "planfile", "save_plan_file": "planfile",
+    "load_plan_file": "planfile", "plan_file_inputs": "planfile",
+    "plan_file_schema": "planfile", "save_plan_file": "planfile",
     "TransactionsTable": "tables", "capital_coefficients_from_stocks": "tables",
     "capital_table": "tables", "economy_from_coefficients": "tables", "read_frame": "tables",
     "read_transactions": "tables", "write_coefficient_tables": "tables",
@@ -56,6 +58,7 @@ __all__ = [
     "capital_table",
     "economy_from_coefficients",
     "load_plan_file",
+    "plan_file_inputs",
     "plan_file_schema",
     "read_frame",
     "read_transactions",

@@ -18,12 +18,12 @@ Files and folders get the user's normal permissions (``0o666`` and
 
 Examples
 --------
->>> import tempfile, pathlib
->>> folder = pathlib.Path(tempfile.mkdtemp())
->>> with atomic_file(folder / "note.txt") as tmp:
-...     _ = tmp.write_text("written whole or not at all")
->>> (folder / "note.txt").read_text()
-'written whole or not at all'
+>>> import tempfile
+>>> with tempfile.TemporaryDirectory() as folder:
+...     with atomic_file(Path(folder) / "note.txt") as tmp:
+...         _ = tmp.write_text("written whole or not at all")
+...     print((Path(folder) / "note.txt").read_text())
+written whole or not at all
 """
 
 from __future__ import annotations

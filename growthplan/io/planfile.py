@@ -53,7 +53,11 @@ from .atomic import atomic_files
 from .tables import _coefficient_frames, _write_csv, economy_from_coefficients
 
 __all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "save_plan_file",
-           "plan_file_schema", "PLAN_FILE_MAX_BYTES", "MAX_DEPTH", "MAX_YEARS"]
+           "plan_file_schema", "plan_file_inputs", "PLAN_FILE_MAX_BYTES", "MAX_DEPTH",
+           "MAX_YEARS"]
+
+_TABLE_FIELDS = ("flows", "input_coefficients", "labour_coefficients", "capital",
+                 "capital_stocks", "capital_coefficients")
 
 PLAN_FILE_MAX_BYTES = 5 << 20
 """Largest plan file read (5 MB); real ones are a few kB."""
@@ -424,6 +428,28 @@ def load_plan_file(path: str | os.PathLike, *,
     except TypeError as exc:
         raise InvalidInput(f"{path}: plan: {show(str(exc))[1:-1]}", field="plan") from None
     return plan, spec.solve
+
+
+def plan_file_inputs(path: str | os.PathLike) -> list[Path]:
+    """The plan file and the table files it names: what an export must never overwrite.
+
+    Pass the list as ``protect=`` to :func:`~growthplan.io.atomic_file` and
+    :func:`~growthplan.io.atomic_folder`, so results written next to a plan
+    cannot replace its inputs.
+
+    Raises
+    ------
+    InvalidInput
+        When the plan file cannot be read or has no valid ``economy`` section.
+    """
+    path = Path(path)
+    data, node = _read(path)
+    try:
+        tables = EconomyTables.model_validate(data.get("economy"))
+    except InvalidInput as exc:
+        raise _located(exc, path, node, ["economy"]) from None
+    names = [getattr(tables, f) for f in _TABLE_FIELDS]
+    return [path, *(path.parent / n for n in names if n is not None)]
 
 
 def _plain(value: Any) -> Any:

@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import csv
 import io
+import os
 import re
 from collections import Counter
 from pathlib import Path
@@ -71,6 +72,9 @@ def read_frame(source: Any, *, what: str = "table") -> pd.DataFrame:
     """
     if isinstance(source, pd.DataFrame):
         return source.copy()
+    if not isinstance(source, str | os.PathLike):
+        raise invalid(what, "be a DataFrame or the path of a CSV or .xlsx file",
+                      type(source).__name__)
     path = Path(source)
     suffix = path.suffix.lower()
     raw = read_regular_file(path, what=what, limit=TABLE_MAX_BYTES)
