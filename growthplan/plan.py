@@ -421,7 +421,7 @@ class Plan(Model):
 
     def solve(self, *, method: str = "auto", time_limit: float | None = None,
               threads: int | None = None, tolerance: float | None = None,
-              audit_tolerance: float = 1e-6, options: dict | None = None,
+              audit_tolerance: float = 1e-6, options: dict[str, Any] | None = None,
               progress: bool = False, stop: Any = None,
               size_limit: int | None = 25_000_000, backend: Any = None) -> PlanResult:
         """Solve the plan (HiGHS by default) and audit the result.

@@ -109,7 +109,7 @@ def optimise(lp: LinearProgram, backend: Any, *, stop: Any = None, callback: Any
 
 
 def _backend(backend: Any, method: str, time_limit: float | None, threads: int | None,
-             tolerance: float | None, options: dict | None) -> Any:
+             tolerance: float | None, options: dict[str, Any] | None) -> Any:
     if backend is not None:
         return backend
     return HighsBackend(method, time_limit=time_limit, threads=threads, tolerance=tolerance,
@@ -119,7 +119,7 @@ def _backend(backend: Any, method: str, time_limit: float | None, threads: int |
 def solve(plan: Plan, *, backend: Any = None, method: str = "auto",
           time_limit: float | None = None, threads: int | None = None,
           tolerance: float | None = None, audit_tolerance: float = 1e-6,
-          options: dict | None = None, progress: bool = False, stop: Any = None,
+          options: dict[str, Any] | None = None, progress: bool = False, stop: Any = None,
           size_limit: int | None = SIZE_LIMIT) -> PlanResult:
     """Solve a plan on a back end (default HiGHS) and audit the result.
 

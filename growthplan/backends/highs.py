@@ -282,7 +282,7 @@ class HighsBackend:
                 out.message += " (no valid unbounded ray: not confirmed)"
         return out
 
-    def _highs(self, method: str, callback: Any, stop: Any) -> tuple[highspy.Highs, dict]:
+    def _highs(self, method: str, callback: Any, stop: Any) -> tuple[highspy.Highs, dict[str, Any]]:
         h = _new_highs(self.threads)
         chosen: dict[str, object] = {"output_flag": callback is not None,
                                      "log_to_console": False, "random_seed": 0}

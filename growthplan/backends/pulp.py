@@ -26,7 +26,7 @@ _PULP_STATUS = {1: Status.OPTIMAL, 0: Status.UNKNOWN, -1: Status.INFEASIBLE,
                 -2: Status.UNBOUNDED, 2: Status.UNKNOWN}
 
 
-def _add_rows(prob: Any, variables: list, lp: LinearProgram, rows: range,
+def _add_rows(prob: Any, variables: list[Any], lp: LinearProgram, rows: range,
               names: list[str]) -> None:
     import pulp
 
@@ -51,7 +51,7 @@ def _add_rows(prob: Any, variables: list, lp: LinearProgram, rows: range,
                 float(up)))
 
 
-def _objective(prob: Any, variables: list, lp: LinearProgram) -> None:
+def _objective(prob: Any, variables: list[Any], lp: LinearProgram) -> None:
     import pulp
 
     prob.sense = pulp.LpMaximize if lp.sense == "max" else pulp.LpMinimize
@@ -59,7 +59,7 @@ def _objective(prob: Any, variables: list, lp: LinearProgram) -> None:
     prob.setObjective(pulp.LpAffineExpression([(variables[i], float(lp.cost[i])) for i in nz]))
 
 
-def to_pulp(lp: LinearProgram, name: str = "growthplan") -> tuple[Any, list]:
+def to_pulp(lp: LinearProgram, name: str = "growthplan") -> tuple[Any, list[Any]]:
     """A ``pulp.LpProblem`` with the same rows, columns, bounds and costs as ``lp``.
 
     Rows are built from (variable, coefficient) pairs with

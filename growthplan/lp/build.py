@@ -15,7 +15,7 @@ with simplex at 30×20 and 60×25.
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 from scipy import sparse
@@ -64,10 +64,10 @@ def deliveries_operator(d: PlanData) -> sparse.csr_array:
     return sparse.csr_array(out)
 
 
-def columns(d: PlanData) -> list[tuple[str, tuple[int, ...], tuple[tuple, ...]]]:
+def columns(d: PlanData) -> list[tuple[str, tuple[int, ...], tuple[tuple[Any, ...], ...]]]:
     """The decision columns: (name, shape, labels) in order."""
     years, names = tuple(d.years), tuple(d.names)
-    out: list[tuple[str, tuple[int, ...], tuple[tuple, ...]]] = [
+    out: list[tuple[str, tuple[int, ...], tuple[tuple[Any, ...], ...]]] = [
         ("output", (d.T, d.n), (years, names)), ("starts", (d.T, d.n), (years, names))]
     if d.has_consumption:
         out.append(("consumption", (d.T,), (years,)))
@@ -124,7 +124,7 @@ def guard_size(plan: Plan, size_limit: int | None) -> None:
             "size_limit=None (or a larger number) to build it anyway.", field="size_limit")
 
 
-def build(d: PlanData, *, objective=None) -> LinearProgram:
+def build(d: PlanData, *, objective: Any = None) -> LinearProgram:
     """Build the LP of a lowered plan.
 
     Parameters

@@ -237,8 +237,8 @@ class PlanResult:
         out["audit"] = self.audit.checks.reset_index()
         return {k: v for k, v in out.items() if v is not None and not v.empty}
 
-    def to_csv(self, folder: str | os.PathLike, *, overwrite: bool = False,
-               protect: Iterable[str | os.PathLike] = ()) -> Path:
+    def to_csv(self, folder: str | os.PathLike[str], *, overwrite: bool = False,
+               protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
         """Write every table as ``<name>.csv``, with ``summary.txt``, into a folder.
 
         Parameters
@@ -267,8 +267,8 @@ class PlanResult:
             (tmp / "summary.txt").write_text(str(self.summary()), encoding="utf-8")
         return Path(folder)
 
-    def to_excel(self, path: str | os.PathLike, *, overwrite: bool = False,
-                 protect: Iterable[str | os.PathLike] = ()) -> Path:
+    def to_excel(self, path: str | os.PathLike[str], *, overwrite: bool = False,
+                 protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
         """Write every table as a sheet of one workbook.
 
         Parameters

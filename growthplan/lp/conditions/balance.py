@@ -7,17 +7,22 @@ physics, not a wish.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import numpy as np
 from scipy import sparse
 
 from . import Check, Condition, Context, RowBlock, Schedules
+
+if TYPE_CHECKING:
+    from ..data import PlanData
 
 
 class Balance(Condition):
     def __init__(self) -> None:
         super().__init__(name="balance", elastic=False, words="balance")
 
-    def count(self, d, cols):
+    def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         T, n = d.T, d.n
         nnz = T * int(np.count_nonzero(np.eye(n) - d.a))
         for s in range(min(d.spending.shape[1], T)):
@@ -45,7 +50,7 @@ class Balance(Condition):
         return RowBlock("balance", (T, n), (tuple(d.years), tuple(d.names)), coeffs,
                         d.demand + d.pipe_deliveries, np.inf)
 
-    def audit(self, d, s: Schedules) -> list[Check]:
+    def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         kappa = np.zeros(d.T) if s.consumption is None else s.consumption
         deliv = s.deliveries_check
         assert deliv is not None
@@ -69,5 +74,5 @@ class Balance(Condition):
                       np.abs(deliv).ravel(), [("deliveries", y, c) for y in d.years
                                               for c in d.names], groups)]
 
-    def describe(self, label):
+    def describe(self, label: tuple[Any, ...]) -> str:
         return f"the balance of {label[2]} in {label[1]}"

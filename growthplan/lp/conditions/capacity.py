@@ -8,17 +8,22 @@ against its sign.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import numpy as np
 from scipy import sparse
 
 from . import Check, Condition, Context, RowBlock, Schedules, capacity_nnz_by_row
+
+if TYPE_CHECKING:
+    from ..data import PlanData
 
 
 class Capacity(Condition):
     def __init__(self) -> None:
         super().__init__(name="capacity", elastic=False, words="capacity")
 
-    def count(self, d, cols):
+    def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         g = capacity_nnz_by_row(d)[: d.T]
         return d.T * d.n, d.T * d.n + int(g.sum())
 
@@ -32,7 +37,7 @@ class Capacity(Condition):
                          "starts": sparse.csr_array(-(sparse.diags_array(u) @ g_plan))},
                         -np.inf, d.base[:T] * d.util[None, :])
 
-    def audit(self, d, s: Schedules) -> list[Check]:
+    def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         cap = s.capacity_check
         assert cap is not None
         groups = np.tile(np.arange(d.n), d.T)
@@ -55,5 +60,5 @@ class Capacity(Condition):
                                 np.full(len(rows), j)))
         return checks
 
-    def describe(self, label):
+    def describe(self, label: tuple[Any, ...]) -> str:
         return f"the capacity of {label[2]} in {label[1]}"

@@ -2,20 +2,25 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import numpy as np
 from scipy import sparse
 
 from . import Check, Condition, Context, RowBlock, Schedules
+
+if TYPE_CHECKING:
+    from ..data import PlanData
 
 
 class Labour(Condition):
     def __init__(self) -> None:
         super().__init__(name="labour", elastic=True, words="labour")
 
-    def applies(self, d):
+    def applies(self, d: PlanData) -> bool:
         return d.labour.shape[0] > 0
 
-    def count(self, d, cols):
+    def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         return d.T * d.labour.shape[0], d.T * int(np.count_nonzero(d.labour))
 
     def build(self, ctx: Context) -> RowBlock:
@@ -26,7 +31,7 @@ class Labour(Condition):
                         (tuple(d.years), tuple(d.labour_kinds)), {"output": rows}, -np.inf,
                         d.supply.T)
 
-    def audit(self, d, s: Schedules) -> list[Check]:
+    def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         out = []
         for k, kind in enumerate(d.labour_kinds):
             used = s.output @ d.labour[k]
@@ -35,9 +40,9 @@ class Labour(Condition):
                              [("labour", y, kind) for y in d.years], np.full(d.T, k)))
         return out
 
-    def shortfall_label(self, label):
+    def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         return ("labour", str(label[2]), label[1])
 
-    def describe(self, label):
+    def describe(self, label: tuple[Any, ...]) -> str:
         kind = "" if label[2] == "labour" else f" of kind {label[2]}"
         return f"the labour supply{kind} in {label[1]}"

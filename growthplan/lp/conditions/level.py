@@ -6,20 +6,25 @@ is optimised. Hard in the diagnosis (``λ`` is free, so they always hold).
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import numpy as np
 from scipy import sparse
 
 from . import Check, Condition, Context, RowBlock, Schedules, capacity_nnz_by_row
+
+if TYPE_CHECKING:
+    from ..data import PlanData
 
 
 class TerminalLevel(Condition):
     def __init__(self) -> None:
         super().__init__(name="terminal_level", elastic=False, words="terminal level")
 
-    def applies(self, d):
+    def applies(self, d: PlanData) -> bool:
         return d.proportions is not None
 
-    def count(self, d, cols):
+    def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         assert d.proportions is not None
         return d.n, int(capacity_nnz_by_row(d)[d.T].sum()) + int(np.count_nonzero(d.proportions))
 
@@ -31,7 +36,7 @@ class TerminalLevel(Condition):
                          "level": sparse.csr_array(-d.proportions[:, None])},
                         -d.base[d.T], np.inf)
 
-    def audit(self, d, s: Schedules) -> list[Check]:
+    def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         if s.level is None:
             return []
         cap = s.capacity_check
@@ -41,5 +46,5 @@ class TerminalLevel(Condition):
                       [("terminal level", d.years[-1] + 1, c) for c in d.names],
                       np.arange(d.n))]
 
-    def describe(self, label):
+    def describe(self, label: tuple[Any, ...]) -> str:
         return f"the terminal capacity of {label[1]}"

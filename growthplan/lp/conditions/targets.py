@@ -5,20 +5,26 @@ A capacity target may name the year after the plan (terminal capacity).
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import numpy as np
 from scipy import sparse
 
 from . import Check, Condition, Context, RowBlock, Schedules, capacity_nnz_by_row
+
+if TYPE_CHECKING:
+    from ..data import PlanData
+    from ..program import Block
 
 
 class Targets(Condition):
     def __init__(self) -> None:
         super().__init__(name="targets", elastic=True, words="target")
 
-    def applies(self, d):
+    def applies(self, d: PlanData) -> bool:
         return bool(d.targets)
 
-    def count(self, d, cols):
+    def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         g = capacity_nnz_by_row(d)
         nnz = sum(int(g[tg.t, tg.j]) if tg.quantity == "capacity" else 1 for tg in d.targets)
         return len(d.targets), nnz
@@ -26,7 +32,7 @@ class Targets(Condition):
     def build(self, ctx: Context) -> RowBlock:
         d = ctx.data
         T, n = d.T, d.n
-        parts: dict[str, list] = {"output": [], "starts": [], "consumption": []}
+        parts: dict[str, list[Any]] = {"output": [], "starts": [], "consumption": []}
         lower = []
         for tg in d.targets:
             row = {c: sparse.csr_array((1, ctx.width(c))) for c in parts if c in ctx.cols}
@@ -50,7 +56,7 @@ class Targets(Condition):
         return RowBlock("targets", (len(d.targets),), (labels,), coeffs, np.array(lower),
                         np.inf)
 
-    def audit(self, d, s: Schedules) -> list[Check]:
+    def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         cap = s.capacity_check
         assert cap is not None
         kappa = np.zeros(d.T) if s.consumption is None else s.consumption
@@ -68,14 +74,15 @@ class Targets(Condition):
             groups.append(tg.index)
         return [Check("target", np.array(viol), np.array(scale), labels, np.array(groups))]
 
-    def required(self, d, block, lower, upper):
+    def required(self, d: PlanData, block: Block, lower: np.ndarray,
+                 upper: np.ndarray) -> np.ndarray:
         return np.array([tg.required for tg in d.targets])
 
-    def shortfall_label(self, label):
+    def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         year, sector, quantity = label[1]
         return (f"{quantity} target", sector, year)
 
-    def describe(self, label):
+    def describe(self, label: tuple[Any, ...]) -> str:
         year, sector, quantity = label[1]
         where = f" of {sector}" if sector else ""
         return f"the {quantity} target{where} in {year}"

@@ -7,13 +7,19 @@ the starts are at least what a balanced path growing at ``g`` needs:
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import numpy as np
 from scipy import sparse
 
 from . import Check, Condition, Context, RowBlock, Schedules, capacity_nnz_by_row
 
+if TYPE_CHECKING:
+    from ..data import PlanData
+    from ..program import Block
 
-def window(d) -> list[tuple[int, int]]:
+
+def window(d: PlanData) -> list[tuple[int, int]]:
     """(year index, sector) of the rows, sector by sector."""
     return [(t, j) for j in range(d.n) for t in range(d.T - max(int(d.theta[j]), 1), d.T)
             if t >= 0]
@@ -23,10 +29,10 @@ class Terminal(Condition):
     def __init__(self) -> None:
         super().__init__(name="terminal", elastic=True, words="terminal growth")
 
-    def applies(self, d):
+    def applies(self, d: PlanData) -> bool:
         return d.psi is not None
 
-    def count(self, d, cols):
+    def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         g = capacity_nnz_by_row(d)
         rows = window(d)
         # G's row (t, j) covers starts of years τ ≤ t − θ_j; the start z_jt itself is
@@ -49,7 +55,7 @@ class Terminal(Condition):
         return RowBlock("terminal", (len(rows),), (labels,), {"starts": sparse.csr_array(term)},
                         psi * np.array([d.base[t, j] for t, j in rows]), np.inf)
 
-    def audit(self, d, s: Schedules) -> list[Check]:
+    def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         cap = s.capacity_check
         assert cap is not None and d.terminal_rate is not None
         g = d.terminal_rate
@@ -67,16 +73,17 @@ class Terminal(Condition):
             groups.append(j)
         return [Check("terminal", np.array(viol), np.array(scale), labels, np.array(groups))]
 
-    def required(self, d, block, lower, upper):
+    def required(self, d: PlanData, block: Block, lower: np.ndarray,
+                 upper: np.ndarray) -> np.ndarray:
         return lower
 
-    def magnitude(self, d, required):
+    def magnitude(self, d: PlanData, required: np.ndarray) -> np.ndarray:
         return np.maximum(np.abs(required), 1e-9 * max(1.0, float(np.abs(d.base).max())))
 
-    def shortfall_label(self, label):
+    def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         year, sector = label[1]
         return ("terminal growth", sector, year)
 
-    def describe(self, label):
+    def describe(self, label: tuple[Any, ...]) -> str:
         year, sector = label[1]
         return f"the terminal growth of {sector} in {year}"

@@ -6,20 +6,25 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import numpy as np
 from scipy import sparse
 
 from . import Check, Condition, Context, RowBlock, Schedules
+
+if TYPE_CHECKING:
+    from ..data import PlanData
 
 
 class ForeignExchange(Condition):
     def __init__(self) -> None:
         super().__init__(name="foreign_exchange", elastic=True, words="foreign exchange")
 
-    def applies(self, d):
+    def applies(self, d: PlanData) -> bool:
         return d.trades
 
-    def count(self, d, cols):
+    def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         return d.T, cols.get("imports", 0) + cols.get("exports", 0)
 
     def build(self, ctx: Context) -> RowBlock:
@@ -36,7 +41,7 @@ class ForeignExchange(Condition):
         return RowBlock("foreign_exchange", (d.T,), (tuple(d.years),), coeffs, -np.inf,
                         d.inflow)
 
-    def audit(self, d, s: Schedules) -> list[Check]:
+    def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         assert d.inflow is not None
         spend = np.zeros(d.T)
         scale = d.inflow.copy()
@@ -48,13 +53,13 @@ class ForeignExchange(Condition):
         return [Check("foreign exchange", spend - d.inflow, scale,
                       [("foreign exchange", y) for y in d.years], np.zeros(d.T, int))]
 
-    def magnitude(self, d, required):
+    def magnitude(self, d: PlanData, required: np.ndarray) -> np.ndarray:
         return np.maximum(np.abs(required), 1.0)
 
-    def shortfall_label(self, label):
+    def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         return ("foreign exchange", "", label[1])
 
-    def describe(self, label):
+    def describe(self, label: tuple[Any, ...]) -> str:
         return f"the foreign-exchange limit in {label[1]}"
 
 
@@ -64,16 +69,16 @@ class TradeBounds(Condition):
     def __init__(self) -> None:
         super().__init__(name="trade_bounds", elastic=False, words="trade bounds")
 
-    def applies(self, d):
+    def applies(self, d: PlanData) -> bool:
         return d.trades
 
-    def count(self, d, cols):
+    def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         return 0, 0
 
-    def build(self, ctx):
+    def build(self, ctx: Context) -> RowBlock | None:
         return None  # bounds on columns, set by the builder
 
-    def audit(self, d, s: Schedules) -> list[Check]:
+    def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         out = []
         for flows, side, word in ((s.imports, d.imports, "import"),
                                   (s.exports, d.exports, "export")):
