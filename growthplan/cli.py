@@ -124,6 +124,9 @@ def _reading(path: Path) -> Iterator[None]:
                       EXIT_INVALID) from None
 
 
+_FAILED_WRITES: list[Path] = []
+
+
 def _drop_frames(exc: BaseException | None) -> None:
     seen = set()
     while exc is not None and id(exc) not in seen:
@@ -142,7 +145,7 @@ def _writing(path: Path) -> Iterator[None]:
         message = f"cannot write {_culprit(exc, path)}: {exc.strerror or exc}"
         _drop_frames(exc)  # let the half-written files' objects go now
     if message is not None:
-        gc.collect()  # their finalizers run while the unraisable hook is quiet
+        _FAILED_WRITES.append(path)  # their finalizers run while stderr is kept quiet
         raise Failure(message, EXIT_INVALID)
 
 
@@ -162,7 +165,7 @@ def _resolved(p: Path) -> Path:
 
 
 def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
-                   overwrite: bool, inputs: list[Path] = ()) -> None:
+                   overwrite: bool, inputs: tuple[Path, ...] = ()) -> None:
     """Refuse outputs that cannot be written before any time goes into solving."""
     named = {"--out": out, "--excel": excel, "--charts": charts}
     seen: dict[Path, str] = {}
@@ -237,8 +240,8 @@ def _signals(handler) -> Iterator[None]:
                 break
         yield
     finally:
-        for sig, old in saved.items():
-            signal.signal(sig, old)
+        for signum, old in saved.items():
+            signal.signal(signum, old)
 
 
 def _raise_interrupt(signum, frame) -> None:
@@ -333,7 +336,9 @@ def _quiet_unraisable() -> Iterator[None]:
     try:
         yield
     finally:
-        gc.collect()
+        if _FAILED_WRITES:
+            gc.collect()
+            _FAILED_WRITES.clear()
         sys.unraisablehook = saved
 
 
@@ -351,6 +356,10 @@ class _Main(click.Group):
                 code = rv if isinstance(rv, int) else EXIT_OK
             except click.exceptions.Exit as exc:
                 code = exc.exit_code
+            except click.exceptions.NoArgsIsHelpError as exc:  # a bare ``growthplan``
+                click.echo(exc.ctx.get_help())
+                _say(f"error: name a command (see '{exc.ctx.command_path} --help')")
+                code = EXIT_INVALID
             except click.ClickException as exc:  # bad options and arguments
                 _say(f"error: {exc.format_message()}"
                      + (f" (see '{exc.ctx.command_path} --help')"
@@ -416,7 +425,7 @@ def solve(plan_file: Path, out, excel, charts, overwrite: bool, progress: bool, 
     if method is not None and methods is not None and method != "auto" \
             and method not in methods:
         raise invalid("--method", f"be 'auto' or one of {sorted(methods)}", method)
-    _check_outputs(out, excel, charts, overwrite, inputs=[plan_file])
+    _check_outputs(out, excel, charts, overwrite, inputs=(plan_file,))
     with _reading(plan_file):
         plan, opts = load_plan_file(_input_file(plan_file, "plan file"))
     result = _solve(plan, method=method or opts.method,

@@ -67,11 +67,13 @@ def _quiet_end_effects():
 
 
 def pytest_terminal_summary(terminalreporter):
-    try:
-        from test_fuzz import CASES
-    except ImportError:
-        return
-    if CASES:
-        total = sum(CASES.values())
-        parts = ", ".join(f"{k} {v}" for k, v in sorted(CASES.items()))
-        terminalreporter.write_line(f"fuzzed bad inputs tried: {total} ({parts})")
+    for module, label in (("test_fuzz", "fuzzed bad inputs tried"),
+                          ("test_cli_hostile", "hostile command lines")):
+        try:
+            cases = __import__(module).CASES
+        except ImportError:
+            continue
+        if cases:
+            total = sum(cases.values())
+            parts = ", ".join(f"{k} {v}" for k, v in sorted(cases.items()))
+            terminalreporter.write_line(f"{label}: {total} ({parts})")
