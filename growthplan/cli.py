@@ -71,6 +71,7 @@ def _report_failure(exc: BaseException) -> int:
         _say(f"error: {exc}")
         return exc.code
     if isinstance(exc, KeyboardInterrupt):
+        _STOPPING.on = True
         _say("interrupted")
         return EXIT_SOLVER
     if isinstance(exc, GrowthplanError):
@@ -244,8 +245,30 @@ def _signals(handler) -> Iterator[None]:
             signal.signal(signum, old)
 
 
-def _raise_interrupt(signum, frame) -> None:
+class _Flag:
+    """A plain flag for signal handlers: no lock, so a signal arriving inside a
+    handler cannot deadlock on one (``Event.set`` would)."""
+
+    __slots__ = ("on",)
+
+    def __init__(self) -> None:
+        self.on = False
+
+
+_STOPPING = _Flag()  # the command is ending on an interrupt: ignore further signals
+
+
+def _interrupt() -> NoReturn:
+    _STOPPING.on = True
     raise KeyboardInterrupt
+
+
+def _raise_interrupt(signum, frame) -> None:
+    if not _STOPPING.on:
+        _interrupt()
+
+
+_SOLVES: set[threading.Thread] = set()  # solve threads not yet finished
 
 
 def _solve(plan, **options):
@@ -266,20 +289,32 @@ def _solve(plan, **options):
         except BaseException as exc:  # noqa: BLE001 - handed to the main thread
             box["error"] = exc
 
+    asked = _Flag()
+
     def on_signal(signum, frame) -> None:
-        if stop.is_set():
-            raise KeyboardInterrupt
-        stop.set()
+        if _STOPPING.on:
+            return
+        if asked.on:
+            _interrupt()
+        asked.on = True
 
     with _signals(on_signal):
         worker = threading.Thread(target=work, name="growthplan-solve", daemon=True)
+        _SOLVES.add(worker)
         worker.start()
-        while worker.is_alive():
-            worker.join(0.1)
+        try:
+            while worker.is_alive():
+                worker.join(0.1)
+                if asked.on and not stop.is_set():
+                    stop.set()  # here, not in the handler: Event.set takes a lock
+        except KeyboardInterrupt:
+            stop.set()  # HiGHS stops too, even if nobody waits for it
+            raise
+    _SOLVES.discard(worker)
     if "error" in box:
         raise box["error"]
-    if stop.is_set():
-        raise KeyboardInterrupt
+    if asked.on:
+        _interrupt()
     return box["result"]
 
 
@@ -326,6 +361,10 @@ def _report(result, out: Path | None, excel: Path | None, charts: Path | None,
             click.echo(f"wrote {charts / p.name}")
 
 
+def _show_warning(message, category, filename, lineno, file=None, line=None) -> None:
+    _say(f"warning: {message}")  # one line, without the source line Python adds
+
+
 @contextlib.contextmanager
 def _quiet_unraisable() -> Iterator[None]:
     """Keep the noise of half-closed files (``Exception ignored in …``) that a
@@ -350,7 +389,9 @@ class _Main(click.Group):
         if not standalone_mode:
             return super().main(args, prog_name, complete_var, standalone_mode, **extra)
         code: Any = EXIT_OK
-        with _signals(_raise_interrupt), _quiet_unraisable():
+        _STOPPING.on = False
+        with _signals(_raise_interrupt), _quiet_unraisable(), warnings.catch_warnings():
+            warnings.showwarning = _show_warning
             try:
                 rv = super().main(args, prog_name, complete_var, False, **extra)
                 code = rv if isinstance(rv, int) else EXIT_OK
@@ -374,6 +415,15 @@ class _Main(click.Group):
             except BaseException as exc:  # noqa: BLE001 - the last resort
                 code = _report_failure(exc)
                 _drop_frames(exc)
+        if (args is None and _STOPPING.on) or any(t.is_alive() for t in _SOLVES):
+            # The process ends on a signal, or HiGHS still runs in its thread: a
+            # normal exit would tear HiGHS's C++ threads down under it (abort) and
+            # further signals could cut the interpreter's shutdown short. Leave now;
+            # every output file is complete or removed already.
+            for stream in (sys.stdout, sys.stderr):
+                with contextlib.suppress(Exception):
+                    stream.flush()
+            os._exit(code if isinstance(code, int) else EXIT_SOLVER)
         sys.exit(code)
 
     def invoke(self, ctx):

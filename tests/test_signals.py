@@ -49,10 +49,14 @@ def start_solve(plan_file, out):
     return proc
 
 
-@pytest.mark.parametrize("sig", [signal.SIGINT, signal.SIGTERM])
-def test_signal_stops_a_running_solve(big_plan, tmp_path, sig):
+@pytest.mark.parametrize("signals", [[signal.SIGINT], [signal.SIGTERM],
+                                     [signal.SIGINT, signal.SIGINT]],
+                         ids=["SIGINT", "SIGTERM", "SIGINT twice"])
+def test_signal_stops_a_running_solve(big_plan, tmp_path, signals):
     proc = start_solve(big_plan, tmp_path / "out")
-    proc.send_signal(sig)
+    for sig in signals:  # the second lands while HiGHS is still winding down
+        proc.send_signal(sig)
+        time.sleep(0.05)
     out, err = proc.communicate(timeout=60)
     assert proc.returncode == 3, (out, err)
     lines = [ln for ln in err.decode().replace("\r", "\n").splitlines() if ln.strip()]
