@@ -173,8 +173,6 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
     for opt, p in named.items():
         if p is None:
             continue
-        if str(p).strip() == "":
-            raise invalid(opt, "name a path", str(p))
         full = _resolved(p)
         if full in seen:
             raise invalid(opt, f"differ from {seen[full]}", str(p))
