@@ -1,28 +1,218 @@
 """The ``growthplan`` command line.
 
-Exit codes: 0 optimal plan (or success), 1 infeasible plan, 2 invalid input,
-3 solver failure (time limit, interrupt, unverified result), 4 unbounded plan.
-User errors print one message, never a traceback.
+Exit codes: 0 optimal plan (or success), 1 infeasible plan, 2 invalid input
+(bad options, unreadable or malformed files, outputs that cannot be
+written), 3 solver failure (time limit, interrupt, unverified result, an
+unexpected error), 4 unbounded plan. Every failure prints one line on
+stderr, never a traceback (``GROWTHPLAN_DEBUG=1`` adds the traceback of an
+unexpected error).
+
+Ctrl-C (SIGINT) or SIGTERM during a solve stops HiGHS at its next iteration
+and exits 3 with ``interrupted``; a second signal, or one outside the solve,
+stops at once, also with exit 3, and no output is left half-written.
 """
 
 from __future__ import annotations
 
+import contextlib
+import gc
 import json
+import os
+import shutil
+import signal
 import sys
+import tempfile
+import threading
+import traceback
 import warnings
+from collections.abc import Iterator
 from pathlib import Path
+from typing import Any, NoReturn
 
 import click
 import numpy as np
 
-from .errors import GrowthplanError, InvalidInput
+from .errors import GrowthplanError, invalid
 
 EXIT_OK, EXIT_INFEASIBLE, EXIT_INVALID, EXIT_SOLVER, EXIT_UNBOUNDED = 0, 1, 2, 3, 4
+DEBUG_ENV = "GROWTHPLAN_DEBUG"
+MAX_MESSAGE = 400  # characters of one error line
 
 
-def _fail(exc: Exception) -> None:
-    click.echo(f"error: {exc}", err=True)
-    sys.exit(EXIT_INVALID if isinstance(exc, InvalidInput | ValueError) else EXIT_SOLVER)
+class Failure(Exception):
+    """A failure the command line reports in one line with its exit code."""
+
+    def __init__(self, message: str, code: int) -> None:
+        super().__init__(message)
+        self.code = code
+
+
+def _one_line(text: str) -> str:
+    line = " ".join(str(text).split())
+    return line if len(line) <= MAX_MESSAGE else line[: MAX_MESSAGE - 1] + "…"
+
+
+def _say(message: str) -> None:
+    with contextlib.suppress(OSError, ValueError):  # a closed stderr cannot take it either
+        click.echo(_one_line(message), err=True)
+
+
+def _exit(code: int) -> NoReturn:
+    sys.exit(code)
+
+
+def _debug() -> bool:
+    return os.environ.get(DEBUG_ENV, "").strip() not in ("", "0")
+
+
+def _report_failure(exc: BaseException) -> int:
+    """Report ``exc`` in one line; its documented exit code."""
+    if isinstance(exc, Failure):
+        _say(f"error: {exc}")
+        return exc.code
+    if isinstance(exc, KeyboardInterrupt):
+        _STOPPING.on = True
+        _say("interrupted")
+        return EXIT_SOLVER
+    if isinstance(exc, GrowthplanError):
+        _say(f"error: {exc}")
+        return EXIT_INVALID if isinstance(exc, ValueError) else EXIT_SOLVER
+    if isinstance(exc, BrokenPipeError):  # the reader of stdout went away (| head)
+        with contextlib.suppress(OSError, ValueError):
+            sys.stdout = open(os.devnull, "w")  # noqa: SIM115 - lives until exit
+        return EXIT_SOLVER
+    if _debug():
+        traceback.print_exception(exc)
+    _say(f"error: unexpected {type(exc).__name__}: {exc}"
+         + ("" if _debug() else f" (set {DEBUG_ENV}=1 for the traceback)"))
+    return EXIT_SOLVER
+
+
+def _culprit(exc: BaseException, default: Path) -> str:
+    """The file an input error is about: the OSError's own file name, or the
+    ``path`` being read in the innermost growthplan frame, or ``default``."""
+    name = getattr(exc, "filename", None)
+    if isinstance(name, str | os.PathLike):
+        return str(name)
+    found = None
+    tb = exc.__traceback__
+    while tb is not None:
+        frame = tb.tb_frame
+        if frame.f_globals.get("__name__", "").startswith("growthplan."):
+            value = frame.f_locals.get("path")
+            if isinstance(value, str | os.PathLike):
+                found = value
+        tb = tb.tb_next
+    return str(found if found is not None else default)
+
+
+@contextlib.contextmanager
+def _reading(path: Path) -> Iterator[None]:
+    """Turn any failure while reading input into exit 2, naming the file."""
+    try:
+        yield
+    except (GrowthplanError, KeyboardInterrupt, Failure):
+        raise
+    except OSError as exc:
+        raise Failure(f"cannot read {_culprit(exc, path)}: {exc.strerror or exc}",
+                      EXIT_INVALID) from None
+    except RecursionError as exc:
+        raise Failure(f"cannot read {_culprit(exc, path)}: nested too deeply",
+                      EXIT_INVALID) from None
+    except Exception as exc:
+        detail = str(exc) or type(exc).__name__
+        raise Failure(f"cannot read {_culprit(exc, path)}: {type(exc).__name__}: {detail}",
+                      EXIT_INVALID) from None
+
+
+_FAILED_WRITES: list[Path] = []
+
+
+def _drop_frames(exc: BaseException | None) -> None:
+    seen = set()
+    while exc is not None and id(exc) not in seen:
+        seen.add(id(exc))
+        exc.__traceback__ = None
+        exc = exc.__cause__ or exc.__context__
+
+
+@contextlib.contextmanager
+def _writing(path: Path) -> Iterator[None]:
+    """Turn an operating-system failure while writing into exit 2, naming the path."""
+    message = None
+    try:
+        yield
+    except OSError as exc:
+        message = f"cannot write {_culprit(exc, path)}: {exc.strerror or exc}"
+        _drop_frames(exc)  # let the half-written files' objects go now
+    if message is not None:
+        _FAILED_WRITES.append(path)  # their finalizers run while stderr is kept quiet
+        raise Failure(message, EXIT_INVALID)
+
+
+def _input_file(path: Path, what: str) -> Path:
+    """``path`` if it is a regular file: folders, devices, pipes and sockets are
+    refused before anything reads them (a pipe or /dev/zero would never end)."""
+    if not path.exists():
+        raise invalid(what, "name an existing file", str(path))
+    if not path.is_file():
+        kind = "a folder" if path.is_dir() else "a pipe, device or socket"
+        raise invalid(what, f"name a regular file, not {kind}", str(path))
+    return path
+
+
+def _resolved(p: Path) -> Path:
+    return Path(os.path.abspath(p))
+
+
+def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
+                   overwrite: bool, inputs: tuple[Path, ...] = ()) -> None:
+    """Refuse outputs that cannot be written before any time goes into solving."""
+    named = {"--out": out, "--excel": excel, "--charts": charts}
+    seen: dict[Path, str] = {}
+    for opt, p in named.items():
+        if p is None:
+            continue
+        full = _resolved(p)
+        if full in seen:
+            raise invalid(opt, f"differ from {seen[full]}", str(p))
+        seen[full] = opt
+        if p.exists() and not overwrite and opt != "--charts":
+            raise invalid(opt, "not exist yet (pass --overwrite to replace it)", str(p))
+        if opt == "--out":
+            cwd = _resolved(Path.cwd())
+            if full == cwd or full in cwd.parents:
+                raise invalid(opt, "not be the current folder or one holding it", str(p))
+            if any(full in _resolved(i).parents for i in inputs):
+                raise invalid(opt, "not be a folder holding the plan file", str(p))
+            if p.exists() and not p.is_dir():
+                raise invalid(opt, "name a folder (it is a file)", str(p))
+        if opt != "--out" and any(full == _resolved(i) for i in inputs):
+            raise invalid(opt, "not be the plan file", str(p))
+        if opt == "--excel" and p.is_dir():
+            raise invalid(opt, "name a file (it is a folder)", str(p))
+        if opt == "--charts" and p.exists() and not p.is_dir():
+            raise invalid(opt, "name a folder (it is a file)", str(p))
+        if opt == "--charts" and p.is_dir() and not overwrite and any(
+                (p / f"{name}.png").exists() for name in _CHART_NAMES):
+            raise invalid(opt, "not hold charts yet (pass --overwrite to replace them)",
+                          str(p))
+        parent = full.parent
+        while not parent.exists() and parent != parent.parent:
+            parent = parent.parent
+        if not parent.is_dir():
+            raise invalid(opt, "lie inside a folder", str(p))
+        if not os.access(parent, os.W_OK | os.X_OK):
+            raise invalid(opt, "lie in a writable folder", str(p))
+
+
+_CHART_NAMES = ("output", "capacity", "starts", "labour", "shadow_prices", "ray_distance")
+
+
+def _finite(value: float | None) -> float | None:
+    if value is not None and not np.isfinite(value):  # NaN passes every range check
+        raise click.BadParameter(f"{value} is not a number of seconds")
+    return value
 
 
 def _exit_code(result) -> int:
@@ -30,6 +220,117 @@ def _exit_code(result) -> int:
 
     return {Status.OPTIMAL: EXIT_OK, Status.INFEASIBLE: EXIT_INFEASIBLE,
             Status.UNBOUNDED: EXIT_UNBOUNDED}.get(result.status, EXIT_SOLVER)
+
+
+@contextlib.contextmanager
+def _signals(handler) -> Iterator[None]:
+    """Route SIGINT and SIGTERM to ``handler`` (main thread only), then restore.
+
+    A signal the parent set to be ignored (a shell's background job) stays ignored.
+    """
+    saved: dict[int, Any] = {}
+    try:
+        for sig in (signal.SIGINT, signal.SIGTERM):
+            if signal.getsignal(sig) == signal.SIG_IGN:
+                continue
+            try:
+                saved[sig] = signal.signal(sig, handler)
+            except ValueError:  # not the main thread: leave signals alone
+                break
+        yield
+    finally:
+        for signum, old in saved.items():
+            signal.signal(signum, old)
+
+
+class _Flag:
+    """A plain flag for signal handlers: no lock, so a signal arriving inside a
+    handler cannot deadlock on one (``Event.set`` would)."""
+
+    __slots__ = ("on",)
+
+    def __init__(self) -> None:
+        self.on = False
+
+
+_STOPPING = _Flag()  # the command is ending on an interrupt: ignore further signals
+
+
+def _interrupt() -> NoReturn:
+    _STOPPING.on = True
+    raise KeyboardInterrupt
+
+
+def _raise_interrupt(signum, frame) -> None:
+    if not _STOPPING.on:
+        _interrupt()
+
+
+_SOLVES: set[threading.Thread] = set()  # solve threads not yet finished
+
+
+def _solve(plan, **options):
+    """``plan.solve`` that a first SIGINT/SIGTERM stops through ``stop=``.
+
+    The solve runs in a worker thread so the main thread is always free to
+    take the signal (Python runs handlers only there); the handler sets the
+    event that HiGHS polls. A second signal raises KeyboardInterrupt at once.
+    """
+    stop = threading.Event()
+    box: dict[str, Any] = {}
+
+    def work() -> None:
+        try:
+            with warnings.catch_warnings():
+                warnings.simplefilter("ignore")
+                box["result"] = plan.solve(stop=stop, **options)
+        except BaseException as exc:  # noqa: BLE001 - handed to the main thread
+            box["error"] = exc
+
+    asked = _Flag()
+
+    def on_signal(signum, frame) -> None:
+        if _STOPPING.on:
+            return
+        if asked.on:
+            _interrupt()
+        asked.on = True
+
+    with _signals(on_signal):
+        worker = threading.Thread(target=work, name="growthplan-solve", daemon=True)
+        _SOLVES.add(worker)
+        worker.start()
+        try:
+            while worker.is_alive():
+                worker.join(0.1)
+                if asked.on and not stop.is_set():
+                    stop.set()  # here, not in the handler: Event.set takes a lock
+        except KeyboardInterrupt:
+            stop.set()  # HiGHS stops too, even if nobody waits for it
+            raise
+    _SOLVES.discard(worker)
+    if "error" in box:
+        raise box["error"]
+    if asked.on:
+        _interrupt()
+    return box["result"]
+
+
+@contextlib.contextmanager
+def _fresh_folder(target: Path, overwrite: bool) -> Iterator[Path]:
+    """A folder beside ``target`` that becomes ``target`` only when the block
+    ends normally (a new folder only; an existing one is written in place)."""
+    if target.exists():
+        yield target
+        return
+    target.parent.mkdir(parents=True, exist_ok=True)
+    tmp = Path(tempfile.mkdtemp(prefix=f".{target.name}.", dir=target.parent))
+    try:
+        yield tmp
+        tmp.rename(target)
+    except BaseException:
+        shutil.rmtree(tmp, ignore_errors=True)
+        raise
 
 
 def _report(result, out: Path | None, excel: Path | None, charts: Path | None,
@@ -41,17 +342,96 @@ def _report(result, out: Path | None, excel: Path | None, charts: Path | None,
     if not result.ok:
         return
     if out is not None:
-        click.echo(f"wrote {result.to_csv(out, overwrite=overwrite)}")
+        with _writing(out):
+            click.echo(f"wrote {result.to_csv(out, overwrite=overwrite)}")
     if excel is not None:
-        click.echo(f"wrote {result.to_excel(excel, overwrite=overwrite)}")
+        with _writing(excel):
+            click.echo(f"wrote {result.to_excel(excel, overwrite=overwrite)}")
     if charts is not None:
         import matplotlib
 
         matplotlib.use("Agg")
         from .plot import save_charts
 
-        for p in save_charts(result, charts, overwrite=overwrite):
-            click.echo(f"wrote {p}")
+        with _writing(charts), _fresh_folder(charts, overwrite) as folder:
+            written = save_charts(result, folder, overwrite=overwrite)
+        for p in written:
+            click.echo(f"wrote {charts / p.name}")
+
+
+def _show_warning(message, category, filename, lineno, file=None, line=None) -> None:
+    _say(f"warning: {message}")  # one line, without the source line Python adds
+
+
+@contextlib.contextmanager
+def _quiet_unraisable() -> Iterator[None]:
+    """Keep the noise of half-closed files (``Exception ignored in …``) that a
+    failed export leaves for the garbage collector off stderr."""
+    saved = sys.unraisablehook
+    if not _debug():
+        sys.unraisablehook = lambda unraisable: None
+    try:
+        yield
+    finally:
+        if _FAILED_WRITES:
+            gc.collect()
+            _FAILED_WRITES.clear()
+        sys.unraisablehook = saved
+
+
+class _Main(click.Group):
+    """The command group, reporting every failure in one line with its exit code."""
+
+    def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True,
+             **extra):
+        if not standalone_mode:
+            return super().main(args, prog_name, complete_var, standalone_mode, **extra)
+        code: Any = EXIT_OK
+        _STOPPING.on = False
+        with _signals(_raise_interrupt), _quiet_unraisable(), warnings.catch_warnings():
+            warnings.showwarning = _show_warning
+            try:
+                rv = super().main(args, prog_name, complete_var, False, **extra)
+                code = rv if isinstance(rv, int) else EXIT_OK
+            except click.exceptions.Exit as exc:
+                code = exc.exit_code
+            except click.exceptions.NoArgsIsHelpError as exc:  # a bare ``growthplan``
+                click.echo(exc.ctx.get_help())
+                _say(f"error: name a command (see '{exc.ctx.command_path} --help')")
+                code = EXIT_INVALID
+            except click.ClickException as exc:  # bad options and arguments
+                _say(f"error: {exc.format_message()}"
+                     + (f" (see '{exc.ctx.command_path} --help')"
+                        if getattr(exc, "ctx", None) is not None else ""))
+                code = EXIT_INVALID
+            except click.exceptions.Abort:
+                _say("interrupted")
+                code = EXIT_SOLVER
+            except SystemExit as exc:
+                code = exc.code
+                _drop_frames(exc)  # so the collector finalizes them while it is quiet
+            except BaseException as exc:  # noqa: BLE001 - the last resort
+                code = _report_failure(exc)
+                _drop_frames(exc)
+        if (args is None and _STOPPING.on) or any(t.is_alive() for t in _SOLVES):
+            # The process ends on a signal, or HiGHS still runs in its thread: a
+            # normal exit would tear HiGHS's C++ threads down under it (abort) and
+            # further signals could cut the interpreter's shutdown short. Leave now;
+            # every output file is complete or removed already.
+            for stream in (sys.stdout, sys.stderr):
+                with contextlib.suppress(Exception):
+                    stream.flush()
+            os._exit(code if isinstance(code, int) else EXIT_SOLVER)
+        sys.exit(code)
+
+    def invoke(self, ctx):
+        try:
+            return super().invoke(ctx)
+        except (click.ClickException, click.exceptions.Exit, click.exceptions.Abort,
+                SystemExit):
+            raise
+        except BaseException as exc:  # noqa: BLE001 - every failure is one line
+            _exit(_report_failure(exc))
 
 
 _out = click.option("--out", type=click.Path(path_type=Path), default=None,
@@ -64,8 +444,9 @@ _overwrite = click.option("--overwrite", is_flag=True,
                           help="Replace existing output files and folders.")
 
 
-@click.group(help="Multi-year growth planning of multi-sector economies. Exit codes: 0 "
-             "optimal, 1 infeasible, 2 invalid input, 3 solver failure, 4 unbounded.")
+@click.group(cls=_Main, help="Multi-year growth planning of multi-sector economies. Exit "
+             "codes: 0 optimal, 1 infeasible, 2 invalid input, 3 solver failure or "
+             "interrupt, 4 unbounded.")
 @click.version_option(package_name="growthplan")
 def main() -> None:
     pass
@@ -79,43 +460,45 @@ def main() -> None:
 @_overwrite
 @click.option("--progress/--no-progress", default=True, show_default=True,
               help="Show the solver's progress.")
-@click.option("--method", default=None, help="HiGHS method: auto, simplex, ipm, ipm-crossover.")
-@click.option("--time-limit", type=float, default=None, help="Seconds for the solver.")
+@click.option("--method", default=None,
+              help="HiGHS method: auto, simplex, ipm, ipm-crossover, pdlp.")
+@click.option("--time-limit", type=click.FloatRange(min=0, min_open=True, max=1e9),
+              default=None, callback=lambda ctx, param, v: _finite(v),
+              help="Seconds for the solver.")
 def solve(plan_file: Path, out, excel, charts, overwrite: bool, progress: bool, method,
           time_limit) -> None:
-    from .io.planfile import load_plan_file
+    from . import load_plan_file
+    from .backends.highs import METHODS
 
-    try:
-        plan, opts = load_plan_file(plan_file)
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            result = plan.solve(method=method or opts.method,
-                                time_limit=time_limit or opts.time_limit,
-                                threads=opts.threads, tolerance=opts.tolerance,
-                                progress=progress)
-        _report(result, out, excel, charts, overwrite)
-    except GrowthplanError as exc:
-        _fail(exc)
-    sys.exit(_exit_code(result))
+    methods = METHODS  # checked before the slow part starts
+    if method is not None and methods is not None and method != "auto" \
+            and method not in methods:
+        raise invalid("--method", f"be 'auto' or one of {sorted(methods)}", method)
+    _check_outputs(out, excel, charts, overwrite, inputs=(plan_file,))
+    with _reading(plan_file):
+        plan, opts = load_plan_file(_input_file(plan_file, "plan file"))
+    result = _solve(plan, method=method or opts.method,
+                    time_limit=time_limit or opts.time_limit, threads=opts.threads,
+                    tolerance=opts.tolerance, progress=progress)
+    _report(result, out, excel, charts, overwrite)
+    _exit(_exit_code(result))
 
 
 @main.command(help="Check a plan file without solving: validation and productiveness.")
 @click.argument("plan_file", type=click.Path(path_type=Path))
 def check(plan_file: Path) -> None:
-    from .io.planfile import load_plan_file
+    from . import load_plan_file
 
-    try:
-        plan, _ = load_plan_file(plan_file)
-        econ = plan.economy
-        lp = plan.compile()
-        click.echo(f"{plan_file}: valid")
-        click.echo(f"  {econ.n} sectors, years {plan.years[0]}–{plan.years[-1]}, "
-                   f"{len(plan.targets)} targets, objective {type(plan.objective).__name__}")
-        click.echo(f"  spectral radius of the input coefficients {econ.spectral_radius():.6f} "
-                   "(productive)")
-        click.echo(f"  LP: {lp.shape[0]} rows, {lp.shape[1]} columns, {lp.nnz} nonzeros")
-    except GrowthplanError as exc:
-        _fail(exc)
+    with _reading(plan_file):
+        plan, _ = load_plan_file(_input_file(plan_file, "plan file"))
+    econ = plan.economy
+    lp = plan.compile()
+    click.echo(f"{plan_file}: valid")
+    click.echo(f"  {econ.n} sectors, years {plan.years[0]}–{plan.years[-1]}, "
+               f"{len(plan.targets)} targets, objective {type(plan.objective).__name__}")
+    click.echo(f"  spectral radius of the input coefficients {econ.spectral_radius():.6f} "
+               "(productive)")
+    click.echo(f"  LP: {lp.shape[0]} rows, {lp.shape[1]} columns, {lp.nnz} nonzeros")
 
 
 @main.command(help="Print the steady-state figures of an economy given as tables.")
@@ -125,29 +508,31 @@ def check(plan_file: Path) -> None:
 @click.option("--capital-stocks", type=click.Path(path_type=Path), default=None,
               help="Capital stocks, commodities × sectors.")
 def steady(flows: Path, capital: Path | None, capital_stocks: Path | None) -> None:
-    from .economy import Economy
+    from . import Economy
 
-    try:
+    _input_file(flows, "flows")
+    for what, p in (("--capital", capital), ("--capital-stocks", capital_stocks)):
+        if p is not None:
+            _input_file(p, what)
+    with _reading(flows):
         econ = Economy.from_tables(flows, capital=capital, capital_stocks=capital_stocks)
-        click.echo(f"{econ.n} sectors; spectral radius {econ.spectral_radius():.6f}")
-        table = econ.output_multipliers().to_frame()
-        if econ.labour_coefficients is not None:
-            table = table.join(econ.labour_content().T.add_prefix("labour_content_"))
-        bg = econ.balanced_growth()
-        table["static_balanced"] = bg.proportions
-        click.echo(f"static balanced growth rate {100 * bg.rate:.3f} %")
-        if econ.capital is not None and np.any(econ.capital_coefficients):
-            dyn = econ.dynamic_balanced_growth()
-            click.echo(f"dynamic balanced growth rate with replacement {100 * dyn.rate:.3f} %")
-            table["dynamic_balanced"] = dyn.proportions
-        click.echo(table.round(4).to_string())
-    except GrowthplanError as exc:
-        _fail(exc)
+    click.echo(f"{econ.n} sectors; spectral radius {econ.spectral_radius():.6f}")
+    table = econ.output_multipliers().to_frame()
+    if econ.labour_coefficients is not None:
+        table = table.join(econ.labour_content().T.add_prefix("labour_content_"))
+    bg = econ.balanced_growth()
+    table["static_balanced"] = bg.proportions
+    click.echo(f"static balanced growth rate {100 * bg.rate:.3f} %")
+    if econ.capital is not None and np.any(econ.capital_coefficients):
+        dyn = econ.dynamic_balanced_growth()
+        click.echo(f"dynamic balanced growth rate with replacement {100 * dyn.rate:.3f} %")
+        table["dynamic_balanced"] = dyn.proportions
+    click.echo(table.round(4).to_string())
 
 
 @main.command(help="Print the JSON Schema of plan files.")
 def schema() -> None:
-    from .io.planfile import plan_file_schema
+    from . import plan_file_schema
 
     click.echo(json.dumps(plan_file_schema(), indent=2))
 
@@ -159,35 +544,32 @@ def schema() -> None:
 @_overwrite
 @click.option("--progress/--no-progress", default=True, show_default=True)
 def demo(out, excel, charts, overwrite: bool, progress: bool) -> None:
+    from . import load_plan_file
     from .demo import DEMO_DIR, PLAN_FILE
-    from .io.planfile import load_plan_file
 
-    try:
+    _check_outputs(out, excel, charts, overwrite)
+    with _reading(DEMO_DIR / PLAN_FILE):
         plan, _ = load_plan_file(DEMO_DIR / PLAN_FILE)
-        econ = plan.economy
-        bg = econ.dynamic_balanced_growth()
-        click.echo("The Republic of Arvenna (an invented country) plans its development "
-                   f"for {plan.years[0]}–{plan.years[-1]}.")
-        click.echo(f"Its ten-sector economy is productive (spectral radius of the input "
-                   f"coefficients {econ.spectral_radius():.3f}); with no consumption its "
-                   f"capital could grow at most {100 * bg.rate:.1f} % a year.")
-        click.echo("The plan guarantees households a consumption level rising 2 % a year, "
-                   "meets an energy-capacity and a machinery-output target, respects the "
-                   "labour supply (+1.2 % a year) and maximises capacity at the end, in "
-                   "balanced proportions, growing on at 4 % after the plan.\n")
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            result = plan.solve(progress=progress)
-        _report(result, out, excel, charts, overwrite)
-        if result.ok:
-            click.echo("\nOutput by sector in the first, middle and last plan year:")
-            click.echo(result.output.iloc[[0, plan.horizon // 2, -1]].T.round(0).to_string())
-            click.echo("\nWhat binds first (value of one more unit, first plan year):")
-            b = result.bottlenecks(top=5)
-            click.echo(b[b.year == plan.years[0]].to_string(index=False))
-    except GrowthplanError as exc:
-        _fail(exc)
-    sys.exit(_exit_code(result))
+    econ = plan.economy
+    bg = econ.dynamic_balanced_growth()
+    click.echo("The Republic of Arvenna (an invented country) plans its development "
+               f"for {plan.years[0]}–{plan.years[-1]}.")
+    click.echo(f"Its ten-sector economy is productive (spectral radius of the input "
+               f"coefficients {econ.spectral_radius():.3f}); with no consumption its "
+               f"capital could grow at most {100 * bg.rate:.1f} % a year.")
+    click.echo("The plan guarantees households a consumption level rising 2 % a year, "
+               "meets an energy-capacity and a machinery-output target, respects the "
+               "labour supply (+1.2 % a year) and maximises capacity at the end, in "
+               "balanced proportions, growing on at 4 % after the plan.\n")
+    result = _solve(plan, progress=progress)
+    _report(result, out, excel, charts, overwrite)
+    if result.ok:
+        click.echo("\nOutput by sector in the first, middle and last plan year:")
+        click.echo(result.output.iloc[[0, plan.horizon // 2, -1]].T.round(0).to_string())
+        click.echo("\nWhat binds first (value of one more unit, first plan year):")
+        b = result.bottlenecks(top=5)
+        click.echo(b[b.year == plan.years[0]].to_string(index=False))
+    _exit(_exit_code(result))
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -8,7 +8,11 @@ fields, for example ``"labour.0.growth"``, ``"objective.rate"``,
 ``concurrent.futures.Executor``: a process pool by default, or a Dask
 distributed client's ``client.get_executor()`` to go past one machine.
 Results come back in the order of the variants, whatever order they finish
-in, and a variant that fails is reported in the table, not raised.
+in, and a variant that fails is reported in the table, not raised. A
+process-pool worker that dies (killed, out of memory, a crash in native
+code) breaks the whole pool; the variants it took down are solved again,
+each alone in a fresh one-worker pool, so a variant that kills its worker
+again is reported by name and takes no other variant with it.
 """
 
 from __future__ import annotations
@@ -17,7 +21,8 @@ import itertools
 import os
 import traceback
 import warnings
-from concurrent.futures import Executor, Future, ProcessPoolExecutor
+from concurrent.futures import FIRST_COMPLETED, Executor, Future, ProcessPoolExecutor, wait
+from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass
 from typing import Any
 
@@ -170,7 +175,9 @@ def sweep(plan: Plan, grid: dict[str, list] | None = None, *,
         raise invalid("grid", "or scenarios name at least one variant", None)
     tasks = [(plan, params, dict(solve_options or {}), keep_results) for _, params in variants]
     own = executor is None
-    pool = executor or ProcessPoolExecutor(max_workers=max_workers or os.cpu_count() or 1)
+    workers = max_workers or os.cpu_count() or 1
+    pool = executor or ProcessPoolExecutor(max_workers=workers)
+    lost: list[int] = []
     try:
         futures = [pool.submit(_run_one, t) for t in tasks]
         outcomes: list = [None] * len(futures)
@@ -178,10 +185,21 @@ def sweep(plan: Plan, grid: dict[str, list] | None = None, *,
             for i, fut in enumerate(futures):  # in submission order: deterministic
                 try:
                     outcomes[i] = fut.result()
+                except BrokenProcessPool:  # a worker died: solved again below
+                    lost.append(i)
+                    continue
                 except Exception as exc:  # the executor itself failed on this variant
                     outcomes[i] = ({"status": "error", "error": f"{type(exc).__name__}: {exc}"},
                                    None)
                 bar.update(1)
+            if lost:
+                if not own:
+                    workers = getattr(pool, "_max_workers", None) or workers
+                retried = _solve_alone([tasks[i] for i in lost], [variants[i][0] for i in lost],
+                                       workers, getattr(pool, "_mp_context", None))
+                for i, outcome in zip(lost, retried, strict=True):
+                    outcomes[i] = outcome
+                    bar.update(1)
     finally:
         if own:
             pool.shutdown()
@@ -190,3 +208,42 @@ def sweep(plan: Plan, grid: dict[str, list] | None = None, *,
         rows.append({"scenario": name, **params, **figures})
     table = pd.DataFrame(rows)
     return Sweep(table=table, results=[r for _, r in outcomes])
+
+
+def _solve_alone(tasks: list[tuple], names: list[str], workers: int,
+                 mp_context=None) -> list[tuple[dict, Any]]:
+    """Solve variants whose pool broke, each alone in a one-worker process pool.
+
+    Up to ``workers`` such pools run at once. A variant whose worker dies
+    again is reported as an error row naming it; its pool is replaced and no
+    other variant is lost with it.
+    """
+    out: list = [None] * len(tasks)
+    queue = list(range(len(tasks)))
+    idle: list[ProcessPoolExecutor] = []
+    running: dict[Future, tuple[int, ProcessPoolExecutor]] = {}
+    try:
+        while queue or running:
+            while queue and len(running) < max(1, workers):
+                i = queue.pop(0)
+                pool = idle.pop() if idle else ProcessPoolExecutor(max_workers=1,
+                                                                   mp_context=mp_context)
+                running[pool.submit(_run_one, tasks[i])] = (i, pool)
+            done, _ = wait(running, return_when=FIRST_COMPLETED)
+            for fut in done:
+                i, pool = running.pop(fut)
+                try:
+                    out[i] = fut.result()
+                except BrokenProcessPool:
+                    out[i] = ({"status": "error", "error": "worker died while solving "
+                               f"scenario {names[i]} (twice; the second time alone)"}, None)
+                    pool.shutdown(wait=False)
+                    continue
+                except Exception as exc:
+                    out[i] = ({"status": "error", "error": f"{type(exc).__name__}: {exc}"},
+                              None)
+                idle.append(pool)
+    finally:
+        for pool in idle + [p for _, p in running.values()]:
+            pool.shutdown(cancel_futures=True)
+    return out

@@ -67,22 +67,18 @@ def _quiet_end_effects():
 
 
 def pytest_terminal_summary(terminalreporter):
-    try:
-        from test_numerics_hostile import HOSTILE
-    except ImportError:
-        HOSTILE = None
-    if HOSTILE:
-        cases = sum(v for k, v in HOSTILE.items() if "analysis" not in k)
-        parts = ", ".join(f"{k} {v}" for k, v in sorted(HOSTILE.items()))
-        terminalreporter.write_line(f"hostile numerics cases: {cases} ({parts})")
-    try:
-        from test_fuzz import CASES
-    except ImportError:
-        CASES = None
-    if CASES:
-        total = sum(CASES.values())
-        parts = ", ".join(f"{k} {v}" for k, v in sorted(CASES.items()))
-        terminalreporter.write_line(f"fuzzed bad inputs tried: {total} ({parts})")
+    counts: list[tuple[str, int, str]] = []
+    for module, label in (("test_fuzz", "fuzzed bad inputs"),
+                          ("test_cli_hostile", "hostile command lines"),
+                          ("test_numerics_hostile", "hostile numerics")):
+        try:
+            cases = __import__(module).CASES if module != "test_numerics_hostile" else \
+                {k: v for k, v in __import__(module).HOSTILE.items() if "analysis" not in k}
+        except (ImportError, AttributeError):
+            continue
+        if cases:
+            parts = ", ".join(f"{k} {v}" for k, v in sorted(cases.items()))
+            counts.append((label, sum(cases.values()), parts))
     try:
         from test_io_hostile import OUTCOMES
     except ImportError:
@@ -91,10 +87,10 @@ def pytest_terminal_summary(terminalreporter):
         outcomes: dict[str, int] = {}
         for (_, outcome), n in OUTCOMES.items():
             outcomes[outcome] = outcomes.get(outcome, 0) + n
-        families: dict[str, list[str]] = {}
-        for (family, outcome), n in sorted(OUTCOMES.items()):
-            families.setdefault(family, []).append(f"{outcome} {n}")
+        counts.append(("hostile file inputs", sum(outcomes.values()),
+                       ", ".join(f"{k} {v}" for k, v in sorted(outcomes.items()))))
+    for label, total, parts in counts:
+        terminalreporter.write_line(f"{label}: {total} ({parts})")
+    if counts:
         terminalreporter.write_line(
-            f"hostile file inputs tried: {sum(outcomes.values())} ("
-            + ", ".join(f"{k} {v}" for k, v in sorted(outcomes.items())) + "; by family: "
-            + "; ".join(f"{f} {', '.join(p)}" for f, p in families.items()) + ")")
+            f"hostile and malformed inputs in all: {sum(c[1] for c in counts)}")

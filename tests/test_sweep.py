@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import os
+import signal
 from concurrent.futures import ProcessPoolExecutor
 
 import numpy as np
@@ -74,3 +76,44 @@ def test_failed_scenario_is_reported_not_fatal():
 def test_default_process_pool():
     s = gp.sweep(base_plan(), {"terminal.rate": [0.0, 0.03]}, max_workers=2)
     assert (s.table.status == "optimal").all()
+
+
+class DiesWhenUnpacked:
+    """A parameter value whose unpickling ends the process that receives it: a
+    scenario that kills its worker (os._exit, or SIGKILL as an outside killer)."""
+
+    def __init__(self, how: str = "exit") -> None:
+        self.how = how
+
+    def __reduce__(self):
+        if self.how == "exit":
+            return os._exit, (7,)
+        return signal.raise_signal, (signal.SIGKILL,)
+
+
+@pytest.mark.parametrize("how", ["exit", "kill"])
+def test_a_dying_worker_takes_only_its_own_scenario(how):
+    scenarios = {f"fine {k}": {"terminal.rate": 0.01 * k} for k in range(5)}
+    scenarios["killer"] = {"terminal.rate": DiesWhenUnpacked(how)}
+    scenarios.update({f"later {k}": {"labour.0.growth": 0.01 * k} for k in range(4)})
+    s = gp.sweep(base_plan(), scenarios=scenarios, max_workers=2, keep_results=False)
+    assert list(s.table.scenario) == list(scenarios)
+    assert s.failed.scenario.tolist() == ["killer"]
+    assert "worker died while solving scenario killer" in s.failed.iloc[0].error
+    fine = s.table[s.table.scenario != "killer"]
+    assert (fine.status == "optimal").all(), fine[["scenario", "status", "error"]]
+    # the survivors carry the same figures as a reference run in this process
+    ref = gp.sweep(base_plan(), scenarios={k: v for k, v in scenarios.items()
+                                           if k != "killer"},
+                   executor=gp.SerialExecutor(), keep_results=False)
+    np.testing.assert_allclose(fine.objective.to_numpy(), ref.table.objective.to_numpy(),
+                               rtol=1e-9)
+
+
+def test_a_users_pool_that_breaks_is_retried_on_fresh_pools():
+    scenarios = {"a": {"terminal.rate": 0.01}, "killer": {"terminal.rate": DiesWhenUnpacked()},
+                 "b": {"terminal.rate": 0.02}}
+    with ProcessPoolExecutor(max_workers=2) as pool:
+        s = gp.sweep(base_plan(), scenarios=scenarios, executor=pool, keep_results=True)
+    assert s.table.status.tolist() == ["optimal", "error", "optimal"]
+    assert s.results[1] is None and s.results[2].plan.terminal.rate == 0.02
