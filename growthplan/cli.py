@@ -334,7 +334,7 @@ def _fresh_folder(target: Path, overwrite: bool) -> Iterator[Path]:
 
 
 def _report(result, out: Path | None, excel: Path | None, charts: Path | None,
-            overwrite: bool) -> None:
+            overwrite: bool, protect: tuple[Path, ...] = ()) -> None:
     click.echo(str(result.summary()))
     if result.diagnosis is not None and not result.diagnosis.shortfalls.empty:
         click.echo("\nShortfalls (elastic re-solve):")
@@ -343,10 +343,10 @@ def _report(result, out: Path | None, excel: Path | None, charts: Path | None,
         return
     if out is not None:
         with _writing(out):
-            click.echo(f"wrote {result.to_csv(out, overwrite=overwrite)}")
+            click.echo(f"wrote {result.to_csv(out, overwrite=overwrite, protect=protect)}")
     if excel is not None:
         with _writing(excel):
-            click.echo(f"wrote {result.to_excel(excel, overwrite=overwrite)}")
+            click.echo(f"wrote {result.to_excel(excel, overwrite=overwrite, protect=protect)}")
     if charts is not None:
         import matplotlib
 
@@ -354,7 +354,7 @@ def _report(result, out: Path | None, excel: Path | None, charts: Path | None,
         from .plot import save_charts
 
         with _writing(charts), _fresh_folder(charts, overwrite) as folder:
-            written = save_charts(result, folder, overwrite=overwrite)
+            written = save_charts(result, folder, overwrite=overwrite, protect=protect)
         for p in written:
             click.echo(f"wrote {charts / p.name}")
 
@@ -480,7 +480,9 @@ def solve(plan_file: Path, out, excel, charts, overwrite: bool, progress: bool, 
     result = _solve(plan, method=method or opts.method,
                     time_limit=time_limit or opts.time_limit, threads=opts.threads,
                     tolerance=opts.tolerance, progress=progress)
-    _report(result, out, excel, charts, overwrite)
+    from .io.planfile import plan_file_inputs
+
+    _report(result, out, excel, charts, overwrite, protect=tuple(plan_file_inputs(plan_file)))
     _exit(_exit_code(result))
 
 

@@ -26,7 +26,6 @@ from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass
 from typing import Any
 
-import numpy as np
 import pandas as pd
 
 from .errors import invalid
@@ -106,20 +105,6 @@ def variant(plan: Plan, params: dict[str, Any]) -> Plan:
     return Plan(**data)
 
 
-def _figures(result) -> dict[str, Any]:
-    out: dict[str, Any] = {"status": result.status.value, "objective": result.objective,
-                           "solve_seconds": result.timings.get("solve", np.nan)}
-    if result.ok:
-        out["terminal_capacity"] = float(result.capacity.iloc[-1].sum())
-        out["total_starts"] = float(result.starts.to_numpy().sum())
-        lab = result.labour
-        if not lab.empty and (lab.columns.get_level_values(1) == "available").any():
-            kinds = dict.fromkeys(lab.columns.get_level_values(0))
-            out["peak_labour_use"] = max(float((lab[(k, "used")] / lab[(k, "available")])
-                                               .max()) for k in kinds)
-    return out
-
-
 def _run_one(task: tuple) -> tuple[dict, Any]:
     """Solve one variant (top level, so process pools and Dask can pickle it)."""
     plan, params, options, keep = task
@@ -127,7 +112,7 @@ def _run_one(task: tuple) -> tuple[dict, Any]:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             result = variant(plan, params).solve(**options)
-        return _figures(result), (result if keep else None)
+        return result.key_figures(), (result if keep else None)
     except Exception as exc:  # a failed variant is data, not the end of the sweep
         return {"status": "error", "error": f"{type(exc).__name__}: {exc}",
                 "detail": traceback.format_exc(limit=2)}, None

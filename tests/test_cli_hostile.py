@@ -222,7 +222,7 @@ def test_unexpected_error_while_reading_is_invalid_input(bad, monkeypatch):
 
 
 def test_write_failure_names_the_path(bad, monkeypatch):
-    def full(self, folder, overwrite=False):
+    def full(self, folder, overwrite=False, protect=()):
         raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC), str(folder))
 
     monkeypatch.setattr(gp.PlanResult, "to_csv", full)
