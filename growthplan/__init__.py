@@ -8,6 +8,7 @@ from importlib.metadata import PackageNotFoundError, version
 
 from . import backends, capital, objectives
 from .backends import HighsBackend, PulpBackend, Status
+from .demo import DEMO_DIR, demo_economy, demo_plan
 from .economy import CapitalSpec, Economy, Sector
 from .errors import (
     EndEffectsWarning,
@@ -46,6 +47,9 @@ except PackageNotFoundError:  # running from a source tree
 
 __all__ = [
     "Audit",
+    "DEMO_DIR",
+    "demo_economy",
+    "demo_plan",
     "HighsBackend",
     "PulpBackend",
     "backends",
