@@ -269,3 +269,26 @@ class TestExports:
             os.umask(umask)
         assert stat.S_IMODE(folder.stat().st_mode) == 0o755
         assert stat.S_IMODE(book.stat().st_mode) == 0o644
+
+
+@pytest.mark.parametrize("tiny", [1e-30, 1e-25, 1e-13])
+@pytest.mark.parametrize("method", ["simplex", "ipm"])
+def test_a_vanishing_coefficient_is_zero_with_a_warning(tiny, method):
+    """An input coefficient of 1e-30 once made simplex call the plan unbounded and interior
+    point "unknown"; it is now zero (with a warning naming the cell) and the plan equals the
+    plan with an exact zero there, solved by simplex."""
+    def econ(a_yy: float) -> gp.Economy:
+        return gp.Economy(sectors=["x", "y"], input_coefficients=[[0.2, 0.3], [0.1, a_yy]],
+                          capital_coefficients=[[1.0, 1.0], [0.5, 0.5]],
+                          capital={s: gp.CapitalSpec(initial_capacity=100, mean_service_life=20)
+                                   for s in "xy"})
+
+    with pytest.warns(gp.TinyCoefficientsWarning, match="input_coefficients"):
+        small = econ(tiny)
+    years = range(2030, 2040)
+    terminal = gp.TerminalGrowth(rate=0.02)
+    r = assert_optimal(gp.Plan(economy=small, years=years, terminal=terminal).solve(
+        method=method))
+    ref = assert_optimal(gp.Plan(economy=econ(0.0), years=years, terminal=terminal).solve(
+        method="simplex"))
+    assert r.objective == pytest.approx(ref.objective, rel=1e-8)
