@@ -26,10 +26,25 @@ __all__ = ["Sector", "CapitalSpec", "Economy"]
 
 
 class Sector(Model):
-    """One producing sector and the unit its commodity is measured in."""
+    """One producing sector: its name, the unit its commodity is measured in, its price.
+
+    Parameters
+    ----------
+    name : str
+    unit : str, optional
+        Unit of the commodity and of the sector's output per year (``"GWh"``,
+        ``"thousand tonnes"``). Default: the economy's ``value_unit``, for
+        tables in money.
+    price : float, default 1.0
+        Base-year price: the value of one unit at base-year prices, in the
+        economy's ``value_unit`` (1 where the table is in money). Every figure
+        that adds sectors is valued with these prices, so it does not change
+        when a sector's unit does (with its price scaled inversely).
+    """
 
     name: str
-    unit: str = "unit"
+    unit: str | None = None
+    price: float = 1.0
 
     @field_validator("name")
     @classmethod
@@ -37,6 +52,14 @@ class Sector(Model):
         if not v.strip():
             raise Rule("be a non-empty name", v)
         return v.strip()
+
+    @field_validator("price", mode="before")
+    @classmethod
+    def _price(cls, v: Any) -> Any:
+        if isinstance(v, bool) or not isinstance(v, int | float | np.integer | np.floating) \
+                or not (np.isfinite(v) and v > 0):
+            raise Rule("be a finite price > 0 (the value of one unit at base-year prices)", v)
+        return float(v)
 
 
 class CapitalSpec(Model):
@@ -245,6 +268,11 @@ class Economy(Model):
         Commodities per unit of the plan's consumption level.
     wage_basket : array_like or Series, optional
         Commodities consumed per person-year of labour (closes the model).
+    value_unit : str, default "money at base-year prices"
+        Unit of values (a currency at base-year prices, e.g. "million ARV at
+        2025 prices"); also the unit of sectors given without one.
+    labour_units : list of str, optional
+        Unit of each labour kind (default "person-years").
 
     Notes
     -----
@@ -270,6 +298,8 @@ class Economy(Model):
     capital: dict[str, CapitalSpec] | None = None
     consumption_basket: Vector | None = None
     wage_basket: Vector | None = None
+    value_unit: str = "money at base-year prices"
+    labour_units: list[str] | None = None
 
     @model_validator(mode="before")
     @classmethod
@@ -365,6 +395,14 @@ class Economy(Model):
         elif self.labour_kinds:
             raise Rule("come with labour_coefficients", self.labour_kinds,
                        field="labour_kinds")
+        if self.labour_units is not None:
+            k = len(self.labour_kinds or [])
+            if len(self.labour_units) != k or any(not str(u).strip()
+                                                  for u in self.labour_units):
+                raise Rule(f"give one non-empty unit per labour kind ({k})", self.labour_units,
+                           field="labour_units")
+        if not self.value_unit.strip():
+            raise Rule("be a non-empty unit", self.value_unit, field="value_unit")
         for key in ("consumption_basket", "wage_basket"):
             v = getattr(self, key)
             if v is not None:
@@ -404,6 +442,22 @@ class Economy(Model):
     def n(self) -> int:
         """Number of sectors."""
         return len(self.sectors)
+
+    @property
+    def units(self) -> list[str]:
+        """Unit of each sector's commodity (the value unit where none is given)."""
+        return [s.unit or self.value_unit for s in self.sectors]
+
+    @property
+    def prices(self) -> np.ndarray:
+        """Base-year price of one unit of each commodity, in ``value_unit``."""
+        return np.array([s.price for s in self.sectors], dtype=float)
+
+    @property
+    def labour_unit_names(self) -> list[str]:
+        """Unit of each labour kind ("person-years" unless given)."""
+        kinds = self.labour_kinds or []
+        return list(self.labour_units) if self.labour_units else ["person-years"] * len(kinds)
 
     def _frame(self, m: np.ndarray, rows: list[str] | None = None) -> pd.DataFrame:
         return pd.DataFrame(m, index=pd.Index(rows or self.names), columns=pd.Index(self.names))

@@ -87,6 +87,11 @@ class PlanData:
     exports: TradeSide | None
     inflow: np.ndarray | None
     objective: Any
+    prices: np.ndarray = field(default_factory=lambda: np.zeros(0))  # base-year, per unit
+    units: list[str] = field(default_factory=list)
+    labour_units: list[str] = field(default_factory=list)  # of the kinds with a supply
+    labour_all_units: list[str] = field(default_factory=list)
+    value_unit: str = ""
     extra: dict[str, Any] = field(default_factory=dict)
 
     @property
@@ -193,23 +198,29 @@ def trade_sides(plan: Plan) -> tuple[TradeSide | None, TradeSide | None, np.ndar
 
 
 def terminal_proportions(plan: Plan) -> tuple[np.ndarray, str]:
-    """Proportions ``π`` of the terminal-capacity objective and where they came from."""
+    """Proportions ``π`` of the terminal-capacity objective and where they came from.
+
+    ``π`` is scaled so that the bundle is worth one unit of value at base-year
+    prices (``p·π = 1``): the level ``λ`` is then the value of the terminal
+    capacity bundle, whatever units the sectors are measured in.
+    """
     econ = plan.economy
+    prices = econ.prices
     o = next((c for c in obj.components(plan.objective)
               if isinstance(c, obj.TerminalCapacity)), None)
     if o is not None and o.proportions:
         p = np.array([float(o.proportions.get(k, 0.0)) for k in econ.names])
-        return p / p.sum(), "given"
+        return p / (prices @ p), "given"
     try:
         v = econ.dynamic_balanced_growth().proportions.to_numpy()
         if np.all(v > 1e-12):
-            return v / v.sum(), "balanced growth"
+            return v / (prices @ v), "balanced growth"
     except (ValueError, ArithmeticError):
         pass
     c0 = np.array([econ.capital[k].initial_capacity for k in econ.names])  # type: ignore[index]
     if c0.sum() <= 0:
-        return np.full(econ.n, 1.0 / econ.n), "equal"
-    return c0 / c0.sum(), "initial capacity"
+        return 1.0 / (econ.n * prices), "equal"
+    return c0 / (prices @ c0), "initial capacity"
 
 
 def _pipeline_capacity(theta: int, starts: np.ndarray, surv: np.ndarray, T: int) -> np.ndarray:
@@ -299,7 +310,10 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
         surv_full=surv_full, geometric_rate=geo, initial=initial, pipeline=pipeline,
         base=base, pipe_deliveries=pipe_del, upper_starts=upper, ceilings=ceilings,
         targets=targets, proportions=prop, proportions_source=source, terminal_rate=rate,
-        psi=psi, imports=imports, exports=exports, inflow=inflow, objective=plan.objective)
+        psi=psi, imports=imports, exports=exports, inflow=inflow, objective=plan.objective,
+        prices=econ.prices, units=econ.units,
+        labour_units=[econ.labour_unit_names[kinds.index(k)] for k in sup_kinds],
+        labour_all_units=econ.labour_unit_names, value_unit=econ.value_unit)
     for arr_name in ("initial", "base", "surv", "pipe_deliveries", "demand", "supply"):
         arr = getattr(data, arr_name)
         if not np.all(np.isfinite(arr)):

@@ -104,6 +104,39 @@ def _relative(c: Check) -> tuple[np.ndarray, np.ndarray]:
     return np.nan_to_num(rel, nan=np.inf), viol
 
 
+def _accounts_checks(d: PlanData, s: Schedules) -> list[Check]:
+    """GDP from production equals GDP from expenditure plus free disposal, and disposal ≥ 0.
+
+    Both sides at base-year prices, with the capital goods delivered recomputed
+    vintage by vintage and the disposal summed commodity by commodity from the
+    balances, so the identity ties the reported accounts to the schedules.
+    """
+    assert s.deliveries_check is not None
+    p = d.prices
+    x = s.output
+    kappa = np.zeros(d.T) if s.consumption is None else s.consumption
+    supply = x.copy()
+    for flows, side, sign in ((s.imports, d.imports, 1.0), (s.exports, d.exports, -1.0)):
+        if flows is not None and side is not None:
+            for i, j in enumerate(side.index):
+                supply[:, j] += sign * flows[:, i]
+    use = x @ d.a.T + s.deliveries_check + kappa[:, None] * d.basket[None, :] + d.demand
+    disposal = (supply - use) @ p
+    production = (x - x @ d.a.T) @ p
+    exports = np.zeros(d.T) if s.exports is None or d.exports is None else \
+        s.exports @ p[d.exports.index]
+    imports = np.zeros(d.T) if s.imports is None or d.imports is None else \
+        s.imports @ p[d.imports.index]
+    expenditure = (s.deliveries_check @ p + kappa * float(d.basket @ p) + d.demand @ p
+                   + exports - imports)
+    scale = np.abs(x) @ p + np.abs(x @ d.a.T) @ p + np.abs(use) @ p
+    labels = [("national accounts", y) for y in d.years]
+    zeros = np.zeros(d.T, int)
+    return [Check("GDP identity", np.abs(production - expenditure - disposal), scale, labels,
+                  zeros),
+            Check("free disposal", -disposal, scale, labels, zeros)]
+
+
 def audit(d: PlanData, s: Schedules, *, tolerance: float = 1e-6) -> Audit:
     """Check every condition of the plan against the schedules.
 
@@ -135,6 +168,14 @@ def audit(d: PlanData, s: Schedules, *, tolerance: float = 1e-6) -> Audit:
                          "where": label})
             if rel[k] > worst_rel or (worst == "" and rel[k] > 0):
                 worst, worst_rel, worst_abs = label, float(rel[k]), float(viol[k])
+    for c in _accounts_checks(d, s):
+        rel, viol = _relative(c)
+        k = int(np.argmax(rel))
+        label = " ".join(str(p) for p in c.labels[k] if p != "")
+        rows.append({"condition": c.kind, "count": int(rel.size), "max_relative": float(rel[k]),
+                     "max_absolute": float(viol.max()), "where": label})
+        if rel[k] > worst_rel:
+            worst, worst_rel, worst_abs = label, float(rel[k]), float(viol[k])
     table = pd.DataFrame(rows, columns=["condition", "count", "max_relative", "max_absolute",
                                         "where"]).set_index("condition")
     finite = all(np.all(np.isfinite(a)) for a in (s.output, s.starts, s.capacity,

@@ -168,6 +168,28 @@ class PlanResult:
         lambda self: self._get("shadow_exchange_rate"),
         doc="Value of one more unit of foreign exchange per year (0 when the balance is slack).")
 
+    accounts = property(
+        lambda self: self._get("accounts"),
+        doc="The plan in national-accounts terms at base-year prices, by year "
+            "(see growthplan.results.accounts).")
+    employment = property(lambda self: self._get("employment"),
+                          doc="Labour used by kind and sector, years × (kind, sector).")
+    shadow_prices_money = property(
+        lambda self: self._get("shadow_prices_money"),
+        doc="Shadow prices in base-year money per unit: each year scaled so the first "
+            "year's output bundle is worth the same at shadow and at base-year prices.")
+    quasi_rents_money = property(lambda self: self._get("quasi_rents_money"),
+                                 doc="Quasi-rents in base-year money (same numeraire).")
+    labour_values_money = property(lambda self: self._get("labour_values_money"),
+                                   doc="Labour values in base-year money (same numeraire).")
+    floor_values = property(lambda self: self._get("floor_values"),
+                            doc="Value of relaxing the consumption floor by one unit, per year.")
+
+    @property
+    def terminal_value(self) -> float:
+        """Value at base-year prices of the capacity in service after the plan."""
+        return float(self._get("terminal_value"))
+
     @property
     def level(self) -> float | None:
         """Terminal-capacity level ``λ`` (terminal-capacity objective only)."""
@@ -187,25 +209,39 @@ class PlanResult:
 
     # -- analysis ---------------------------------------------------------------
     def bottlenecks(self, *, top: int | None = 20, threshold: float = 1e-9) -> pd.DataFrame:
-        """Binding conditions ranked by their value (shadow price) per year.
+        """Binding conditions ranked by their value per year.
+
+        Parameters
+        ----------
+        top : int or None, default 20
+            Most rows per year (None: all).
+        threshold : float, default 1e-9
+            Smallest value (per unit of base-year value) that counts as binding.
 
         Returns
         -------
-        DataFrame with columns condition, year, name, value, ranked by value
-        within each year, years in order (``top`` rows per year at most).
+        pandas.DataFrame
+            Columns condition, year, name, value (the shadow price per unit) and
+            per_value (per unit of base-year value: a commodity's or a capacity's
+            shadow price over its base-year price; labour per unit of labour),
+            ranked by per_value within each year, years in order. The ranking
+            does not change with the units sectors are measured in.
         """
+        assert self.data is not None
+        price = dict(zip(self.data.names, self.data.prices, strict=True))
         rows = []
         for cond, frame in (("commodity", self.shadow_prices), ("capacity", self.quasi_rents),
                             ("labour", self.labour_values)):
             for year, series in frame.iterrows():
                 for name, v in series.items():
-                    if v > threshold:
+                    per = float(v) / price[name] if cond != "labour" else float(v)
+                    if per > threshold:
                         rows.append({"condition": cond, "year": year, "name": name,
-                                     "value": float(v)})
-        out = pd.DataFrame(rows, columns=["condition", "year", "name", "value"])
+                                     "value": float(v), "per_value": per})
+        out = pd.DataFrame(rows, columns=["condition", "year", "name", "value", "per_value"])
         if out.empty:
             return out
-        out = out.sort_values(["year", "value"], ascending=[True, False])
+        out = out.sort_values(["year", "per_value"], ascending=[True, False])
         if top is not None:
             out = out.groupby("year", sort=True).head(top)
         return out.reset_index(drop=True)
@@ -225,11 +261,12 @@ class PlanResult:
 
     # -- export -----------------------------------------------------------------
     def _tables(self) -> dict[str, pd.DataFrame]:
-        names = ["output", "capacity", "utilisation", "starts", "capital_deliveries",
-                 "retirements", "labour", "consumption", "surplus", "shadow_prices",
-                 "shadow_prices_current", "labour_values", "quasi_rents", "target_values",
-                 "imports", "exports"]
-        out = {n: self._get(n) for n in names}
+        names = ["accounts", "output", "capacity", "utilisation", "starts",
+                 "capital_deliveries", "retirements", "labour", "employment", "consumption",
+                 "surplus", "shadow_prices", "shadow_prices_money", "shadow_prices_current",
+                 "labour_values", "labour_values_money", "quasi_rents", "quasi_rents_money",
+                 "target_values", "imports", "exports"]
+        out = {n: _with_units(self._get(n)) for n in names}
         fx = self._get("shadow_exchange_rate")
         if not fx.isna().all():
             out["shadow_exchange_rate"] = fx.to_frame()
@@ -298,3 +335,22 @@ class PlanResult:
                 raise
             writer.close()
         return Path(path)
+
+
+def _with_units(frame: pd.DataFrame) -> pd.DataFrame:
+    """A copy whose column headers carry their units, for exports ("energy [GWh]")."""
+    units = frame.attrs.get("units")
+    unit = frame.attrs.get("unit")
+    if isinstance(frame.columns, pd.MultiIndex) or (not units and not unit):
+        return frame
+    share = ("share", "growth")
+
+    def label(c: object) -> object:
+        if units and c in units:
+            return f"{c} [{units[c]}]"
+        if unit and isinstance(c, str) and not c.startswith("employment") \
+                and not c.endswith(share):
+            return f"{c} [{unit}]"
+        return c
+
+    return frame.rename(columns=label)

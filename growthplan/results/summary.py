@@ -18,20 +18,35 @@ CAUTION = ("Planning estimates: results rest on the coefficients and assumptions
 
 
 def key_figures(result: PlanResult) -> dict[str, Any]:
-    """Status, objective, solve time and, for an optimal plan, its totals.
+    """Status, objective, solve time and, for an optimal plan, its totals at base-year prices.
+
+    Parameters
+    ----------
+    result : PlanResult
 
     Returns
     -------
     dict
         ``status``, ``objective``, ``solve_seconds`` and, when the plan is
-        optimal, ``terminal_capacity`` (sum over sectors), ``total_starts`` and
-        ``peak_labour_use`` (largest share of a labour supply used).
+        optimal, ``terminal_capacity`` (value of the capacity in service after
+        the plan), ``total_starts`` (value of the annual output of all
+        capacity started), ``gdp_first`` and ``gdp_last`` (value added in the
+        first and last plan years), ``investment_share`` (mean share of
+        investment in GDP) and ``peak_labour_use`` (largest share of a labour
+        supply used). Every total is at base-year prices, so none changes with
+        the unit of a sector.
     """
     out: dict[str, Any] = {"status": result.status.value, "objective": result.objective,
                            "solve_seconds": result.timings.get("solve", np.nan)}
     if result.ok:
-        out["terminal_capacity"] = float(result.capacity.iloc[-1].sum())
-        out["total_starts"] = float(result.starts.to_numpy().sum())
+        assert result.data is not None
+        prices = result.data.prices
+        out["terminal_capacity"] = float(result.capacity.iloc[-1].to_numpy() @ prices)
+        out["total_starts"] = float((result.starts.to_numpy() @ prices).sum())
+        acc = result.accounts
+        out["gdp_first"] = float(acc["gdp"].iloc[0])
+        out["gdp_last"] = float(acc["gdp"].iloc[-1])
+        out["investment_share"] = float(acc["investment_share"].mean())
         lab = result.labour
         if not lab.empty and (lab.columns.get_level_values(1) == "available").any():
             kinds = dict.fromkeys(lab.columns.get_level_values(0))
@@ -39,6 +54,11 @@ def key_figures(result: PlanResult) -> dict[str, Any]:
                                                .max()) for k in kinds
                                          if (k, "available") in lab)
     return out
+
+
+def labour_label(kind: str, unit: str) -> str:
+    """"labour (person-years)" for the default kind, "labour skilled (person-years)" else."""
+    return f"labour ({unit})" if kind == "labour" else f"labour {kind} ({unit})"
 
 
 class Summary:
@@ -57,19 +77,37 @@ class Summary:
                  + (f" (terminal proportions: {r.data.proportions_source})"
                     if r.data is not None and r.data.proportions_source else ""))]
         if r.ok:
-            cap = r.capacity
-            first, last = cap.iloc[0].sum(), cap.iloc[-1].sum()
-            if first > 0 and last > 0:
-                g = (last / first) ** (1.0 / p.horizon) - 1
-                rows.append(("capacity growth", f"{100 * g:.2f} % a year (sum over sectors)"))
+            assert r.data is not None
+            d = r.data
+            unit = d.value_unit
+            if r.level is not None:
+                rows.append(("terminal level", f"λ = {r.level:.6g} (the proportions bundle is "
+                             f"worth 1 {unit}); terminal capacity worth "
+                             f"{r.terminal_value:,.6g} {unit}"))
+            cap = r.capacity.to_numpy() @ d.prices
+            if cap[0] > 0 and cap[-1] > 0:
+                g = (cap[-1] / cap[0]) ** (1.0 / p.horizon) - 1
+                rows.append(("capacity growth", f"{100 * g:.2f} % a year (valued at base-year "
+                             "prices)"))
+            acc = r.accounts
+            gdp = acc["gdp"].to_numpy()
+            if gdp[0] > 0 and gdp[-1] > 0 and len(gdp) > 1:
+                g = (gdp[-1] / gdp[0]) ** (1.0 / (len(gdp) - 1)) - 1
+                rows.append(("GDP", f"{gdp[0]:,.6g} → {gdp[-1]:,.6g} {unit}, "
+                             f"{100 * g:.2f} % a year"))
+                share = acc["investment_share"]
+                rows.append(("investment share", f"{100 * share.min():.1f}–"
+                             f"{100 * share.max():.1f} % of GDP"))
             if r.labour is not None and not r.labour.empty:
+                units = dict(zip(d.labour_all_kinds, d.labour_all_units, strict=True))
                 for kind in r.labour.columns.get_level_values(0).unique():
                     if (kind, "available") not in r.labour:
                         continue  # labour is counted but not limited
-                    used = r.labour[(kind, "used")]
-                    avail = r.labour[(kind, "available")]
-                    rows.append((f"labour {kind}", f"up to {100 * (used / avail).max():.1f} % "
-                                 "of supply used"))
+                    ratio = r.labour[(kind, "used")] / r.labour[(kind, "available")]
+                    rows.append((labour_label(str(kind), units.get(kind, "person-years")),
+                                 f"up to {100 * ratio.max():.1f} % of supply used "
+                                 f"({ratio.idxmax()}), at least {100 * ratio.min():.1f} % "
+                                 f"({ratio.idxmin()})"))
             b = r.bottlenecks(top=3)
             if not b.empty:
                 first_year = b[b.year == b.year.min()]

@@ -17,8 +17,13 @@ from ..backends.base import SolverOutcome
 from ..lp.conditions import Schedules
 from ..lp.data import PlanData
 from ..lp.program import LinearProgram
+from .accounts import employment, national_accounts
 
-__all__ = ["schedules", "frames", "current_prices"]
+__all__ = ["schedules", "frames", "current_prices", "money_factor"]
+
+# tables whose columns are sectors or commodities: their unit per column in attrs["units"]
+PER_SECTOR = ("output", "starts", "capacity", "capital_deliveries", "retirements",
+              "surplus")
 
 
 def schedules(d: PlanData, lp: LinearProgram, x: np.ndarray) -> Schedules:
@@ -123,6 +128,31 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
         tv["value"] = lp.rows["targets"].take(value)
     out["target_values"] = tv
     out["level"] = s.level
+    out["terminal_value"] = float(d.prices @ cap[-1])
+    out["accounts"] = national_accounts(d, s, out["retirements"].to_numpy())
+    out["employment"] = employment(d, s)
+    factor = money_factor(d, prices, output)
+    money_note = (f"{d.value_unit} per unit; numeraire: the first year's output bundle has "
+                  "the same value at shadow prices as at base-year prices")
+    out["shadow_prices_money"] = frame(prices * factor[:, None], columns=goods)
+    out["quasi_rents_money"] = frame(lp.rows["capacity"].take(value) * factor[:, None])
+    if "labour" in lp.rows:
+        out["labour_values_money"] = pd.DataFrame(
+            lp.rows["labour"].take(value) * factor[:, None], index=idx,
+            columns=pd.Index(d.labour_kinds, name="kind"))
+    else:
+        out["labour_values_money"] = pd.DataFrame(index=idx)
+    for key in ("shadow_prices_money", "quasi_rents_money", "labour_values_money"):
+        out[key].attrs["note"] = money_note
+    if "consumption_floor" in lp.rows:
+        out["floor_values"] = pd.Series(lp.rows["consumption_floor"].take(value), index=idx,
+                                        name="consumption_floor_value")
+    else:
+        out["floor_values"] = pd.Series(np.full(T, np.nan), index=idx,
+                                        name="consumption_floor_value")
+    units = dict(zip(names, d.units, strict=True))
+    for key in PER_SECTOR:
+        out[key].attrs["units"] = units
     if "foreign_exchange" in lp.rows:
         out["shadow_exchange_rate"] = pd.Series(lp.rows["foreign_exchange"].take(value),
                                                 index=idx, name="shadow_exchange_rate")
@@ -130,6 +160,20 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
         out["shadow_exchange_rate"] = pd.Series(np.full(T, np.nan), index=idx,
                                                 name="shadow_exchange_rate")
     return out
+
+
+def money_factor(d: PlanData, prices: np.ndarray, output: np.ndarray) -> np.ndarray:
+    """Per-year factor that turns shadow values into base-year money.
+
+    Year ``t``'s shadow prices are scaled so that the first year's output
+    bundle ``x_0`` has the same value at them as at base-year prices:
+    ``factor_t = (p·x_0) / (y_t·x_0)`` (NaN where the bundle has no shadow value).
+    """
+    bundle = output[0] if output[0].sum() > 0 else np.ones(prices.shape[1])
+    at_base = float(d.prices @ bundle)
+    at_shadow = prices @ bundle
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(np.abs(at_shadow) > 1e-300, at_base / at_shadow, np.nan)
 
 
 def current_prices(prices: np.ndarray, output: np.ndarray,

@@ -1,0 +1,115 @@
+"""A plan in national-accounts terms, at base-year prices.
+
+For each plan year, with base-year prices ``p`` (one per commodity):
+
+* gross output ``p·x``; intermediate use ``p·A x``;
+* value added (GDP from production) ``p·(x − A x)``;
+* final uses: gross fixed investment (capital goods delivered, ``p·W z``),
+  consumption ``p·h κ``, exogenous demand ``p·g``, exports ``p·e`` less
+  imports ``p·m``; and free disposal, the value of what the balances leave
+  unused (``p·(x + m − e − A x − W z − h κ − g)``), shown separately so the
+  identity GDP = final uses + disposal is exact;
+* employment by labour kind, retirements of capacity valued at the capital
+  goods they embody (``Σ_j (p·b_j) × retired_j``);
+* growth rates of the main aggregates (real, since all are at base-year prices).
+
+Every aggregate is a sum of values, so it does not change when a sector's unit
+does (its price scaled inversely).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from ..lp.conditions import Schedules
+from ..lp.data import PlanData
+
+__all__ = ["national_accounts", "employment"]
+
+
+def _trade(d: PlanData, s: Schedules) -> tuple[np.ndarray, np.ndarray]:
+    exp = np.zeros(d.T)
+    imp = np.zeros(d.T)
+    if s.imports is not None and d.imports is not None:
+        imp = s.imports @ d.prices[d.imports.index]
+    if s.exports is not None and d.exports is not None:
+        exp = s.exports @ d.prices[d.exports.index]
+    return exp, imp
+
+
+def national_accounts(d: PlanData, s: Schedules, retirements: np.ndarray) -> pd.DataFrame:
+    """The accounts table, years as rows (see the module notes).
+
+    Parameters
+    ----------
+    d : PlanData
+        The plan's arrays (prices, coefficients, demand).
+    s : Schedules
+        The solution.
+    retirements : numpy.ndarray
+        Capacity retired in each year, years × sectors.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns ``gross_output``, ``intermediate_use``, ``gdp``, ``investment``,
+        ``investment_share``, ``consumption``, ``exogenous_demand``, ``exports``,
+        ``imports``, ``disposal``, ``retirements``, one ``employment <kind>``
+        per labour kind, and ``<aggregate>_growth`` for gross output, GDP,
+        investment and consumption; ``attrs["unit"]`` holds the value unit.
+    """
+    p = d.prices
+    x = s.output
+    kappa = np.zeros(d.T) if s.consumption is None else s.consumption
+    gross = x @ p
+    inter = (x @ d.a.T) @ p
+    gdp = gross - inter
+    invest = s.deliveries @ p
+    cons = kappa * float(d.basket @ p)
+    demand = d.demand @ p
+    exp, imp = _trade(d, s)
+    disposal = gdp - (invest + cons + demand + exp - imp)
+    disposal = np.where(np.abs(disposal) <= 1e-9 * np.maximum(np.abs(gross), 1e-300), 0.0,
+                        disposal)
+    capital_value = p @ d.b  # value of the capital goods in one unit of new capacity
+    retired = retirements @ capital_value
+    with np.errstate(divide="ignore", invalid="ignore"):
+        share = np.where(gdp > 0, invest / gdp, np.nan)
+    out = pd.DataFrame({"gross_output": gross, "intermediate_use": inter, "gdp": gdp,
+                        "investment": invest, "investment_share": share,
+                        "consumption": cons, "exogenous_demand": demand, "exports": exp,
+                        "imports": imp, "disposal": disposal, "retirements": retired},
+                       index=pd.Index(d.years, name="year"))
+    for k, kind in enumerate(d.labour_all_kinds):
+        out[f"employment {kind}"] = x @ d.labour_all[k]
+    for col in ("gross_output", "gdp", "investment", "consumption"):
+        prev = out[col].shift(1)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            out[f"{col}_growth"] = np.where(prev > 0, out[col] / prev - 1.0, np.nan)
+    out.attrs["unit"] = d.value_unit
+    return out
+
+
+def employment(d: PlanData, s: Schedules) -> pd.DataFrame:
+    """Labour used by sector and kind, years × (kind, sector).
+
+    Parameters
+    ----------
+    d : PlanData
+    s : Schedules
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``attrs["units"]`` maps each kind to its unit.
+    """
+    cols = {}
+    for k, kind in enumerate(d.labour_all_kinds):
+        for j, name in enumerate(d.names):
+            cols[(kind, name)] = s.output[:, j] * d.labour_all[k, j]
+    out = pd.DataFrame(cols, index=pd.Index(d.years, name="year"))
+    if cols:
+        out.columns = pd.MultiIndex.from_tuples(list(cols), names=["kind", "sector"])
+    out.attrs["units"] = dict(zip(d.labour_all_kinds, d.labour_all_units, strict=True))
+    return out
