@@ -122,7 +122,7 @@ class PlanFile(Model):
         return v
 
 
-def plan_file_schema() -> dict:
+def plan_file_schema() -> dict[str, Any]:
     """JSON Schema of a plan file, with the plan section's own schema filled in."""
     schema = PlanFile.model_json_schema()
     plan_schema = Plan.model_json_schema(mode="validation")
@@ -170,7 +170,7 @@ class _Checks:
         finally:
             self._depth -= 1
 
-    def construct_mapping(self, node: MappingNode, deep: bool = False) -> dict:
+    def construct_mapping(self, node: MappingNode, deep: bool = False) -> dict[Any, Any]:
         if isinstance(node, MappingNode):
             seen: dict[str, int] = {}
             for key_node, _ in node.value:
@@ -260,7 +260,7 @@ def _line_of(root: Node | None, path: list[str]) -> int | None:
     return line
 
 
-def _read(path: Path) -> tuple[dict, Node | None]:
+def _read(path: Path) -> tuple[dict[str, Any], Node | None]:
     suffix = path.suffix.lower()
     if suffix not in (".toml", ".yaml", ".yml"):
         raise invalid(f"{path}", "end in .yaml, .yml or .toml", suffix or "no suffix")
@@ -339,7 +339,7 @@ def _years(years: Any) -> Any:
     return years
 
 
-def load_plan_file(path: str | os.PathLike, *,
+def load_plan_file(path: str | os.PathLike[str], *,
                    allow_outside: bool = False) -> tuple[Plan, SolveOptions]:
     """Read a plan file and its tables into a validated :class:`Plan`.
 
@@ -430,7 +430,7 @@ def load_plan_file(path: str | os.PathLike, *,
     return plan, spec.solve
 
 
-def plan_file_inputs(path: str | os.PathLike) -> list[Path]:
+def plan_file_inputs(path: str | os.PathLike[str]) -> list[Path]:
     """The plan file and the table files it names: what an export must never overwrite.
 
     Pass the list as ``protect=`` to :func:`~growthplan.io.atomic_file` and
@@ -472,7 +472,7 @@ def _plain(value: Any) -> Any:
     return value
 
 
-def save_plan_file(plan: Plan, path: str | os.PathLike, *, overwrite: bool = False,
+def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool = False,
                    solve: SolveOptions | None = None) -> Path:
     """Write ``plan`` as a YAML plan file with its coefficient tables beside it.
 
