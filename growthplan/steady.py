@@ -6,8 +6,8 @@ Pure array functions; :class:`~growthplan.Economy` wraps them with sector labels
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
 from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field
 from typing import Any, NamedTuple, TypeAlias, cast
 
 import numpy as np
