@@ -97,7 +97,19 @@ class EconomyTables(Model):
 
 
 class SolveOptions(Model):
-    """Solver settings stored with the plan."""
+    """Solver settings stored with the plan.
+
+    Parameters
+    ----------
+    method : str, default "auto"
+        HiGHS method (``auto``, ``simplex``, ``ipm``, ``ipm-crossover``, ``pdlp``).
+    time_limit : float, optional
+        Seconds for the solver, > 0.
+    threads : int, optional
+        Solver threads, >= 1.
+    tolerance : float, optional
+        Primal and dual feasibility tolerance of HiGHS, in (0, 1).
+    """
 
     method: str = "auto"
     time_limit: float | None = Field(default=None, gt=0)
@@ -481,6 +493,23 @@ def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool 
     :func:`load_plan_file` reads the set back into an equal plan. Nothing is
     overwritten without ``overwrite=True``, and the files appear together or
     not at all (see :mod:`growthplan.io.atomic`).
+
+    Parameters
+    ----------
+    plan : Plan
+        The plan to write, economy included.
+    path : str or path-like
+        The plan file; must end in ``.yaml`` or ``.yml``.
+    overwrite : bool, default False
+        Replace the plan file and tables if they exist.
+    solve : SolveOptions, optional
+        Solver settings stored in the file's ``solve`` section (method, time
+        limit, threads, tolerance); default the library's defaults.
+
+    Returns
+    -------
+    Path
+        The plan file written.
     """
     path = Path(path)
     if path.suffix.lower() not in (".yaml", ".yml"):
