@@ -48,9 +48,13 @@ class Diagnosis:
         Status of the elastic re-solve (``infeasible`` when even the hard
         conditions, the balances with their exogenous demand, cannot hold).
     total_penalty : float
+        Optimal value of the elastic re-solve, ``Σ w_r s_r`` (NaN when it
+        found no plan).
     infeasible_subset : pandas.DataFrame or None
         Conditions that cannot all hold together (HiGHS's irreducible
         infeasible subset), in words: kind, condition, year, name, description.
+    notes : list of str
+        Further remarks on the diagnosis (empty by default).
     """
 
     shortfalls: pd.DataFrame

@@ -35,22 +35,57 @@ __all__ = ["PlanResult", "CAUTION"]
 class PlanResult:
     """The outcome of :meth:`growthplan.Plan.solve`.
 
+    Made by the solve pipeline, not by hand.
+
+    Parameters
+    ----------
+    plan : Plan
+        The plan that was solved.
+    lp : LinearProgram
+        The programme solved (with the arrays it was built from).
+    outcome : SolverOutcome
+        What the back end returned.
+    status : Status
+        The final status (after the audit and any re-solve).
+    timings : dict of str to float
+        Seconds per pipeline step.
+    audit : Audit, optional
+        The audit of an optimal solution.
+    schedules : Schedules, optional
+        The accounting operators the tables are built from.
+    notes : list of str, optional
+        Warnings gathered on the way (kept as ``warnings``).
+    diagnosis : Diagnosis, optional
+        What an infeasible plan falls short of.
+    backend : str, default "highs"
+        Name of the back end.
+
     Attributes
     ----------
     plan : Plan
         The plan that was solved.
+    lp : LinearProgram
+        The programme solved.
     status : Status
+        Outcome of the solve.
     ok : bool
         True only for an optimal solve that passed the audit.
     objective : float
+        Value of the objective (NaN without a solution).
     message : str
         The solver's own status text.
     audit : Audit or None
+        Every condition rechecked from the schedules, independently of the LP.
+    diagnosis : Diagnosis or None
+        Shortfalls of an infeasible plan.
     timings : dict of str to float
         Seconds for validate, compile, solve, post-process and audit.
     solver : dict
         Method, iterations, options and versions.
     warnings : list of str
+        Notes on the solve, such as an audit violation, a solver verdict the
+        elastic re-solve confirmed or overturned, or the end effects of a
+        plan without a terminal condition.
 
     Notes
     -----
@@ -189,10 +224,21 @@ class PlanResult:
     def bottlenecks(self, *, top: int | None = 20, threshold: float = 1e-9) -> pd.DataFrame:
         """Binding conditions ranked by their value (shadow price) per year.
 
+        Commodity balances (shadow prices), capacities (quasi-rents) and
+        labour supplies (labour values) are ranked together.
+
+        Parameters
+        ----------
+        top : int or None, default 20
+            Rows kept per year; None keeps every binding condition.
+        threshold : float, default 1e-9
+            Least value of a condition counted as binding.
+
         Returns
         -------
-        DataFrame with columns condition, year, name, value, ranked by value
-        within each year, years in order (``top`` rows per year at most).
+        pandas.DataFrame
+            Columns condition, year, name, value, ranked by value within each
+            year, years in order (``top`` rows per year at most).
         """
         rows = []
         for cond, frame in (("commodity", self.shadow_prices), ("capacity", self.quasi_rents),
