@@ -15,8 +15,10 @@ Timing conventions (MODEL.md §4, kept everywhere in the library):
 
 from __future__ import annotations
 
+import os
 import time
 from collections.abc import Mapping
+from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -428,6 +430,11 @@ class Plan(Model):
         update : dict, optional
             Fields to change; the copy goes through every check of construction.
         deep : bool, default False
+            Copy the fields deeply (without ``update`` only).
+
+        Returns
+        -------
+        Plan
         """
         if update:
             fields = {k: getattr(self, k) for k in type(self).model_fields}
@@ -438,11 +445,22 @@ class Plan(Model):
         return out
 
     def validation_seconds(self) -> float:
-        """Seconds spent validating this plan."""
+        """Seconds spent validating this plan.
+
+        Returns
+        -------
+        float
+        """
         return self._validate_seconds
 
     def lowered(self) -> PlanData:
-        """The plan's arrays (:class:`~growthplan.lp.data.PlanData`), computed once and kept."""
+        """The plan's arrays (:class:`~growthplan.lp.data.PlanData`), computed once and kept.
+
+        Returns
+        -------
+        PlanData
+            The arrays the LP is built from.
+        """
         if self._lowered is None:
             self._lowered = lowering.lower(self)
         return self._lowered
@@ -454,6 +472,10 @@ class Plan(Model):
         ----------
         size_limit : int or None, default 25,000,000
             Largest LP (in nonzeros) to build; None builds any size.
+
+        Returns
+        -------
+        LinearProgram
         """
         from .solve import program
 
@@ -497,6 +519,7 @@ class Plan(Model):
         time_limit : float, optional
             Seconds; a solve that hits it returns status ``time_limit``.
         threads : int, optional
+            HiGHS threads.
         tolerance : float, optional
             Primal and dual feasibility tolerance of HiGHS.
         audit_tolerance : float, default 1e-6
@@ -552,6 +575,11 @@ class Plan(Model):
         Parameters
         ----------
         name : str, default "growthplan"
+            Name of the problem.
+
+        Returns
+        -------
+        pulp.LpProblem
         """
         from .backends.pulp import to_pulp
         from .solve import program
@@ -568,33 +596,53 @@ class Plan(Model):
         Parameters
         ----------
         solver : pulp.LpSolver, optional
+            The solver (default: CBC).
         problem : pulp.LpProblem, optional
             A problem from :meth:`to_pulp`, perhaps with constraints of your own.
         audit_tolerance : float, default 1e-6
+            Largest relative violation the audit accepts.
+
+        Returns
+        -------
+        PlanResult
         """
         from .solve import solve_pulp
 
         return solve_pulp(self, solver, problem=problem, audit_tolerance=audit_tolerance)
 
-    def write_mps(self, path: Any, *, overwrite: bool = False) -> Any:
+    def write_mps(self, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
         """Write the plan's LP as an MPS file (the objective sense included).
 
         Parameters
         ----------
         path : str or path-like
+            The file to write (whole or not at all).
         overwrite : bool, default False
+            Replace an existing file.
+
+        Returns
+        -------
+        pathlib.Path
+            ``path``.
         """
         from .solve import write_program
 
         return write_program(self, path, overwrite=overwrite, kind="mps")
 
-    def write_lp(self, path: Any, *, overwrite: bool = False) -> Any:
+    def write_lp(self, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
         """Write the plan's LP in the LP file format.
 
         Parameters
         ----------
         path : str or path-like
+            The file to write (whole or not at all).
         overwrite : bool, default False
+            Replace an existing file.
+
+        Returns
+        -------
+        pathlib.Path
+            ``path``.
         """
         from .solve import write_program
 
@@ -606,6 +654,14 @@ class Plan(Model):
         Parameters
         ----------
         years : int
+            Number of plan years kept from the first.
+
+        Returns
+        -------
+        Plan
+            Output and consumption targets in the new last year, capacity
+            targets in the year after it; a ``Fastest`` objective is replaced
+            by its ``then`` objective.
         """
         first = self.years[0]
         last = first + years - 1
