@@ -480,21 +480,44 @@ class Economy(Model):
         return steady.leontief_inverse(np.asarray(self.input_coefficients))
 
     def spectral_radius(self) -> float:
-        """Spectral radius ``ρ(A)`` of the input coefficients."""
+        """Spectral radius ``ρ(A)`` of the input coefficients.
+
+        Returns
+        -------
+        float
+        """
         return steady.spectral_radius(np.asarray(self.input_coefficients))
 
     def hawkins_simon(self) -> pd.Series:
-        """Leading principal minors of ``I − A`` (all positive for a productive economy)."""
+        """Leading principal minors of ``I − A`` (all positive for a productive economy).
+
+        Returns
+        -------
+        pandas.Series
+            The minor of order ``k``, labelled by the ``k``-th sector.
+        """
         _, minors = steady.hawkins_simon(np.asarray(self.input_coefficients))
         return pd.Series(minors, index=pd.Index(self.names[: len(minors)], name="up to"),
                          name="minor")
 
     def leontief_inverse(self) -> pd.DataFrame:
-        """``(I − A)^-1``: gross output of each row sector per unit of final demand."""
+        """``(I − A)^-1``: gross output of each row sector per unit of final demand.
+
+        Returns
+        -------
+        pandas.DataFrame
+            Sectors × sectors.
+        """
         return self._frame(self._leontief.copy())
 
     def output_multipliers(self) -> pd.Series:
-        """Column sums of the Leontief inverse (simple output multipliers)."""
+        """Column sums of the Leontief inverse (simple output multipliers).
+
+        Returns
+        -------
+        pandas.Series
+            One multiplier per sector.
+        """
         return pd.Series(self._leontief.sum(axis=0), index=pd.Index(self.names),
                          name="output_multiplier")
 
@@ -515,7 +538,12 @@ class Economy(Model):
         return pd.Series(self._leontief @ f, index=pd.Index(self.names), name="output")
 
     def labour_content(self) -> pd.DataFrame:
-        """Vertically integrated labour coefficients ``v = l (I − A)^-1`` (kinds × sectors)."""
+        """Vertically integrated labour coefficients ``v = l (I − A)^-1`` (kinds × sectors).
+
+        Returns
+        -------
+        pandas.DataFrame
+        """
         if self.labour_coefficients is None:
             raise Rule("be given to compute labour content", None, field="labour_coefficients")
         return self._frame(self.labour_coefficients @ self._leontief, rows=self.labour_kinds)
@@ -589,6 +617,11 @@ class Economy(Model):
         retires: ``x = A x + B K(g) U⁻¹ x``. With geometric retirement and
         one-year lead times this is ``(I − A − BD) x = g B x``, so
         ``g = 1/ρ((I − A − BD)^-1 B)``.
+
+        Returns
+        -------
+        BalancedGrowth
+            Growth rate (method ``"root"``) and output proportions.
         """
         if self.capital is None:
             raise Rule("be given for dynamic balanced growth", None, field="capital")
@@ -607,7 +640,17 @@ class Economy(Model):
 
     # -- files ------------------------------------------------------------------
     def to_json(self, **kwargs: Any) -> str:
-        """JSON text that :meth:`from_json` reads back to an equal economy."""
+        """JSON text that :meth:`from_json` reads back to an equal economy.
+
+        Parameters
+        ----------
+        **kwargs
+            Passed to pydantic's ``model_dump_json`` (``indent``, …).
+
+        Returns
+        -------
+        str
+        """
         return self.model_dump_json(**kwargs)
 
     @classmethod
@@ -627,7 +670,12 @@ class Economy(Model):
 
     @classmethod
     def json_schema(cls) -> dict[str, Any]:
-        """JSON Schema of the economy description."""
+        """JSON Schema of the economy description.
+
+        Returns
+        -------
+        dict
+        """
         return cls.model_json_schema()
 
     @classmethod

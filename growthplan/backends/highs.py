@@ -235,7 +235,13 @@ class HighsBackend:
         return HighsBackend(method, **kw)
 
     def alternatives(self) -> list[Backend]:
-        """Interior point and simplex stand in for each other; then simplex without presolve."""
+        """Interior point and simplex stand in for each other; then simplex without presolve.
+
+        Returns
+        -------
+        list of Backend
+            Copies of this back end with the other method, scaling on.
+        """
         other = "simplex" if self.method in ("ipm", "ipm-crossover", "pdlp", "auto") else "ipm"
         out: list[Backend] = [self._variant(method=other, scale=True)]
         if other != "simplex" or self.method == "auto":

@@ -128,7 +128,13 @@ class PulpBackend:
         return f"PulpBackend({type(self.solver or cbc_solver()).__name__})"
 
     def alternatives(self) -> list[Backend]:
-        """No other back end is tried: the user chose this solver."""
+        """No other back end is tried: the user chose this solver.
+
+        Returns
+        -------
+        list of Backend
+            Always empty.
+        """
         return []
 
     def _problem(self, lp: LinearProgram) -> tuple[Any, bool]:

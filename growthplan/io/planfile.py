@@ -135,7 +135,12 @@ class PlanFile(Model):
 
 
 def plan_file_schema() -> dict[str, Any]:
-    """JSON Schema of a plan file, with the plan section's own schema filled in."""
+    """JSON Schema of a plan file, with the plan section's own schema filled in.
+
+    Returns
+    -------
+    dict
+    """
     schema = PlanFile.model_json_schema()
     plan_schema = Plan.model_json_schema(mode="validation")
     plan_schema.get("properties", {}).pop("economy", None)

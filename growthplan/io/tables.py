@@ -334,15 +334,33 @@ class TransactionsTable:
 
     # -- derived --------------------------------------------------------------
     def input_coefficients(self) -> pd.DataFrame:
-        """Input coefficients ``a_ij = z_ij / x_j``."""
+        """Input coefficients ``a_ij = z_ij / x_j``.
+
+        Returns
+        -------
+        pandas.DataFrame
+            Commodities × sectors.
+        """
         return self.flows.div(self.gross_output, axis=1)
 
     def labour_coefficients(self) -> pd.DataFrame | None:
-        """Labour coefficients ``l_kj = labour_kj / x_j`` (None without labour)."""
+        """Labour coefficients ``l_kj = labour_kj / x_j`` (None without labour).
+
+        Returns
+        -------
+        pandas.DataFrame or None
+            Labour kinds × sectors.
+        """
         return None if self.labour is None else self.labour.div(self.gross_output, axis=1)
 
     def balance_gap(self) -> pd.Series | None:
-        """Row sums of flows plus final demand minus gross output (zero when balanced)."""
+        """Row sums of flows plus final demand minus gross output (zero when balanced).
+
+        Returns
+        -------
+        pandas.Series or None
+            By commodity; None without final demand.
+        """
         if self.final_demand is None:
             return None
         return self.flows.sum(axis=1) + self.final_demand.sum(axis=1) - self.gross_output

@@ -132,23 +132,50 @@ class LinearProgram:
         return np.where(np.isfinite(self.row_upper), 1.0, -1.0)
 
     def replace(self, **changes: Any) -> LinearProgram:
-        """A copy with some fields replaced."""
+        """A copy with some fields replaced.
+
+        Returns
+        -------
+        LinearProgram
+        """
         return dataclasses.replace(self, **changes)
 
     def row_labels(self) -> list[tuple[Any, ...]]:
-        """Label tuple of every row, e.g. ``("balance", 2030, "energy")``."""
+        """Label tuple of every row, e.g. ``("balance", 2030, "energy")``.
+
+        Returns
+        -------
+        list of tuple
+        """
         return _labels(self.rows, self.shape[0])
 
     def col_labels(self) -> list[tuple[Any, ...]]:
-        """Label tuple of every column, e.g. ``("starts", 2030, "energy")``."""
+        """Label tuple of every column, e.g. ``("starts", 2030, "energy")``.
+
+        Returns
+        -------
+        list of tuple
+        """
         return _labels(self.cols, self.shape[1])
 
     def row_names(self) -> list[str]:
-        """Unique names made of letters, digits and underscores (for LP and MPS files)."""
+        """Unique names made of letters, digits and underscores (for LP and MPS files).
+
+        Returns
+        -------
+        list of str
+            One per row, from the row labels (a repeat gets ``_2``, ``_3``, …).
+        """
         return _names(self.row_labels())
 
     def col_names(self) -> list[str]:
-        """Unique names made of letters, digits and underscores (for LP and MPS files)."""
+        """Unique names made of letters, digits and underscores (for LP and MPS files).
+
+        Returns
+        -------
+        list of str
+            One per column, from the column labels (a repeat gets ``_2``, ``_3``, …).
+        """
         return _names(self.col_labels())
 
     def block_of_row(self, r: int) -> Block:

@@ -70,7 +70,12 @@ class Diagnosis:
             self.status is Status.OPTIMAL and not self.shortfalls.empty)
 
     def conflict(self) -> str:
-        """The infeasible subset as one sentence ("" without one)."""
+        """The infeasible subset as one sentence ("" without one).
+
+        Returns
+        -------
+        str
+        """
         if self.infeasible_subset is None or self.infeasible_subset.empty:
             return ""
         parts = []
@@ -90,7 +95,12 @@ class Diagnosis:
         return f"{text[0].upper()}{text[1:]} cannot all hold together."
 
     def headline(self) -> str:
-        """One sentence naming the worst conditions."""
+        """One sentence naming the worst conditions.
+
+        Returns
+        -------
+        str
+        """
         if self.status is Status.INFEASIBLE:
             return ("Even with every target, floor and labour limit relaxed the plan is "
                     "impossible: the commodity balances with the exogenous demand and the "

@@ -134,7 +134,22 @@ class PlanResult:
         return self.status is Status.OPTIMAL
 
     def raise_for_status(self) -> PlanResult:
-        """Raise the matching growthplan error unless the plan is optimal and audited."""
+        """Raise the matching growthplan error unless the plan is optimal and audited.
+
+        Returns
+        -------
+        PlanResult
+            This result, when it is optimal and audited.
+
+        Raises
+        ------
+        PlanInfeasible
+            For an infeasible plan (with the diagnosis's headline when there is one).
+        PlanUnbounded
+            For an unbounded plan (naming the runaway columns).
+        SolverFailure
+            For any other status.
+        """
         if self.ok:
             return self
         if self.status is Status.INFEASIBLE:
@@ -209,7 +224,12 @@ class PlanResult:
         return self._get("level")
 
     def tidy(self) -> pd.DataFrame:
-        """All year × sector schedules in long form: year, sector, quantity, value."""
+        """All year × sector schedules in long form: year, sector, quantity, value.
+
+        Returns
+        -------
+        pandas.DataFrame
+        """
         parts = []
         for name in ("output", "capacity", "utilisation", "starts", "capital_deliveries",
                      "retirements", "surplus", "shadow_prices", "shadow_prices_current",
@@ -257,11 +277,21 @@ class PlanResult:
         return out.reset_index(drop=True)
 
     def summary(self) -> Summary:
-        """A short report: text in a terminal (``print``), a table in a notebook."""
+        """A short report: text in a terminal (``print``), a table in a notebook.
+
+        Returns
+        -------
+        Summary
+        """
         return Summary(self)
 
     def key_figures(self) -> dict[str, Any]:
-        """The figures the summary and scenario tables share (status, objective, totals)."""
+        """The figures the summary and scenario tables share (status, objective, totals).
+
+        Returns
+        -------
+        dict of str to object
+        """
         return key_figures(self)
 
     def __repr__(self) -> str:
