@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import re
 from collections.abc import Sequence
-from typing import Annotated, Any
+from typing import Annotated, Any, Self
 
 import numpy as np
 import pandas as pd
@@ -85,14 +85,14 @@ class Model(BaseModel):
             raise translate(exc, type(self).__name__) from None
 
     @classmethod
-    def model_validate(cls, obj: Any, *args: Any, **kwargs: Any):
+    def model_validate(cls, obj: Any, *args: Any, **kwargs: Any) -> Self:
         try:
             return super().model_validate(obj, *args, **kwargs)
         except ValidationError as exc:
             raise translate(exc, cls.__name__) from None
 
     @classmethod
-    def model_validate_json(cls, json_data: Any, *args: Any, **kwargs: Any):
+    def model_validate_json(cls, json_data: Any, *args: Any, **kwargs: Any) -> Self:
         try:
             return super().model_validate_json(json_data, *args, **kwargs)
         except ValidationError as exc:
@@ -118,7 +118,7 @@ def to_float_array(value: Any, ndim: int | None = None) -> np.ndarray:
     return arr
 
 
-def _json_list(arr: np.ndarray) -> list:
+def _json_list(arr: np.ndarray) -> list[Any]:
     return arr.tolist()
 
 

@@ -52,7 +52,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable
 from functools import lru_cache
-from typing import Literal
+from typing import Any, Literal, cast
 
 import numpy as np
 from scipy import optimize, special, stats
@@ -86,7 +86,8 @@ MAX_LEAD_TIME = 100  # longest construction lead time in years
 TRUNCATION_TOL = 1e-9  # largest share of a weighted age sum left beyond the profile's cut
 
 
-def _check(profile: str, mean_life: float, shape: float | None, declining_balance: float):
+def _check(profile: str, mean_life: float, shape: float | None,
+           declining_balance: float) -> float | None:
     if profile not in PROFILES:
         raise invalid("retirement", f"be one of {', '.join(PROFILES)}", profile)
     if not (np.isfinite(mean_life) and mean_life >= 1):
@@ -129,13 +130,28 @@ def geometric_rate(service_life: float, declining_balance: float = 1.0) -> float
     return declining_balance / service_life
 
 
-def lifetime_distribution(profile: str, mean_life: float, shape: float | None = None):
+def lifetime_distribution(profile: str, mean_life: float, shape: float | None = None) -> Any:
     """The continuous service-life distribution with mean ``mean_life``.
 
     Only for ``weibull`` (``λ = L / Γ(1 + 1/k)``) and ``lognormal``
-    (``μ = ln L − σ²/2``). Returns a frozen ``scipy.stats`` distribution.
+    (``μ = ln L − σ²/2``).
+
+    Parameters
+    ----------
+    profile : {"weibull", "lognormal"}
+        Retirement profile; the other profiles have no continuous counterpart.
+    mean_life : float
+        Mean service life ``L`` in years.
+    shape : float, optional
+        Weibull shape ``k`` (default 2) or lognormal ``σ`` (default 0.5).
+
+    Returns
+    -------
+    scipy.stats frozen distribution
+        ``weibull_min`` or ``lognorm`` with mean ``mean_life``.
     """
-    shape = _check(profile, mean_life, shape, 1.0)
+    # weibull and lognormal always come back with a shape
+    shape = cast(float, _check(profile, mean_life, shape, 1.0))
     if profile == "weibull":
         scale = mean_life / special.gamma(1.0 + 1.0 / shape)
         return stats.weibull_min(shape, scale=scale)
@@ -247,7 +263,7 @@ def survival(
         scale, horizon = _calibrated(profile, float(mean_life), float(shape or 0.0))
         ages = np.arange(horizon, dtype=float)
         s = _linear(ages, scale) if profile == "linear" else _continuous(
-            profile, shape, scale, ages)
+            profile, cast(float, shape), scale, ages)
         if profile != "linear":
             s[0] = 1.0
             keep = np.nonzero(s >= _TAIL)[0]

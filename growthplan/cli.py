@@ -25,14 +25,19 @@ import tempfile
 import threading
 import traceback
 import warnings
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator, Sequence
 from pathlib import Path
-from typing import Any, NoReturn
+from types import FrameType
+from typing import TYPE_CHECKING, Any, NoReturn, TextIO
 
 import click
 import numpy as np
 
 from .errors import GrowthplanError, invalid
+
+if TYPE_CHECKING:
+    from .plan import Plan
+    from .results.result import PlanResult
 
 EXIT_OK, EXIT_INFEASIBLE, EXIT_INVALID, EXIT_SOLVER, EXIT_UNBOUNDED = 0, 1, 2, 3, 4
 DEBUG_ENV = "GROWTHPLAN_DEBUG"
@@ -215,15 +220,19 @@ def _finite(value: float | None) -> float | None:
     return value
 
 
-def _exit_code(result) -> int:
+def _exit_code(result: PlanResult) -> int:
     from . import Status
 
     return {Status.OPTIMAL: EXIT_OK, Status.INFEASIBLE: EXIT_INFEASIBLE,
             Status.UNBOUNDED: EXIT_UNBOUNDED}.get(result.status, EXIT_SOLVER)
 
 
+# a signal handler: (signal number, interrupted frame)
+_Handler = Callable[[int, FrameType | None], None]
+
+
 @contextlib.contextmanager
-def _signals(handler) -> Iterator[None]:
+def _signals(handler: _Handler) -> Iterator[None]:
     """Route SIGINT and SIGTERM to ``handler`` (main thread only), then restore.
 
     A signal the parent set to be ignored (a shell's background job) stays ignored.
@@ -261,7 +270,7 @@ def _interrupt() -> NoReturn:
     raise KeyboardInterrupt
 
 
-def _raise_interrupt(signum, frame) -> None:
+def _raise_interrupt(signum: int, frame: FrameType | None) -> None:
     if not _STOPPING.on:
         _interrupt()
 
@@ -269,7 +278,7 @@ def _raise_interrupt(signum, frame) -> None:
 _SOLVES: set[threading.Thread] = set()  # solve threads not yet finished
 
 
-def _solve(plan, **options):
+def _solve(plan: Plan, **options: Any) -> PlanResult:
     """``plan.solve`` that a first SIGINT/SIGTERM stops through ``stop=``.
 
     The solve runs in a worker thread so the main thread is always free to
@@ -289,7 +298,7 @@ def _solve(plan, **options):
 
     asked = _Flag()
 
-    def on_signal(signum, frame) -> None:
+    def on_signal(signum: int, frame: FrameType | None) -> None:
         if _STOPPING.on:
             return
         if asked.on:
@@ -333,7 +342,7 @@ def _fresh_folder(target: Path, overwrite: bool) -> Iterator[Path]:
         raise
 
 
-def _report(result, out: Path | None, excel: Path | None, charts: Path | None,
+def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Path | None,
             overwrite: bool, protect: tuple[Path, ...] = ()) -> None:
     click.echo(str(result.summary()))
     if result.diagnosis is not None and not result.diagnosis.shortfalls.empty:
@@ -359,7 +368,8 @@ def _report(result, out: Path | None, excel: Path | None, charts: Path | None,
             click.echo(f"wrote {charts / p.name}")
 
 
-def _show_warning(message, category, filename, lineno, file=None, line=None) -> None:
+def _show_warning(message: Warning | str, category: type[Warning], filename: str, lineno: int,
+                  file: TextIO | None = None, line: str | None = None) -> None:
     _say(f"warning: {message}")  # one line, without the source line Python adds
 
 
@@ -382,8 +392,9 @@ def _quiet_unraisable() -> Iterator[None]:
 class _Main(click.Group):
     """The command group, reporting every failure in one line with its exit code."""
 
-    def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True,
-             **extra):
+    def main(self, args: Sequence[str] | None = None, prog_name: str | None = None,
+             complete_var: str | None = None, standalone_mode: bool = True,
+             **extra: Any) -> Any:
         if not standalone_mode:
             return super().main(args, prog_name, complete_var, standalone_mode, **extra)
         code: Any = EXIT_OK
@@ -400,9 +411,10 @@ class _Main(click.Group):
                 _say(f"error: name a command (see '{exc.ctx.command_path} --help')")
                 code = EXIT_INVALID
             except click.ClickException as exc:  # bad options and arguments
+                # only the usage errors among them carry a context
+                ctx: click.Context | None = getattr(exc, "ctx", None)
                 _say(f"error: {exc.format_message()}"
-                     + (f" (see '{exc.ctx.command_path} --help')"
-                        if getattr(exc, "ctx", None) is not None else ""))
+                     + (f" (see '{ctx.command_path} --help')" if ctx is not None else ""))
                 code = EXIT_INVALID
             except click.exceptions.Abort:
                 _say("interrupted")
@@ -424,7 +436,7 @@ class _Main(click.Group):
             os._exit(code if isinstance(code, int) else EXIT_SOLVER)
         sys.exit(code)
 
-    def invoke(self, ctx):
+    def invoke(self, ctx: click.Context) -> Any:
         try:
             return super().invoke(ctx)
         except (click.ClickException, click.exceptions.Exit, click.exceptions.Abort,
@@ -465,8 +477,9 @@ def main() -> None:
 @click.option("--time-limit", type=click.FloatRange(min=0, min_open=True, max=1e9),
               default=None, callback=lambda ctx, param, v: _finite(v),
               help="Seconds for the solver.")
-def solve(plan_file: Path, out, excel, charts, overwrite: bool, progress: bool, method,
-          time_limit) -> None:
+def solve(plan_file: Path, out: Path | None, excel: Path | None, charts: Path | None,
+          overwrite: bool, progress: bool, method: str | None,
+          time_limit: float | None) -> None:
     from . import load_plan_file
     from .backends.highs import METHODS
 
@@ -545,7 +558,8 @@ def schema() -> None:
 @_charts
 @_overwrite
 @click.option("--progress/--no-progress", default=True, show_default=True)
-def demo(out, excel, charts, overwrite: bool, progress: bool) -> None:
+def demo(out: Path | None, excel: Path | None, charts: Path | None, overwrite: bool,
+         progress: bool) -> None:
     from . import load_plan_file
     from .demo import DEMO_DIR, PLAN_FILE
 

@@ -15,6 +15,7 @@ from typing import Any
 
 import numpy as np
 import pandas as pd
+from numpy.typing import ArrayLike
 from pydantic import Field, PrivateAttr, field_validator, model_validator
 
 from . import capital as cap
@@ -31,6 +32,7 @@ class Sector(Model):
     Parameters
     ----------
     name : str
+        Sector name, non-empty (surrounding blanks are dropped).
     unit : str, optional
         Unit of the commodity and of the sector's output per year (``"GWh"``,
         ``"thousand tonnes"``). Default: the economy's ``value_unit``, for
@@ -110,7 +112,7 @@ class CapitalSpec(Model):
     retirement: str = "geometric"
     shape: float | None = None
     declining_balance: float = 1.0
-    _survival_cache: dict = PrivateAttr(default_factory=dict)
+    _survival_cache: dict[int | None, np.ndarray] = PrivateAttr(default_factory=dict)
     lead_time: int = 1
     spending_profile: list[float] | None = None
     max_utilisation: float = 1.0
@@ -205,7 +207,19 @@ class CapitalSpec(Model):
                        field="past_growth")
 
     def survival(self, max_age: int | None = None) -> np.ndarray:
-        """Survival profile ``S(a)`` of new vintages (computed once per ``max_age``, read-only)."""
+        """Survival profile ``S(a)`` of new vintages (computed once per ``max_age``, read-only).
+
+        Parameters
+        ----------
+        max_age : int, optional
+            Last age of the array, padded with zeros or cut; default: where
+            the profile ends (below 1e-12).
+
+        Returns
+        -------
+        numpy.ndarray
+            Share of a vintage still in service at ages ``0, 1, …``.
+        """
         # the spec is frozen, so its profile never changes: keep it (the balanced-growth
         # search and the plan's lowering ask for it many times)
         cache = self._survival_cache
@@ -217,7 +231,19 @@ class CapitalSpec(Model):
         return cache[max_age]
 
     def initial_survival(self, horizon: int) -> np.ndarray:
-        """Share of the initial capacity still in service in years ``0..horizon``."""
+        """Share of the initial capacity still in service in years ``0..horizon``.
+
+        Parameters
+        ----------
+        horizon : int
+            Last plan year.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``horizon + 1`` shares, from the age structure given by
+            ``investment_history`` or ``past_growth``.
+        """
         hist = None if self.investment_history is None else np.asarray(self.investment_history)
         if self.retirement == "geometric" and hist is None:  # memoryless: age does not matter
             return (1.0 - self.declining_balance / self.mean_service_life) ** np.arange(
@@ -235,11 +261,34 @@ class CapitalSpec(Model):
             delta=self.declining_balance / self.mean_service_life if geometric else None)
 
     def starts_per_capacity(self, g: float) -> float:
-        """Capacity starts per unit of capacity on a path growing at ``g``."""
+        """Capacity starts per unit of capacity on a path growing at ``g``.
+
+        Parameters
+        ----------
+        g : float
+            Growth rate per year of the balanced path.
+
+        Returns
+        -------
+        float
+            Starts that keep capacity growing at ``g`` after retirements.
+        """
         return self._per_capacity(g)[0]
 
     def deliveries_per_capacity(self, g: float) -> float:
-        """Capital goods delivered per unit of capacity on a path growing at ``g``."""
+        """Capital goods delivered per unit of capacity on a path growing at ``g``.
+
+        Parameters
+        ----------
+        g : float
+            Growth rate per year of the balanced path.
+
+        Returns
+        -------
+        float
+            Deliveries spread over the lead time by the spending profile
+            (``g + δ`` for geometric retirement and a one-year lead time).
+        """
         return self._per_capacity(g)[1]
 
 
@@ -478,31 +527,70 @@ class Economy(Model):
         return steady.leontief_inverse(np.asarray(self.input_coefficients))
 
     def spectral_radius(self) -> float:
-        """Spectral radius ``ρ(A)`` of the input coefficients."""
+        """Spectral radius ``ρ(A)`` of the input coefficients.
+
+        Returns
+        -------
+        float
+        """
         return steady.spectral_radius(np.asarray(self.input_coefficients))
 
     def hawkins_simon(self) -> pd.Series:
-        """Leading principal minors of ``I − A`` (all positive for a productive economy)."""
+        """Leading principal minors of ``I − A`` (all positive for a productive economy).
+
+        Returns
+        -------
+        pandas.Series
+            The minor of order ``k``, labelled by the ``k``-th sector.
+        """
         _, minors = steady.hawkins_simon(np.asarray(self.input_coefficients))
         return pd.Series(minors, index=pd.Index(self.names[: len(minors)], name="up to"),
                          name="minor")
 
     def leontief_inverse(self) -> pd.DataFrame:
-        """``(I − A)^-1``: gross output of each row sector per unit of final demand."""
+        """``(I − A)^-1``: gross output of each row sector per unit of final demand.
+
+        Returns
+        -------
+        pandas.DataFrame
+            Sectors × sectors.
+        """
         return self._frame(self._leontief.copy())
 
     def output_multipliers(self) -> pd.Series:
-        """Column sums of the Leontief inverse (simple output multipliers)."""
+        """Column sums of the Leontief inverse (simple output multipliers).
+
+        Returns
+        -------
+        pandas.Series
+            One multiplier per sector.
+        """
         return pd.Series(self._leontief.sum(axis=0), index=pd.Index(self.names),
                          name="output_multiplier")
 
-    def required_output(self, final_demand) -> pd.Series:
-        """Gross output ``x = (I − A)^-1 f`` that delivers final demand ``f``."""
+    def required_output(self, final_demand: pd.Series | ArrayLike) -> pd.Series:
+        """Gross output ``x = (I − A)^-1 f`` that delivers final demand ``f``.
+
+        Parameters
+        ----------
+        final_demand : array_like or Series, shape (n,)
+            Final demand by commodity; a Series is aligned to the sectors.
+
+        Returns
+        -------
+        pandas.Series
+            Gross output by sector.
+        """
         f = np.asarray(align_vector(final_demand, self.names, "final_demand"), dtype=float)
         return pd.Series(self._leontief @ f, index=pd.Index(self.names), name="output")
 
     def labour_content(self) -> pd.DataFrame:
-        """Vertically integrated labour coefficients ``v = l (I − A)^-1`` (kinds × sectors)."""
+        """Vertically integrated labour coefficients ``v = l (I − A)^-1`` (kinds × sectors).
+
+        Returns
+        -------
+        pandas.DataFrame
+        """
         if self.labour_coefficients is None:
             raise Rule("be given to compute labour content", None, field="labour_coefficients")
         return self._frame(self.labour_coefficients @ self._leontief, rows=self.labour_kinds)
@@ -524,6 +612,12 @@ class Economy(Model):
             Close the model through labour (default: when a wage basket is given).
         tol, max_iter
             Convergence tolerance and step limit of the power iteration.
+
+        Returns
+        -------
+        BalancedGrowth
+            Growth rate, proportions (with ``households`` last in the closed
+            model) and notes on the structure.
         """
         use_closed = self.wage_basket is not None if closed is None else closed
         a = np.asarray(self.input_coefficients)
@@ -570,6 +664,11 @@ class Economy(Model):
         retires: ``x = A x + B K(g) U⁻¹ x``. With geometric retirement and
         one-year lead times this is ``(I − A − BD) x = g B x``, so
         ``g = 1/ρ((I − A − BD)^-1 B)``.
+
+        Returns
+        -------
+        BalancedGrowth
+            Growth rate (method ``"root"``) and output proportions.
         """
         if self.capital is None:
             raise Rule("be given for dynamic balanced growth", None, field="capital")
@@ -588,27 +687,75 @@ class Economy(Model):
 
     # -- files ------------------------------------------------------------------
     def to_json(self, **kwargs: Any) -> str:
-        """JSON text that :meth:`from_json` reads back to an equal economy."""
+        """JSON text that :meth:`from_json` reads back to an equal economy.
+
+        Parameters
+        ----------
+        **kwargs
+            Passed to pydantic's ``model_dump_json`` (``indent``, …).
+
+        Returns
+        -------
+        str
+        """
         return self.model_dump_json(**kwargs)
 
     @classmethod
     def from_json(cls, text: str | bytes) -> Economy:
-        """Read an economy from :meth:`to_json` text."""
+        """Read an economy from :meth:`to_json` text.
+
+        Parameters
+        ----------
+        text : str or bytes
+            JSON text of an economy.
+
+        Returns
+        -------
+        Economy
+        """
         return cls.model_validate_json(text)
 
     @classmethod
-    def json_schema(cls) -> dict:
-        """JSON Schema of the economy description."""
+    def json_schema(cls) -> dict[str, Any]:
+        """JSON Schema of the economy description.
+
+        Returns
+        -------
+        dict
+        """
         return cls.model_json_schema()
 
     @classmethod
-    def from_flows(cls, flows, gross_output, labour=None, *, final_demand=None,
-                   value_added=None, **kwargs: Any) -> Economy:
+    def from_flows(cls, flows: pd.DataFrame | ArrayLike, gross_output: pd.Series | ArrayLike,
+                   labour: pd.Series | pd.DataFrame | ArrayLike | None = None, *,
+                   final_demand: pd.Series | pd.DataFrame | ArrayLike | None = None,
+                   value_added: pd.Series | ArrayLike | None = None,
+                   **kwargs: Any) -> Economy:
         """Build an economy from a transactions table in flows.
 
         ``a_ij = z_ij / x_j`` and ``l_j = labour_j / x_j``; the remaining keywords
         go to :meth:`TransactionsTable.to_economy` (``capital``,
         ``capital_coefficients``, ``capital_stocks``) and to the economy.
+
+        Parameters
+        ----------
+        flows : DataFrame or array_like, shape (n, n)
+            Intermediate use ``z_ij`` of commodity ``i`` by sector ``j``.
+        gross_output : Series or array_like
+            Gross output ``x_j``; every entry > 0.
+        labour : Series, DataFrame (kinds × sectors) or array_like, optional
+            Labour input in person-years.
+        final_demand : Series or DataFrame, optional
+            Final demand by commodity (validated; the economy does not keep it).
+        value_added : Series, optional
+            Value added by sector (likewise).
+        **kwargs
+            Capital keywords of :meth:`TransactionsTable.to_economy` and
+            further economy fields.
+
+        Returns
+        -------
+        Economy
         """
         from .io.tables import TransactionsTable
 
@@ -617,11 +764,29 @@ class Economy(Model):
         return table.to_economy(**kwargs)
 
     @classmethod
-    def from_tables(cls, flows, *, capital=None, capital_coefficients=None,
-                    capital_stocks=None, **kwargs: Any) -> Economy:
+    def from_tables(cls, flows: Any, *, capital: Any = None, capital_coefficients: Any = None,
+                    capital_stocks: Any = None, **kwargs: Any) -> Economy:
         """Build an economy from table files (CSV or Excel) or DataFrames.
 
         See :mod:`growthplan.io.tables` for the layout of each table.
+
+        Parameters
+        ----------
+        flows : DataFrame, str or path-like
+            The transactions table (flows, ``gross_output`` row, optional
+            labour rows and final-demand columns).
+        capital : DataFrame, str or path-like, optional
+            The capital table, one row per sector.
+        capital_coefficients : DataFrame, str or path-like, optional
+            ``B``, commodities × sectors.
+        capital_stocks : DataFrame, str or path-like, optional
+            Capital stocks, commodities × sectors, divided by capacity into ``B``.
+        **kwargs
+            Further economy fields.
+
+        Returns
+        -------
+        Economy
         """
         from .io.tables import read_frame, read_transactions
 

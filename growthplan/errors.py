@@ -35,9 +35,16 @@ class GrowthplanError(Exception):
 class InvalidInput(GrowthplanError, ValueError):
     """Input that breaks a documented rule.
 
+    Parameters
+    ----------
+    message : str
+        The whole message, "`field` must `rule`. Got `value`." (see :func:`invalid`).
+    field : str, optional
+        Dotted path of the offending field.
+
     Attributes
     ----------
-    field : str
+    field : str or None
         Dotted path of the offending field (``"capital.energy.lead_time"``).
     """
 
@@ -47,7 +54,25 @@ class InvalidInput(GrowthplanError, ValueError):
 
 
 class UnproductiveEconomy(InvalidInput):
-    """The input coefficients cannot sustain any positive net output (ρ(A) ≥ 1)."""
+    """The input coefficients cannot sustain any positive net output (ρ(A) ≥ 1).
+
+    Its ``field`` is ``"input_coefficients"``.
+
+    Parameters
+    ----------
+    message : str
+        The whole message.
+    spectral_radius : float
+        ``ρ(A)`` of the input coefficients.
+    sectors : list of str
+        Sectors whose input coefficients sum to 1 or more (may be empty when
+        only a cycle of inputs among sectors is unproductive).
+
+    Attributes
+    ----------
+    spectral_radius : float
+    sectors : list of str
+    """
 
     def __init__(self, message: str, *, spectral_radius: float, sectors: list[str]) -> None:
         super().__init__(message, field="input_coefficients")

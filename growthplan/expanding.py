@@ -26,10 +26,12 @@ threefold, so ``α* = 3``, while the first good priced alone earns only 2, so
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
+from numpy.typing import ArrayLike
 from scipy.optimize import linprog
 
 from .errors import invalid
@@ -86,7 +88,7 @@ def _max_min(m: np.ndarray) -> tuple[float, np.ndarray]:
     return float(-res.fun), res.x[:procs]
 
 
-def _bisect(test, lo: float, hi: float, tol: float) -> tuple[float, int]:
+def _bisect(test: Callable[[float], bool], lo: float, hi: float, tol: float) -> tuple[float, int]:
     steps = 0
     while hi - lo > tol * max(1.0, hi):
         mid = 0.5 * (lo + hi)
@@ -98,7 +100,8 @@ def _bisect(test, lo: float, hi: float, tol: float) -> tuple[float, int]:
     return lo, steps
 
 
-def expanding_economy(inputs, outputs, *, tol: float = 1e-11) -> ExpandingEconomy:
+def expanding_economy(inputs: ArrayLike | pd.DataFrame, outputs: ArrayLike | pd.DataFrame,
+                      *, tol: float = 1e-11) -> ExpandingEconomy:
     """Expansion factor, interest factor, intensities and prices of a von Neumann economy.
 
     Parameters
@@ -107,7 +110,7 @@ def expanding_economy(inputs, outputs, *, tol: float = 1e-11) -> ExpandingEconom
         ``P``: goods used by each process at unit intensity.
     outputs : array_like or DataFrame, shape (goods, processes)
         ``Q``: goods produced (jointly) by each process at unit intensity.
-    tol : float
+    tol : float, default 1e-11
         Relative tolerance of the bisection.
 
     Returns

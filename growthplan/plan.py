@@ -15,8 +15,10 @@ Timing conventions (MODEL.md §4, kept everywhere in the library):
 
 from __future__ import annotations
 
+import os
 import time
 from collections.abc import Mapping
+from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -74,7 +76,19 @@ class LabourSupply(Model):
         return self
 
     def path(self, years: list[int]) -> np.ndarray:
-        """Person-years for each plan year."""
+        """Person-years for each plan year.
+
+        Parameters
+        ----------
+        years : list of int
+            The plan years.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``start (1 + growth)^t`` for plan year ``t = 0, 1, …``, or ``series``
+            checked to give one value >= 0 per plan year.
+        """
         return _series(self.start if self.series is None else self.series, years,
                        "labour.series", self.growth)
 
@@ -89,6 +103,7 @@ class Consumption(Model):
     floor : float, list, dict or Series, default 0.0
         Least consumption level per year (a number is grown at ``floor_growth``).
     floor_growth : float, default 0.0
+        Yearly growth rate of a ``floor`` given as a number.
     max_fall : float, optional
         Largest allowed fall from one year to the next, as a share (0.02 = 2 %).
     """
@@ -106,6 +121,20 @@ class Target(Model):
     ``consumption_at_least``. Capacity targets may name the year after the
     plan (terminal capacity). A consumption target without a sector bounds the
     consumption level; with a sector it bounds that commodity's consumption.
+
+    Parameters
+    ----------
+    sector : str, optional
+        The sector (commodity); may also be passed as the first positional
+        argument. Required for output and capacity targets.
+    year : int
+        Plan year of the condition (for capacity also the year after the plan).
+    output_at_least : float, optional
+        Least gross output of ``sector`` in ``year``.
+    capacity_at_least : float, optional
+        Least capacity in service of ``sector`` in ``year``.
+    consumption_at_least : float, optional
+        Least consumption level (or consumption of ``sector``) in ``year``.
     """
 
     sector: str | None = None
@@ -145,7 +174,17 @@ class Target(Model):
 
 
 class StartsCeiling(Model):
-    """Largest capacity starts of a sector per year (absorptive capacity)."""
+    """Largest capacity starts of a sector per year (absorptive capacity).
+
+    Parameters
+    ----------
+    sector : str
+        The sector; may also be passed as the first positional argument.
+    at_most : float
+        Largest capacity started in one year, >= 0.
+    years : list of int, optional
+        Plan years the ceiling applies to (default: every plan year).
+    """
 
     sector: str
     at_most: float = Field(ge=0, allow_inf_nan=False)
@@ -171,6 +210,11 @@ class TerminalGrowth(Model):
     ``max(θ, 1)`` plan years) are at least what a balanced path growing at
     ``rate`` needs: ``z_t ≥ ψ(rate) C_t`` with
     ``ψ(g) = (1+g)^θ / Σ_a S(a)(1+g)^-a``.
+
+    Parameters
+    ----------
+    rate : float
+        Growth rate per year after the plan, > -1.
     """
 
     rate: float = Field(gt=-1, allow_inf_nan=False)
@@ -191,6 +235,7 @@ class Trade(Model):
         reserves), ``p^m·m_t − p^e·e_t ≤ F_t``; a number grows at
         ``inflow_growth``.
     inflow_growth : float, default 0.0
+        Yearly growth rate of an ``inflow`` given as a number.
     """
 
     import_prices: dict[str, float] = Field(default_factory=dict)
@@ -227,8 +272,11 @@ class Plan(Model):
         number (grown at ``final_demand_growth``), a per-year list, or a
         DataFrame with years as rows and sectors as columns.
     final_demand_growth : float, default 0.0
-    targets : list of Target
-    starts_ceilings : list of StartsCeiling
+        Yearly growth rate of final demand given as numbers.
+    targets : list of Target, optional
+        At-least conditions on output, capacity or consumption.
+    starts_ceilings : list of StartsCeiling, optional
+        Largest yearly capacity starts of sectors.
     under_construction : dict of str to list of float, optional
         Capacity started before the plan, one entry per past year, the last in
         the year before the plan; their remaining capital deliveries fall in
@@ -236,7 +284,13 @@ class Plan(Model):
     terminal : TerminalGrowth, optional
         Post-horizon growth condition; without one the result warns of end
         effects.
-    objective : TerminalCapacity, DiscountedConsumption or LeastLabour
+    trade : Trade, optional
+        Imports and exports; a closed economy when omitted.
+    objective : Objective, default TerminalCapacity()
+        One of :mod:`growthplan.objectives`: ``TerminalCapacity``,
+        ``DiscountedConsumption``, ``LeastLabour``, ``LeastForeignExchange``,
+        ``Weighted``, ``Lexicographic`` or ``Fastest`` (chosen by ``kind`` in
+        a mapping).
     """
 
     economy: Economy
@@ -376,6 +430,11 @@ class Plan(Model):
         update : dict, optional
             Fields to change; the copy goes through every check of construction.
         deep : bool, default False
+            Copy the fields deeply (without ``update`` only).
+
+        Returns
+        -------
+        Plan
         """
         if update:
             fields = {k: getattr(self, k) for k in type(self).model_fields}
@@ -386,11 +445,22 @@ class Plan(Model):
         return out
 
     def validation_seconds(self) -> float:
-        """Seconds spent validating this plan."""
+        """Seconds spent validating this plan.
+
+        Returns
+        -------
+        float
+        """
         return self._validate_seconds
 
     def lowered(self) -> PlanData:
-        """The plan's arrays (:class:`~growthplan.lp.data.PlanData`), computed once and kept."""
+        """The plan's arrays (:class:`~growthplan.lp.data.PlanData`), computed once and kept.
+
+        Returns
+        -------
+        PlanData
+            The arrays the LP is built from.
+        """
         if self._lowered is None:
             self._lowered = lowering.lower(self)
         return self._lowered
@@ -402,6 +472,10 @@ class Plan(Model):
         ----------
         size_limit : int or None, default 25,000,000
             Largest LP (in nonzeros) to build; None builds any size.
+
+        Returns
+        -------
+        LinearProgram
         """
         from .solve import program
 
@@ -445,6 +519,7 @@ class Plan(Model):
         time_limit : float, optional
             Seconds; a solve that hits it returns status ``time_limit``.
         threads : int, optional
+            HiGHS threads.
         tolerance : float, optional
             Primal and dual feasibility tolerance of HiGHS.
         audit_tolerance : float, default 1e-6
@@ -500,6 +575,11 @@ class Plan(Model):
         Parameters
         ----------
         name : str, default "growthplan"
+            Name of the problem.
+
+        Returns
+        -------
+        pulp.LpProblem
         """
         from .backends.pulp import to_pulp
         from .solve import program
@@ -516,33 +596,53 @@ class Plan(Model):
         Parameters
         ----------
         solver : pulp.LpSolver, optional
+            The solver (default: CBC).
         problem : pulp.LpProblem, optional
             A problem from :meth:`to_pulp`, perhaps with constraints of your own.
         audit_tolerance : float, default 1e-6
+            Largest relative violation the audit accepts.
+
+        Returns
+        -------
+        PlanResult
         """
         from .solve import solve_pulp
 
         return solve_pulp(self, solver, problem=problem, audit_tolerance=audit_tolerance)
 
-    def write_mps(self, path: Any, *, overwrite: bool = False) -> Any:
+    def write_mps(self, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
         """Write the plan's LP as an MPS file (the objective sense included).
 
         Parameters
         ----------
         path : str or path-like
+            The file to write (whole or not at all).
         overwrite : bool, default False
+            Replace an existing file.
+
+        Returns
+        -------
+        pathlib.Path
+            ``path``.
         """
         from .solve import write_program
 
         return write_program(self, path, overwrite=overwrite, kind="mps")
 
-    def write_lp(self, path: Any, *, overwrite: bool = False) -> Any:
+    def write_lp(self, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
         """Write the plan's LP in the LP file format.
 
         Parameters
         ----------
         path : str or path-like
+            The file to write (whole or not at all).
         overwrite : bool, default False
+            Replace an existing file.
+
+        Returns
+        -------
+        pathlib.Path
+            ``path``.
         """
         from .solve import write_program
 
@@ -554,6 +654,14 @@ class Plan(Model):
         Parameters
         ----------
         years : int
+            Number of plan years kept from the first.
+
+        Returns
+        -------
+        Plan
+            Output and consumption targets in the new last year, capacity
+            targets in the year after it; a ``Fastest`` objective is replaced
+            by its ``then`` objective.
         """
         first = self.years[0]
         last = first + years - 1

@@ -7,10 +7,18 @@ hatching as well as colour, so the charts stay readable in greyscale.
 
 from __future__ import annotations
 
+from collections.abc import Callable, Iterable
 from pathlib import Path
+from types import ModuleType
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
+
+if TYPE_CHECKING:
+    from matplotlib.axes import Axes
+
+    from .results.result import PlanResult
 
 __all__ = ["plot_paths", "plot_starts", "plot_labour", "plot_shadow_prices",
            "plot_ray_distance", "plot_scenarios", "ray_distance", "save_charts"]
@@ -22,7 +30,7 @@ _COLOURS = ["#1b3a5c", "#b5652b", "#4f7d3a", "#7a4e8a", "#9a8a3a", "#3f8f8f", "#
             "#5a5a5a", "#2f6fa8", "#c79a3a"]
 
 
-def _plt():
+def _plt() -> ModuleType:
     try:
         import matplotlib.pyplot as plt
     except ImportError as exc:  # pragma: no cover - depends on the extra
@@ -30,27 +38,39 @@ def _plt():
     return plt
 
 
-def _axes(ax):
+def _axes(ax: Axes | None) -> Axes:
     if ax is not None:
         return ax
     _, ax = _plt().subplots(figsize=(8, 4.5), layout="constrained")
     return ax
 
 
-def _style(i: int) -> dict:
+def _style(i: int) -> dict[str, Any]:
     return {"linestyle": _STYLES[i % len(_STYLES)], "marker": _MARKERS[i % len(_MARKERS)],
             "color": _COLOURS[i % len(_COLOURS)], "markersize": 4}
 
 
-def plot_paths(result, what: str = "output", *, sectors=None, index: bool = False, ax=None):
+def plot_paths(result: PlanResult, what: str = "output", *, sectors: list[str] | None = None,
+               index: bool = False, ax: Axes | None = None) -> Axes:
     """Output or capacity paths by sector.
 
     Parameters
     ----------
+    result : PlanResult
+        An optimal, audited result.
     what : {"output", "capacity"}
+        The schedule drawn: gross output or capacity in service.
     sectors : list of str, optional
+        Sectors drawn (default: all).
     index : bool, default False
-        Divide each path by its first year (first year = 1).
+        Divide each path by its first year (first year = 1); a path starting
+        at zero is left out (divided by NaN).
+    ax : matplotlib.axes.Axes, optional
+        Where to draw; default a new figure.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
     """
     frame: pd.DataFrame = getattr(result, what)
     frame = frame[sectors] if sectors else frame
@@ -67,8 +87,20 @@ def plot_paths(result, what: str = "output", *, sectors=None, index: bool = Fals
     return ax
 
 
-def plot_starts(result, *, ax=None):
-    """Capacity starts by sector as stacked bars."""
+def plot_starts(result: PlanResult, *, ax: Axes | None = None) -> Axes:
+    """Capacity starts by sector as stacked bars.
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result.
+    ax : matplotlib.axes.Axes, optional
+        Where to draw; default a new figure.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
     frame = result.starts
     ax = _axes(ax)
     bottom = np.zeros(len(frame))
@@ -84,8 +116,20 @@ def plot_starts(result, *, ax=None):
     return ax
 
 
-def plot_labour(result, *, ax=None):
-    """Labour used against labour available, per kind."""
+def plot_labour(result: PlanResult, *, ax: Axes | None = None) -> Axes:
+    """Labour used against labour available, per kind.
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result.
+    ax : matplotlib.axes.Axes, optional
+        Where to draw; default a new figure.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
     frame = result.labour
     ax = _axes(ax)
     kinds = list(dict.fromkeys(frame.columns.get_level_values(0)))
@@ -103,8 +147,24 @@ def plot_labour(result, *, ax=None):
     return ax
 
 
-def plot_shadow_prices(result, *, current: bool = True, ax=None):
-    """Shadow prices as a year × commodity heat map (current-year terms by default)."""
+def plot_shadow_prices(result: PlanResult, *, current: bool = True,
+                       ax: Axes | None = None) -> Axes:
+    """Shadow prices as a year × commodity heat map (current-year terms by default).
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result.
+    current : bool, default True
+        Draw ``shadow_prices_current`` (undiscounted to each year's terms);
+        False draws ``shadow_prices`` as solved.
+    ax : matplotlib.axes.Axes, optional
+        Where to draw; default a new figure.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
     frame = result.shadow_prices_current if current else result.shadow_prices
     ax = _axes(ax)
     im = ax.imshow(frame.T.to_numpy(), aspect="auto", cmap="cividis", origin="upper")
@@ -117,8 +177,22 @@ def plot_shadow_prices(result, *, current: bool = True, ax=None):
     return ax
 
 
-def ray_distance(result) -> pd.Series:
-    """Angle in degrees between each year's capacity vector and the balanced-growth ray."""
+def ray_distance(result: PlanResult) -> pd.Series:
+    """Angle in degrees between each year's capacity vector and the balanced-growth ray.
+
+    The ray is the dynamic balanced growth of the plan's economy (capital
+    replacement included).
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result of a plan whose economy has capital.
+
+    Returns
+    -------
+    pandas.Series
+        Degrees by year (0 on the ray).
+    """
     ray = result.plan.economy.dynamic_balanced_growth().proportions.to_numpy()
     cap = result.capacity.to_numpy()
     cos = cap @ ray / (np.linalg.norm(cap, axis=1) * np.linalg.norm(ray))
@@ -126,8 +200,20 @@ def ray_distance(result) -> pd.Series:
                      name="degrees from the balanced ray")
 
 
-def plot_ray_distance(result, *, ax=None):
-    """Distance of the plan from the balanced-growth ray per year (the turnpike view)."""
+def plot_ray_distance(result: PlanResult, *, ax: Axes | None = None) -> Axes:
+    """Distance of the plan from the balanced-growth ray per year (the turnpike view).
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result (see :func:`ray_distance`).
+    ax : matplotlib.axes.Axes, optional
+        Where to draw; default a new figure.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
     d = ray_distance(result)
     ax = _axes(ax)
     ax.plot(d.index, d.to_numpy(), **_style(0))
@@ -140,8 +226,27 @@ def plot_ray_distance(result, *, ax=None):
 
 
 def plot_scenarios(table: pd.DataFrame, x: str, y: str = "objective", *, by: str | None = None,
-                   ax=None):
-    """Compare scenarios of a sweep: ``y`` against parameter ``x`` (lines per ``by``)."""
+                   ax: Axes | None = None) -> Axes:
+    """Compare scenarios of a sweep: ``y`` against parameter ``x`` (lines per ``by``).
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        A sweep's table (:attr:`Sweep.table`); only rows with status
+        ``optimal`` are drawn when it has a status column.
+    x : str
+        Column on the horizontal axis, usually a swept parameter.
+    y : str, default "objective"
+        Column on the vertical axis (a key figure).
+    by : str, optional
+        Column whose values each get a line.
+    ax : matplotlib.axes.Axes, optional
+        Where to draw; default a new figure.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
     ax = _axes(ax)
     ok = table[table["status"] == "optimal"] if "status" in table else table
     groups = [(None, ok)] if by is None else list(ok.groupby(by, sort=True))
@@ -157,8 +262,8 @@ def plot_scenarios(table: pd.DataFrame, x: str, y: str = "objective", *, by: str
     return ax
 
 
-def save_charts(result, folder: str | Path, *, overwrite: bool = False,
-                protect=()) -> list[Path]:
+def save_charts(result: PlanResult, folder: str | Path, *, overwrite: bool = False,
+                protect: Iterable[str | Path] = ()) -> list[Path]:
     """Write the standard charts of a result as PNG files into ``folder``.
 
     The charts are drawn into a temporary folder and moved in together, so
@@ -167,17 +272,35 @@ def save_charts(result, folder: str | Path, *, overwrite: bool = False,
     the files growthplan wrote there before are replaced (see
     :func:`growthplan.io.atomic_folder`; ``protect`` lists input files the
     folder must not hold).
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result.
+    folder : str or Path
+        Folder for the charts; created when missing.
+    overwrite : bool, default False
+        Write into an existing, non-empty folder.
+    protect : iterable of str or Path, default ()
+        Input files (such as the plan's own files) the folder must not hold.
+
+    Returns
+    -------
+    list of Path
+        The PNG files written: output, capacity, starts, labour (when the
+        plan has labour), shadow prices and ray distance.
     """
     from .io.atomic import atomic_folder
 
     plt = _plt()
     folder = Path(folder)
-    charts = {"output": lambda ax: plot_paths(result, "output", ax=ax),
-              "capacity": lambda ax: plot_paths(result, "capacity", ax=ax),
-              "starts": lambda ax: plot_starts(result, ax=ax),
-              "labour": lambda ax: plot_labour(result, ax=ax),
-              "shadow_prices": lambda ax: plot_shadow_prices(result, ax=ax),
-              "ray_distance": lambda ax: plot_ray_distance(result, ax=ax)}
+    charts: dict[str, Callable[[Axes], Axes]] = {
+        "output": lambda ax: plot_paths(result, "output", ax=ax),
+        "capacity": lambda ax: plot_paths(result, "capacity", ax=ax),
+        "starts": lambda ax: plot_starts(result, ax=ax),
+        "labour": lambda ax: plot_labour(result, ax=ax),
+        "shadow_prices": lambda ax: plot_shadow_prices(result, ax=ax),
+        "ray_distance": lambda ax: plot_ray_distance(result, ax=ax)}
     names = []
     with atomic_folder(folder, overwrite=overwrite, protect=protect, kind="charts") as tmp:
         for name, draw in charts.items():

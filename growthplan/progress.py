@@ -4,15 +4,29 @@ from __future__ import annotations
 
 import contextlib
 import time
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
+from typing import Any
 
 
 @contextlib.contextmanager
-def solve_progress(enabled: bool, label: str) -> Iterator:
+def solve_progress(enabled: bool, label: str) -> Iterator[Callable[[str], None] | None]:
     """A HiGHS log callback that advances a progress bar, or None when disabled.
 
     The bar counts log lines and shows the elapsed time and HiGHS's latest
     line (iteration counts and objective) as its postfix.
+
+    Parameters
+    ----------
+    enabled : bool
+        Show a bar; False yields None and shows nothing.
+    label : str
+        Name of the plan, shown in the bar's description.
+
+    Yields
+    ------
+    callable or None
+        A function taking one HiGHS log line, or None when disabled. The bar
+        closes when the context exits.
     """
     if not enabled:
         yield None
@@ -35,8 +49,21 @@ def solve_progress(enabled: bool, label: str) -> Iterator:
         bar.close()
 
 
-def sweep_progress(enabled: bool, total: int):
-    """A per-scenario progress bar (or a no-op object)."""
+def sweep_progress(enabled: bool, total: int) -> contextlib.AbstractContextManager[Any]:
+    """A per-scenario progress bar (or a no-op object).
+
+    Parameters
+    ----------
+    enabled : bool
+        Show a bar; False gives an object whose ``update`` does nothing.
+    total : int
+        Number of scenarios the bar counts up to.
+
+    Returns
+    -------
+    contextlib.AbstractContextManager
+        A context manager yielding an object with ``update(n=1)``.
+    """
     if not enabled:
         return contextlib.nullcontext(_NoBar())
     from tqdm.auto import tqdm

@@ -6,8 +6,9 @@ Pure array functions; :class:`~growthplan.Economy` wraps them with sector labels
 from __future__ import annotations
 
 import math
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
-from typing import NamedTuple
+from typing import Any, NamedTuple, TypeAlias, cast
 
 import numpy as np
 import pandas as pd
@@ -18,6 +19,9 @@ from scipy.sparse import linalg as splinalg
 from .errors import NoBalancedGrowth, invalid
 
 _ARPACK_FAILURES = (splinalg.ArpackNoConvergence, splinalg.ArpackError)
+
+# a square non-negative matrix, dense or scipy sparse
+SquareMatrix: TypeAlias = "np.ndarray | sparse.sparray | sparse.spmatrix"
 
 __all__ = [
     "BalancedGrowth",
@@ -89,15 +93,16 @@ class BalancedGrowth:
                 f"proportions=[{top}])")
 
 
-def _as_operator(m):
+def _as_operator(m: SquareMatrix) -> sparse.sparray | sparse.spmatrix:
     return sparse.csr_array(m) if not sparse.issparse(m) else m
 
 
-def _dense(m) -> np.ndarray:
-    return m.toarray() if sparse.issparse(m) else np.asarray(m, dtype=float)
+def _dense(m: SquareMatrix) -> np.ndarray:
+    # scipy has no type stubs: issparse does not narrow the union
+    return cast(Any, m).toarray() if sparse.issparse(m) else np.asarray(m, dtype=float)
 
 
-def _shift_invert(m) -> tuple[float, np.ndarray]:
+def _shift_invert(m: SquareMatrix) -> tuple[float, np.ndarray]:
     """Perron root and vector by ARPACK in shift-invert mode about ``σ`` just above ``ρ``.
 
     For a non-negative matrix every eigenvalue has ``|λ| ≤ ρ``, and ``ρ`` is at
@@ -116,7 +121,7 @@ def _shift_invert(m) -> tuple[float, np.ndarray]:
     return float(vals[0].real), vecs[:, 0]
 
 
-def spectral_radius(m) -> float:
+def spectral_radius(m: SquareMatrix) -> float:
     """Spectral radius of a non-negative matrix (dense ``eig`` or ARPACK for large n).
 
     When ARPACK does not converge (long cycles put many eigenvalues on the
@@ -160,7 +165,7 @@ def leontief_inverse(a: np.ndarray) -> np.ndarray:
     return np.linalg.solve(np.eye(a.shape[0]) - a, np.eye(a.shape[0]))
 
 
-def structure(m) -> tuple[bool, int]:
+def structure(m: SquareMatrix) -> tuple[bool, int]:
     """(irreducible, period) of the non-negative matrix ``m`` from its graph.
 
     The period of an irreducible matrix is the gcd over its edges ``u → v`` of
@@ -204,17 +209,17 @@ class Perron(NamedTuple):
     unique: bool
 
 
-def _residual(m, v: np.ndarray, rho: float) -> float:
+def _residual(m: SquareMatrix, v: np.ndarray, rho: float) -> float:
     return float(np.abs(m @ v - rho * v).sum() / np.abs(v).sum())
 
 
-def _accept(m) -> float:
+def _accept(m: SquareMatrix) -> float:
     """Largest residual ``‖Mv − ρv‖₁/‖v‖₁`` accepted for a computed Perron vector."""
     norm = float(abs(m).sum(axis=0).max()) if m.shape[0] else 0.0
     return 1e-9 * max(1.0, norm)
 
 
-def _nullity(m, rho: float, vals: np.ndarray | None) -> int:
+def _nullity(m: SquareMatrix, rho: float, vals: np.ndarray | None) -> int:
     """Independent eigenvectors for ``rho``: numerical nullity of ``M − ρI``.
 
     Checked by an SVD only when the eigenvalues show ``rho`` more than once
@@ -232,7 +237,7 @@ def _nullity(m, rho: float, vals: np.ndarray | None) -> int:
     return max(1, int(np.count_nonzero(sv <= 1e-9 * max(1.0, float(sv[0]) if sv.size else 1.0))))
 
 
-def _nonneg_null_vector(m, rho: float) -> np.ndarray | None:
+def _nonneg_null_vector(m: SquareMatrix, rho: float) -> np.ndarray | None:
     """A vector ``v ≥ 0``, ``Σ v = 1`` with least ``‖(M − ρI) v‖₁``, by a linear programme."""
     n = m.shape[0]
     shifted = sparse.csr_array(_as_operator(m).astype(float)) - rho * sparse.eye_array(n)
@@ -251,7 +256,7 @@ def _nonneg_null_vector(m, rho: float) -> np.ndarray | None:
     return v / v.sum() if v.sum() > 0 else None
 
 
-def perron(m, *, method: str = "eigen", tol: float = 1e-12,
+def perron(m: SquareMatrix, *, method: str = "eigen", tol: float = 1e-12,
            max_iter: int = 100_000) -> Perron:
     """Perron root and a non-negative Perron vector of ``m``.
 
@@ -320,7 +325,7 @@ def perron(m, *, method: str = "eigen", tol: float = 1e-12,
     nullity = 1 if (found is not None and vals is None) else _nullity(m, rho, vals)
     it = 0
     if found is None or nullity > 1:
-        nnz = m.nnz if sparse.issparse(m) else n * n
+        nnz = cast(Any, m).nnz if sparse.issparse(m) else n * n
         steps = int(min(max_iter, 20_000, max(200, 5e8 // max(nnz, 1))))
         try:
             _, p_v, p_it = power_iteration(m, tol=tol, max_iter=steps)
@@ -338,7 +343,7 @@ def perron(m, *, method: str = "eigen", tol: float = 1e-12,
     return Perron(rho, found, used, it, _residual(m, found, rho), nullity == 1)
 
 
-def power_iteration(m, *, tol: float = 1e-12, max_iter: int = 100_000,
+def power_iteration(m: SquareMatrix, *, tol: float = 1e-12, max_iter: int = 100_000,
                     start: np.ndarray | None = None) -> tuple[float, np.ndarray, int]:
     """Damped power iteration for the Perron root and vector.
 
@@ -371,7 +376,8 @@ def power_iteration(m, *, tol: float = 1e-12, max_iter: int = 100_000,
     return rho, v, steps
 
 
-def dynamic_growth(a: np.ndarray, b: np.ndarray, deliveries_per_capacity,
+def dynamic_growth(a: np.ndarray, b: np.ndarray,
+                   deliveries_per_capacity: Sequence[Callable[[float], float]],
                    utilisation: np.ndarray, *, g_max: float = 10.0) -> tuple[float, np.ndarray]:
     """Largest ``g`` with ``ρ(A + B K(g) U⁻¹) = 1`` and its ray.
 
@@ -409,4 +415,5 @@ def dynamic_growth(a: np.ndarray, b: np.ndarray, deliveries_per_capacity,
 
 
 def fmt_rate(g: float) -> str:
+    """A growth rate as a percentage with three decimals, or ``n/a`` when not finite."""
     return f"{100 * g:.3f} %" if math.isfinite(g) else "n/a"

@@ -21,10 +21,12 @@ import itertools
 import os
 import traceback
 import warnings
+from collections.abc import Callable
 from concurrent.futures import FIRST_COMPLETED, Executor, Future, ProcessPoolExecutor, wait
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass
-from typing import Any
+from multiprocessing.context import BaseContext
+from typing import Any, TypeVar
 
 import pandas as pd
 
@@ -33,12 +35,32 @@ from .plan import Plan
 
 __all__ = ["Sweep", "SerialExecutor", "sweep", "variant"]
 
+_T = TypeVar("_T")
+# one variant's work: (plan, parameters, solve options, keep the result)
+_Task = tuple[Plan, dict[str, Any], dict[str, Any], bool]
+# one variant's outcome: (key figures or error row, result or None)
+_Outcome = tuple[dict[str, Any], Any]
+
 
 class SerialExecutor(Executor):
     """Runs each task at once in this process (for debugging and reference runs)."""
 
-    def submit(self, fn, /, *args, **kwargs) -> Future:
-        fut: Future = Future()
+    def submit(self, fn: Callable[..., _T], /, *args: Any, **kwargs: Any) -> Future[_T]:
+        """Call ``fn(*args, **kwargs)`` now and return its finished future.
+
+        Parameters
+        ----------
+        fn : callable
+            The task.
+        *args, **kwargs
+            Its arguments.
+
+        Returns
+        -------
+        concurrent.futures.Future
+            Done, holding the result or the exception ``fn`` raised.
+        """
+        fut: Future[_T] = Future()
         try:
             fut.set_result(fn(*args, **kwargs))
         except BaseException as exc:  # noqa: BLE001 - handed to the caller via the future
@@ -62,7 +84,7 @@ class Sweep:
     """
 
     table: pd.DataFrame
-    results: list
+    results: list[Any]
 
     @property
     def failed(self) -> pd.DataFrame:
@@ -70,7 +92,7 @@ class Sweep:
         return self.table[self.table["status"] == "error"]
 
 
-def _set_path(data: dict, path: str, value: Any) -> None:
+def _set_path(data: dict[str, Any], path: str, value: Any) -> None:
     parts = path.split(".")
     node: Any = data
     for i, part in enumerate(parts[:-1]):
@@ -95,7 +117,23 @@ def _set_path(data: dict, path: str, value: Any) -> None:
 
 
 def variant(plan: Plan, params: dict[str, Any]) -> Plan:
-    """A copy of ``plan`` with the parameters at the dotted paths changed (validated anew)."""
+    """A copy of ``plan`` with the parameters at the dotted paths changed (validated anew).
+
+    Parameters
+    ----------
+    plan : Plan
+        The plan to vary; it is not changed.
+    params : dict of str to object
+        New values by dotted path into the plan's fields, for example
+        ``{"objective.rate": 0.03, "labour.0.growth": 0.01}``; list entries
+        are named by their index. Each path must name an existing field.
+
+    Returns
+    -------
+    Plan
+        The changed plan, validated like a new one (the economy is shared
+        unless a path starts with ``economy.``).
+    """
     touches_economy = any(p.startswith("economy.") for p in params)
     data = plan.model_dump(exclude=set() if touches_economy else {"economy"})
     for path, value in params.items():
@@ -105,7 +143,7 @@ def variant(plan: Plan, params: dict[str, Any]) -> Plan:
     return Plan(**data)
 
 
-def _run_one(task: tuple) -> tuple[dict, Any]:
+def _run_one(task: _Task) -> _Outcome:
     """Solve one variant (top level, so process pools and Dask can pickle it)."""
     plan, params, options, keep = task
     try:
@@ -118,15 +156,16 @@ def _run_one(task: tuple) -> tuple[dict, Any]:
                 "detail": traceback.format_exc(limit=2)}, None
 
 
-def sweep(plan: Plan, grid: dict[str, list] | None = None, *,
+def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
           scenarios: dict[str, dict[str, Any]] | None = None, executor: Executor | None = None,
           max_workers: int | None = None, keep_results: bool = True, progress: bool = False,
-          solve_options: dict | None = None) -> Sweep:
+          solve_options: dict[str, Any] | None = None) -> Sweep:
     """Solve variants of ``plan`` and gather their key figures.
 
     Parameters
     ----------
     plan : Plan
+        The base plan every variant changes.
     grid : dict of str to list, optional
         Every combination of these parameter values is a variant.
     scenarios : dict of str to dict, optional
@@ -135,6 +174,10 @@ def sweep(plan: Plan, grid: dict[str, list] | None = None, *,
         Where to run; default a process pool of ``max_workers`` (the CPU
         count) created and shut down here. Pass a Dask ``client.get_executor()``
         for a cluster.
+    max_workers : int, optional
+        Workers of the default process pool (default: the CPU count). It also
+        bounds how many one-worker pools solve again the variants of a dead
+        worker when ``executor`` does not tell its own size.
     keep_results : bool, default True
         Return each PlanResult too (False sends back only the figures).
     progress : bool, default False
@@ -145,10 +188,11 @@ def sweep(plan: Plan, grid: dict[str, list] | None = None, *,
     Returns
     -------
     Sweep
+        One table row per variant, grid variants first, then the scenarios.
     """
     from .progress import sweep_progress
 
-    variants: list[tuple[str, dict]] = []
+    variants: list[tuple[str, dict[str, Any]]] = []
     if grid:
         keys = list(grid)
         for combo in itertools.product(*(grid[k] for k in keys)):
@@ -165,7 +209,7 @@ def sweep(plan: Plan, grid: dict[str, list] | None = None, *,
     lost: list[int] = []
     try:
         futures = [pool.submit(_run_one, t) for t in tasks]
-        outcomes: list = [None] * len(futures)
+        outcomes: list[Any] = [None] * len(futures)
         with sweep_progress(progress, len(futures)) as bar:
             for i, fut in enumerate(futures):  # in submission order: deterministic
                 try:
@@ -195,18 +239,18 @@ def sweep(plan: Plan, grid: dict[str, list] | None = None, *,
     return Sweep(table=table, results=[r for _, r in outcomes])
 
 
-def _solve_alone(tasks: list[tuple], names: list[str], workers: int,
-                 mp_context=None) -> list[tuple[dict, Any]]:
+def _solve_alone(tasks: list[_Task], names: list[str], workers: int,
+                 mp_context: BaseContext | None = None) -> list[_Outcome]:
     """Solve variants whose pool broke, each alone in a one-worker process pool.
 
     Up to ``workers`` such pools run at once. A variant whose worker dies
     again is reported as an error row naming it; its pool is replaced and no
     other variant is lost with it.
     """
-    out: list = [None] * len(tasks)
+    out: list[Any] = [None] * len(tasks)
     queue = list(range(len(tasks)))
     idle: list[ProcessPoolExecutor] = []
-    running: dict[Future, tuple[int, ProcessPoolExecutor]] = {}
+    running: dict[Future[_Outcome], tuple[int, ProcessPoolExecutor]] = {}
     try:
         while queue or running:
             while queue and len(running) < max(1, workers):

@@ -178,6 +178,7 @@ class HighsBackend:
     time_limit : float, optional
         Seconds per solve.
     threads : int, optional
+        HiGHS threads (its global thread pool is reset when this changes).
     tolerance : float, optional
         Primal and dual feasibility tolerance.
     options : dict, optional
@@ -188,6 +189,7 @@ class HighsBackend:
         does so when the entries span more than ``SCALE_RANGE``. A scaled
         optimum that the unscaled duals do not certify is solved again unscaled.
     presolve : bool, default True
+        Let HiGHS presolve the LP.
     """
 
     name = "highs"
@@ -233,7 +235,13 @@ class HighsBackend:
         return HighsBackend(method, **kw)
 
     def alternatives(self) -> list[Backend]:
-        """Interior point and simplex stand in for each other; then simplex without presolve."""
+        """Interior point and simplex stand in for each other; then simplex without presolve.
+
+        Returns
+        -------
+        list of Backend
+            Copies of this back end with the other method, scaling on.
+        """
         other = "simplex" if self.method in ("ipm", "ipm-crossover", "pdlp", "auto") else "ipm"
         out: list[Backend] = [self._variant(method=other, scale=True)]
         if other != "simplex" or self.method == "auto":
@@ -250,6 +258,22 @@ class HighsBackend:
         duality gap below ``CERTIFY_TOLERANCE``), an unbounded verdict only with
         a valid ray; otherwise the status is ``not_verified`` or ``unknown`` and
         the pipeline tries another method.
+
+        Parameters
+        ----------
+        lp : LinearProgram
+            The problem, its ``cost`` in its ``sense``.
+        stop : callable or threading.Event, optional
+            Polled during simplex and interior-point iterations; true (or set)
+            interrupts the solve, which then has status ``interrupted``.
+        callback : callable, optional
+            Called with each line of HiGHS's log (the log is off without it).
+
+        Returns
+        -------
+        SolverOutcome
+            Status, primal values, duals and solver details; never raises for
+            a failed solve.
         """
         return self.confirm_unbounded(lp, self._solve(lp, stop, callback))
 
@@ -274,7 +298,21 @@ class HighsBackend:
         return _certified(lp, second, strict=wide)
 
     def confirm_unbounded(self, lp: LinearProgram, out: SolverOutcome) -> SolverOutcome:
-        """Demote an "unbounded" verdict that no valid ray backs (so another method is tried)."""
+        """Demote an "unbounded" verdict that no valid ray backs (so another method is tried).
+
+        Parameters
+        ----------
+        lp : LinearProgram
+            The problem solved.
+        out : SolverOutcome
+            Its outcome; changed in place when demoted.
+
+        Returns
+        -------
+        SolverOutcome
+            ``out``, with status ``unknown`` when it said unbounded but no
+            valid primal ray was found.
+        """
         if out.status is Status.UNBOUNDED:
             ray = self.ray(lp)
             if ray is None or not valid_ray(lp, ray):
@@ -361,6 +399,16 @@ class HighsBackend:
 
         Uses ``iis_strategy`` 2 (from the LP) with the irreducibility bit 4: the
         default strategy can return a valid but empty set.
+
+        Parameters
+        ----------
+        lp : LinearProgram
+            An infeasible problem.
+
+        Returns
+        -------
+        tuple of (list of int, list of int) or None
+            Row and column indices of the subset.
         """
         h = _new_highs(self.threads)
         for k, v in {"output_flag": False, "random_seed": 0, "iis_strategy": 2 | 4}.items():
@@ -374,7 +422,22 @@ class HighsBackend:
         return (rows, cols) if rows or cols else None
 
     def ray(self, lp: LinearProgram) -> np.ndarray | None:
-        """A primal ray of an unbounded LP (the direction the columns run away in)."""
+        """A primal ray of an unbounded LP (the direction the columns run away in).
+
+        Solved by simplex without presolve, equilibrated first when the
+        entries span more than ``SCALE_RANGE``.
+
+        Parameters
+        ----------
+        lp : LinearProgram
+            An unbounded problem.
+
+        Returns
+        -------
+        numpy.ndarray or None
+            One value per column, in the LP's unscaled columns; None when
+            HiGHS gives no ray.
+        """
         h = _new_highs(self.threads)
         for k, v in {"output_flag": False, "random_seed": 0, "solver": "simplex",
                      "presolve": "off"}.items():

@@ -104,11 +104,14 @@ class PulpBackend:
     Parameters
     ----------
     solver : pulp.LpSolver, optional
+        The solver (default: the bundled CBC, quiet).
     problem : pulp.LpProblem, optional
         A problem from :meth:`growthplan.Plan.to_pulp`, perhaps with constraints
         of the user's own; it is solved in place of a fresh one (rows added by
         objective stages are appended to it).
     gap_tolerance : float, default 1e-6
+        Largest relative duality gap of a believed optimum; checked only when
+        the problem holds no constraints of the user's own.
     """
 
     name = "pulp"
@@ -125,6 +128,13 @@ class PulpBackend:
         return f"PulpBackend({type(self.solver or cbc_solver()).__name__})"
 
     def alternatives(self) -> list[Backend]:
+        """No other back end is tried: the user chose this solver.
+
+        Returns
+        -------
+        list of Backend
+            Always empty.
+        """
         return []
 
     def _problem(self, lp: LinearProgram) -> tuple[Any, bool]:
@@ -146,7 +156,22 @@ class PulpBackend:
 
     def solve(self, lp: LinearProgram, *, stop: Any = None,
               callback: Any = None) -> SolverOutcome:
-        """Solve ``lp`` with the PuLP solver (``stop`` and ``callback`` are not supported)."""
+        """Solve ``lp`` with the PuLP solver (``stop`` and ``callback`` are not supported).
+
+        Parameters
+        ----------
+        lp : LinearProgram
+            The problem; with a given ``problem``, rows it lacks are appended
+            and its objective is set from ``lp``.
+        stop, callback : optional
+            Accepted for the back-end protocol and ignored.
+
+        Returns
+        -------
+        SolverOutcome
+            With duals in ``lp``'s own sense; an optimum the duality gap does
+            not certify has status ``not_verified``.
+        """
         import pulp
 
         from .highs import STATUS_TABLE

@@ -28,7 +28,7 @@ def _os_error(what: str, path: Any, exc: OSError) -> InvalidInput:
     return invalid(what, "be a readable file", str(path), hint=f"({exc.strerror or exc})")
 
 
-def read_regular_file(path: str | os.PathLike, *, what: str, limit: int) -> bytes:
+def read_regular_file(path: str | os.PathLike[str], *, what: str, limit: int) -> bytes:
     """The bytes of a regular file of at most ``limit`` bytes.
 
     The file is examined with ``stat`` before it is opened, so a folder, a

@@ -47,7 +47,7 @@ __all__ = ["atomic_file", "atomic_files", "atomic_folder", "MANIFEST"]
 MANIFEST = ".growthplan-manifest"
 _MANIFEST_MAX_BYTES = 1 << 20
 
-PathLike = str | os.PathLike
+PathLike = str | os.PathLike[str]
 
 
 def _umask() -> int:

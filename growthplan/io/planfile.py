@@ -97,7 +97,19 @@ class EconomyTables(Model):
 
 
 class SolveOptions(Model):
-    """Solver settings stored with the plan."""
+    """Solver settings stored with the plan.
+
+    Parameters
+    ----------
+    method : str, default "auto"
+        HiGHS method (``auto``, ``simplex``, ``ipm``, ``ipm-crossover``, ``pdlp``).
+    time_limit : float, optional
+        Seconds for the solver, > 0.
+    threads : int, optional
+        Solver threads, >= 1.
+    tolerance : float, optional
+        Primal and dual feasibility tolerance of HiGHS, in (0, 1).
+    """
 
     method: str = "auto"
     time_limit: float | None = Field(default=None, gt=0)
@@ -122,8 +134,13 @@ class PlanFile(Model):
         return v
 
 
-def plan_file_schema() -> dict:
-    """JSON Schema of a plan file, with the plan section's own schema filled in."""
+def plan_file_schema() -> dict[str, Any]:
+    """JSON Schema of a plan file, with the plan section's own schema filled in.
+
+    Returns
+    -------
+    dict
+    """
     schema = PlanFile.model_json_schema()
     plan_schema = Plan.model_json_schema(mode="validation")
     plan_schema.get("properties", {}).pop("economy", None)
@@ -170,7 +187,7 @@ class _Checks:
         finally:
             self._depth -= 1
 
-    def construct_mapping(self, node: MappingNode, deep: bool = False) -> dict:
+    def construct_mapping(self, node: MappingNode, deep: bool = False) -> dict[Any, Any]:
         if isinstance(node, MappingNode):
             seen: dict[str, int] = {}
             for key_node, _ in node.value:
@@ -260,7 +277,7 @@ def _line_of(root: Node | None, path: list[str]) -> int | None:
     return line
 
 
-def _read(path: Path) -> tuple[dict, Node | None]:
+def _read(path: Path) -> tuple[dict[str, Any], Node | None]:
     suffix = path.suffix.lower()
     if suffix not in (".toml", ".yaml", ".yml"):
         raise invalid(f"{path}", "end in .yaml, .yml or .toml", suffix or "no suffix")
@@ -339,7 +356,7 @@ def _years(years: Any) -> Any:
     return years
 
 
-def load_plan_file(path: str | os.PathLike, *,
+def load_plan_file(path: str | os.PathLike[str], *,
                    allow_outside: bool = False) -> tuple[Plan, SolveOptions]:
     """Read a plan file and its tables into a validated :class:`Plan`.
 
@@ -430,7 +447,7 @@ def load_plan_file(path: str | os.PathLike, *,
     return plan, spec.solve
 
 
-def plan_file_inputs(path: str | os.PathLike) -> list[Path]:
+def plan_file_inputs(path: str | os.PathLike[str]) -> list[Path]:
     """The plan file and the table files it names: what an export must never overwrite.
 
     Pass the list as ``protect=`` to :func:`~growthplan.io.atomic_file` and
@@ -472,7 +489,7 @@ def _plain(value: Any) -> Any:
     return value
 
 
-def save_plan_file(plan: Plan, path: str | os.PathLike, *, overwrite: bool = False,
+def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool = False,
                    solve: SolveOptions | None = None) -> Path:
     """Write ``plan`` as a YAML plan file with its coefficient tables beside it.
 
@@ -481,6 +498,23 @@ def save_plan_file(plan: Plan, path: str | os.PathLike, *, overwrite: bool = Fal
     :func:`load_plan_file` reads the set back into an equal plan. Nothing is
     overwritten without ``overwrite=True``, and the files appear together or
     not at all (see :mod:`growthplan.io.atomic`).
+
+    Parameters
+    ----------
+    plan : Plan
+        The plan to write, economy included.
+    path : str or path-like
+        The plan file; must end in ``.yaml`` or ``.yml``.
+    overwrite : bool, default False
+        Replace the plan file and tables if they exist.
+    solve : SolveOptions, optional
+        Solver settings stored in the file's ``solve`` section (method, time
+        limit, threads, tolerance); default the library's defaults.
+
+    Returns
+    -------
+    Path
+        The plan file written.
     """
     path = Path(path)
     if path.suffix.lower() not in (".yaml", ".yml"):

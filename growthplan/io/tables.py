@@ -34,6 +34,7 @@ from typing import Any
 
 import numpy as np
 import pandas as pd
+from numpy.typing import ArrayLike
 
 from .._validation import Rule, align_labels, raise_plain
 from ..economy import CapitalSpec, Economy, Sector
@@ -237,9 +238,10 @@ class TransactionsTable:
 
     Parameters
     ----------
-    flows : DataFrame, shape (n, n)
+    flows : DataFrame or array_like, shape (n, n)
         Intermediate use ``z_ij`` of commodity ``i`` (rows) by sector ``j``
-        (columns), the same labels on both axes.
+        (columns), the same labels on both axes (an array gets the names
+        ``sector_1``, ``sector_2``, …).
     gross_output : Series or array_like
         Gross output ``x_j``.
     labour : Series, DataFrame (kinds × sectors) or array_like, optional
@@ -248,10 +250,25 @@ class TransactionsTable:
         Final demand by commodity (one or more columns).
     value_added : Series, optional
         Value added by sector.
+
+    Attributes
+    ----------
+    names : list of str
+        Sector names, in the order of the flow table's columns.
+    flows : DataFrame
+        The flows with rows in the order of ``names``, blanks read as 0.
+    gross_output, value_added : Series
+        Aligned to ``names`` (``value_added`` may be None).
+    labour : DataFrame or None
+        Labour kinds × sectors.
+    final_demand : DataFrame or None
+        Commodities × final-demand columns.
     """
 
-    def __init__(self, flows, gross_output, labour=None, *, final_demand=None,
-                 value_added=None) -> None:
+    def __init__(self, flows: pd.DataFrame | ArrayLike, gross_output: pd.Series | ArrayLike,
+                 labour: pd.Series | pd.DataFrame | ArrayLike | None = None, *,
+                 final_demand: pd.Series | pd.DataFrame | ArrayLike | None = None,
+                 value_added: pd.Series | ArrayLike | None = None) -> None:
         if not isinstance(flows, pd.DataFrame):
             arr = np.asarray(flows, dtype=float)
             if arr.ndim != 2 or arr.shape[0] != arr.shape[1]:
@@ -317,15 +334,33 @@ class TransactionsTable:
 
     # -- derived --------------------------------------------------------------
     def input_coefficients(self) -> pd.DataFrame:
-        """``a_ij = z_ij / x_j``."""
+        """Input coefficients ``a_ij = z_ij / x_j``.
+
+        Returns
+        -------
+        pandas.DataFrame
+            Commodities × sectors.
+        """
         return self.flows.div(self.gross_output, axis=1)
 
     def labour_coefficients(self) -> pd.DataFrame | None:
-        """``l_kj = labour_kj / x_j``."""
+        """Labour coefficients ``l_kj = labour_kj / x_j`` (None without labour).
+
+        Returns
+        -------
+        pandas.DataFrame or None
+            Labour kinds × sectors.
+        """
         return None if self.labour is None else self.labour.div(self.gross_output, axis=1)
 
     def balance_gap(self) -> pd.Series | None:
-        """Row sums of flows plus final demand minus gross output (zero when balanced)."""
+        """Row sums of flows plus final demand minus gross output (zero when balanced).
+
+        Returns
+        -------
+        pandas.Series or None
+            By commodity; None without final demand.
+        """
         if self.final_demand is None:
             return None
         return self.flows.sum(axis=1) + self.final_demand.sum(axis=1) - self.gross_output
@@ -335,6 +370,17 @@ class TransactionsTable:
 
         Flows, gross output, labour, final demand and value added are summed;
         coefficients are then recomputed from the sums, never averaged.
+
+        Parameters
+        ----------
+        mapping : dict of str to str
+            The new sector of every old sector (each old sector exactly once);
+            new sectors keep the order of their first old sector.
+
+        Returns
+        -------
+        TransactionsTable
+            The aggregated table.
         """
         missing = [s for s in self.names if s not in mapping]
         unknown = [s for s in mapping if s not in self.names]
@@ -357,20 +403,27 @@ class TransactionsTable:
                                  None if lab is None else lab[new],
                                  final_demand=fd, value_added=va)
 
-    def to_economy(self, *, capital=None, capital_coefficients=None, capital_stocks=None,
-                   **kwargs: Any) -> Economy:
+    def to_economy(self, *, capital: Any = None,
+                   capital_coefficients: pd.DataFrame | None = None,
+                   capital_stocks: Any = None, **kwargs: Any) -> Economy:
         """The :class:`Economy` with coefficients of this table.
 
         Parameters
         ----------
-        capital : dict or DataFrame, optional
+        capital : dict, DataFrame or table file, optional
             Capital of each sector (CapitalSpec fields); ``initial_capacity``
             defaults to gross output divided by ``max_utilisation``.
-        capital_coefficients : DataFrame, optional
-            ``B`` directly.
-        capital_stocks : DataFrame, optional
+        capital_coefficients : DataFrame or array_like, optional
+            ``B`` directly (ignored when ``capital_stocks`` is given).
+        capital_stocks : DataFrame or table file, optional
             Capital stock of commodity ``i`` (rows) held by sector ``j``
-            (columns); ``b_ij = stock_ij / capacity_j``.
+            (columns); ``b_ij = stock_ij / capacity_j``. Needs ``capital``.
+        **kwargs
+            Further :class:`Economy` fields (labour kinds, baskets).
+
+        Returns
+        -------
+        Economy
         """
         spec = None
         if capital is not None:
@@ -388,7 +441,20 @@ class TransactionsTable:
 
 
 def capital_coefficients_from_stocks(stocks: pd.DataFrame, capacity: pd.Series) -> pd.DataFrame:
-    """``b_ij = stock_ij / capacity_j`` (a zero capacity is an error)."""
+    """Capital coefficients ``b_ij = stock_ij / capacity_j`` (a zero capacity is an error).
+
+    Parameters
+    ----------
+    stocks : DataFrame or table file
+        Capital stock of commodity ``i`` (rows) held by sector ``j`` (columns).
+    capacity : Series
+        Capacity of each sector; its index gives the sector names and order.
+
+    Returns
+    -------
+    DataFrame
+        Capital coefficients, commodities × sectors.
+    """
     stocks = _numeric(read_frame(stocks, what="capital_stocks"), "capital_stocks").fillna(0.0)
     names = list(capacity.index)
     try:
@@ -449,7 +515,7 @@ def _capital_specs(capital: Any, names: list[str], gross: pd.Series) -> dict[str
         raise
 
 
-def _spec(name: str, entry: dict) -> CapitalSpec:
+def _spec(name: str, entry: dict[str, Any]) -> CapitalSpec:
     try:
         return CapitalSpec(**entry)
     except InvalidInput as exc:
@@ -459,7 +525,17 @@ def _spec(name: str, entry: dict) -> CapitalSpec:
 
 
 def read_transactions(source: Any) -> TransactionsTable:
-    """Read a transactions table in the layout described in this module."""
+    """Read a transactions table in the layout described in this module.
+
+    Parameters
+    ----------
+    source : DataFrame, str or path-like
+        The table, or a CSV file or Excel workbook (first sheet) holding it.
+
+    Returns
+    -------
+    TransactionsTable
+    """
     frame = read_frame(source, what="flows")
     lower = {str(i).lower(): i for i in frame.index}
     if "gross_output" not in lower:
@@ -483,7 +559,19 @@ def read_transactions(source: Any) -> TransactionsTable:
 
 
 def capital_table(econ: Economy) -> pd.DataFrame:
-    """The economy's capital as a table in the layout :func:`read_frame` reads back."""
+    """The economy's capital as a table in the layout :func:`read_frame` reads back.
+
+    Parameters
+    ----------
+    econ : Economy
+        An economy with capital.
+
+    Returns
+    -------
+    DataFrame
+        One row per sector, the CapitalSpec fields as columns (list fields
+        written as ``"0.4;0.6"``).
+    """
     if econ.capital is None:
         raise invalid("capital", "be given to write a capital table", None)
     rows = {}
@@ -518,12 +606,28 @@ def _write_csv(key: str, frame: pd.DataFrame, path: Path) -> None:
     frame.to_csv(path, float_format=None if key == "capital" else "%.17g")
 
 
-def write_coefficient_tables(econ: Economy, folder, prefix: str = "", *,
+def write_coefficient_tables(econ: Economy, folder: str | os.PathLike[str], prefix: str = "", *,
                              overwrite: bool = False) -> dict[str, str]:
     """Write A, B, labour coefficients and capital as CSV files; return their file names.
 
     The files appear together or not at all (see :mod:`growthplan.io.atomic`);
     existing files are replaced only with ``overwrite=True``.
+
+    Parameters
+    ----------
+    econ : Economy
+        The economy whose coefficients and capital are written.
+    folder : str or path-like
+        Existing folder for the files.
+    prefix : str, default ""
+        Put before every file name.
+    overwrite : bool, default False
+        Replace files that exist.
+
+    Returns
+    -------
+    dict of str to str
+        File name by plan-file key (``input_coefficients``, ``capital``, …).
     """
     folder = Path(folder)
     frames = _coefficient_frames(econ, prefix)
@@ -534,13 +638,31 @@ def write_coefficient_tables(econ: Economy, folder, prefix: str = "", *,
     return {key: name for key, (name, _) in frames.items()}
 
 
-def economy_from_coefficients(input_coefficients, *, capital=None, capital_coefficients=None,
-                              labour_coefficients=None, **kwargs: Any) -> Economy:
+def economy_from_coefficients(input_coefficients: Any, *, capital: Any = None,
+                              capital_coefficients: Any = None,
+                              labour_coefficients: Any = None, **kwargs: Any) -> Economy:
     """An economy from coefficient tables (files or DataFrames) rather than flows.
 
     ``input_coefficients`` and ``capital_coefficients`` are commodities ×
     sectors; ``labour_coefficients`` has one row per labour kind; ``capital``
     is the capital table.
+
+    Parameters
+    ----------
+    input_coefficients : DataFrame or table file
+        ``A``; its columns name the sectors.
+    capital : DataFrame or table file, optional
+        The capital table (one row per sector, CapitalSpec fields).
+    capital_coefficients : DataFrame or table file, optional
+        ``B``.
+    labour_coefficients : DataFrame or table file, optional
+        Labour kinds × sectors.
+    **kwargs
+        Further :class:`Economy` fields.
+
+    Returns
+    -------
+    Economy
     """
     a = _numeric(read_frame(input_coefficients, what="input_coefficients"),
                  "input_coefficients").fillna(0.0)

@@ -85,11 +85,13 @@ class LinearProgram:
     Attributes
     ----------
     matrix : scipy.sparse.csc_array
+        The constraint matrix ``M``, rows × columns.
     row_lower, row_upper, col_lower, col_upper : numpy.ndarray
         Bounds; ``±inf`` where there is none.
     cost : numpy.ndarray
         Objective of the current stage, optimised in ``sense``.
     sense : {"max", "min"}
+        Whether ``cost`` is maximised or minimised.
     rows, cols : dict of str to Block
         Named blocks in order.
     stages : list of Stage
@@ -130,36 +132,111 @@ class LinearProgram:
         return np.where(np.isfinite(self.row_upper), 1.0, -1.0)
 
     def replace(self, **changes: Any) -> LinearProgram:
-        """A copy with some fields replaced."""
+        """A copy with some fields replaced.
+
+        Returns
+        -------
+        LinearProgram
+        """
         return dataclasses.replace(self, **changes)
 
     def row_labels(self) -> list[tuple[Any, ...]]:
-        """Label tuple of every row, e.g. ``("balance", 2030, "energy")``."""
+        """Label tuple of every row, e.g. ``("balance", 2030, "energy")``.
+
+        Returns
+        -------
+        list of tuple
+        """
         return _labels(self.rows, self.shape[0])
 
     def col_labels(self) -> list[tuple[Any, ...]]:
-        """Label tuple of every column, e.g. ``("starts", 2030, "energy")``."""
+        """Label tuple of every column, e.g. ``("starts", 2030, "energy")``.
+
+        Returns
+        -------
+        list of tuple
+        """
         return _labels(self.cols, self.shape[1])
 
     def row_names(self) -> list[str]:
-        """Unique names made of letters, digits and underscores (for LP and MPS files)."""
+        """Unique names made of letters, digits and underscores (for LP and MPS files).
+
+        Returns
+        -------
+        list of str
+            One per row, from the row labels (a repeat gets ``_2``, ``_3``, …).
+        """
         return _names(self.row_labels())
 
     def col_names(self) -> list[str]:
-        """Unique names made of letters, digits and underscores (for LP and MPS files)."""
+        """Unique names made of letters, digits and underscores (for LP and MPS files).
+
+        Returns
+        -------
+        list of str
+            One per column, from the column labels (a repeat gets ``_2``, ``_3``, …).
+        """
         return _names(self.col_labels())
 
     def block_of_row(self, r: int) -> Block:
-        """The row block holding row ``r``."""
+        """The row block holding row ``r``.
+
+        Parameters
+        ----------
+        r : int
+            Row position in the whole programme.
+
+        Returns
+        -------
+        Block
+
+        Raises
+        ------
+        IndexError
+            When no block holds ``r``.
+        """
         return _find(self.rows, r)
 
     def block_of_col(self, c: int) -> Block:
-        """The column block holding column ``c``."""
+        """The column block holding column ``c``.
+
+        Parameters
+        ----------
+        c : int
+            Column position in the whole programme.
+
+        Returns
+        -------
+        Block
+
+        Raises
+        ------
+        IndexError
+            When no block holds ``c``.
+        """
         return _find(self.cols, c)
 
     def add_rows(self, name: str, coeffs: sparse.sparray, lower: np.ndarray,
                  upper: np.ndarray, labels: tuple[Any, ...]) -> LinearProgram:
-        """A copy with a block of rows appended (used for held objective stages)."""
+        """A copy with a block of rows appended (used for held objective stages).
+
+        Parameters
+        ----------
+        name : str
+            Name of the row block; a block of that name must be the last one
+            and then grows.
+        coeffs : scipy.sparse array, shape (k, columns)
+            Coefficients of the new rows.
+        lower, upper : numpy.ndarray, shape (k,)
+            Row bounds (``±inf`` where there is none).
+        labels : tuple
+            One label per new row.
+
+        Returns
+        -------
+        LinearProgram
+            The programme with ``k`` more rows; ``self`` is unchanged.
+        """
         k = coeffs.shape[0]
         prev = self.rows.get(name)
         rows = dict(self.rows)
@@ -175,7 +252,27 @@ class LinearProgram:
 
     def add_cols(self, name: str, coeffs: sparse.sparray, cost: np.ndarray, lower: np.ndarray,
                  upper: np.ndarray, labels: tuple[Any, ...]) -> LinearProgram:
-        """A copy with a block of columns appended (used by the elastic re-solve)."""
+        """A copy with a block of columns appended (used by the elastic re-solve).
+
+        Parameters
+        ----------
+        name : str
+            Name of the new column block.
+        coeffs : scipy.sparse array, shape (rows, k)
+            Coefficients of the new columns.
+        cost : numpy.ndarray, shape (k,)
+            Their entries in the objective.
+        lower, upper : numpy.ndarray, shape (k,)
+            Column bounds (``±inf`` where there is none).
+        labels : tuple
+            One label per new column.
+
+        Returns
+        -------
+        LinearProgram
+            The programme with ``k`` more columns and no objective stages
+            (their costs would be a column short); ``self`` is unchanged.
+        """
         cols = dict(self.cols)
         cols[name] = Block(name, self.shape[1], (coeffs.shape[1],), (labels,))
         return self.replace(

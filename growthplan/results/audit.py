@@ -41,6 +41,7 @@ class Audit:
     worst : str
         Which condition it is.
     tolerance : float
+        Largest relative violation accepted.
     checks : pandas.DataFrame
         One row per kind of condition: count, largest relative and absolute violation.
     """

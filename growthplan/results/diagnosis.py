@@ -48,9 +48,13 @@ class Diagnosis:
         Status of the elastic re-solve (``infeasible`` when even the hard
         conditions, the balances with their exogenous demand, cannot hold).
     total_penalty : float
+        Optimal value of the elastic re-solve, ``Σ w_r s_r`` (NaN when it
+        found no plan).
     infeasible_subset : pandas.DataFrame or None
         Conditions that cannot all hold together (HiGHS's irreducible
         infeasible subset), in words: kind, condition, year, name, description.
+    notes : list of str
+        Further remarks on the diagnosis (empty by default).
     """
 
     shortfalls: pd.DataFrame
@@ -66,7 +70,12 @@ class Diagnosis:
             self.status is Status.OPTIMAL and not self.shortfalls.empty)
 
     def conflict(self) -> str:
-        """The infeasible subset as one sentence ("" without one)."""
+        """The infeasible subset as one sentence ("" without one).
+
+        Returns
+        -------
+        str
+        """
         if self.infeasible_subset is None or self.infeasible_subset.empty:
             return ""
         parts = []
@@ -86,7 +95,12 @@ class Diagnosis:
         return f"{text[0].upper()}{text[1:]} cannot all hold together."
 
     def headline(self) -> str:
-        """One sentence naming the worst conditions."""
+        """One sentence naming the worst conditions.
+
+        Returns
+        -------
+        str
+        """
         if self.status is Status.INFEASIBLE:
             return ("Even with every target, floor and labour limit relaxed the plan is "
                     "impossible: the commodity balances with the exogenous demand and the "

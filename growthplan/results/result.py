@@ -35,22 +35,57 @@ __all__ = ["PlanResult", "CAUTION"]
 class PlanResult:
     """The outcome of :meth:`growthplan.Plan.solve`.
 
+    Made by the solve pipeline, not by hand.
+
+    Parameters
+    ----------
+    plan : Plan
+        The plan that was solved.
+    lp : LinearProgram
+        The programme solved (with the arrays it was built from).
+    outcome : SolverOutcome
+        What the back end returned.
+    status : Status
+        The final status (after the audit and any re-solve).
+    timings : dict of str to float
+        Seconds per pipeline step.
+    audit : Audit, optional
+        The audit of an optimal solution.
+    schedules : Schedules, optional
+        The accounting operators the tables are built from.
+    notes : list of str, optional
+        Warnings gathered on the way (kept as ``warnings``).
+    diagnosis : Diagnosis, optional
+        What an infeasible plan falls short of.
+    backend : str, default "highs"
+        Name of the back end.
+
     Attributes
     ----------
     plan : Plan
         The plan that was solved.
+    lp : LinearProgram
+        The programme solved.
     status : Status
+        Outcome of the solve.
     ok : bool
         True only for an optimal solve that passed the audit.
     objective : float
+        Value of the objective (NaN without a solution).
     message : str
         The solver's own status text.
     audit : Audit or None
+        Every condition rechecked from the schedules, independently of the LP.
+    diagnosis : Diagnosis or None
+        Shortfalls of an infeasible plan.
     timings : dict of str to float
         Seconds for validate, compile, solve, post-process and audit.
     solver : dict
         Method, iterations, options and versions.
     warnings : list of str
+        Notes on the solve, such as an audit violation, a solver verdict the
+        elastic re-solve confirmed or overturned, or the end effects of a
+        plan without a terminal condition.
 
     Notes
     -----
@@ -99,7 +134,22 @@ class PlanResult:
         return self.status is Status.OPTIMAL
 
     def raise_for_status(self) -> PlanResult:
-        """Raise the matching growthplan error unless the plan is optimal and audited."""
+        """Raise the matching growthplan error unless the plan is optimal and audited.
+
+        Returns
+        -------
+        PlanResult
+            This result, when it is optimal and audited.
+
+        Raises
+        ------
+        PlanInfeasible
+            For an infeasible plan (with the diagnosis's headline when there is one).
+        PlanUnbounded
+            For an unbounded plan (naming the runaway columns).
+        SolverFailure
+            For any other status.
+        """
         if self.ok:
             return self
         if self.status is Status.INFEASIBLE:
@@ -196,7 +246,12 @@ class PlanResult:
         return self._get("level")
 
     def tidy(self) -> pd.DataFrame:
-        """All year × sector schedules in long form: year, sector, quantity, value."""
+        """All year × sector schedules in long form: year, sector, quantity, value.
+
+        Returns
+        -------
+        pandas.DataFrame
+        """
         parts = []
         for name in ("output", "capacity", "utilisation", "starts", "capital_deliveries",
                      "retirements", "surplus", "shadow_prices", "shadow_prices_current",
@@ -217,6 +272,16 @@ class PlanResult:
             Most rows per year (None: all).
         threshold : float, default 1e-9
             Smallest value (per unit of base-year value) that counts as binding.
+
+        Commodity balances (shadow prices), capacities (quasi-rents) and
+        labour supplies (labour values) are ranked together.
+
+        Parameters
+        ----------
+        top : int or None, default 20
+            Rows kept per year; None keeps every binding condition.
+        threshold : float, default 1e-9
+            Least value of a condition counted as binding.
 
         Returns
         -------
@@ -247,11 +312,21 @@ class PlanResult:
         return out.reset_index(drop=True)
 
     def summary(self) -> Summary:
-        """A short report: text in a terminal (``print``), a table in a notebook."""
+        """A short report: text in a terminal (``print``), a table in a notebook.
+
+        Returns
+        -------
+        Summary
+        """
         return Summary(self)
 
     def key_figures(self) -> dict[str, Any]:
-        """The figures the summary and scenario tables share (status, objective, totals)."""
+        """The figures the summary and scenario tables share (status, objective, totals).
+
+        Returns
+        -------
+        dict of str to object
+        """
         return key_figures(self)
 
     def __repr__(self) -> str:
