@@ -250,6 +250,19 @@ class TransactionsTable:
         Final demand by commodity (one or more columns).
     value_added : Series, optional
         Value added by sector.
+    balance_tolerance : float, default 0.005
+        Largest gap, as a share of gross output, between a row's uses
+        (intermediate plus final demand) and its gross output, and between a
+        column's inputs plus value added and its gross output: published
+        tables are rounded, so a small gap is accepted; beyond it the table
+        is refused with the row or column named.
+
+    Raises
+    ------
+    InvalidInput
+        Naming the sector: intermediate inputs above gross output (negative
+        value added), value added given and negative, or a row or column that
+        does not balance beyond ``balance_tolerance``.
 
     Attributes
     ----------
@@ -268,7 +281,8 @@ class TransactionsTable:
     def __init__(self, flows: pd.DataFrame | ArrayLike, gross_output: pd.Series | ArrayLike,
                  labour: pd.Series | pd.DataFrame | ArrayLike | None = None, *,
                  final_demand: pd.Series | pd.DataFrame | ArrayLike | None = None,
-                 value_added: pd.Series | ArrayLike | None = None) -> None:
+                 value_added: pd.Series | ArrayLike | None = None,
+                 balance_tolerance: float = 0.005) -> None:
         if not isinstance(flows, pd.DataFrame):
             arr = np.asarray(flows, dtype=float)
             if arr.ndim != 2 or arr.shape[0] != arr.shape[1]:
@@ -297,6 +311,68 @@ class TransactionsTable:
             raise invalid("gross_output", "be > 0 for every sector (coefficients divide by it)",
                           {n: float(self.gross_output[n]) for n in zero},
                           hint="Drop or aggregate sectors with no output.")
+        if isinstance(balance_tolerance, bool) or not isinstance(balance_tolerance, int | float) \
+                or not 0 <= balance_tolerance < 1:
+            raise invalid("balance_tolerance", "be a share in [0, 1)", balance_tolerance)
+        self.balance_tolerance = float(balance_tolerance)
+        self._check_balance()
+
+    def _check_balance(self) -> None:
+        """Refuse columns whose inputs exceed output and rows or columns that do not balance."""
+        x = self.gross_output
+        tol = self.balance_tolerance
+        inputs = self.flows.sum(axis=0)
+        over = inputs - x
+        bad = [n for n in self.names if over[n] > tol * x[n]]
+        if bad:
+            n = bad[0]
+            raise invalid(f"flows.{n}", "have intermediate inputs at most the sector's gross "
+                          f"output (value added >= 0; {len(bad)} sector(s) break this)",
+                          f"inputs {inputs[n]:.6g} against gross output {x[n]:.6g}")
+        if self.value_added is not None:
+            va = self.value_added
+            neg = [n for n in self.names if va[n] < 0]
+            if neg:
+                raise invalid(f"value_added.{neg[0]}", "be >= 0", float(va[neg[0]]))
+            gap = inputs + va - x
+            off = [n for n in self.names if abs(gap[n]) > tol * x[n]]
+            if off:
+                n = off[0]
+                raise invalid(f"value_added.{n}", f"make inputs plus value added equal gross "
+                              f"output within {100 * tol:g} %",
+                              f"inputs {inputs[n]:.6g} + value added {va[n]:.6g} against "
+                              f"gross output {x[n]:.6g}")
+        gap_rows = self.balance_gap()
+        if gap_rows is not None:
+            off = [n for n in self.names if abs(gap_rows[n]) > tol * x[n]]
+            if off:
+                n = off[0]
+                assert self.final_demand is not None  # balance_gap needs it
+                uses = float(self.flows.loc[n].sum() + self.final_demand.loc[n].sum())
+                raise invalid(f"flows.{n}", f"balance: intermediate and final uses of {n} "
+                              f"equal its gross output within {100 * tol:g} % "
+                              f"({len(off)} row(s) break this)",
+                              f"uses {uses:.6g} against gross output {x[n]:.6g}")
+
+    def value_added_by_sector(self) -> pd.Series:
+        """Value added of each sector: the given figures, else gross output less inputs.
+
+        Returns
+        -------
+        pandas.Series
+        """
+        if self.value_added is not None:
+            return self.value_added.copy()
+        return (self.gross_output - self.flows.sum(axis=0)).rename("value_added")
+
+    def gdp(self) -> float:
+        """Gross domestic product of the base year: the sum of value added.
+
+        Returns
+        -------
+        float
+        """
+        return float(self.value_added_by_sector().sum())
 
     def _vector(self, v: Any, field: str) -> pd.Series:
         if isinstance(v, pd.DataFrame):
