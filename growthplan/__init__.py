@@ -37,8 +37,25 @@ from .plan import (
     Trade,
 )
 from .results import CAUTION, Audit, Diagnosis, PlanResult
+from .revision import compare, plot_compare, revise
 from .steady import BalancedGrowth
 from .sweep import SerialExecutor, Sweep, sweep, variant
+from .uncertainty import (
+    Empirical,
+    LogNormal,
+    Normal,
+    RobustPlan,
+    Triangular,
+    Uncertain,
+    UncertaintyResult,
+    UncertaintySpec,
+    Uniform,
+    plot_fan,
+    plot_probabilities,
+    reoptimise,
+    robust_plan,
+    stress_test,
+)
 
 try:
     __version__ = version("growthplan")
@@ -94,4 +111,21 @@ __all__ = [
     "read_transactions",
     "save_plan_file",
     "sweep",
+    "compare",
+    "plot_compare",
+    "revise",
+    "Empirical",
+    "LogNormal",
+    "Normal",
+    "RobustPlan",
+    "Triangular",
+    "Uncertain",
+    "UncertaintyResult",
+    "UncertaintySpec",
+    "Uniform",
+    "plot_fan",
+    "plot_probabilities",
+    "reoptimise",
+    "robust_plan",
+    "stress_test",
 ]
