@@ -440,11 +440,11 @@ class UncertaintyResult:
         return per.quantile(list(q)).T.rename_axis(index="year", columns="quantile")
 
 
-def _rows(draw: int, status: str, items: list[tuple[str, Any, str, float]]) -> list[tuple]:
+def _rows(draw: int, status: str, items: list[tuple[str, Any, str, float]]) -> list[tuple[Any, ...]]:
     return [(draw, status, q, y, n, float(v), "") for q, y, n, v in items]
 
 
-def _error_row(draw: int, exc: BaseException | str) -> list[tuple]:
+def _error_row(draw: int, exc: BaseException | str) -> list[tuple[Any, ...]]:
     text = exc if isinstance(exc, str) else f"{type(exc).__name__}: {exc}"
     return [(draw, "error", "error", None, "", np.nan, text)]
 
@@ -502,7 +502,7 @@ def _elastic(lp: Any) -> tuple[Any, Any, list[dict[str, Any]]]:
     return elastic, (again if again.status is Status.OPTIMAL else out), info
 
 
-def _stress_one(plan: Any, spec: UncertaintySpec, i: int, starts: np.ndarray) -> list[tuple]:
+def _stress_one(plan: Any, spec: UncertaintySpec, i: int, starts: np.ndarray) -> list[tuple[Any, ...]]:
     from .backends.base import Status
     from .lp.build import build
     from .results.diagnosis import POSITIVE_SHARE
@@ -541,7 +541,7 @@ def _stress_one(plan: Any, spec: UncertaintySpec, i: int, starts: np.ndarray) ->
 
 
 def _reopt_one(plan: Any, spec: UncertaintySpec, i: int, options: dict[str, Any]
-               ) -> list[tuple]:
+               ) -> list[tuple[Any, ...]]:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         p = spec.draw(plan, i)
@@ -562,11 +562,11 @@ def _reopt_one(plan: Any, spec: UncertaintySpec, i: int, options: dict[str, Any]
     return _rows(i, status, items)
 
 
-def _chunk(job: tuple) -> list[tuple]:
+def _chunk(job: tuple[Any, ...]) -> list[tuple[Any, ...]]:
     """Run one chunk of draws (top level, so process pools and Dask can pickle it)."""
     fn_name, plan, spec, draws, extra = job
     fn: Any = {"stress": _stress_one, "reoptimise": _reopt_one}[fn_name]
-    rows: list[tuple] = []
+    rows: list[tuple[Any, ...]] = []
     for i in draws:
         try:
             rows.extend(fn(plan, spec, i, extra))
@@ -593,7 +593,7 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
     groups = [list(range(s, min(s + size, draws))) for s in range(0, draws, size)]
     jobs = [(kind, plan, spec, g, extra) for g in groups]
     pool = executor or ProcessPoolExecutor(max_workers=workers)
-    parts: list[list[tuple]] = [[] for _ in jobs]
+    parts: list[list[tuple[Any, ...]]] = [[] for _ in jobs]
     try:
         futures = [pool.submit(_chunk, job) for job in jobs]
         with sweep_progress(progress, draws) as bar:
@@ -614,10 +614,10 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
     return table
 
 
-def _alone(job: tuple, mp_context: Any) -> list[tuple]:
+def _alone(job: tuple[Any, ...], mp_context: Any) -> list[tuple[Any, ...]]:
     """Draws of a chunk whose pool broke, each in a fresh one-worker pool."""
     kind, plan, spec, draws, extra = job
-    rows: list[tuple] = []
+    rows: list[tuple[Any, ...]] = []
     for i in draws:
         with ProcessPoolExecutor(max_workers=1, mp_context=mp_context) as pool:
             try:
@@ -736,7 +736,7 @@ class RobustPlan:
     nominal_objective: float
     cost: float
     criterion: str
-    plans: list = field(default_factory=list)
+    plans: list[Any] = field(default_factory=list)
     lp: Any = None
 
     def check(self) -> pd.DataFrame:
