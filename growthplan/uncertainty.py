@@ -440,7 +440,8 @@ class UncertaintyResult:
         return per.quantile(list(q)).T.rename_axis(index="year", columns="quantile")
 
 
-def _rows(draw: int, status: str, items: list[tuple[str, Any, str, float]]) -> list[tuple[Any, ...]]:
+def _rows(draw: int, status: str,
+          items: list[tuple[str, Any, str, float]]) -> list[tuple[Any, ...]]:
     return [(draw, status, q, y, n, float(v), "") for q, y, n, v in items]
 
 
@@ -502,7 +503,8 @@ def _elastic(lp: Any) -> tuple[Any, Any, list[dict[str, Any]]]:
     return elastic, (again if again.status is Status.OPTIMAL else out), info
 
 
-def _stress_one(plan: Any, spec: UncertaintySpec, i: int, starts: np.ndarray) -> list[tuple[Any, ...]]:
+def _stress_one(plan: Any, spec: UncertaintySpec, i: int,
+                starts: np.ndarray) -> list[tuple[Any, ...]]:
     from .backends.base import Status
     from .lp.build import build
     from .results.diagnosis import POSITIVE_SHARE
