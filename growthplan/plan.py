@@ -286,6 +286,10 @@ class Plan(Model):
         effects.
     trade : Trade, optional
         Imports and exports; a closed economy when omitted.
+    allow_high_rates : bool, default False
+        Rates are fractions per year (0.015 for 1.5 %); a growth or discount
+        rate above 1 (100 % a year) is refused as a likely percent unless this
+        is True.
     objective : Objective, default TerminalCapacity()
         One of :mod:`growthplan.objectives`: ``TerminalCapacity``,
         ``DiscountedConsumption``, ``LeastLabour``, ``LeastForeignExchange``,
@@ -304,6 +308,7 @@ class Plan(Model):
     under_construction: dict[str, list[float]] | None = None
     terminal: TerminalGrowth | None = None
     trade: Trade | None = None
+    allow_high_rates: bool = False
     objective: (obj.TerminalCapacity | obj.DiscountedConsumption | obj.LeastLabour
                 | obj.LeastForeignExchange | obj.Weighted | obj.Lexicographic
                 | obj.Fastest) = Field(default_factory=obj.TerminalCapacity,
@@ -399,6 +404,12 @@ class Plan(Model):
                                f"time, {theta} years; older starts belong in "
                                "initial_capacity)", list(v), field=f"under_construction.{k}")
         self.objective.check(self)
+        if not self.allow_high_rates:
+            for field, rate in self._rates():
+                if rate > 1:
+                    raise Rule(f"be a fraction per year (0.015 for 1.5 %); for {rate:g} % a "
+                               f"year write {rate / 100:g}, or pass allow_high_rates=True for "
+                               "a real rate above 100 % a year", rate, field=field)
         if self.trade is not None:
             t = self.trade
             for field in ("import_prices", "export_prices", "import_ceilings",
@@ -442,6 +453,22 @@ class Plan(Model):
             return Plan(**fields)
         out = super().model_copy(deep=deep)
         out._lowered = None
+        return out
+
+    def _rates(self) -> list[tuple[str, float]]:
+        """Every yearly rate the plan states, with its field name."""
+        out = [(f"labour.{i}.growth", ls.growth) for i, ls in enumerate(self.labour)]
+        out.append(("final_demand_growth", self.final_demand_growth))
+        if self.consumption is not None:
+            out.append(("consumption.floor_growth", self.consumption.floor_growth))
+        if self.terminal is not None:
+            out.append(("terminal.rate", self.terminal.rate))
+        if self.trade is not None:
+            out.append(("trade.inflow_growth", self.trade.inflow_growth))
+        for part in obj.components(self.objective):
+            r = part.discount_rate()
+            if r is not None:
+                out.append(("objective.rate", r))
         return out
 
     def validation_seconds(self) -> float:

@@ -30,3 +30,52 @@ def make_plan(econ: gp.Economy, years: int) -> gp.Plan:
                    labour=gp.LabourSupply(start=supply, growth=0.01),
                    objective=gp.objectives.TerminalCapacity(
                        proportions={s: 1.0 for s in econ.names}))
+
+
+def rescale(plan: gp.Plan, sector: str, f: float) -> gp.Plan:
+    """The same plan with ``sector`` measured in a unit ``1/f`` as large.
+
+    Its quantities are multiplied by ``f`` and its base-year price divided by
+    ``f``: input, capital and labour coefficients, initial capacity, the
+    consumption basket, exogenous demand and targets on it change accordingly,
+    so the plan is the same plan in other units.
+    """
+    econ = plan.economy
+    j = econ.names.index(sector)
+    s = np.ones(econ.n)
+    s[j] = f
+    a = s[:, None] * np.asarray(econ.input_coefficients) / s[None, :]
+    b = s[:, None] * np.asarray(econ.capital_coefficients) / s[None, :]
+    lab = None if econ.labour_coefficients is None else \
+        np.asarray(econ.labour_coefficients) / s[None, :]
+    cap = {k: v.model_copy(update={"initial_capacity": v.initial_capacity * s[i]})
+           for i, (k, v) in enumerate(econ.capital.items())}
+    sectors = [gp.Sector(name=x.name, unit=f"{x.unit or econ.value_unit} / {f:g}"
+                         if i == j else x.unit, price=x.price / s[i])
+               for i, x in enumerate(econ.sectors)]
+    basket = None if econ.consumption_basket is None else \
+        np.asarray(econ.consumption_basket) * s
+    new_econ = gp.Economy(sectors=sectors, input_coefficients=a, capital_coefficients=b,
+                          labour_coefficients=lab, labour_kinds=econ.labour_kinds,
+                          labour_units=econ.labour_units, capital=cap,
+                          consumption_basket=basket, value_unit=econ.value_unit)
+    fields = {k: getattr(plan, k) for k in type(plan).model_fields}
+    fields["economy"] = new_econ
+    targets = []
+    for t in plan.targets:
+        if t.sector == sector and t.quantity != "consumption":
+            targets.append(t.model_copy(update={f"{t.quantity}_at_least": t.required * f}))
+        else:
+            targets.append(t)
+    fields["targets"] = targets
+    if isinstance(plan.final_demand, dict) and sector in plan.final_demand:
+        fd = dict(plan.final_demand)
+        v = fd[sector]
+        fd[sector] = v * f if isinstance(v, int | float) else [x * f for x in v]
+        fields["final_demand"] = fd
+    if plan.consumption is not None and plan.consumption.basket:
+        basket_d = dict(plan.consumption.basket)
+        if sector in basket_d:
+            basket_d[sector] *= f
+        fields["consumption"] = plan.consumption.model_copy(update={"basket": basket_d})
+    return gp.Plan(**fields)
