@@ -58,7 +58,10 @@ def _one_line(text: str) -> str:
 
 
 def _say(message: str) -> None:
+    from .progress import clear_bars
+
     with contextlib.suppress(OSError, ValueError):  # a closed stderr cannot take it either
+        clear_bars()  # a solve's bar may still be on the line (its thread winds down)
         click.echo(_one_line(message), err=True)
 
 

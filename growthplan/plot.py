@@ -80,7 +80,9 @@ def plot_paths(result: PlanResult, what: str = "output", *, sectors: list[str] |
     for i, col in enumerate(frame.columns):
         ax.plot(frame.index, frame[col], label=str(col), **_style(i))
     ax.set_xlabel("year")
-    ax.set_ylabel(f"{what} (first year = 1)" if index else what)
+    units = set((frame.attrs.get("units") or {}).get(c) for c in frame.columns) - {None}
+    unit = f" ({units.pop()})" if len(units) == 1 else " (each sector in its own unit)"
+    ax.set_ylabel(f"{what} (first year = 1)" if index else f"{what}{unit}")
     ax.set_title(f"{what.capitalize()} by sector")
     ax.legend(ncols=2, fontsize="small", frameon=False)
     ax.grid(alpha=0.3)
@@ -88,7 +90,11 @@ def plot_paths(result: PlanResult, what: str = "output", *, sectors: list[str] |
 
 
 def plot_starts(result: PlanResult, *, ax: Axes | None = None) -> Axes:
-    """Capacity starts by sector as stacked bars.
+    """Capacity starts by sector as stacked bars, valued at base-year prices.
+
+    Starts are capacity (output per year) in each sector's own unit; stacking
+    unlike units would mean nothing, so each bar is the value of the annual
+    output the capacity started can make, at base-year prices.
 
     Parameters
     ----------
@@ -101,7 +107,8 @@ def plot_starts(result: PlanResult, *, ax: Axes | None = None) -> Axes:
     -------
     matplotlib.axes.Axes
     """
-    frame = result.starts
+    assert result.data is not None
+    frame = result.starts * result.data.prices[None, :]
     ax = _axes(ax)
     bottom = np.zeros(len(frame))
     for i, col in enumerate(frame.columns):
@@ -110,8 +117,8 @@ def plot_starts(result: PlanResult, *, ax: Axes | None = None) -> Axes:
                edgecolor="white", linewidth=0.5)
         bottom += frame[col].to_numpy()
     ax.set_xlabel("year")
-    ax.set_ylabel("capacity started")
-    ax.set_title("Investment: capacity starts by sector")
+    ax.set_ylabel(f"capacity started ({result.data.value_unit} of annual output)")
+    ax.set_title("Investment: capacity starts by sector, at base-year prices")
     ax.legend(ncols=2, fontsize="small", frameon=False)
     return ax
 
@@ -140,7 +147,9 @@ def plot_labour(result: PlanResult, *, ax: Axes | None = None) -> Axes:
             ax.plot(frame.index, frame[(kind, "available")], label=f"{kind}: available",
                     color=st["color"], linestyle=":", linewidth=2)
     ax.set_xlabel("year")
-    ax.set_ylabel("person-years")
+    assert result.data is not None
+    units = set(result.data.labour_all_units) or {"person-years"}
+    ax.set_ylabel(units.pop() if len(units) == 1 else "each kind in its own unit")
     ax.set_title("Labour use and supply")
     ax.legend(fontsize="small", frameon=False)
     ax.grid(alpha=0.3)
@@ -181,7 +190,9 @@ def ray_distance(result: PlanResult) -> pd.Series:
     """Angle in degrees between each year's capacity vector and the balanced-growth ray.
 
     The ray is the dynamic balanced growth of the plan's economy (capital
-    replacement included).
+    replacement included). Both vectors are valued at base-year prices
+    before the angle is taken, so it does not change with the unit of a
+    sector.
 
     Parameters
     ----------
@@ -193,8 +204,9 @@ def ray_distance(result: PlanResult) -> pd.Series:
     pandas.Series
         Degrees by year (0 on the ray).
     """
-    ray = result.plan.economy.dynamic_balanced_growth().proportions.to_numpy()
-    cap = result.capacity.to_numpy()
+    prices = result.plan.economy.prices
+    ray = result.plan.economy.dynamic_balanced_growth().proportions.to_numpy() * prices
+    cap = result.capacity.to_numpy() * prices[None, :]
     cos = cap @ ray / (np.linalg.norm(cap, axis=1) * np.linalg.norm(ray))
     return pd.Series(np.degrees(np.arccos(np.clip(cos, -1, 1))), index=result.capacity.index,
                      name="degrees from the balanced ray")

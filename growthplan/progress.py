@@ -7,6 +7,15 @@ import time
 from collections.abc import Callable, Iterator
 from typing import Any
 
+_OPEN: set[Any] = set()  # solve bars on screen, cleared before a one-line message
+
+
+def clear_bars() -> None:
+    """Erase the solve bars on screen, so a message printed next starts on a clean line."""
+    for bar in list(_OPEN):
+        with contextlib.suppress(Exception):  # a bar of another thread may be closing
+            bar.clear()
+
 
 @contextlib.contextmanager
 def solve_progress(enabled: bool, label: str) -> Iterator[Callable[[str], None] | None]:
@@ -34,6 +43,7 @@ def solve_progress(enabled: bool, label: str) -> Iterator[Callable[[str], None] 
     from tqdm.auto import tqdm
 
     bar = tqdm(desc=f"solving {label}", unit=" log lines", leave=False)
+    _OPEN.add(bar)
     start = time.perf_counter()
 
     def callback(line: str) -> None:
@@ -46,6 +56,7 @@ def solve_progress(enabled: bool, label: str) -> Iterator[Callable[[str], None] 
     try:
         yield callback
     finally:
+        _OPEN.discard(bar)
         bar.close()
 
 

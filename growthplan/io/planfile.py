@@ -45,7 +45,7 @@ from yaml.events import AliasEvent
 from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 
 from .._validation import Model, Rule
-from ..economy import Economy
+from ..economy import Economy, Sector
 from ..errors import InvalidInput, invalid, show
 from ..plan import Plan
 from ._files import read_regular_file
@@ -94,6 +94,42 @@ class EconomyTables(Model):
     capital_coefficients: str | None = None
     consumption_basket: dict[str, float] | None = None
     wage_basket: dict[str, float] | None = None
+    value_unit: str | None = None
+    labour_units: list[str] | None = None
+    units: dict[str, str] | None = None
+    prices: dict[str, float] | None = None
+
+
+def with_units(econ: Economy, tables: EconomyTables) -> Economy:
+    """The economy with the plan file's units, base-year prices and value unit applied.
+
+    Parameters
+    ----------
+    econ : Economy
+        As read from the tables.
+    tables : EconomyTables
+        The plan file's ``economy`` section.
+
+    Returns
+    -------
+    Economy
+    """
+    if not (tables.value_unit or tables.labour_units or tables.units or tables.prices):
+        return econ
+    for field in ("units", "prices"):
+        unknown = [k for k in getattr(tables, field) or {} if k not in econ.names]
+        if unknown:
+            raise invalid(f"economy.{field}", "name sectors of the economy", unknown[:5])
+    units, prices = tables.units or {}, tables.prices or {}
+    sectors = [Sector(name=s.name, unit=units.get(s.name, s.unit),
+                      price=prices.get(s.name, s.price)) for s in econ.sectors]
+    fields = {k: getattr(econ, k) for k in type(econ).model_fields}
+    fields["sectors"] = sectors
+    if tables.value_unit:
+        fields["value_unit"] = tables.value_unit
+    if tables.labour_units:
+        fields["labour_units"] = tables.labour_units
+    return Economy(**fields)
 
 
 class SolveOptions(Model):
@@ -434,6 +470,7 @@ def load_plan_file(path: str | os.PathLike[str], *,
                 capital_coefficients=ref(tables.capital_coefficients, "capital_coefficients"),
                 labour_coefficients=ref(tables.labour_coefficients, "labour_coefficients"),
                 consumption_basket=tables.consumption_basket, wage_basket=tables.wage_basket)
+        econ = with_units(econ, tables)
     except InvalidInput as exc:
         if str(exc).startswith(str(path)):
             raise
@@ -527,6 +564,14 @@ def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool 
                                                  strict=True))
     if econ.wage_basket is not None:
         economy["wage_basket"] = dict(zip(econ.names, econ.wage_basket.tolist(), strict=True))
+    if econ.value_unit != type(econ).model_fields["value_unit"].default:
+        economy["value_unit"] = econ.value_unit
+    if econ.labour_units:
+        economy["labour_units"] = list(econ.labour_units)
+    if any(sec.unit for sec in econ.sectors):
+        economy["units"] = {sec.name: sec.unit for sec in econ.sectors if sec.unit}
+    if any(sec.price != 1.0 for sec in econ.sectors):
+        economy["prices"] = {sec.name: sec.price for sec in econ.sectors}
     fields = plan.model_dump(exclude={"economy"}, mode="python")
     fields = _plain({k: v for k, v in fields.items() if v not in (None, [], {})})
     doc = {"economy": economy, "plan": fields,

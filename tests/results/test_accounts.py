@@ -152,6 +152,24 @@ def test_units_reach_the_exports(tmp_path):
     r = assert_optimal(plan.solve())
     out = r.to_csv(tmp_path / "out")
     header = (out / "output.csv").read_text(encoding="utf-8").splitlines()[0]
-    assert "energy [money at base-year prices / 1000]" in header
+    assert "energy [million arvens at 2026 prices / 1000]" in header
     acc = (out / "accounts.csv").read_text(encoding="utf-8").splitlines()[0]
-    assert "gdp [money at base-year prices]" in acc
+    assert "gdp [million arvens at 2026 prices]" in acc
+
+
+@pytest.mark.parametrize("f", [1e3, 1e-6])
+def test_ray_distance_and_stacked_starts_are_unit_free(f):
+    """The turnpike angle and the stacked starts chart are computed in value terms."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from growthplan.plot import plot_starts, ray_distance
+
+    base = assert_optimal(gp.demo_plan().solve(method="simplex"))
+    other = assert_optimal(rescale(gp.demo_plan(), "energy", f).solve(method="simplex"))
+    np.testing.assert_allclose(ray_distance(other), ray_distance(base), rtol=1e-7, atol=1e-9)
+    tops = []
+    for r in (base, other):
+        ax = plot_starts(r)
+        tops.append(sorted(round(p.get_y() + p.get_height(), 6) for p in ax.patches))
+    np.testing.assert_allclose(tops[0], tops[1], rtol=1e-7)
