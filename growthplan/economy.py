@@ -1,6 +1,6 @@
 """The economy: sectors, coefficients and capital, validated once.
 
-Conventions (MODEL.md §1): ``a_ij`` is commodity ``i`` used up per unit of
+Conventions: ``a_ij`` is commodity ``i`` used up per unit of
 output of sector ``j``; ``b_ij`` is commodity ``i`` embodied in one unit of new
 annual capacity of sector ``j``; labour coefficients are person-years per unit
 of output, one row per labour kind.

@@ -1,6 +1,6 @@
 """The multi-year plan: what the analyst states.
 
-Timing conventions (MODEL.md §4, kept everywhere in the library):
+Timing conventions (kept everywhere in the library, and stated in the README):
 
 * plan year index ``t = 0..T−1`` is the first..last calendar year given in
   ``years``; a series given as a start value and a growth rate is

@@ -22,7 +22,7 @@ from growthplan.backends.base import Feature
 from growthplan.backends.pulp import cbc_solver
 
 YEARS = range(2030, 2040)
-G = 0.15  # one_sector(): (1 − a)/b − δ = 0.4/2 − 1/20 (Harrod–Domar, MODEL.md §4)
+G = 0.15  # one_sector(): (1 − a)/b − δ = 0.4/2 − 1/20 (the Harrod–Domar closed form, README Conventions)
 
 BACKENDS = {
     "highs-simplex": lambda: gp.HighsBackend("simplex"),
@@ -189,7 +189,7 @@ class TestDuals:
     def test_shadow_prices(self, backend):
         """Shadow prices are non-negative (a balance row of a maximisation can only gain
         from more supply: LP duality) and fall at the growth rate, p_t / p_{t+1} = 1.15
-        (Harrod–Domar prices, MODEL.md §4); equal across back ends."""
+        (Harrod–Domar prices: the README's Conventions); equal across back ends."""
         if Feature.DUALS not in backend.features:
             pytest.skip("back end gives no duals")
         plan = gp.Plan(economy=one_sector(), years=YEARS)
