@@ -22,7 +22,7 @@ from growthplan.backends.base import Feature
 from growthplan.backends.pulp import cbc_solver
 
 YEARS = range(2030, 2040)
-G = 0.15  # one_sector(): (1 − a)/b − δ = 0.4/2 − 1/20 (the Harrod–Domar closed form, README Conventions)
+G = 0.15  # one_sector(): (1 − a)/b − δ = 0.4/2 − 1/20 (Harrod–Domar, README)
 
 BACKENDS = {
     "highs-simplex": lambda: gp.HighsBackend("simplex"),

@@ -12,7 +12,7 @@ YEARS = range(2030, 2040)
 
 def test_single_impossible_target_reports_exact_shortfall():
     """One sector, geometric retirement: capacity can at most grow at the Harrod–Domar
-    rate (1 − a)/b − δ = 0.15, so capacity in 2035 is at most 100·1.15^5 (the Harrod–Domar closed form; README, Conventions)."""
+    rate (1 − a)/b − δ = 0.15, so capacity in 2035 is at most 100·1.15^5 (Harrod–Domar; README)."""
     plan = gp.Plan(economy=one_sector(), years=YEARS,
                    targets=[gp.Target("goods", year=2035, capacity_at_least=250.0)])
     r = plan.solve()
