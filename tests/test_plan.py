@@ -21,7 +21,7 @@ YEARS = range(2030, 2040)
 
 class TestClosedForms:
     def test_terminal_capacity_grows_at_harrod_domar_rate(self):
-        """One sector, geometric retirement: C_T = C_0 (1 + (1 − a)/b − δ)^T (Harrod–Domar; README)."""
+        """One sector, geometric retirement: C_T = C_0 (1 + (1 − a)/b − δ)^T (Harrod–Domar)."""
         plan = gp.Plan(economy=one_sector(), years=YEARS)
         r = assert_optimal(plan.solve())
         assert r.objective == pytest.approx(100 * 1.15 ** 10, rel=1e-9)
