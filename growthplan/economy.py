@@ -322,6 +322,10 @@ class Economy(Model):
         2025 prices"); also the unit of sectors given without one.
     labour_units : list of str, optional
         Unit of each labour kind (default "person-years").
+    base_output : array_like or Series, optional
+        Gross output of the base year (the transactions table's), by sector;
+        kept by :meth:`from_tables` so a plan's first year can be compared
+        with where the economy is (``PlanResult.calibration``).
 
     Notes
     -----
@@ -349,6 +353,7 @@ class Economy(Model):
     wage_basket: Vector | None = None
     value_unit: str = "money at base-year prices"
     labour_units: list[str] | None = None
+    base_output: Vector | None = None
 
     @model_validator(mode="before")
     @classmethod
@@ -393,7 +398,7 @@ class Economy(Model):
             if arr.ndim == 1:
                 lab = [list(arr)]
             data["labour_coefficients"] = lab
-        for key in ("consumption_basket", "wage_basket"):
+        for key in ("consumption_basket", "wage_basket", "base_output"):
             if key in data:
                 data[key] = align_vector(data[key], names, key)
         capital = data.get("capital")
@@ -452,7 +457,7 @@ class Economy(Model):
                            field="labour_units")
         if not self.value_unit.strip():
             raise Rule("be a non-empty unit", self.value_unit, field="value_unit")
-        for key in ("consumption_basket", "wage_basket"):
+        for key in ("consumption_basket", "wage_basket", "base_output"):
             v = getattr(self, key)
             if v is not None:
                 if v.shape != (n,):

@@ -286,6 +286,11 @@ class Plan(Model):
         effects.
     trade : Trade, optional
         Imports and exports; a closed economy when omitted.
+    first_year_within : float, optional
+        Hold the first plan year's output of every sector at least at
+        ``(1 − share)`` times its base-year output (the economy's
+        ``base_output``), for plans that must start from where the economy
+        is; a condition the diagnosis may relax.
     allow_high_rates : bool, default False
         Rates are fractions per year (0.015 for 1.5 %); a growth or discount
         rate above 1 (100 % a year) is refused as a likely percent unless this
@@ -309,6 +314,7 @@ class Plan(Model):
     terminal: TerminalGrowth | None = None
     trade: Trade | None = None
     allow_high_rates: bool = False
+    first_year_within: float | None = Field(default=None, gt=0, lt=1, allow_inf_nan=False)
     objective: (obj.TerminalCapacity | obj.DiscountedConsumption | obj.LeastLabour
                 | obj.LeastForeignExchange | obj.Weighted | obj.Lexicographic
                 | obj.Fastest) = Field(default_factory=obj.TerminalCapacity,
@@ -404,6 +410,9 @@ class Plan(Model):
                                f"time, {theta} years; older starts belong in "
                                "initial_capacity)", list(v), field=f"under_construction.{k}")
         self.objective.check(self)
+        if self.first_year_within is not None and econ.base_output is None:
+            raise Rule("come with the economy's base_output (Economy.from_tables keeps it)",
+                       self.first_year_within, field="first_year_within")
         if not self.allow_high_rates:
             for field, rate in self._rates():
                 if rate > 1:

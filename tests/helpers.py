@@ -58,7 +58,9 @@ def rescale(plan: gp.Plan, sector: str, f: float) -> gp.Plan:
     new_econ = gp.Economy(sectors=sectors, input_coefficients=a, capital_coefficients=b,
                           labour_coefficients=lab, labour_kinds=econ.labour_kinds,
                           labour_units=econ.labour_units, capital=cap,
-                          consumption_basket=basket, value_unit=econ.value_unit)
+                          consumption_basket=basket, value_unit=econ.value_unit,
+                          base_output=None if econ.base_output is None
+                          else np.asarray(econ.base_output) * s)
     fields = {k: getattr(plan, k) for k in type(plan).model_fields}
     fields["economy"] = new_econ
     targets = []

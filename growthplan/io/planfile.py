@@ -98,10 +98,11 @@ class EconomyTables(Model):
     labour_units: list[str] | None = None
     units: dict[str, str] | None = None
     prices: dict[str, float] | None = None
+    base_output: dict[str, float] | None = None
 
 
 def with_units(econ: Economy, tables: EconomyTables) -> Economy:
-    """The economy with the plan file's units, base-year prices and value unit applied.
+    """The economy with the plan file's units, base-year prices, value unit and base year.
 
     Parameters
     ----------
@@ -114,9 +115,10 @@ def with_units(econ: Economy, tables: EconomyTables) -> Economy:
     -------
     Economy
     """
-    if not (tables.value_unit or tables.labour_units or tables.units or tables.prices):
+    if not (tables.value_unit or tables.labour_units or tables.units or tables.prices
+            or tables.base_output):
         return econ
-    for field in ("units", "prices"):
+    for field in ("units", "prices", "base_output"):
         unknown = [k for k in getattr(tables, field) or {} if k not in econ.names]
         if unknown:
             raise invalid(f"economy.{field}", "name sectors of the economy", unknown[:5])
@@ -129,6 +131,12 @@ def with_units(econ: Economy, tables: EconomyTables) -> Economy:
         fields["value_unit"] = tables.value_unit
     if tables.labour_units:
         fields["labour_units"] = tables.labour_units
+    if tables.base_output:
+        missing = [k for k in econ.names if k not in tables.base_output]
+        if missing:
+            raise invalid("economy.base_output", "give every sector's base-year output",
+                          f"missing {missing[:5]}")
+        fields["base_output"] = [tables.base_output[k] for k in econ.names]
     return Economy(**fields)
 
 
@@ -572,6 +580,8 @@ def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool 
         economy["units"] = {sec.name: sec.unit for sec in econ.sectors if sec.unit}
     if any(sec.price != 1.0 for sec in econ.sectors):
         economy["prices"] = {sec.name: sec.price for sec in econ.sectors}
+    if econ.base_output is not None:
+        economy["base_output"] = dict(zip(econ.names, econ.base_output.tolist(), strict=True))
     fields = plan.model_dump(exclude={"economy"}, mode="python")
     fields = _plain({k: v for k, v in fields.items() if v not in (None, [], {})})
     doc = {"economy": economy, "plan": fields,

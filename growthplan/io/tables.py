@@ -510,6 +510,7 @@ class TransactionsTable:
                               None)
             capacity = pd.Series({k: s.initial_capacity for k, s in spec.items()})
             capital_coefficients = capital_coefficients_from_stocks(capital_stocks, capacity)
+        kwargs.setdefault("base_output", self.gross_output.to_numpy())
         return Economy(sectors=[Sector(name=n) for n in self.names],
                        input_coefficients=self.input_coefficients(),
                        capital_coefficients=capital_coefficients,

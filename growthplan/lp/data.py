@@ -92,6 +92,8 @@ class PlanData:
     labour_units: list[str] = field(default_factory=list)  # of the kinds with a supply
     labour_all_units: list[str] = field(default_factory=list)
     value_unit: str = ""
+    base_output: np.ndarray | None = None     # base-year gross output, by sector
+    first_year_within: float | None = None
     extra: dict[str, Any] = field(default_factory=dict)
 
     @property
@@ -313,7 +315,9 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
         psi=psi, imports=imports, exports=exports, inflow=inflow, objective=plan.objective,
         prices=econ.prices, units=econ.units,
         labour_units=[econ.labour_unit_names[kinds.index(k)] for k in sup_kinds],
-        labour_all_units=econ.labour_unit_names, value_unit=econ.value_unit)
+        labour_all_units=econ.labour_unit_names, value_unit=econ.value_unit,
+        base_output=None if econ.base_output is None else np.asarray(econ.base_output),
+        first_year_within=plan.first_year_within)
     for arr_name in ("initial", "base", "surv", "pipe_deliveries", "demand", "supply"):
         arr = getattr(data, arr_name)
         if not np.all(np.isfinite(arr)):

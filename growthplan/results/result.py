@@ -232,6 +232,10 @@ class PlanResult:
                                  doc="Quasi-rents in base-year money (same numeraire).")
     labour_values_money = property(lambda self: self._get("labour_values_money"),
                                    doc="Labour values in base-year money (same numeraire).")
+    calibration = property(
+        lambda self: self._get("calibration"),
+        doc="The first plan year against the base year by sector: output, its change, "
+            "employment (empty when the economy has no base-year output).")
     floor_values = property(lambda self: self._get("floor_values"),
                             doc="Value of relaxing the consumption floor by one unit, per year.")
 

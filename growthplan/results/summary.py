@@ -10,7 +10,9 @@ import numpy as np
 if TYPE_CHECKING:
     from .result import PlanResult
 
-__all__ = ["CAUTION", "Summary", "key_figures"]
+__all__ = ["CAUTION", "CALIBRATION_WARNING", "Summary", "key_figures"]
+
+CALIBRATION_WARNING = 0.25  # a first year this far from the base year is remarked on
 
 CAUTION = ("Planning estimates: results rest on the coefficients and assumptions supplied "
            "and do not replace professional judgement or the decisions of the responsible "
@@ -104,10 +106,26 @@ class Summary:
                     if (kind, "available") not in r.labour:
                         continue  # labour is counted but not limited
                     ratio = r.labour[(kind, "used")] / r.labour[(kind, "available")]
+                    full = ratio[ratio >= 1 - 1e-6]
+                    if len(full):
+                        use = (f"fully used in {len(full)} of {len(ratio)} years (from "
+                               f"{full.index[0]})")
+                    else:
+                        use = f"up to {100 * ratio.max():.1f} % used ({ratio.idxmax()})"
                     rows.append((labour_label(str(kind), units.get(kind, "person-years")),
-                                 f"up to {100 * ratio.max():.1f} % of supply used "
-                                 f"({ratio.idxmax()}), at least {100 * ratio.min():.1f} % "
+                                 f"{use}; at least {100 * ratio.min():.1f} % "
                                  f"({ratio.idxmin()})"))
+            cal = r.calibration
+            if not cal.empty:
+                far = cal[cal["change"].abs() > CALIBRATION_WARNING].sort_values(
+                    "change", key=abs, ascending=False)
+                if not far.empty:
+                    rows.append(("first year", "departs from the base year by more than "
+                                 f"{100 * CALIBRATION_WARNING:.0f} %: " + ", ".join(
+                                     f"{k} {100 * v:+.0f} %" for k, v in
+                                     far["change"].head(4).items())
+                                 + (" (Plan(first_year_within=...) holds it nearer)"
+                                    if p.first_year_within is None else "")))
             b = r.bottlenecks(top=3)
             if not b.empty:
                 first_year = b[b.year == b.year.min()]

@@ -150,6 +150,7 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     else:
         out["floor_values"] = pd.Series(np.full(T, np.nan), index=idx,
                                         name="consumption_floor_value")
+    out["calibration"] = calibration(d, output)
     units = dict(zip(names, d.units, strict=True))
     for key in PER_SECTOR:
         out[key].attrs["units"] = units
@@ -159,6 +160,27 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     else:
         out["shadow_exchange_rate"] = pd.Series(np.full(T, np.nan), index=idx,
                                                 name="shadow_exchange_rate")
+    return out
+
+
+def calibration(d: PlanData, output: np.ndarray) -> pd.DataFrame:
+    """The first plan year against the base year, by sector (empty without a base year).
+
+    Columns: base-year output, first-year output, their relative change, and
+    for each labour kind the employment of both years.
+    """
+    if d.base_output is None:
+        return pd.DataFrame(index=pd.Index([], name="sector"))
+    base = d.base_output
+    first = output[0]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        change = np.where(base > 0, first / base - 1.0, np.nan)
+    out = pd.DataFrame({"base_output": base, "first_year_output": first, "change": change},
+                       index=pd.Index(d.names, name="sector"))
+    for k, kind in enumerate(d.labour_all_kinds):
+        out[f"base employment {kind}"] = base * d.labour_all[k]
+        out[f"first-year employment {kind}"] = first * d.labour_all[k]
+    out.attrs["units"] = dict(zip(d.names, d.units, strict=True))
     return out
 
 

@@ -173,3 +173,38 @@ def test_ray_distance_and_stacked_starts_are_unit_free(f):
         ax = plot_starts(r)
         tops.append(sorted(round(p.get_y() + p.get_height(), 6) for p in ax.patches))
     np.testing.assert_allclose(tops[0], tops[1], rtol=1e-7)
+
+
+def test_first_year_is_held_near_the_base_year():
+    """Plan(first_year_within=s): every sector's first-year output ≥ (1 − s) × base year."""
+    plan = gp.demo_plan()
+    assert plan.first_year_within == 0.1
+    r = assert_optimal(plan.solve())
+    assert (r.calibration["change"] >= -0.1 - 1e-9).all()
+    loose = assert_optimal(plan.model_copy(update={"first_year_within": None}).solve())
+    assert (loose.calibration["change"] < -0.4).any()  # the plan would start far below
+    assert "first year" in str(loose.summary())
+    assert loose.objective >= r.objective  # a condition less can only help
+
+
+def test_an_unreachable_first_year_is_diagnosed():
+    """One sector with capacity 100 but a base year of 200: at least 180 in the first year
+    cannot be produced; the shortfall is exactly 80 (capacity binds)."""
+    from conftest import one_sector
+
+    econ = one_sector()
+    econ = gp.Economy(**{**{k: getattr(econ, k) for k in type(econ).model_fields},
+                         "base_output": [200.0]})
+    plan = gp.Plan(economy=econ, years=range(2030, 2035), first_year_within=0.1)
+    r = plan.solve()
+    assert r.status is gp.Status.INFEASIBLE
+    row = r.diagnosis.shortfalls.iloc[0]
+    assert (row.condition, row.sector, row.year) == ("first-year output", "goods", 2030)
+    assert row.shortfall == pytest.approx(80.0, rel=1e-9)
+
+
+def test_first_year_without_a_base_year_is_refused():
+    from conftest import one_sector
+
+    with pytest.raises(gp.InvalidInput, match="first_year_within"):
+        gp.Plan(economy=one_sector(), years=range(2030, 2035), first_year_within=0.1)

@@ -146,6 +146,7 @@ def capacity_nnz_by_row(d: PlanData) -> np.ndarray:
 
 def _registry() -> list[Condition]:
     from .balance import Balance
+    from .calibration import FirstYear
     from .capacity import Capacity
     from .consumption import ConsumptionFall, ConsumptionFloor
     from .labour import Labour
@@ -155,7 +156,8 @@ def _registry() -> list[Condition]:
     from .trade import ForeignExchange, TradeBounds
 
     return [Balance(), Capacity(), Labour(), ForeignExchange(), ConsumptionFloor(),
-            ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds()]
+            ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds(),
+            FirstYear()]
 
 
 CONDITIONS: list[Condition] = _registry()
