@@ -66,7 +66,7 @@ METHODS: dict[str, dict[str, object]] = {
     "pdlp": {"solver": "pdlp"},
     "highs-default": {"solver": "choose"},
 }
-AUTO_IPM_NONZEROS = 40_000
+AUTO_IPM_NONZEROS = 2_000
 
 
 def choose_method(nonzeros: int) -> str:
@@ -74,8 +74,10 @@ def choose_method(nonzeros: int) -> str:
 
     Multi-year plans have dense input and capital blocks repeated over years;
     on them the interior point method without crossover was many times faster
-    than simplex above about 40,000 nonzeros (``tests/benchmarks/bench_plan.py``),
-    while small plans solve fastest by simplex, which also returns a vertex.
+    than simplex above about 2,000 nonzeros (measured with the dense random
+    plans of ``tests/benchmarks/bench_plan.py``: 2.5 times faster at 15 × 15,
+    16 times at 25 × 20, about equal at 8 × 10), while the smallest plans solve
+    fastest by simplex, which also returns a vertex.
     """
     return "ipm" if nonzeros > AUTO_IPM_NONZEROS else "simplex"
 
