@@ -33,6 +33,7 @@ from .plan import (
     Plan,
     StartsCeiling,
     Target,
+    TechnicalChange,
     TerminalGrowth,
     Trade,
 )
@@ -81,6 +82,7 @@ __all__ = [
     "StartsCeiling",
     "Status",
     "Target",
+    "TechnicalChange",
     "TerminalGrowth",
     "Trade",
     "objectives",

@@ -150,7 +150,8 @@ class LeastLabour(Objective):
     def cost(self, d: PlanData, cols: dict[str, Block], ncol: int) -> np.ndarray:
         c = _zeros(ncol)
         x = cols["output"]
-        c[x.start:x.stop] = np.tile(d.labour_all.sum(axis=0), d.T)
+        per_year = [d.labour_at(t, every_kind=True).sum(axis=0) for t in range(d.T)]
+        c[x.start:x.stop] = np.concatenate(per_year)
         return c
 
 

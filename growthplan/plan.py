@@ -37,8 +37,8 @@ if TYPE_CHECKING:
 
 MAX_YEARS = 1000  # longer plans are refused before anything is allocated
 
-__all__ = ["LabourSupply", "Consumption", "Target", "StartsCeiling", "TerminalGrowth", "Trade",
-           "Plan"]
+__all__ = ["TechnicalChange", "LabourSupply", "Consumption", "Target", "StartsCeiling",
+           "TerminalGrowth", "Trade", "Plan"]
 
 
 class LabourSupply(Model):
@@ -254,6 +254,59 @@ class Trade(Model):
         return v
 
 
+class TechnicalChange(Model):
+    """Coefficients that change year by year over the plan (disembodied change).
+
+    A rate ``r`` for a sector makes that sector's column of coefficients
+    ``c_t = c_0 (1 + r)^t`` in plan year ``t`` (``r = -0.03``: 3 % less each
+    year). The change is disembodied: in year ``t`` all of a sector's
+    capacity, old and new, uses that year's input and labour coefficients,
+    and capacity started in year ``t`` embodies that year's capital
+    coefficients. Sectors not named keep their coefficients.
+
+    Parameters
+    ----------
+    input_rate : dict of str to float
+        Yearly rate of change of each named sector's input coefficients.
+    capital_rate : dict of str to float
+        The same for capital coefficients (capital goods per unit of new capacity).
+    labour_rate : dict of str to float
+        The same for labour coefficients (every labour kind).
+    """
+
+    input_rate: dict[str, float] = Field(default_factory=dict)
+    capital_rate: dict[str, float] = Field(default_factory=dict)
+    labour_rate: dict[str, float] = Field(default_factory=dict)
+
+    @field_validator("input_rate", "capital_rate", "labour_rate")
+    @classmethod
+    def _rates(cls, v: dict[str, float]) -> dict[str, float]:
+        bad = {k: r for k, r in v.items() if not (np.isfinite(r) and -1 < r <= 1)}
+        if bad:
+            raise Rule("hold yearly rates in (-1, 1] (fractions: -0.03 for 3 % less a year)",
+                       bad)
+        return v
+
+    def factors(self, names: list[str], years: int, block: str) -> np.ndarray:
+        """Multipliers of each sector's coefficients, years × sectors, for one block.
+
+        Parameters
+        ----------
+        names : list of str
+            The economy's sectors.
+        years : int
+            Number of plan years.
+        block : {"input", "capital", "labour"}
+
+        Returns
+        -------
+        numpy.ndarray
+        """
+        rates = getattr(self, f"{block}_rate")
+        r = np.array([rates.get(k, 0.0) for k in names])
+        return (1.0 + r[None, :]) ** np.arange(years, dtype=float)[:, None]
+
+
 class Plan(Model):
     """A multi-year growth plan of an economy.
 
@@ -286,6 +339,8 @@ class Plan(Model):
         effects.
     trade : Trade, optional
         Imports and exports; a closed economy when omitted.
+    technical_change : TechnicalChange, optional
+        Input, capital and labour coefficients that change year by year.
     first_year_within : float, optional
         Hold the first plan year's output of every sector at least at
         ``(1 − share)`` times its base-year output (the economy's
@@ -313,6 +368,7 @@ class Plan(Model):
     under_construction: dict[str, list[float]] | None = None
     terminal: TerminalGrowth | None = None
     trade: Trade | None = None
+    technical_change: TechnicalChange | None = None
     allow_high_rates: bool = False
     first_year_within: float | None = Field(default=None, gt=0, lt=1, allow_inf_nan=False)
     objective: (obj.TerminalCapacity | obj.DiscountedConsumption | obj.LeastLabour
@@ -410,6 +466,24 @@ class Plan(Model):
                                f"time, {theta} years; older starts belong in "
                                "initial_capacity)", list(v), field=f"under_construction.{k}")
         self.objective.check(self)
+        if self.technical_change is not None:
+            tc = self.technical_change
+            for field in ("input_rate", "capital_rate", "labour_rate"):
+                unknown = [k for k in getattr(tc, field) if k not in names]
+                if unknown:
+                    raise Rule("name sectors of the economy", unknown[:5],
+                               field=f"technical_change.{field}")
+            if tc.input_rate:
+                from .steady import spectral_radius
+
+                f = tc.factors(names, len(self.years), "input")
+                for yi, year in enumerate(self.years):
+                    rho = spectral_radius(np.asarray(econ.input_coefficients) * f[yi][None, :])
+                    if rho >= 1:
+                        raise Rule("keep the input coefficients productive in every plan "
+                                   f"year (spectral radius < 1; {rho:.4g} in "
+                                   f"{year})", tc.input_rate,
+                                   field="technical_change.input_rate")
         if self.first_year_within is not None and econ.base_output is None:
             raise Rule("come with the economy's base_output (Economy.from_tables keeps it)",
                        self.first_year_within, field="first_year_within")

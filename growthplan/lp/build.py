@@ -56,11 +56,19 @@ def deliveries_operator(d: PlanData) -> sparse.csr_array:
     T, n = d.T, d.n
     out = sparse.csr_array((T * n, T * n))
     for s in range(min(d.spending.shape[1], T)):  # deliveries after the plan are not rows
-        share = d.b * d.spending[:, s][None, :]
-        if not np.any(share):
+        w = d.spending[:, s][None, :]
+        if not np.any(w):
+            continue
+        if d.changing:  # starts of year τ embody year τ's capital coefficients
+            diag = sparse.block_diag([sparse.csr_array(d.b_at(tau) * w) for tau in range(T - s)],
+                                     format="csr")
+            if s:  # deliveries of year τ + s: rows shifted down s years
+                diag = sparse.vstack([sparse.csr_array((s * n, (T - s) * n)), diag])
+                diag = sparse.hstack([diag, sparse.csr_array((T * n, s * n))])
+            out = out + sparse.csr_array(diag)
             continue
         shift = sparse.eye_array(T, T, k=-s, format="csr")
-        out = out + sparse.kron(shift, sparse.csr_array(share), format="csr")
+        out = out + sparse.kron(shift, sparse.csr_array(d.b * w), format="csr")
     return sparse.csr_array(out)
 
 

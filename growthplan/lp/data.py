@@ -92,6 +92,10 @@ class PlanData:
     labour_units: list[str] = field(default_factory=list)  # of the kinds with a supply
     labour_all_units: list[str] = field(default_factory=list)
     value_unit: str = ""
+    a_year: np.ndarray | None = None          # years × n × n (technical change)
+    b_year: np.ndarray | None = None          # years × n × n, for starts made in each year
+    labour_year: np.ndarray | None = None     # years × kinds with a supply × n
+    labour_all_year: np.ndarray | None = None  # years × every kind × n
     base_output: np.ndarray | None = None     # base-year gross output, by sector
     first_year_within: float | None = None
     extra: dict[str, Any] = field(default_factory=dict)
@@ -105,6 +109,38 @@ class PlanData:
     def n(self) -> int:
         """Number of sectors."""
         return len(self.names)
+
+    @property
+    def changing(self) -> bool:
+        """Whether coefficients change over the plan (technical change)."""
+        return self.a_year is not None
+
+    def a_at(self, t: int) -> np.ndarray:
+        """Input coefficients of plan year ``t``."""
+        return self.a if self.a_year is None else self.a_year[t]
+
+    def b_at(self, t: int) -> np.ndarray:
+        """Capital coefficients of capacity started in plan year ``t``."""
+        return self.b if self.b_year is None else self.b_year[t]
+
+    def labour_at(self, t: int, *, every_kind: bool = False) -> np.ndarray:
+        """Labour coefficients of plan year ``t`` (kinds with a supply, or every kind)."""
+        if every_kind:
+            return self.labour_all if self.labour_all_year is None else self.labour_all_year[t]
+        return self.labour if self.labour_year is None else self.labour_year[t]
+
+    def intermediate(self, x: np.ndarray) -> np.ndarray:
+        """Intermediate use ``A_t x_t`` of each year, years × commodities."""
+        if self.a_year is None:
+            return x @ self.a.T
+        return np.einsum("tij,tj->ti", self.a_year, x)
+
+    def labour_used(self, x: np.ndarray, *, every_kind: bool = False) -> np.ndarray:
+        """Labour used ``l_t x_t`` of each year, years × kinds."""
+        lab = self.labour_all_year if every_kind else self.labour_year
+        if lab is None:
+            return x @ (self.labour_all if every_kind else self.labour).T
+        return np.einsum("tkj,tj->tk", lab, x)
 
     @property
     def trades(self) -> bool:
@@ -318,6 +354,15 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
         labour_all_units=econ.labour_unit_names, value_unit=econ.value_unit,
         base_output=None if econ.base_output is None else np.asarray(econ.base_output),
         first_year_within=plan.first_year_within)
+    tc = plan.technical_change
+    if tc is not None and (tc.input_rate or tc.capital_rate or tc.labour_rate):
+        fa = tc.factors(data.names, T, "input")
+        fb = tc.factors(data.names, T, "capital")
+        fl = tc.factors(data.names, T, "labour")
+        data.a_year = data.a[None, :, :] * fa[:, None, :]
+        data.b_year = data.b[None, :, :] * fb[:, None, :]
+        data.labour_year = data.labour[None, :, :] * fl[:, None, :]
+        data.labour_all_year = data.labour_all[None, :, :] * fl[:, None, :]
     for arr_name in ("initial", "base", "surv", "pipe_deliveries", "demand", "supply"):
         arr = getattr(data, arr_name)
         if not np.all(np.isfinite(arr)):

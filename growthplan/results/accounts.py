@@ -63,7 +63,7 @@ def national_accounts(d: PlanData, s: Schedules, retirements: np.ndarray) -> pd.
     x = s.output
     kappa = np.zeros(d.T) if s.consumption is None else s.consumption
     gross = x @ p
-    inter = (x @ d.a.T) @ p
+    inter = d.intermediate(x) @ p
     gdp = gross - inter
     invest = s.deliveries @ p
     cons = kappa * float(d.basket @ p)
@@ -81,8 +81,9 @@ def national_accounts(d: PlanData, s: Schedules, retirements: np.ndarray) -> pd.
                         "consumption": cons, "exogenous_demand": demand, "exports": exp,
                         "imports": imp, "disposal": disposal, "retirements": retired},
                        index=pd.Index(d.years, name="year"))
+    used = d.labour_used(x, every_kind=True)
     for k, kind in enumerate(d.labour_all_kinds):
-        out[f"employment {kind}"] = x @ d.labour_all[k]
+        out[f"employment {kind}"] = used[:, k]
     for col in ("gross_output", "gdp", "investment", "consumption"):
         prev = out[col].shift(1)
         with np.errstate(divide="ignore", invalid="ignore"):
@@ -107,7 +108,9 @@ def employment(d: PlanData, s: Schedules) -> pd.DataFrame:
     cols = {}
     for k, kind in enumerate(d.labour_all_kinds):
         for j, name in enumerate(d.names):
-            cols[(kind, name)] = s.output[:, j] * d.labour_all[k, j]
+            coef = d.labour_all[k, j] if d.labour_all_year is None \
+                else d.labour_all_year[:, k, j]
+            cols[(kind, name)] = s.output[:, j] * coef
     out = pd.DataFrame(cols, index=pd.Index(d.years, name="year"))
     if cols:
         out.columns = pd.MultiIndex.from_tuples(list(cols), names=["kind", "sector"])

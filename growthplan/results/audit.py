@@ -83,9 +83,12 @@ def recompute_deliveries(d: PlanData, starts: np.ndarray) -> np.ndarray:
         vintages = [(-(k + 1), v) for k, v in enumerate(d.pipeline[j][::-1])]
         vintages += [(tau, starts[tau, j]) for tau in range(T)]
         for tau, amount in vintages:
+            # a start embodies the capital coefficients of its own year (the base year's
+            # for starts made before the plan)
+            b = d.b if tau < 0 else d.b_at(tau)
             for s, share in enumerate(d.spending[j]):
                 if share and 0 <= tau + s < T:
-                    out[tau + s] += d.b[:, j] * share * amount
+                    out[tau + s] += b[:, j] * share * amount
     return out
 
 
@@ -121,16 +124,17 @@ def _accounts_checks(d: PlanData, s: Schedules) -> list[Check]:
         if flows is not None and side is not None:
             for i, j in enumerate(side.index):
                 supply[:, j] += sign * flows[:, i]
-    use = x @ d.a.T + s.deliveries_check + kappa[:, None] * d.basket[None, :] + d.demand
+    inter = d.intermediate(x)
+    use = inter + s.deliveries_check + kappa[:, None] * d.basket[None, :] + d.demand
     disposal = (supply - use) @ p
-    production = (x - x @ d.a.T) @ p
+    production = (x - inter) @ p
     exports = np.zeros(d.T) if s.exports is None or d.exports is None else \
         s.exports @ p[d.exports.index]
     imports = np.zeros(d.T) if s.imports is None or d.imports is None else \
         s.imports @ p[d.imports.index]
     expenditure = (s.deliveries_check @ p + kappa * float(d.basket @ p) + d.demand @ p
                    + exports - imports)
-    scale = np.abs(x) @ p + np.abs(x @ d.a.T) @ p + np.abs(use) @ p
+    scale = np.abs(x) @ p + np.abs(inter) @ p + np.abs(use) @ p
     labels = [("national accounts", y) for y in d.years]
     zeros = np.zeros(d.T, int)
     return [Check("GDP identity", np.abs(production - expenditure - disposal), scale, labels,

@@ -74,14 +74,14 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     out["capital_deliveries"] = frame(s.deliveries, columns=goods)
     out["retirements"] = frame(np.maximum(retire, 0.0) * (np.abs(retire) > 1e-12))
     if d.labour.shape[0]:
-        used = output @ d.labour.T
+        used = d.labour_used(output)
         lab = {}
         for k, kind in enumerate(d.labour_kinds):
             lab[(kind, "used")] = used[:, k]
             lab[(kind, "available")] = d.supply[k]
         out["labour"] = pd.DataFrame(lab, index=idx)
     elif d.labour_all.shape[0]:
-        used = output @ d.labour_all.T
+        used = d.labour_used(output, every_kind=True)
         out["labour"] = pd.DataFrame({(kind, "used"): used[:, k]
                                       for k, kind in enumerate(d.labour_all_kinds)}, index=idx)
     else:
@@ -92,7 +92,7 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
         out["consumption"] = cons
     else:
         out["consumption"] = pd.DataFrame(index=idx)
-    use = output @ d.a.T + s.deliveries + d.demand
+    use = d.intermediate(output) + s.deliveries + d.demand
     if kappa is not None:
         use = use + kappa[:, None] * d.basket
     supply = output.copy()

@@ -24,9 +24,15 @@ class Balance(Condition):
 
     def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         T, n = d.T, d.n
-        nnz = T * int(np.count_nonzero(np.eye(n) - d.a))
+        eye = np.eye(n)
+        nnz = sum(int(np.count_nonzero(eye - d.a_at(t))) for t in range(T)) if d.changing \
+            else T * int(np.count_nonzero(eye - d.a))
         for s in range(min(d.spending.shape[1], T)):
-            nnz += (T - s) * int(np.count_nonzero(d.b * d.spending[:, s][None, :]))
+            if d.changing:
+                nnz += sum(int(np.count_nonzero(d.b_at(tau) * d.spending[:, s][None, :]))
+                           for tau in range(T - s))
+            else:
+                nnz += (T - s) * int(np.count_nonzero(d.b * d.spending[:, s][None, :]))
         if "consumption" in cols:
             nnz += T * int(np.count_nonzero(d.basket))
         nnz += cols.get("imports", 0) + cols.get("exports", 0)
@@ -36,9 +42,12 @@ class Balance(Condition):
         d = ctx.data
         T, n = d.T, d.n
         eye_t = sparse.eye_array(T, format="csr")
-        coeffs: dict[str, sparse.sparray] = {
-            "output": sparse.kron(eye_t, sparse.csr_array(np.eye(n) - d.a), format="csr"),
-            "starts": -ctx.deliveries}
+        if d.changing:  # each year's own input coefficients
+            years = [sparse.csr_array(np.eye(n) - d.a_at(t)) for t in range(T)]
+            out = sparse.csr_array(sparse.block_diag(years, format="csr"))
+        else:
+            out = sparse.kron(eye_t, sparse.csr_array(np.eye(n) - d.a), format="csr")
+        coeffs: dict[str, sparse.sparray] = {"output": out, "starts": -ctx.deliveries}
         if "consumption" in ctx.cols:
             coeffs["consumption"] = sparse.kron(eye_t, sparse.csr_array(-d.basket[:, None]),
                                                 format="csr")
@@ -54,7 +63,7 @@ class Balance(Condition):
         kappa = np.zeros(d.T) if s.consumption is None else s.consumption
         deliv = s.deliveries_check
         assert deliv is not None
-        intermediate = s.output @ d.a.T
+        intermediate = d.intermediate(s.output)
         cons = kappa[:, None] * d.basket[None, :]
         use = intermediate + deliv + cons + d.demand
         supply = s.output.copy()

@@ -21,21 +21,30 @@ class Labour(Condition):
         return d.labour.shape[0] > 0
 
     def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
+        if d.changing:
+            return d.T * d.labour.shape[0], sum(int(np.count_nonzero(d.labour_at(t)))
+                                                for t in range(d.T))
         return d.T * d.labour.shape[0], d.T * int(np.count_nonzero(d.labour))
 
     def build(self, ctx: Context) -> RowBlock:
         d = ctx.data
-        rows = sparse.kron(sparse.eye_array(d.T, format="csr"), sparse.csr_array(d.labour),
-                           format="csr")
+        if d.changing:
+            years = [sparse.csr_array(d.labour_at(t)) for t in range(d.T)]
+            rows = sparse.csr_array(sparse.block_diag(years, format="csr"))
+        else:
+            rows = sparse.kron(sparse.eye_array(d.T, format="csr"),
+                               sparse.csr_array(d.labour), format="csr")
         return RowBlock("labour", (d.T, len(d.labour_kinds)),
                         (tuple(d.years), tuple(d.labour_kinds)), {"output": rows}, -np.inf,
                         d.supply.T)
 
     def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         out = []
+        used_all = d.labour_used(s.output)
+        scale_all = d.labour_used(np.abs(s.output))
         for k, kind in enumerate(d.labour_kinds):
-            used = s.output @ d.labour[k]
-            scale = np.abs(s.output) @ d.labour[k] + d.supply[k]
+            used = used_all[:, k]
+            scale = scale_all[:, k] + d.supply[k]
             out.append(Check("labour", used - d.supply[k], scale,
                              [("labour", y, kind) for y in d.years], np.full(d.T, k)))
         return out
