@@ -60,7 +60,7 @@ class Balanced:
 
 def ras(matrix: Any, row_totals: Any, column_totals: Any, *, fixed: Any = None,
         tolerance: float = 1e-12, max_iterations: int = 10_000,
-        consistency: float = 1e-9) -> Balanced:
+        consistency: float = 1e-9, strict: bool = True) -> Balanced:
     """Scale a non-negative matrix to the given row and column totals (RAS).
 
     Parameters
@@ -79,6 +79,9 @@ def ras(matrix: Any, row_totals: Any, column_totals: Any, *, fixed: Any = None,
     consistency : float, default 1e-9
         Largest difference allowed between the sum of the row totals and the
         sum of the column totals, relative to the larger.
+    strict : bool, default True
+        Raise when the iteration does not converge; with False the last
+        iterate is returned with ``converged=False``.
 
     Returns
     -------
@@ -89,7 +92,7 @@ def ras(matrix: Any, row_totals: Any, column_totals: Any, *, fixed: Any = None,
     InvalidInput
         A negative entry or total; totals that do not add up to the same sum;
         a positive total on a row or column with no free positive entry; no
-        convergence (the zero pattern cannot carry the totals).
+        convergence (the zero pattern cannot carry the totals) when ``strict``.
     """
     a, u, v, labels = _inputs(matrix, row_totals, column_totals)
     neg = np.argwhere(a < 0)
@@ -102,12 +105,12 @@ def ras(matrix: Any, row_totals: Any, column_totals: Any, *, fixed: Any = None,
         if np.any(t < 0):
             k = int(np.argmax(t < 0))
             raise invalid(f"{what}[{_name(labels, axis, k)}]", "be >= 0 for RAS", float(t[k]))
-    return _balance(a, u, v, labels, fixed, tolerance, max_iterations, consistency)
+    return _balance(a, u, v, labels, fixed, tolerance, max_iterations, consistency, strict)
 
 
 def gras(matrix: Any, row_totals: Any, column_totals: Any, *, fixed: Any = None,
          tolerance: float = 1e-12, max_iterations: int = 10_000,
-         consistency: float = 1e-9) -> Balanced:
+         consistency: float = 1e-9, strict: bool = True) -> Balanced:
     """Scale a matrix with entries of either sign to the given totals (GRAS).
 
     Every entry keeps its sign; zeros stay zero. Parameters, result and
@@ -118,7 +121,7 @@ def gras(matrix: Any, row_totals: Any, column_totals: Any, *, fixed: Any = None,
     Balanced
     """
     a, u, v, labels = _inputs(matrix, row_totals, column_totals)
-    return _balance(a, u, v, labels, fixed, tolerance, max_iterations, consistency)
+    return _balance(a, u, v, labels, fixed, tolerance, max_iterations, consistency, strict)
 
 
 # -- internals -----------------------------------------------------------------
@@ -215,7 +218,8 @@ def _entries(p: np.ndarray, n: np.ndarray, r: np.ndarray, s: np.ndarray) -> np.n
 
 
 def _balance(a: np.ndarray, u: np.ndarray, v: np.ndarray, labels: Any, fixed: Any,
-             tolerance: float, max_iterations: int, consistency: float) -> Balanced:
+             tolerance: float, max_iterations: int, consistency: float,
+             strict: bool) -> Balanced:
     mask = _fixed_mask(fixed, a.shape, labels)
     free = np.where(mask, 0.0, a)
     fixed_part = np.where(mask, a, 0.0)
@@ -254,11 +258,11 @@ def _balance(a: np.ndarray, u: np.ndarray, v: np.ndarray, labels: Any, fixed: An
                 break
     x = x + fixed_part
     converged = gap <= gap_tol
-    if not converged:
+    if strict and not converged:
         raise invalid("matrix", f"reach the totals within {max_iterations} iterations (its "
                       "zero pattern may not carry them; consider fixing fewer cells or "
                       "allowing entries where the totals need them)",
                       f"largest gap {gap:.3g}")
     out: Any = x if labels is None else pd.DataFrame(x, index=labels[0], columns=labels[1])
     return Balanced(matrix=out, row_multipliers=r, column_multipliers=s, iterations=done,
-                    converged=True, max_gap=gap)
+                    converged=converged, max_gap=gap)

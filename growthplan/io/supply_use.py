@@ -87,9 +87,13 @@ def _frame(value: Any, what: str, rows: list[str] | None, cols: list[str] | None
         arr = np.asarray(value, dtype=object)
         if arr.ndim != 2:
             raise invalid(what, "be a two-dimensional table", f"shape {arr.shape}")
-        if rows is None or cols is None or arr.shape != (len(rows), len(cols)):
+        if rows is None or cols is None:
+            raise invalid(what, f"be a labelled DataFrame ({row_axis} × {col_axis})",
+                          type(value).__name__)
+        if arr.shape != (len(rows), len(cols)):
             raise invalid(what, f"be a labelled DataFrame or have shape "
-                          f"({len(rows or [])}, {len(cols or [])})", f"shape {arr.shape}")
+                          f"({len(rows)}, {len(cols)}) ({row_axis} × {col_axis})",
+                          f"shape {arr.shape}")
         value = pd.DataFrame(arr, index=rows, columns=cols)
     frame = value.copy()
     frame.index, frame.columns = _labels(frame.index), _labels(frame.columns)
@@ -119,7 +123,7 @@ def _frame(value: Any, what: str, rows: list[str] | None, cols: list[str] | None
     return frame
 
 
-def _series(value: Any, what: str, names: list[str]) -> pd.Series:
+def _series(value: Any, what: str, names: list[str], axis: str) -> pd.Series:
     if isinstance(value, pd.DataFrame) and value.shape[1] == 1:
         value = value.iloc[:, 0]
     if not isinstance(value, pd.Series):
@@ -129,7 +133,7 @@ def _series(value: Any, what: str, names: list[str]) -> pd.Series:
         value = pd.Series(list(arr), index=names)
     value = value.copy()
     value.index = _labels(value.index)
-    frame = _frame(value.to_frame("v"), what, names, ["v"], "labels", "columns")
+    frame = _frame(value.to_frame("v"), what, names, ["v"], axis, "values")
     return frame["v"].rename(None)
 
 
@@ -208,13 +212,14 @@ class SupplyUseTable:
         if final_demand is None:
             raise invalid("final_demand", "be given (products × final-use categories)", None)
         if isinstance(final_demand, pd.Series) or np.asarray(final_demand).ndim == 1:
-            fd = _series(final_demand, "final_demand", self.products).to_frame("final_demand")
+            fd = _series(final_demand, "final_demand", self.products,
+                         "products").to_frame("final_demand")
         else:
             fd = _frame(final_demand, "final_demand", self.products, None, "products",
                         "categories")
         self.final_demand = fd
         self.imports = (pd.Series(0.0, index=self.products) if imports is None
-                        else _series(imports, "imports", self.products))
+                        else _series(imports, "imports", self.products, "products"))
         self._no_negatives(self.imports.to_frame("imports"), "imports")
         self.imports_use = None if imports_use is None else _frame(
             imports_use, "imports_use", self.products, self.industries, "products",
@@ -227,7 +232,7 @@ class SupplyUseTable:
                 self.labour = _frame(labour, "labour", None, self.industries, "kinds",
                                      "industries")
             else:
-                lab = _series(labour, "labour", self.industries)
+                lab = _series(labour, "labour", self.industries, "industries")
                 name = labour.name if isinstance(labour, pd.Series) and isinstance(
                     labour.name, str) and labour.name else "labour"
                 self.labour = lab.to_frame(name).T
@@ -244,7 +249,8 @@ class SupplyUseTable:
         if value_added is None:
             self.value_added = (self.industry_output - inputs).rename(None)
         else:
-            self.value_added = _series(value_added, "value_added", self.industries)
+            self.value_added = _series(value_added, "value_added", self.industries,
+                                       "industries")
         self._check_totals()
 
     def _cell(self, what: str, i: int, j: int) -> str:
@@ -515,7 +521,9 @@ class SupplyUseTable:
             k = neg_va.index[0]
             raise invalid(f"value_added[{k}]", f"be >= 0 in the {model} table (the model "
                           "moves more inputs to it than its output)", float(va[k]))
-        negf = (f.to_numpy() < -1e-9 * x.to_numpy()[:, None])
+        # a column of final uses >= 0 in the use table (not inventory changes) stays so
+        signed = (self.final_demand < 0).any(axis=0).reindex(f.columns).to_numpy()
+        negf = (f.to_numpy() < -1e-9 * x.to_numpy()[:, None]) & ~signed[None, :]
         if negf.any():
             i, j = np.argwhere(negf)[0]
             raise invalid(f"final_demand[{f.index[i]}, {f.columns[j]}]", f"be >= 0 in the "

@@ -164,6 +164,15 @@ def test_remedy_choices_are_checked():
         sut().symmetric("commodity")
 
 
+def test_inventory_changes_may_be_negative():
+    # common practice: a fall in inventories is a negative final use, not an error
+    f = F.assign(inventories=[-5.0, 0.0, 0.0])
+    f.loc["food", "households"] += 5.0
+    for model in MODELS:
+        s = SupplyUseTable(U, make=V, final_demand=f).symmetric(model, negatives="zero")
+        assert (s.final_demand["inventories"] < 0).any()
+
+
 # -- imports ----------------------------------------------------------------------------
 
 
