@@ -528,9 +528,13 @@ class SupplyUseTable:
             i, j = np.argwhere(negf)[0]
             raise invalid(f"final_demand[{f.index[i]}, {f.columns[j]}]", f"be >= 0 in the "
                           f"{model} table", float(f.iat[i, j]))
+        t, side = self._transforms(model)
         return SymmetricTable(model=model, flows=z, final_demand=f, value_added=va,
                               imported_inputs=imp, gross_output=x, labour=lab,
-                              negatives=found, remedy=remedy, tolerance=self.tolerance)
+                              negatives=found, remedy=remedy, tolerance=self.tolerance,
+                              transformation=pd.DataFrame(t, index=self.industries,
+                                                          columns=self.products)
+                              if side == "columns" else None)
 
 
 @dataclass(frozen=True)
@@ -554,6 +558,12 @@ class SymmetricTable:
         ``coefficient``), before any remedy.
     remedy : str or None
         The remedy applied to them, if any.
+    tolerance : float
+        The balance tolerance of the supply and use tables, kept for
+        :meth:`to_table`.
+    transformation : DataFrame or None
+        ``T`` (industries × products) of a product table, None for an
+        industry table (whose sectors are the industries).
     """
 
     model: str
@@ -566,11 +576,35 @@ class SymmetricTable:
     negatives: pd.DataFrame = field(default_factory=pd.DataFrame)
     remedy: str | None = None
     tolerance: float = 0.005
+    transformation: pd.DataFrame | None = None
 
     @property
     def names(self) -> list[str]:
         """Sector names (products or industries)."""
         return list(self.flows.columns)
+
+    def by_sector(self, values: Any) -> pd.Series:
+        """Turn figures by industry (capital stock, employment) into the table's sectors.
+
+        A product table shares each industry's figure over products as its
+        inputs were shared (``w' T``); an industry table keeps it. Divide a
+        stock by :attr:`gross_output` afterwards for a ratio by sector.
+
+        Parameters
+        ----------
+        values : Series or dict by industry
+
+        Returns
+        -------
+        Series by sector
+        """
+        if self.transformation is None:
+            return _series(pd.Series(values, dtype=object) if isinstance(values, dict)
+                           else values, "values", self.names, "industries")
+        ind = list(self.transformation.index)
+        w = _series(pd.Series(values, dtype=object) if isinstance(values, dict) else values,
+                    "values", ind, "industries")
+        return pd.Series(w.to_numpy() @ self.transformation.to_numpy(), index=self.names)
 
     def input_coefficients(self) -> pd.DataFrame:
         """Domestic input coefficients ``a_ij = z_ij / x_j``."""

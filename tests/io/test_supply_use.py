@@ -6,6 +6,8 @@ import numpy as np
 import pandas as pd
 import pytest
 from conftest import assert_optimal
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 import growthplan as gp
 from growthplan.io import (
@@ -122,6 +124,32 @@ def test_industry_tables_balance_by_industry():
         np.testing.assert_allclose(s.flows.sum(axis=0) + s.value_added, g, rtol=1e-12)
 
 
+@settings(max_examples=15)
+@given(seed=st.integers(0, 10_000), n=st.integers(2, 5))
+def test_model_identities_on_random_tables(seed, n):
+    # Eurostat (2008), ch. 11: product tables balance at product output, industry tables
+    # at industry output; models B and D never give negative flows
+    rng = np.random.default_rng(seed)
+    names_p, names_i = [f"p{k}" for k in range(n)], [f"i{k}" for k in range(n)]
+    v = np.diag(rng.uniform(50, 100, n)) + rng.uniform(0, 5, (n, n)) * (
+        rng.uniform(size=(n, n)) < 0.5)
+    g = v.sum(axis=1)
+    u = rng.uniform(0, 1, (n, n)) * g * rng.uniform(0.2, 0.6) / n
+    f = v.sum(axis=0) - u.sum(axis=1)
+    t = SupplyUseTable(pd.DataFrame(u, index=names_p, columns=names_i),
+                       make=pd.DataFrame(v, index=names_i, columns=names_p),
+                       final_demand=pd.Series(f, index=names_p))
+    for model in MODELS:
+        s = t.symmetric(model, negatives="zero")
+        x = s.gross_output.to_numpy()
+        np.testing.assert_allclose(x, v.sum(axis=0) if model in MODELS[:2] else g)
+        np.testing.assert_allclose(s.flows.sum(axis=1) + s.final_demand.sum(axis=1), x,
+                                   rtol=1e-9)
+        np.testing.assert_allclose(s.flows.sum(axis=0) + s.value_added, x, rtol=1e-9)
+        if model in ("industry_technology", "fixed_product_sales"):
+            assert s.negatives.empty
+
+
 # -- negative flows: reported, remedied only on request --------------------------------
 
 
@@ -197,6 +225,7 @@ def test_import_proportionality():
     np.testing.assert_allclose(use.sum(axis=1) + fd.sum(axis=1), V.sum(axis=0), rtol=1e-12)
     s = t.symmetric("industry_technology")
     np.testing.assert_allclose(s.imported_inputs.sum(), imported.sum(), rtol=1e-12)
+    s.to_economy()  # imported inputs sit beside value added: the table balances
     coef = s.input_coefficients().to_numpy()
     v, g, q = V.to_numpy(), V.to_numpy().sum(axis=1), V.to_numpy().sum(axis=0)
     np.testing.assert_allclose(coef, (use.to_numpy() / g) @ (v / q), rtol=1e-12)
@@ -229,6 +258,18 @@ def test_capital_coefficients_column_sums_are_the_ratios():
     assert one.iloc[0, 0] == 2.5  # one sector: b is the capital–output ratio (closed form)
     inv = investment_matrix({"food": 10.0, "metal": 20.0, "services": 5.0}, comp)
     np.testing.assert_allclose(inv.sum(axis=0), [10.0, 20.0, 5.0])
+
+
+def test_capital_stock_by_industry_to_products():
+    # Miller & Blair (2009), ch. 5: a row by industry turns like value added, w' ĝ⁻¹ V
+    s = sut().symmetric("industry_technology")
+    stock = pd.Series({"farms": 400.0, "mills": 900.0, "offices": 300.0})
+    by_product = s.by_sector(stock)
+    v = V.to_numpy()
+    np.testing.assert_allclose(by_product, stock.to_numpy() @ (v / v.sum(axis=1)[:, None]))
+    np.testing.assert_allclose(by_product.sum(), stock.sum())
+    d = sut().symmetric("fixed_product_sales")
+    np.testing.assert_allclose(d.by_sector(stock.to_dict()), stock)
 
 
 def test_capital_composition_errors():
