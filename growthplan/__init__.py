@@ -25,6 +25,7 @@ from .errors import (
 )
 from .expanding import ExpandingEconomy, expanding_economy
 from .io.planfile import load_plan_file, plan_file_schema, save_plan_file
+from .io.supply_use import SupplyUseTable, SymmetricTable
 from .io.tables import TransactionsTable, read_transactions
 from .lp.program import LinearProgram
 from .plan import (
@@ -103,6 +104,8 @@ __all__ = [
     "Sweep",
     "SolverFailure",
     "TinyCoefficientsWarning",
+    "SupplyUseTable",
+    "SymmetricTable",
     "TransactionsTable",
     "UnproductiveEconomy",
     "__version__",

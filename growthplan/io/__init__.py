@@ -2,7 +2,10 @@
 
 :mod:`~growthplan.io.planfile` reads and writes YAML/TOML plan files,
 :mod:`~growthplan.io.tables` reads transactions and coefficient tables (CSV
-or Excel), and :mod:`~growthplan.io.atomic` is the one writer every export
+or Excel), :mod:`~growthplan.io.supply_use` turns supply and use tables into
+symmetric ones, :mod:`~growthplan.io.balancing` updates a matrix to new
+totals (RAS, GRAS), :mod:`~growthplan.io.capital_flows` estimates capital
+coefficients, and :mod:`~growthplan.io.atomic` is the one writer every export
 goes through (written aside, renamed into place only on success).
 
 The names below are loaded on first use, so that ``growthplan.io.atomic``
@@ -18,6 +21,8 @@ from typing import TYPE_CHECKING, Any
 from .atomic import atomic_file, atomic_files, atomic_folder
 
 if TYPE_CHECKING:
+    from .balancing import Balanced, gras, ras
+    from .capital_flows import capital_coefficients_from_ratios, investment_matrix
     from .planfile import (
         EconomyTables,
         PlanFile,
@@ -27,6 +32,7 @@ if TYPE_CHECKING:
         plan_file_schema,
         save_plan_file,
     )
+    from .supply_use import MODELS, SupplyUseTable, SymmetricTable
     from .tables import (
         TransactionsTable,
         capital_coefficients_from_stocks,
@@ -44,22 +50,33 @@ _LAZY = {
     "TransactionsTable": "tables", "capital_coefficients_from_stocks": "tables",
     "capital_table": "tables", "economy_from_coefficients": "tables", "read_frame": "tables",
     "read_transactions": "tables", "write_coefficient_tables": "tables",
+    "Balanced": "balancing", "ras": "balancing", "gras": "balancing",
+    "capital_coefficients_from_ratios": "capital_flows", "investment_matrix": "capital_flows",
+    "MODELS": "supply_use", "SupplyUseTable": "supply_use", "SymmetricTable": "supply_use",
 }
 
 __all__ = [
+    "Balanced",
     "EconomyTables",
+    "MODELS",
     "PlanFile",
     "SolveOptions",
+    "SupplyUseTable",
+    "SymmetricTable",
     "TransactionsTable",
     "atomic_file",
     "atomic_files",
     "atomic_folder",
+    "capital_coefficients_from_ratios",
     "capital_coefficients_from_stocks",
     "capital_table",
     "economy_from_coefficients",
+    "gras",
+    "investment_matrix",
     "load_plan_file",
     "plan_file_inputs",
     "plan_file_schema",
+    "ras",
     "read_frame",
     "read_transactions",
     "save_plan_file",
