@@ -106,12 +106,18 @@ class Consumption(Model):
         Yearly growth rate of a ``floor`` given as a number.
     max_fall : float, optional
         Largest allowed fall from one year to the next, as a share (0.02 = 2 %).
+    population : float, list, dict or Series, optional
+        Population per plan year (a number is grown at ``population_growth``);
+        with it the accounts report consumption per head.
+    population_growth : float, default 0.0
     """
 
     basket: dict[str, float] | None = None
     floor: Any = 0.0
     floor_growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
     max_fall: float | None = Field(default=None, ge=0, le=1)
+    population: Any = None
+    population_growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
 
 
 class Target(Model):
@@ -433,6 +439,10 @@ class Plan(Model):
         if self.consumption is not None:
             lowering.consumption_floor(self)
             lowering.basket(self)
+            pop = lowering.population(self)
+            if pop is not None and np.any(pop <= 0):
+                raise Rule("be > 0 in every plan year", self.consumption.population,
+                           field="consumption.population")
         first, last = self.years[0], self.years[-1]
         for i, tg in enumerate(self.targets):
             if tg.sector is not None and tg.sector not in names:
@@ -544,6 +554,7 @@ class Plan(Model):
         out.append(("final_demand_growth", self.final_demand_growth))
         if self.consumption is not None:
             out.append(("consumption.floor_growth", self.consumption.floor_growth))
+            out.append(("consumption.population_growth", self.consumption.population_growth))
         if self.terminal is not None:
             out.append(("terminal.rate", self.terminal.rate))
         if self.trade is not None:

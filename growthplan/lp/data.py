@@ -22,6 +22,7 @@ if TYPE_CHECKING:
     from ..plan import Plan
 
 __all__ = ["PlanData", "TargetData", "TradeSide", "lower", "basket", "consumption_floor",
+           "population",
            "labour_supply", "exogenous_demand", "trade_sides", "terminal_proportions"]
 
 
@@ -96,6 +97,7 @@ class PlanData:
     b_year: np.ndarray | None = None          # years × n × n, for starts made in each year
     labour_year: np.ndarray | None = None     # years × kinds with a supply × n
     labour_all_year: np.ndarray | None = None  # years × every kind × n
+    population: np.ndarray | None = None      # per plan year
     base_output: np.ndarray | None = None     # base-year gross output, by sector
     first_year_within: float | None = None
     extra: dict[str, Any] = field(default_factory=dict)
@@ -179,6 +181,14 @@ def consumption_floor(plan: Plan) -> np.ndarray:
         return np.zeros(len(plan.years))
     return series(plan.consumption.floor, plan.years, "consumption.floor",
                   plan.consumption.floor_growth)
+
+
+def population(plan: Plan) -> np.ndarray | None:
+    """Population per plan year (None without one)."""
+    c = plan.consumption
+    if c is None or c.population is None:
+        return None
+    return series(c.population, plan.years, "consumption.population", c.population_growth)
 
 
 def labour_supply(plan: Plan) -> np.ndarray:
@@ -353,7 +363,7 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
         labour_units=[econ.labour_unit_names[kinds.index(k)] for k in sup_kinds],
         labour_all_units=econ.labour_unit_names, value_unit=econ.value_unit,
         base_output=None if econ.base_output is None else np.asarray(econ.base_output),
-        first_year_within=plan.first_year_within)
+        first_year_within=plan.first_year_within, population=population(plan))
     tc = plan.technical_change
     if tc is not None and (tc.input_rate or tc.capital_rate or tc.labour_rate):
         fa = tc.factors(data.names, T, "input")

@@ -55,7 +55,8 @@ def national_accounts(d: PlanData, s: Schedules, retirements: np.ndarray) -> pd.
     pandas.DataFrame
         Columns ``gross_output``, ``intermediate_use``, ``gdp``, ``investment``,
         ``investment_share``, ``consumption``, ``exogenous_demand``, ``exports``,
-        ``imports``, ``disposal``, ``retirements``, one ``employment <kind>``
+        ``imports``, ``disposal``, ``retirements``, ``consumption_per_head`` when
+        the plan gives a population, one ``employment <kind>``
         per labour kind, and ``<aggregate>_growth`` for gross output, GDP,
         investment and consumption; ``attrs["unit"]`` holds the value unit.
     """
@@ -81,6 +82,9 @@ def national_accounts(d: PlanData, s: Schedules, retirements: np.ndarray) -> pd.
                         "consumption": cons, "exogenous_demand": demand, "exports": exp,
                         "imports": imp, "disposal": disposal, "retirements": retired},
                        index=pd.Index(d.years, name="year"))
+    if d.population is not None:
+        out.insert(out.columns.get_loc("consumption") + 1, "consumption_per_head",
+                   cons / d.population)
     used = d.labour_used(x, every_kind=True)
     for k, kind in enumerate(d.labour_all_kinds):
         out[f"employment {kind}"] = used[:, k]

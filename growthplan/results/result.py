@@ -422,7 +422,7 @@ def _with_units(frame: pd.DataFrame) -> pd.DataFrame:
     unit = frame.attrs.get("unit")
     if isinstance(frame.columns, pd.MultiIndex) or (not units and not unit):
         return frame
-    share = ("share", "growth")
+    share = ("share", "growth", "per_head")
 
     def label(c: object) -> object:
         if units and c in units:

@@ -208,3 +208,17 @@ def test_first_year_without_a_base_year_is_refused():
 
     with pytest.raises(gp.InvalidInput, match="first_year_within"):
         gp.Plan(economy=one_sector(), years=range(2030, 2035), first_year_within=0.1)
+
+
+def test_consumption_per_head():
+    """With a population the accounts divide consumption by it (the demo: 12 million in
+    2027, growing 1.1 % a year)."""
+    r = assert_optimal(gp.demo_plan().solve())
+    acc = r.accounts
+    pop = 12.0 * 1.011 ** np.arange(len(acc))
+    np.testing.assert_allclose(acc["consumption_per_head"], acc["consumption"] / pop,
+                               rtol=1e-12)
+    for bad in ("many", -12.0, [12.0] * 3):
+        with pytest.raises(gp.InvalidInput, match="consumption.population"):
+            gp.demo_plan().model_copy(update={"consumption": gp.Consumption(
+                floor=1.0, population=bad)})
