@@ -379,6 +379,33 @@ class PlanResult:
             (tmp / "summary.txt").write_text(str(self.summary()), encoding="utf-8")
         return Path(folder)
 
+    def report(self, path: str | os.PathLike[str], *, overwrite: bool = False,
+               protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
+        """Write a self-contained HTML report a colleague opens in a browser.
+
+        The report holds the caution, the inputs and assumptions, the targets
+        with their margins, the national accounts, the bottlenecks, charts
+        (with matplotlib installed), the shadow prices in base-year money and,
+        for an impossible plan, the diagnosis in words (see
+        :mod:`growthplan.results.report`).
+
+        Parameters
+        ----------
+        path : str or path-like
+            The HTML file, written aside and renamed into place.
+        overwrite : bool, default False
+            Replace an existing file.
+        protect : iterable of paths
+            Input files that must never be overwritten.
+
+        Returns
+        -------
+        pathlib.Path
+        """
+        from .report import write_report
+
+        return write_report(self, path, overwrite=overwrite, protect=protect)
+
     def to_excel(self, path: str | os.PathLike[str], *, overwrite: bool = False,
                  protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
         """Write every table as a sheet of one workbook.
