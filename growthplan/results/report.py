@@ -150,7 +150,7 @@ def _is_ratio(name: object) -> bool:
 
 
 # -- inputs and targets ----------------------------------------------------------
-def _span(values: Sequence[float], years: Sequence[int], unit: str) -> str:
+def _span(values: Sequence[float] | np.ndarray, years: Sequence[int], unit: str) -> str:
     if len(values) == 0:
         return ""
     first, last = float(values[0]), float(values[-1])
@@ -191,7 +191,7 @@ def inputs(result: PlanResult) -> list[tuple[str, str]]:
         units = d.labour_units or ["person-years"] * len(d.labour_kinds)
         for k, kind in enumerate(d.labour_kinds):
             rows.append((f"labour supply ({kind})", _span(d.supply[k], years, units[k])))
-        for k, kind in enumerate(d.labour_all_kinds):
+        for kind in d.labour_all_kinds:
             if kind not in d.labour_kinds:
                 rows.append((f"labour ({kind})", "counted, not limited"))
         if d.has_consumption:
@@ -209,8 +209,8 @@ def inputs(result: PlanResult) -> list[tuple[str, str]]:
     for t in p.targets:
         unit = _unit_of(result, t.sector)
         what = f"{t.quantity} of {t.sector}" if t.sector else f"{t.quantity} level"
-        rows.append(("target", f"{what} in {t.year} at least {_text(t.required, decimals_for([t.required]))}"
-                     f" {unit}".rstrip()))
+        need = _text(t.required, decimals_for([t.required]))
+        rows.append(("target", f"{what} in {t.year} at least {need} {unit}".rstrip()))
     for c in p.starts_ceilings:
         when = "every year" if not c.years else ", ".join(map(str, c.years))
         rows.append(("starts ceiling", f"{c.sector}: at most {_text(c.at_most)} "
@@ -225,10 +225,17 @@ def inputs(result: PlanResult) -> list[tuple[str, str]]:
         rows.append(("foreign trade", "traded goods: " + (", ".join(goods) or "none")))
     rows.append(("objective", _objective_words(p.objective)))
     s = result.solver
-    versions = ", ".join(f"{k} {v}" for k, v in s.get("versions", {}).items() if v)
+    versions = _versions(s)
     rows.append(("solver", f"{s.get('backend', '')}, method {s.get('method', '')}; "
                  f"{versions}"))
     return rows
+
+
+def _versions(solver: dict[str, Any]) -> str:
+    found = solver.get("versions")
+    if not isinstance(found, dict):
+        return ""
+    return ", ".join(f"{k} {v}" for k, v in found.items() if v)
 
 
 def _unit_of(result: PlanResult, sector: str | None) -> str:
@@ -518,8 +525,7 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
     solver = result.solver
     rows = [("status", f"{status} ({result.message})"),
             ("back end", f"{solver.get('backend', '')}, method {solver.get('method', '')}"),
-            ("versions", ", ".join(f"{k} {v}" for k, v in solver.get("versions", {}).items()
-                                   if v)),
+            ("versions", _versions(solver)),
             ("time", f"{sum(result.timings.values()):.3f} s in all")]
     if result.ok and result.audit is not None:
         rows.append(("audit", f"largest violation {result.audit.max_violation:.2g} "

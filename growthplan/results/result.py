@@ -9,7 +9,6 @@ plan or what its exports write.
 
 from __future__ import annotations
 
-import contextlib
 import os
 from collections.abc import Iterable
 from pathlib import Path
@@ -408,7 +407,11 @@ class PlanResult:
 
     def to_excel(self, path: str | os.PathLike[str], *, overwrite: bool = False,
                  protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
-        """Write every table as a sheet of one workbook.
+        """Write every table as a sheet of one workbook a colleague can read.
+
+        A summary, the inputs and assumptions, the sectors, a glossary and the
+        targets come first, then the tables, or for an impossible plan the
+        diagnosis (see :mod:`growthplan.results.workbook`).
 
         Parameters
         ----------
@@ -423,20 +426,11 @@ class PlanResult:
         -------
         pathlib.Path
         """
-        from ..io.atomic import atomic_file
+        from .workbook import write_workbook
 
-        tables = self._tables()
-        with atomic_file(path, overwrite=overwrite, protect=protect) as tmp:
-            writer = pd.ExcelWriter(tmp, engine="openpyxl")
-            try:
-                for name, frame in tables.items():
-                    frame.to_excel(writer, sheet_name=name[:31])
-            except BaseException:
-                with contextlib.suppress(Exception):  # keep the first error, not close()'s
-                    writer.close()
-                raise
-            writer.close()
-        return Path(path)
+        # an impossible plan has no schedules: its workbook holds the diagnosis instead
+        tables = self._tables() if self.ok else {}
+        return write_workbook(self, path, tables, overwrite=overwrite, protect=protect)
 
 
 def _with_units(frame: pd.DataFrame) -> pd.DataFrame:
