@@ -347,7 +347,7 @@ table { border-collapse:collapse; margin:4px 0 8px; font-size:13.5px; }
 caption { text-align:left; color:var(--muted); font-size:13px; padding-bottom:3px; }
 th, td { padding:3px 9px; border-bottom:1px solid var(--rule); vertical-align:top; }
 thead th { background:var(--soft); text-align:right; white-space:nowrap; }
-thead th:first-child, tbody th { text-align:left; }
+thead th:first-child, thead th.text, tbody th { text-align:left; }
 tbody th { font-weight:600; white-space:nowrap; }
 td.num { text-align:right; font-variant-numeric:tabular-nums; white-space:nowrap; }
 td.missed { color:var(--bad); font-weight:600; } td.met { color:var(--ok); font-weight:600; }
@@ -380,7 +380,8 @@ def _table(frame: pd.DataFrame, *, caption: str = "", index: bool = True,
             finite = vals[np.isfinite(vals)]
             scale = float(np.abs(finite).max()) if finite.size else 1.0
             fmt[c] = (decimals_for(finite), scale)
-    head = "".join(f"<th>{_e(c)}</th>" for c in frame.columns)
+    head = "".join(f"<th>{_e(c)}</th>" if c in fmt else f'<th class="text">{_e(c)}</th>'
+                   for c in frame.columns)
     if index:
         head = f"<th>{_e(frame.index.name or '')}</th>" + head
     rows = []
@@ -561,9 +562,9 @@ def _accounts(acc: pd.DataFrame, unit: str) -> str:
     for name, row in t.iterrows():
         vals = row.to_numpy(dtype=float)
         finite = vals[np.isfinite(vals)]
-        dec = decimals_for(finite) if not _is_ratio(name) else 1
-        dec = min(dec, 2)
         scale = float(np.abs(finite).max()) if finite.size else 1.0
+        # whole units for large aggregates keep fifteen years on one screen
+        dec = 0 if scale >= 10_000 else 1 if scale >= 100 else 2
         cells = "".join(f'<td class="num">{_e(_text(v, dec, ratio=_is_ratio(name), scale=scale))}'
                         "</td>" for v in vals)
         rows.append(f"<tr><th>{_e(name)}</th>{cells}</tr>")
