@@ -504,11 +504,17 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
                      + _accounts(acc.rename(columns=names), unit) + "</section>")
         b = result.bottlenecks(top=3)
         if not b.empty:
-            b = b.rename(columns={"per_value": "value per unit of base-year value",
-                                  "value": "shadow value per unit"}).set_index("year")
+            dec = decimals_for(b["per_value"])
+            per_year = {int(str(year)): "; ".join(
+                f"{_binding(str(c), str(n))} {_text(float(v), dec)}" for c, n, v in
+                zip(grp["condition"], grp["name"], grp["per_value"], strict=True))
+                for year, grp in b.groupby("year", sort=True)}
+            table = pd.DataFrame({"binding conditions, value per unit of base-year value":
+                                  list(per_year.values())},
+                                 index=pd.Index(list(per_year), name="year"))
             parts.append("<section><h2>Bottlenecks</h2><p>The three conditions worth most "
                          "per unit of base-year value in each year: more of them would "
-                         "raise the objective most.</p>" + _table(b) + "</section>")
+                         "raise the objective most.</p>" + _table(table) + "</section>")
         if charts:
             pics, note = _charts(result)
             figs = "".join(f'<figure><img src="{uri}" alt="{_e(cap)}">'
@@ -539,6 +545,13 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
             '<meta name="viewport" content="width=device-width, initial-scale=1">'
             f"<title>{_e(title)}</title><style>{_STYLE}</style></head><body>"
             + "".join(parts) + "</body></html>\n")
+
+
+def _binding(condition: str, name: str) -> str:
+    """"metals balance", "metals capacity", "labour supply" (a bottleneck in words)."""
+    if condition == "labour":
+        return "labour supply" if name == "labour" else f"labour supply {name}"
+    return f"{name} {'balance' if condition == 'commodity' else condition}"
 
 
 def _account_name(result: PlanResult, column: str) -> str:
