@@ -174,9 +174,10 @@ def _resolved(p: Path) -> Path:
 
 
 def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
-                   overwrite: bool, inputs: tuple[Path, ...] = ()) -> None:
+                   overwrite: bool, inputs: tuple[Path, ...] = (),
+                   report: Path | None = None) -> None:
     """Refuse outputs that cannot be written before any time goes into solving."""
-    named = {"--out": out, "--excel": excel, "--charts": charts}
+    named = {"--out": out, "--excel": excel, "--charts": charts, "--report": report}
     seen: dict[Path, str] = {}
     for opt, p in named.items():
         if p is None:
@@ -197,7 +198,7 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
                 raise invalid(opt, "name a folder (it is a file)", str(p))
         if opt != "--out" and any(full == _resolved(i) for i in inputs):
             raise invalid(opt, "not be the plan file", str(p))
-        if opt == "--excel" and p.is_dir():
+        if opt in ("--excel", "--report") and p.is_dir():
             raise invalid(opt, "name a file (it is a folder)", str(p))
         if opt == "--charts" and p.exists() and not p.is_dir():
             raise invalid(opt, "name a folder (it is a file)", str(p))
@@ -346,11 +347,15 @@ def _fresh_folder(target: Path, overwrite: bool) -> Iterator[Path]:
 
 
 def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Path | None,
-            overwrite: bool, protect: tuple[Path, ...] = ()) -> None:
+            overwrite: bool, protect: tuple[Path, ...] = (),
+            report: Path | None = None) -> None:
     click.echo(str(result.summary()))
     if result.diagnosis is not None and not result.diagnosis.shortfalls.empty:
         click.echo("\nShortfalls (elastic re-solve):")
         click.echo(result.diagnosis.shortfalls.to_string(index=False))
+    if report is not None:  # an impossible plan's report holds its diagnosis
+        with _writing(report):
+            click.echo(f"wrote {result.report(report, overwrite=overwrite, protect=protect)}")
     if not result.ok:
         return
     if out is not None:
@@ -453,6 +458,9 @@ _out = click.option("--out", type=click.Path(path_type=Path), default=None,
                     help="Write every schedule as CSV into this new folder.")
 _excel = click.option("--excel", type=click.Path(path_type=Path), default=None,
                       help="Write every schedule as a sheet of this new workbook.")
+_report_opt = click.option("--report", type=click.Path(path_type=Path), default=None,
+                           help="Write a self-contained HTML report (charts need matplotlib) "
+                                "to this new file; an impossible plan's report explains why.")
 _charts = click.option("--charts", type=click.Path(path_type=Path), default=None,
                        help="Save the standard charts as PNG files into this folder.")
 _overwrite = click.option("--overwrite", is_flag=True,
@@ -471,6 +479,7 @@ def main() -> None:
 @click.argument("plan_file", type=click.Path(path_type=Path))
 @_out
 @_excel
+@_report_opt
 @_charts
 @_overwrite
 @click.option("--progress/--no-progress", default=True, show_default=True,
@@ -480,8 +489,8 @@ def main() -> None:
 @click.option("--time-limit", type=click.FloatRange(min=0, min_open=True, max=1e9),
               default=None, callback=lambda ctx, param, v: _finite(v),
               help="Seconds for the solver.")
-def solve(plan_file: Path, out: Path | None, excel: Path | None, charts: Path | None,
-          overwrite: bool, progress: bool, method: str | None,
+def solve(plan_file: Path, out: Path | None, excel: Path | None, report: Path | None,
+          charts: Path | None, overwrite: bool, progress: bool, method: str | None,
           time_limit: float | None) -> None:
     from . import load_plan_file
     from .backends.highs import METHODS
@@ -490,7 +499,7 @@ def solve(plan_file: Path, out: Path | None, excel: Path | None, charts: Path | 
     if method is not None and methods is not None and method != "auto" \
             and method not in methods:
         raise invalid("--method", f"be 'auto' or one of {sorted(methods)}", method)
-    _check_outputs(out, excel, charts, overwrite, inputs=(plan_file,))
+    _check_outputs(out, excel, charts, overwrite, inputs=(plan_file,), report=report)
     with _reading(plan_file):
         plan, opts = load_plan_file(_input_file(plan_file, "plan file"))
     result = _solve(plan, method=method or opts.method,
@@ -498,7 +507,8 @@ def solve(plan_file: Path, out: Path | None, excel: Path | None, charts: Path | 
                     tolerance=opts.tolerance, progress=progress)
     from .io.planfile import plan_file_inputs
 
-    _report(result, out, excel, charts, overwrite, protect=tuple(plan_file_inputs(plan_file)))
+    _report(result, out, excel, charts, overwrite, protect=tuple(plan_file_inputs(plan_file)),
+            report=report)
     _exit(_exit_code(result))
 
 
@@ -558,15 +568,16 @@ def schema() -> None:
 @main.command(help="Solve the demo plan of the invented Republic of Arvenna and print it.")
 @_out
 @_excel
+@_report_opt
 @_charts
 @_overwrite
 @click.option("--progress/--no-progress", default=True, show_default=True)
-def demo(out: Path | None, excel: Path | None, charts: Path | None, overwrite: bool,
-         progress: bool) -> None:
+def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path | None,
+         overwrite: bool, progress: bool) -> None:
     from . import load_plan_file
     from .demo import DEMO_DIR, PLAN_FILE
 
-    _check_outputs(out, excel, charts, overwrite)
+    _check_outputs(out, excel, charts, overwrite, report=report)
     with _reading(DEMO_DIR / PLAN_FILE):
         plan, _ = load_plan_file(DEMO_DIR / PLAN_FILE)
     econ = plan.economy
@@ -581,7 +592,7 @@ def demo(out: Path | None, excel: Path | None, charts: Path | None, overwrite: b
                "labour supply (+1.2 % a year) and maximises capacity at the end, in "
                "balanced proportions, growing on at 4 % after the plan.\n")
     result = _solve(plan, progress=progress)
-    _report(result, out, excel, charts, overwrite)
+    _report(result, out, excel, charts, overwrite, report=report)
     if result.ok:
         click.echo("\nOutput by sector in the first, middle and last plan year:")
         click.echo(result.output.iloc[[0, plan.horizon // 2, -1]].T.round(0).to_string())

@@ -9,7 +9,6 @@ plan or what its exports write.
 
 from __future__ import annotations
 
-import contextlib
 import os
 from collections.abc import Iterable
 from pathlib import Path
@@ -383,9 +382,40 @@ class PlanResult:
             (tmp / "summary.txt").write_text(str(self.summary()), encoding="utf-8")
         return Path(folder)
 
+    def report(self, path: str | os.PathLike[str], *, overwrite: bool = False,
+               protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
+        """Write a self-contained HTML report a colleague opens in a browser.
+
+        The report holds the caution, the inputs and assumptions, the targets
+        with their margins, the national accounts, the bottlenecks, charts
+        (with matplotlib installed), the shadow prices in base-year money and,
+        for an impossible plan, the diagnosis in words (see
+        :mod:`growthplan.results.report`).
+
+        Parameters
+        ----------
+        path : str or path-like
+            The HTML file, written aside and renamed into place.
+        overwrite : bool, default False
+            Replace an existing file.
+        protect : iterable of paths
+            Input files that must never be overwritten.
+
+        Returns
+        -------
+        pathlib.Path
+        """
+        from .report import write_report
+
+        return write_report(self, path, overwrite=overwrite, protect=protect)
+
     def to_excel(self, path: str | os.PathLike[str], *, overwrite: bool = False,
                  protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
-        """Write every table as a sheet of one workbook.
+        """Write every table as a sheet of one workbook a colleague can read.
+
+        A summary, the inputs and assumptions, the sectors, a glossary and the
+        targets come first, then the tables, or for an impossible plan the
+        diagnosis (see :mod:`growthplan.results.workbook`).
 
         Parameters
         ----------
@@ -400,20 +430,11 @@ class PlanResult:
         -------
         pathlib.Path
         """
-        from ..io.atomic import atomic_file
+        from .workbook import write_workbook
 
-        tables = self._tables()
-        with atomic_file(path, overwrite=overwrite, protect=protect) as tmp:
-            writer = pd.ExcelWriter(tmp, engine="openpyxl")
-            try:
-                for name, frame in tables.items():
-                    frame.to_excel(writer, sheet_name=name[:31])
-            except BaseException:
-                with contextlib.suppress(Exception):  # keep the first error, not close()'s
-                    writer.close()
-                raise
-            writer.close()
-        return Path(path)
+        # an impossible plan has no schedules: its workbook holds the diagnosis instead
+        tables = self._tables() if self.ok else {}
+        return write_workbook(self, path, tables, overwrite=overwrite, protect=protect)
 
 
 def _with_units(frame: pd.DataFrame) -> pd.DataFrame:
