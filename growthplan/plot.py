@@ -117,7 +117,8 @@ def plot_starts(result: PlanResult, *, ax: Axes | None = None) -> Axes:
                edgecolor="white", linewidth=0.5)
         bottom += frame[col].to_numpy()
     ax.set_xlabel("year")
-    ax.set_ylabel(f"capacity started ({result.data.value_unit} of annual output)")
+    ax.set_ylabel(f"capacity started\n({result.data.value_unit} of annual output)",
+                  fontsize="small")
     ax.set_title("Investment: capacity starts by sector, at base-year prices")
     ax.legend(ncols=2, fontsize="small", frameon=False)
     return ax
