@@ -200,7 +200,10 @@ def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: Sol
                          f"{rep.max_violation:.3g} (relative) at {rep.worst}; the plan is "
                          "not returned as optimal.")
     t1 = time.perf_counter()
-    timings = {**timings, "solve": outcome.seconds, "post_process": post["post_process"],
+    # the model transfer into the solver, when the back end times it apart from the solve
+    transfer = outcome.options.get("transfer_seconds")
+    timings = {**timings, **({} if transfer is None else {"transfer": float(transfer)}),
+               "solve": outcome.seconds, "post_process": post["post_process"],
                "audit": t1 - t0 - post["post_process"]}
     diagnosis = None
     stopped = stop is not None and (stop.is_set() if hasattr(stop, "is_set") else stop())

@@ -342,7 +342,9 @@ class TestSolverOutcomes:
 
     def test_result_records_versions_and_timings(self):
         r = gp.Plan(economy=one_sector(), years=YEARS).solve()
-        assert set(r.timings) == {"validate", "compile", "solve", "post_process", "audit"}
+        assert set(r.timings) == {"validate", "compile", "transfer", "solve", "post_process",
+                                  "audit"}
+        assert r.timings["transfer"] == r.solver["options"]["transfer_seconds"] >= 0
         assert r.solver["versions"]["pulp"] == pulp.__version__
         assert r.solver["method"] in ("simplex", "ipm")
 

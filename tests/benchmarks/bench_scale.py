@@ -1,0 +1,237 @@
+"""Benchmark: plans at the size of real statistical tables, library against bare HiGHS.
+
+Run: python tests/benchmarks/bench_scale.py [30x20,100x30,200x30] [--methods ...]
+     [--time-limit 60] [--repeats 3] [--cheap-nonzeros 1000000]
+
+For each size (sectors × years) of the dense random plans of
+``tests/helpers.py`` a child process is started, so that its peak resident
+memory belongs to that size alone. The child prints rows, columns and
+nonzeros, then times, interleaved and repeated (median of ``--repeats`` when
+the LP has fewer than ``--cheap-nonzeros`` nonzeros, once otherwise):
+
+- the library end to end: the plan built (validated) and ``plan.solve()``,
+  wall clock, with the library's own split (``result.timings``);
+- the bare solve of the same LP (``plan.compile()``) by the method the
+  library chose, with highspy directly: ``passModel`` with numpy arrays and
+  ``run``, timed separately.
+
+Then once each, with ``--time-limit`` seconds, the bare solve by every other
+HiGHS method, and the model transfer by filling ``HighsLp`` field by field
+(the route the library took before) against the numpy ``passModel``.
+
+overhead/solve is (end to end − bare run) / bare run, for the same method.
+Peak memory is ``resource.getrusage(RUSAGE_SELF).ru_maxrss`` of the child
+process taken right after its first end-to-end solve (before any bare solve):
+the whole process (Python, imports, plan, LP, HiGHS), not the Python heap.
+Times on a shared machine vary; compare ratios from one run.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import resource
+import statistics
+import subprocess
+import sys
+import time
+import warnings
+from pathlib import Path
+from typing import Any
+
+import highspy
+import numpy as np
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+from helpers import economy, make_plan  # noqa: E402
+
+from growthplan.backends.highs import METHODS  # noqa: E402
+
+DEFAULT_SIZES = "30x20,100x30,200x30"
+
+
+def _highs(method: str, time_limit: float | None) -> highspy.Highs:
+    h = highspy.Highs()
+    opts: dict[str, Any] = {"output_flag": False, "random_seed": 0, **METHODS[method]}
+    if time_limit is not None:
+        opts["time_limit"] = float(time_limit)
+    for k, v in opts.items():
+        if h.setOptionValue(k, v) != highspy.HighsStatus.kOk:
+            raise SystemExit(f"HiGHS refused option {k}={v!r}")
+    return h
+
+
+def _arrays(lp: Any) -> tuple[Any, ...]:
+    m = lp.matrix.tocsc()
+    inf = highspy.kHighsInf
+
+    def bound(v: np.ndarray, missing: float) -> np.ndarray:
+        return np.where(np.isfinite(v), v, missing).astype(np.float64)
+
+    sense = highspy.ObjSense.kMaximize if lp.sense == "max" else highspy.ObjSense.kMinimize
+    return (int(m.shape[1]), int(m.shape[0]), int(m.nnz), int(highspy.MatrixFormat.kColwise),
+            int(sense), 0.0, np.ascontiguousarray(lp.cost, dtype=np.float64),
+            bound(lp.col_lower, -inf), bound(lp.col_upper, inf),
+            bound(lp.row_lower, -inf), bound(lp.row_upper, inf),
+            m.indptr.astype(np.int32), m.indices.astype(np.int32), m.data.astype(np.float64),
+            np.zeros(m.shape[1], dtype=np.int32))
+
+
+def _highs_lp(lp: Any) -> highspy.HighsLp:
+    """The model filled field by field (the older route), for the transfer comparison."""
+    m = lp.matrix.tocsc()
+    inf = highspy.kHighsInf
+    model = highspy.HighsLp()
+    model.num_col_, model.num_row_ = m.shape[1], m.shape[0]
+    model.col_cost_ = np.ascontiguousarray(lp.cost, dtype=np.float64)
+    model.col_lower_ = np.where(np.isfinite(lp.col_lower), lp.col_lower, -inf)
+    model.col_upper_ = np.where(np.isfinite(lp.col_upper), lp.col_upper, inf)
+    model.row_lower_ = np.where(np.isfinite(lp.row_lower), lp.row_lower, -inf)
+    model.row_upper_ = np.where(np.isfinite(lp.row_upper), lp.row_upper, inf)
+    model.sense_ = highspy.ObjSense.kMaximize if lp.sense == "max" else \
+        highspy.ObjSense.kMinimize
+    model.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+    model.a_matrix_.start_ = m.indptr.astype(np.int32)
+    model.a_matrix_.index_ = m.indices.astype(np.int32)
+    model.a_matrix_.value_ = m.data.astype(np.float64)
+    model.a_matrix_.num_col_, model.a_matrix_.num_row_ = m.shape[1], m.shape[0]
+    return model
+
+
+def bare(lp: Any, method: str, time_limit: float | None = None) -> dict[str, Any]:
+    """passModel (numpy arrays) and run, timed apart."""
+    h = _highs(method, time_limit)
+    t0 = time.perf_counter()
+    if h.passModel(*_arrays(lp)) == highspy.HighsStatus.kError:
+        raise SystemExit("HiGHS refused the model")
+    t1 = time.perf_counter()
+    h.run()
+    t2 = time.perf_counter()
+    info = h.getInfo()
+    return {"transfer": t1 - t0, "run": t2 - t1,
+            "status": h.modelStatusToString(h.getModelStatus()),
+            "objective": float(info.objective_function_value)}
+
+
+def transfer_field_by_field(lp: Any) -> float:
+    h = _highs("ipm", None)
+    t0 = time.perf_counter()
+    h.passModel(_highs_lp(lp))
+    return time.perf_counter() - t0
+
+
+def end_to_end(econ: Any, years: int) -> dict[str, Any]:
+    """The plan built (validated) and solved by the library, wall clock."""
+    t0 = time.perf_counter()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        plan = make_plan(econ, years)
+        r = plan.solve()
+    wall = time.perf_counter() - t0
+    return {"wall": wall, "status": str(r.status), "objective": float(r.objective),
+            "method": r.solver["method"], "scaled": r.solver["options"].get("scaled"),
+            "timings": dict(r.timings)}
+
+
+def child(size: str, methods: list[str], time_limit: float, repeats: int,
+          cheap: int) -> dict[str, Any]:
+    n, years = (int(v) for v in size.lower().split("x"))
+    econ = economy(n)
+    lp = make_plan(econ, years).compile()
+    out: dict[str, Any] = {"size": size, "rows": lp.shape[0], "cols": lp.shape[1],
+                           "nonzeros": int(lp.nnz)}
+    reps = repeats if lp.nnz < cheap else 1
+    e2e: list[dict[str, Any]] = []
+    own: list[dict[str, Any]] = []
+    for i in range(reps):
+        first = i % 2 == 0  # interleave: end to end first on even rounds
+        if first:
+            e2e.append(end_to_end(econ, years))
+        if i == 0:
+            out["peak_rss_mb"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+            out["method"] = e2e[0]["method"]
+        own.append(bare(lp, out["method"]))
+        if not first:
+            e2e.append(end_to_end(econ, years))
+    out["repeats"] = reps
+    out["e2e"] = statistics.median(r["wall"] for r in e2e)
+    out["e2e_all"] = [round(r["wall"], 3) for r in e2e]
+    out["e2e_status"] = e2e[0]["status"]
+    out["e2e_objective"] = e2e[0]["objective"]
+    out["scaled"] = e2e[0]["scaled"]
+    out["timings"] = {k: statistics.median(r["timings"].get(k, 0.0) for r in e2e)
+                      for k in e2e[0]["timings"]}
+    out["bare_run"] = statistics.median(r["run"] for r in own)
+    out["bare_run_all"] = [round(r["run"], 3) for r in own]
+    out["bare_transfer"] = statistics.median(r["transfer"] for r in own)
+    out["bare_objective"] = own[0]["objective"]
+    out["bare_status"] = own[0]["status"]
+    out["transfer_field_by_field"] = statistics.median(
+        transfer_field_by_field(lp) for _ in range(reps))
+    out["others"] = {}
+    for m in methods:
+        if m != out["method"]:
+            out["others"][m] = bare(lp, m, time_limit)
+    return out
+
+
+def show(r: dict[str, Any]) -> None:
+    overhead = (r["e2e"] - r["bare_run"]) / r["bare_run"]
+    tm = ", ".join(f"{k} {v:.3f}" for k, v in r["timings"].items())
+    print(f"\n== {r['size']}: {r['rows']:,} rows, {r['cols']:,} columns, "
+          f"{r['nonzeros']:,} nonzeros (median of {r['repeats']})")
+    print(f"  library end to end     {r['e2e']:8.2f} s  {r['e2e_all']}  "
+          f"({r['e2e_status']}, {r['method']}, scaled={r['scaled']}, "
+          f"objective {r['e2e_objective']:.10g})")
+    print(f"    its timings: {tm}")
+    print(f"  bare {r['method']:<17} {r['bare_run']:8.2f} s  {r['bare_run_all']}  "
+          f"({r['bare_status']}, objective {r['bare_objective']:.10g}); "
+          f"transfer {r['bare_transfer']:.3f} s (numpy passModel)")
+    print(f"  overhead/solve          {overhead:8.3f}   (end to end / bare run "
+          f"{r['e2e'] / r['bare_run']:.3f})")
+    print(f"  transfer HighsLp field by field {r['transfer_field_by_field']:.3f} s = "
+          f"{r['transfer_field_by_field'] / r['bare_transfer']:.1f} × the numpy passModel")
+    print(f"  peak RSS of the process after the first end-to-end solve "
+          f"{r['peak_rss_mb']:.0f} MB")
+    for m, o in r["others"].items():
+        print(f"  bare {m:<17} {o['run']:8.2f} s  ({o['status']}, objective "
+              f"{o['objective']:.10g}); transfer {o['transfer']:.3f} s")
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("sizes", nargs="?", default=DEFAULT_SIZES,
+                    help="comma-separated SECTORSxYEARS (default %(default)s)")
+    ap.add_argument("--methods", default=",".join(METHODS),
+                    help="HiGHS methods for the bare solves (default: all)")
+    ap.add_argument("--time-limit", type=float, default=60.0,
+                    help="seconds for each method other than the library's")
+    ap.add_argument("--repeats", type=int, default=3)
+    ap.add_argument("--cheap-nonzeros", type=int, default=1_000_000,
+                    help="repeat only LPs with fewer nonzeros")
+    ap.add_argument("--child", help=argparse.SUPPRESS)
+    a = ap.parse_args()
+    methods = [m for m in a.methods.split(",") if m]
+    for m in methods:
+        if m not in METHODS:
+            raise SystemExit(f"unknown method {m!r}; known: {', '.join(METHODS)}")
+    if a.child:
+        print("RESULT " + json.dumps(child(a.child, methods, a.time_limit, a.repeats,
+                                            a.cheap_nonzeros)), flush=True)
+        return
+    print(f"highspy {highspy.Highs().version()}; methods {', '.join(methods)}; "
+          f"others limited to {a.time_limit:g} s")
+    for size in a.sizes.split(","):
+        cmd = [sys.executable, __file__, "--child", size, "--methods", ",".join(methods),
+               "--time-limit", str(a.time_limit), "--repeats", str(a.repeats),
+               "--cheap-nonzeros", str(a.cheap_nonzeros)]
+        proc = subprocess.run(cmd, capture_output=True, text=True, check=False)
+        lines = [ln for ln in proc.stdout.splitlines() if ln.startswith("RESULT ")]
+        if proc.returncode != 0 or not lines:
+            print(f"\n== {size}: failed (exit {proc.returncode})\n{proc.stderr[-2000:]}")
+            continue
+        show(json.loads(lines[-1][len("RESULT "):]))
+
+
+if __name__ == "__main__":
+    main()
