@@ -78,7 +78,8 @@ class PlanResult:
     diagnosis : Diagnosis or None
         Shortfalls of an infeasible plan.
     timings : dict of str to float
-        Seconds for validate, compile, transfer (the model handed to the solver, when the back end times it), solve, post-process and audit.
+        Seconds for validate, compile, transfer (the model handed to the
+        solver, when the back end times it), solve, post-process and audit.
     solver : dict
         Method, iterations, options and versions.
     warnings : list of str
