@@ -221,8 +221,9 @@ class Lexicographic(Objective):
     """Optimise the first objective, then each next one with the earlier ones held.
 
     Each earlier optimum ``f*`` is kept within ``tolerance`` (relative):
-    ``f ≥ f* − tolerance·max(1, |f*|)`` for a maximised objective, ``≤`` the
-    mirror for a minimised one.
+    ``f ≥ f* − tolerance·|f*|`` for a maximised objective, ``≤`` the mirror
+    for a minimised one (``|f*|`` measured as the sum of the absolute values
+    of its terms, so it does not depend on the objective's unit).
     """
 
     kind: Literal["lexicographic"] = "lexicographic"

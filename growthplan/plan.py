@@ -455,6 +455,10 @@ class Plan(Model):
             if tg.quantity == "consumption" and self.consumption is None:
                 raise Rule("come with a consumption part in the plan", tg.required,
                            field=f"targets.{i}.consumption_at_least")
+            if tg.quantity == "consumption" and tg.sector is not None and tg.required > 0 \
+                    and lowering.basket(self)[names.index(tg.sector)] == 0:
+                raise Rule("name a commodity of the consumption basket (a share of 0 can "
+                           "never be consumed)", tg.sector, field=f"targets.{i}.sector")
         for i, sc in enumerate(self.starts_ceilings):
             if sc.sector not in names:
                 raise Rule(f"name a sector of the economy ({', '.join(names)})", sc.sector,

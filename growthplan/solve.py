@@ -80,8 +80,9 @@ def optimise(lp: LinearProgram, backend: Any, *, stop: Any = None, callback: Any
     """Solve ``lp`` through its objective stages.
 
     After each stage but the last its optimum ``f*`` is held by an added row
-    (``c·v ≥ f* − tol·max(1, |f*|)`` when maximising, the mirror when
-    minimising) and the next stage's cost is optimised.
+    (``c·v ≥ f* − tol·Σ|c_j v_j|`` when maximising, the mirror when
+    minimising; ``Σ|c_j v_j|`` is ``|f*|`` when the terms share a sign) and
+    the next stage's cost is optimised.
 
     Returns
     -------
@@ -97,7 +98,9 @@ def optimise(lp: LinearProgram, backend: Any, *, stop: Any = None, callback: Any
             break
         prev = stages[i - 1]
         f = float(prev.cost @ outcome.x)
-        slack = prev.tolerance * max(1.0, abs(f))
+        # relative to the stage's own terms, never to a fixed 1 (an objective in small
+        # units would otherwise be released by far more than its tolerance)
+        slack = prev.tolerance * max(abs(f), float(np.abs(prev.cost * outcome.x).sum()))
         held.append(f)
         lo, up = (f - slack, np.inf) if prev.sense == "max" else (-np.inf, f + slack)
         lp = lp.add_rows("held_objective", sparse.csr_array(prev.cost[None, :]),

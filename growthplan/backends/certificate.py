@@ -77,9 +77,10 @@ def optimality_gap(lp: LinearProgram, x: np.ndarray, y: np.ndarray, *,
     missing bound, make the dual bound infinite. Zero (to rounding) certifies
     that ``x`` is optimal.
 
-    The gap is relative to ``max(1, |primal|)``; with ``strict`` it is relative
-    to ``max(|primal|, |dual|)`` alone, for programmes whose units make the
-    objective's own size far from 1 (entries spanning more than ``SCALE_RANGE``).
+    The gap is relative to the objective's own size, ``max(|primal|, |dual|)``
+    (with a floor of ``1e-6 max|c| max|x|`` for an optimum of zero), so it
+    means the same whatever unit the objective is measured in. ``strict`` is
+    kept for callers of the earlier signature and changes nothing.
     """
     sigma = 1.0 if lp.sense == "max" else -1.0
     row_sign = lp.row_sign
@@ -101,10 +102,12 @@ def optimality_gap(lp: LinearProgram, x: np.ndarray, y: np.ndarray, *,
     bound[lo] = lp.col_lower[lo]
     dual = float(np.sum(np.where(np.isfinite(rhs), rhs, 0.0) * y) + np.sum(rc * bound))
     primal = float(lp.cost @ x)
-    if strict:
-        size = max(abs(primal), abs(dual))
-        return abs(dual - primal) / size if size > 0 else 0.0
-    return abs(dual - primal) / max(1.0, abs(primal))
+    # relative to the objective's own size, never to a fixed 1: an objective in
+    # small units (labour in millions of person-years, say) would otherwise pass
+    # on any feasible point; the floor only matters for an optimum of zero
+    size = max(abs(primal), abs(dual),
+               1e-6 * float(np.abs(lp.cost).max(initial=0.0)) * float(np.abs(x).max(initial=0.0)))
+    return abs(dual - primal) / size if size > 0 else 0.0
 
 
 def valid_ray(lp: LinearProgram, ray: np.ndarray, tol: float = 1e-7) -> bool:

@@ -10,7 +10,8 @@ For each plan year, with base-year prices ``p`` (one per commodity):
   unused (``p·(x + m − e − A x − W z − h κ − g)``), shown separately so the
   identity GDP = final uses + disposal is exact;
 * employment by labour kind, retirements of capacity valued at the capital
-  goods they embody (``Σ_j (p·b_j) × retired_j``);
+  goods they embody (``Σ_j (p·b_j) × retired_j``; with technical change each
+  vintage at the capital coefficients of its start year);
 * growth rates of the main aggregates (real, since all are at base-year prices).
 
 Every aggregate is a sum of values, so it does not change when a sector's unit
@@ -36,6 +37,33 @@ def _trade(d: PlanData, s: Schedules) -> tuple[np.ndarray, np.ndarray]:
     if s.exports is not None and d.exports is not None:
         exp = s.exports @ d.prices[d.exports.index]
     return exp, imp
+
+
+def _retired_value(d: PlanData, s: Schedules) -> np.ndarray:
+    """Value of the capacity retired in each year, vintage by vintage.
+
+    Capacity started in plan year ``τ`` is valued at the capital goods it
+    embodies, ``p·b_τ``; capacity from before the plan at the base year's.
+    What retires during year ``t`` is ``(S(a) − S(a + 1))`` of each vintage of
+    age ``a`` in year ``t``.
+    """
+    p = d.prices
+    out = np.zeros(d.T)
+    base_value = p @ d.b
+    for j in range(d.n):
+        surv = np.append(d.surv_full[j], 0.0)  # S(a) = 0 past the profile's end
+        last = surv.size - 1
+        theta = int(d.theta[j])
+        out += (d.initial[:-1, j] - d.initial[1:, j]) * base_value[j]
+        vintages = [(-(k + 1), v, base_value[j]) for k, v in enumerate(d.pipeline[j][::-1])]
+        vintages += [(tau, s.starts[tau, j], float(p @ d.b_at(tau)[:, j])) for tau in range(d.T)]
+        for tau, amount, value in vintages:
+            for t in range(d.T):
+                age = t - tau - theta
+                if age >= 0:
+                    out[t] += amount * value * (surv[min(age, last)]
+                                                - surv[min(age + 1, last)])
+    return out
 
 
 def national_accounts(d: PlanData, s: Schedules, retirements: np.ndarray) -> pd.DataFrame:
@@ -73,8 +101,10 @@ def national_accounts(d: PlanData, s: Schedules, retirements: np.ndarray) -> pd.
     disposal = gdp - (invest + cons + demand + exp - imp)
     disposal = np.where(np.abs(disposal) <= 1e-9 * np.maximum(np.abs(gross), 1e-300), 0.0,
                         disposal)
-    capital_value = p @ d.b  # value of the capital goods in one unit of new capacity
-    retired = retirements @ capital_value
+    if d.b_year is None:
+        retired = retirements @ (p @ d.b)  # capital goods in one unit of capacity, valued
+    else:  # each vintage valued at the capital coefficients of its own start year
+        retired = _retired_value(d, s)
     with np.errstate(divide="ignore", invalid="ignore"):
         share = np.where(gdp > 0, invest / gdp, np.nan)
     out = pd.DataFrame({"gross_output": gross, "intermediate_use": inter, "gdp": gdp,

@@ -84,3 +84,29 @@ def test_rates_are_fractions_and_sectors_known():
     with pytest.raises(gp.InvalidInput, match="labour_rate"):
         gp.Plan(economy=one_sector(), years=range(2030, 2035),
                 technical_change=gp.TechnicalChange(labour_rate={"nowhere": -0.01}))
+
+
+def test_retirements_are_valued_vintage_by_vintage():
+    """Without technical change the vintage-by-vintage value of retirements equals the
+    retired capacity times p·b; with falling capital coefficients, later vintages are
+    worth less, so the value is lower (recomputed here by hand for one sector)."""
+    econ = one_sector(lead_time=2, retirement="sudden_exit", life=3.0)
+    base = gp.Plan(economy=econ, years=range(2030, 2040), under_construction={"goods": [3.0, 4.0]})
+    r = assert_optimal(base.solve(method="simplex"))
+    np.testing.assert_allclose(r.accounts["retirements"], 2.0 * r.retirements["goods"],
+                               rtol=1e-12, atol=1e-12)
+    changed = base.model_copy(update={"technical_change": gp.TechnicalChange(
+        capital_rate={"goods": -0.1})})
+    c = assert_optimal(changed.solve(method="simplex"))
+    starts = c.starts["goods"].to_numpy()
+    # sudden exit at 3 years: a start of year τ serves years τ+2..τ+4 and retires in τ+4
+    expect = np.zeros(10)
+    for tau in range(10):
+        if tau + 4 < 10:
+            expect[tau + 4] += starts[tau] * 2.0 * 0.9 ** tau
+    for back, amount in ((2, 3.0), (1, 4.0)):  # started before the plan, base-year b
+        if 4 - back < 10:
+            expect[4 - back] += amount * 2.0
+    initial = c.data.initial[:, 0]
+    expect += (initial[:-1] - initial[1:]) * 2.0
+    np.testing.assert_allclose(c.accounts["retirements"], expect, rtol=1e-9, atol=1e-9)

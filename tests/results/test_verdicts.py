@@ -292,3 +292,59 @@ def test_a_vanishing_coefficient_is_zero_with_a_warning(tiny, method):
     ref = assert_optimal(gp.Plan(economy=econ(0.0), years=years, terminal=terminal).solve(
         method="simplex"))
     assert r.objective == pytest.approx(ref.objective, rel=1e-8)
+
+
+def _labour_scaled(scale: float) -> gp.Economy:
+    econ = economy(6, seed=3)
+    return gp.Economy(sectors=econ.names, input_coefficients=econ.input_coefficients,
+                      capital_coefficients=econ.capital_coefficients,
+                      labour_coefficients=np.asarray(econ.labour_coefficients) * scale,
+                      capital=econ.capital)
+
+
+@pytest.mark.parametrize("scale", [1e-6, 1e-9, 1e-12])
+@pytest.mark.parametrize("method", ["simplex", "ipm"])
+def test_small_objectives_are_certified_relative_to_their_own_size(scale, method):
+    """Least labour with labour counted in a unit 1e-12 as large is the same plan: an
+    interior-point point 50 % above the minimum once passed a gap measured against 1."""
+    def plan(s: float) -> gp.Plan:
+        return gp.Plan(economy=_labour_scaled(s), years=range(2030, 2040),
+                       consumption=gp.Consumption(basket=dict.fromkeys(economy(6).names, 1.0),
+                                                  floor=20.0, floor_growth=0.05),
+                       terminal=gp.TerminalGrowth(rate=0.03),
+                       objective=gp.objectives.LeastLabour())
+    ref = assert_optimal(plan(1.0).solve(method="simplex"))
+    r = plan(scale).solve(method=method)
+    assert r.ok or r.status is not gp.Status.OPTIMAL
+    if r.ok:
+        assert r.objective / scale == pytest.approx(ref.objective, rel=1e-6)
+
+
+def test_lexicographic_holds_a_small_first_optimum_relatively():
+    """The held first stage is kept within its tolerance of its own size, whatever unit."""
+    def solve(s: float) -> gp.PlanResult:
+        plan = gp.Plan(economy=_labour_scaled(s), years=range(2030, 2036),
+                       consumption=gp.Consumption(basket=dict.fromkeys(economy(6).names, 1.0),
+                                                  floor=20.0),
+                       terminal=gp.TerminalGrowth(rate=0.03),
+                       objective=gp.objectives.Lexicographic(
+                           [gp.objectives.LeastLabour(),
+                            gp.objectives.DiscountedConsumption(rate=0.03)]))
+        return assert_optimal(plan.solve(method="simplex"))
+
+    base, small = solve(1.0), solve(1e-9)
+    labour = base.outcome.options["held_optima"][0]
+    assert small.outcome.options["held_optima"][0] / 1e-9 == pytest.approx(labour, rel=1e-6)
+    used = small.labour[("labour", "used")].sum() / 1e-9
+    assert used <= labour * (1 + 2e-6)
+
+
+def test_a_consumption_target_outside_the_basket_is_refused():
+    econ = gp.Economy(sectors=["a", "b"], input_coefficients=[[.1, .1], [.1, .1]],
+                      capital_coefficients=[[1, .5], [.5, 1]],
+                      capital={s: gp.CapitalSpec(initial_capacity=100, mean_service_life=20)
+                               for s in "ab"})
+    with pytest.raises(gp.InvalidInput, match="targets.0.sector"):
+        gp.Plan(economy=econ, years=range(2030, 2033),
+                consumption=gp.Consumption(basket={"a": 1.0}, floor=1.0),
+                targets=[gp.Target("b", year=2031, consumption_at_least=1.0)])
