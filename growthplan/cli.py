@@ -356,14 +356,17 @@ def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Pa
     if report is not None:  # an impossible plan's report holds its diagnosis
         with _writing(report):
             click.echo(f"wrote {result.report(report, overwrite=overwrite, protect=protect)}")
-    if not result.ok:
-        return
+    if not result.ok and result.diagnosis is None:
+        return  # a stopped or unverified solve: nothing to hand on
+    # an impossible plan's folder and workbook hold its diagnosis
     if out is not None:
         with _writing(out):
             click.echo(f"wrote {result.to_csv(out, overwrite=overwrite, protect=protect)}")
     if excel is not None:
         with _writing(excel):
             click.echo(f"wrote {result.to_excel(excel, overwrite=overwrite, protect=protect)}")
+    if not result.ok:
+        return
     if charts is not None:
         import matplotlib
 

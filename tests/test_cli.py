@@ -10,6 +10,7 @@ import pytest
 import yaml
 from click.testing import CliRunner
 
+import growthplan as gp
 from growthplan.cli import main
 from growthplan.demo import DEMO_DIR
 
@@ -91,3 +92,15 @@ def test_bad_file_no_traceback(tmp_path):
 def test_help(cmd):
     res = run(*cmd, "--help")
     assert res.exit_code == 0 and "Usage" in res.output
+
+
+def test_an_impossible_plan_writes_its_diagnosis_with_exit_1(tmp_path):
+    plan = gp.demo_plan()
+    huge = plan.targets[0].model_copy(update={"capacity_at_least": 1e6})
+    path = gp.save_plan_file(plan.model_copy(update={"targets": [huge, plan.targets[1]]}),
+                             tmp_path / "plan.yaml")
+    res = CliRunner().invoke(main, ["solve", str(path), "--no-progress", "--out",
+                                    str(tmp_path / "out")])
+    assert res.exit_code == 1
+    short = (tmp_path / "out" / "shortfalls.csv").read_text(encoding="utf-8")
+    assert "capacity target" in short and "energy" in short

@@ -353,9 +353,24 @@ class PlanResult:
         out["audit"] = self.audit.checks.reset_index()
         return {k: v for k, v in out.items() if v is not None and not v.empty}
 
+    def _diagnosis_tables(self) -> dict[str, pd.DataFrame]:
+        """The diagnosis of a result that is not a plan, as tables (empty without one)."""
+        if self.diagnosis is None:
+            return {}
+        out = {"shortfalls": self.diagnosis.shortfalls}
+        subset = self.diagnosis.infeasible_subset
+        if subset is not None and not subset.empty:
+            out["conflict"] = subset
+        return {k: v for k, v in out.items() if not v.empty}
+
     def to_csv(self, folder: str | os.PathLike[str], *, overwrite: bool = False,
                protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
         """Write every table as ``<name>.csv``, with ``summary.txt``, into a folder.
+
+        A result that is not an optimal, audited plan writes what it has
+        instead: the summary and, for an impossible plan, the diagnosis
+        (``shortfalls.csv`` and ``conflict.csv``, the conditions that cannot
+        hold together, in words).
 
         Parameters
         ----------
@@ -376,7 +391,7 @@ class PlanResult:
         """
         from ..io.atomic import atomic_folder
 
-        tables = self._tables()
+        tables = self._tables() if self.ok else self._diagnosis_tables()
         with atomic_folder(folder, overwrite=overwrite, protect=protect, kind="tables") as tmp:
             for name, frame in tables.items():
                 frame.to_csv(tmp / f"{name}.csv")

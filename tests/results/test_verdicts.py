@@ -7,6 +7,7 @@ crash on the way to one. Independent references are named beside each check.
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
 import pytest
 from conftest import assert_infeasible, assert_optimal, one_sector
 from helpers import economy, make_plan
@@ -348,3 +349,15 @@ def test_a_consumption_target_outside_the_basket_is_refused():
         gp.Plan(economy=econ, years=range(2030, 2033),
                 consumption=gp.Consumption(basket={"a": 1.0}, floor=1.0),
                 targets=[gp.Target("b", year=2031, consumption_at_least=1.0)])
+
+
+def test_an_impossible_plan_exports_its_diagnosis(tmp_path):
+    plan = gp.Plan(economy=one_sector(), years=range(2030, 2040),
+                   targets=[gp.Target("goods", year=2040, capacity_at_least=500.0)])
+    r = assert_infeasible(plan.solve())
+    folder = r.to_csv(tmp_path / "out")
+    short = pd.read_csv(folder / "shortfalls.csv")
+    assert short.iloc[0]["shortfall"] == pytest.approx(500 - 100 * 1.15 ** 10, rel=1e-6)
+    assert "capacity target of goods in 2040" in (folder / "conflict.csv").read_text(
+        encoding="utf-8")
+    assert "infeasible" in (folder / "summary.txt").read_text(encoding="utf-8")
