@@ -420,7 +420,8 @@ class Economy(Model):
                        f"shape {a.shape}", field="input_coefficients")
         _nonneg(a, "input_coefficients", self.names)
         object.__setattr__(self, "input_coefficients",
-                           _drop_tiny(a, "input_coefficients", self.names, self.names))
+                           _drop_tiny(a, "input_coefficients", self.names, self.names,
+                                      self.prices))
         b = self.capital_coefficients
         if b is None:
             b = np.zeros((n, n))
@@ -431,7 +432,8 @@ class Economy(Model):
                        f"shape {b.shape}", field="capital_coefficients")
         _nonneg(b, "capital_coefficients", self.names)
         object.__setattr__(self, "capital_coefficients",
-                           _drop_tiny(b, "capital_coefficients", self.names, self.names))
+                           _drop_tiny(b, "capital_coefficients", self.names, self.names,
+                                      self.prices))
         lab = self.labour_coefficients
         if lab is not None:
             if lab.ndim != 2 or lab.shape[1] != n:
@@ -679,9 +681,15 @@ class Economy(Model):
             raise Rule("be given for dynamic balanced growth", None, field="capital")
         specs = [self.capital[s] for s in self.names]
         util = np.array([c.max_utilisation for c in specs])
-        g, v = steady.dynamic_growth(np.asarray(self.input_coefficients),
-                                     np.asarray(self.capital_coefficients),
-                                     [c.deliveries_per_capacity for c in specs], util)
+        # in value terms (p_i m_ij / p_j) the matrices do not depend on the units the
+        # sectors are measured in, so neither does the accuracy of the eigen-solver
+        p = self.prices
+        a_v = p[:, None] * np.asarray(self.input_coefficients) / p[None, :]
+        b_v = p[:, None] * np.asarray(self.capital_coefficients) / p[None, :]
+        g, v_value = steady.dynamic_growth(a_v, b_v, [c.deliveries_per_capacity for c in specs],
+                                           util)
+        v = v_value / p
+        v = v / v.sum() if v.sum() > 0 else v
         irreducible, period = steady.structure(
             np.asarray(self.input_coefficients) + np.asarray(self.capital_coefficients))
         return steady.BalancedGrowth(
@@ -820,12 +828,19 @@ class Economy(Model):
 TINY_COEFFICIENT = 1e-12  # relative to the largest entry of the same column
 
 
-def _drop_tiny(m: np.ndarray, field: str, rows: list[str], cols: list[str]) -> np.ndarray:
-    """A read-only copy of ``m`` without entries negligible next to their column."""
+def _drop_tiny(m: np.ndarray, field: str, rows: list[str], cols: list[str],
+               row_prices: np.ndarray | None = None) -> np.ndarray:
+    """A read-only copy of ``m`` without entries negligible next to their column.
+
+    With ``row_prices`` (the base-year price of each row's commodity) entries
+    are compared as values, ``p_i m_ij``, so the rule does not depend on the
+    units commodities are measured in.
+    """
     if m.size == 0:
         return m
-    top = m.max(axis=0)
-    tiny = (m > 0) & (m < TINY_COEFFICIENT * top[None, :])
+    valued = m if row_prices is None else m * row_prices[:, None]
+    top = valued.max(axis=0)
+    tiny = (m > 0) & (valued < TINY_COEFFICIENT * top[None, :])
     if not tiny.any():
         return m
     out = m.copy()

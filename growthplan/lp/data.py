@@ -261,7 +261,8 @@ def terminal_proportions(plan: Plan) -> tuple[np.ndarray, str]:
         return p / (prices @ p), "given"
     try:
         v = econ.dynamic_balanced_growth().proportions.to_numpy()
-        if np.all(v > 1e-12):
+        valued = v * prices  # judged in value: a sector in small units is not "zero"
+        if np.all(valued > 1e-12 * valued.sum()):
             return v / (prices @ v), "balanced growth"
     except (ValueError, ArithmeticError):
         pass

@@ -222,3 +222,14 @@ def test_consumption_per_head():
         with pytest.raises(gp.InvalidInput, match="consumption.population"):
             gp.demo_plan().model_copy(update={"consumption": gp.Consumption(
                 floor=1.0, population=bad)})
+
+
+@pytest.mark.parametrize("f", [1e-12, 1e-16])
+def test_demo_in_far_smaller_units_is_the_same_plan(f):
+    """Beyond the supported range, energy in a unit 1e12 or 1e16 times smaller with its
+    price scaled: the balanced-growth proportions are computed in value terms, so λ is
+    unchanged (once a physical-unit positivity test dropped them)."""
+    base = assert_optimal(gp.demo_plan().solve(method="simplex"))
+    other = assert_optimal(rescale(gp.demo_plan(), "energy", f).solve(method="simplex"))
+    assert other.data.proportions_source == "balanced growth"
+    assert other.objective == pytest.approx(base.objective, rel=1e-9)
