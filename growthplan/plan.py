@@ -89,8 +89,9 @@ class LabourSupply(Model):
             ``start (1 + growth)^t`` for plan year ``t = 0, 1, …``, or ``series``
             checked to give one value >= 0 per plan year.
         """
-        return _series(self.start if self.series is None else self.series, years,
-                       "labour.series", self.growth)
+        field = "labour.start" if self.series is None else "labour.series"
+        return _series(self.start if self.series is None else self.series, years, field,
+                       self.growth)
 
 
 class Consumption(Model):
@@ -432,13 +433,13 @@ class Plan(Model):
             if ls.kind not in kinds:
                 raise Rule(f"name a labour kind of the economy {kinds}", ls.kind,
                            field=f"labour.{i}.kind")
-            ls.path(self.years)
+        lowering.labour_supply(self)  # every series checked, with its field named
         if len({ls.kind for ls in self.labour}) != len(self.labour):
             raise Rule("give each labour kind once", [ls.kind for ls in self.labour],
                        field="labour")
+        basket = lowering.basket(self)
         if self.consumption is not None:
             lowering.consumption_floor(self)
-            lowering.basket(self)
             pop = lowering.population(self)
             if pop is not None and np.any(pop <= 0):
                 raise Rule("be > 0 in every plan year", self.consumption.population,
@@ -456,7 +457,7 @@ class Plan(Model):
                 raise Rule("come with a consumption part in the plan", tg.required,
                            field=f"targets.{i}.consumption_at_least")
             if tg.quantity == "consumption" and tg.sector is not None and tg.required > 0 \
-                    and lowering.basket(self)[names.index(tg.sector)] == 0:
+                    and basket[names.index(tg.sector)] == 0:
                 raise Rule("name a commodity of the consumption basket (a share of 0 can "
                            "never be consumed)", tg.sector, field=f"targets.{i}.sector")
         for i, sc in enumerate(self.starts_ceilings):

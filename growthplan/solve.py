@@ -177,6 +177,25 @@ def _audited(final_lp: LinearProgram, outcome: SolverOutcome, tol: float,
     return sched, audit(d, sched, tolerance=tol)
 
 
+def _another_method(final_lp: LinearProgram, backend: Any, stop: Any, tol: float, reason: str,
+                    *, unbounded: bool = False) -> tuple[SolverOutcome, Any, Any] | None:
+    """The first of the back end's alternatives that gives an audited optimum.
+
+    With ``unbounded`` an alternative's verdict of unboundedness is taken too
+    (its schedules and audit are then None). None when no alternative helps.
+    """
+    for alt in backend.alternatives():
+        again = alt.solve(final_lp, stop=stop)
+        if again.status is Status.OPTIMAL:
+            sched, rep = _audited(final_lp, again, tol)
+            if rep.ok:
+                again.options["fallback_from"] = [reason]
+                return again, sched, rep
+        elif unbounded and again.status is Status.UNBOUNDED:
+            return again, None, None
+    return None
+
+
 def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: SolverOutcome,
             backend: Any, tol: float, timings: dict[str, float], stop: Any) -> PlanResult:
     t0 = time.perf_counter()
@@ -188,15 +207,10 @@ def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: Sol
         sched, rep = _audited(final_lp, outcome, tol, post)
         if not rep.ok:
             # another method may get it right (interior point on badly scaled plans)
-            for alt in backend.alternatives():
-                again = alt.solve(final_lp, stop=stop)
-                if again.status is Status.OPTIMAL:
-                    s2, r2 = _audited(final_lp, again, tol)
-                    if r2.ok:
-                        again.options["fallback_from"] = [
-                            f"{outcome.method}: audit violation {rep.max_violation:.3g}"]
-                        outcome, sched, rep = again, s2, r2
-                        break
+            found = _another_method(final_lp, backend, stop, tol,
+                                    f"{outcome.method}: audit violation {rep.max_violation:.3g}")
+            if found is not None and found[0].status is Status.OPTIMAL:
+                outcome, sched, rep = found
         if not rep.ok:
             status = Status.NOT_VERIFIED
             notes.append(f"The solver said optimal but the audit found a violation of "
@@ -223,18 +237,11 @@ def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: Sol
             # the plan is feasible: the solver's verdict was wrong or it gave up
             notes.append(f"The solver reported {status.value} ({outcome.message}) but the "
                          "elastic re-solve found a plan meeting every condition.")
-            for alt in backend.alternatives():
-                again = alt.solve(final_lp, stop=stop)
-                if again.status is Status.OPTIMAL:
-                    s2, r2 = _audited(final_lp, again, tol)
-                    if r2.ok:
-                        again.options["fallback_from"] = [f"{outcome.method}: {status.value}"]
-                        outcome, sched, rep, status = again, s2, r2, Status.OPTIMAL
-                        diagnosis = None
-                        break
-                elif again.status is Status.UNBOUNDED:
-                    outcome, status, diagnosis = again, Status.UNBOUNDED, None
-                    break
+            found = _another_method(final_lp, backend, stop, tol,
+                                    f"{outcome.method}: {status.value}", unbounded=True)
+            if found is not None:
+                outcome, sched, rep = found
+                status, diagnosis = outcome.status, None
             if status is Status.INFEASIBLE:
                 status = Status.UNKNOWN
     if plan.terminal is None and status is Status.OPTIMAL:

@@ -193,9 +193,13 @@ def population(plan: Plan) -> np.ndarray | None:
 
 def labour_supply(plan: Plan) -> np.ndarray:
     """Labour available, kinds with a supply × years."""
-    rows = [series(ls.start if ls.series is None else ls.series, plan.years,
-                   f"labour.{i}.series" if ls.series is not None else f"labour.{i}.start",
-                   ls.growth) for i, ls in enumerate(plan.labour)]
+    rows = []
+    for i, ls in enumerate(plan.labour):
+        try:
+            rows.append(ls.path(plan.years))
+        except Rule as exc:  # name the supply's place in the plan
+            exc.field = (exc.field or "").replace("labour.", f"labour.{i}.", 1)
+            raise
     return np.array(rows).reshape(len(plan.labour), len(plan.years))
 
 
