@@ -6,7 +6,7 @@ import numpy as np
 
 import growthplan as gp
 
-__all__ = ["economy", "make_plan"]
+__all__ = ["economy", "make_plan", "rescale", "two_sector", "random_plan"]
 
 
 def economy(n: int, seed: int = 1) -> gp.Economy:
@@ -81,3 +81,28 @@ def rescale(plan: gp.Plan, sector: str, f: float) -> gp.Plan:
             basket_d[sector] *= f
         fields["consumption"] = plan.consumption.model_copy(update={"basket": basket_d})
     return gp.Plan(**fields)
+
+
+def two_sector() -> gp.Economy:
+    """Machinery is the capital good; food is consumed. Invented for these tests."""
+    return gp.Economy(
+        sectors=["food", "machinery"], input_coefficients=[[0.2, 0.1], [0.1, 0.2]],
+        capital_coefficients=[[0.0, 0.0], [1.5, 2.0]], labour_coefficients=[[0.4, 0.3]],
+        consumption_basket=[1.0, 0.0],
+        capital={"food": gp.CapitalSpec(initial_capacity=100, mean_service_life=20),
+                 "machinery": gp.CapitalSpec(initial_capacity=40, mean_service_life=15)})
+
+
+def random_plan(seed: int, n: int, T: int, profile: str = "geometric",
+                lead: int = 1) -> tuple[gp.Plan, np.ndarray]:
+    """A random plan with labour, a consumption floor and terminal growth, and ``I − A``."""
+    from conftest import random_economy
+
+    rng = np.random.default_rng(seed)
+    econ = random_economy(rng, n, profile=profile, lead=lead)
+    base = (np.eye(n) - econ.input_coefficients)
+    supply = float(np.asarray(econ.labour_coefficients).sum() * 120)
+    return gp.Plan(economy=econ, years=range(2030, 2030 + T),
+                   labour=gp.LabourSupply(start=supply, growth=0.01),
+                   consumption=gp.Consumption(floor=float(rng.uniform(1, 5))),
+                   terminal=gp.TerminalGrowth(rate=0.02)), base

@@ -7,22 +7,13 @@ import math
 import numpy as np
 import pytest
 from conftest import assert_optimal, one_sector
+from helpers import two_sector
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import growthplan as gp
 
 YEARS = range(2030, 2040)
-
-
-def two_sector() -> gp.Economy:
-    """Machinery is the capital good; food is consumed. Invented for these tests."""
-    return gp.Economy(
-        sectors=["food", "machinery"], input_coefficients=[[0.2, 0.1], [0.1, 0.2]],
-        capital_coefficients=[[0.0, 0.0], [1.5, 2.0]], labour_coefficients=[[0.4, 0.3]],
-        consumption_basket=[1.0, 0.0],
-        capital={"food": gp.CapitalSpec(initial_capacity=100, mean_service_life=20),
-                 "machinery": gp.CapitalSpec(initial_capacity=40, mean_service_life=15)})
 
 
 def trade_plan(inflow: float, *, exports: bool = True) -> gp.Plan:

@@ -6,7 +6,8 @@ import numpy as np
 import pandas as pd
 import pulp
 import pytest
-from conftest import assert_optimal, one_sector, random_economy
+from conftest import assert_optimal, one_sector
+from helpers import random_plan
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.optimize import linprog
@@ -170,15 +171,7 @@ class TestConditions:
         assert fd == {"goods": [1.0] * 10}
 
 
-def _plan(seed: int, n: int, T: int, profile: str = "geometric", lead: int = 1):
-    rng = np.random.default_rng(seed)
-    econ = random_economy(rng, n, profile=profile, lead=lead)
-    base = (np.eye(n) - econ.input_coefficients)
-    supply = float(np.asarray(econ.labour_coefficients).sum() * 120)
-    return gp.Plan(economy=econ, years=range(2030, 2030 + T),
-                   labour=gp.LabourSupply(start=supply, growth=0.01),
-                   consumption=gp.Consumption(floor=float(rng.uniform(1, 5))),
-                   terminal=gp.TerminalGrowth(rate=0.02)), base
+_plan = random_plan
 
 
 class TestDuality:

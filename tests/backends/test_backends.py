@@ -15,7 +15,7 @@ import numpy as np
 import pulp
 import pytest
 from conftest import assert_infeasible, assert_optimal, one_sector
-from test_objectives_trade import two_sector
+from helpers import two_sector
 
 import growthplan as gp
 from growthplan.backends.base import Feature

@@ -10,10 +10,10 @@ import pulp
 import pytest
 from conftest import assert_optimal, one_sector
 from helpers import economy, make_plan
+from helpers import random_plan as _plan
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from pulp.apis import coin_api
-from test_plan import _plan
 
 import growthplan as gp
 from growthplan.backends.certificate import optimality_gap
