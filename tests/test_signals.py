@@ -16,7 +16,7 @@ from click.testing import CliRunner
 from conftest import random_economy
 
 import growthplan as gp
-from growthplan import cli
+from growthplan.cli import base as cli
 from growthplan.cli import main
 from growthplan.demo import DEMO_DIR
 
