@@ -8,6 +8,18 @@ from importlib.metadata import PackageNotFoundError, version
 
 from . import backends, capital, objectives
 from .backends import HighsBackend, PulpBackend, Status
+from .choice import (
+    ActivityTable,
+    CheapestTechniques,
+    VonNeumannChoice,
+    WageProfitFrontier,
+    activity_table,
+    activity_table_from_economy,
+    cheapest_techniques,
+    plot_wage_profit,
+    von_neumann_choice,
+    wage_profit_frontier,
+)
 from .demo import DEMO_DIR, demo_economy, demo_plan
 from .economy import CapitalSpec, Economy, Sector
 from .errors import (
@@ -133,4 +145,14 @@ __all__ = [
     "reoptimise",
     "robust_plan",
     "stress_test",
+    "ActivityTable",
+    "CheapestTechniques",
+    "VonNeumannChoice",
+    "WageProfitFrontier",
+    "activity_table",
+    "activity_table_from_economy",
+    "cheapest_techniques",
+    "plot_wage_profit",
+    "von_neumann_choice",
+    "wage_profit_frontier",
 ]

@@ -44,7 +44,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 import pandas as pd
 from numpy.typing import ArrayLike
-from scipy.optimize import linprog
+from scipy.optimize import brentq, linprog
 
 from .errors import invalid
 from .expanding import ExpandingEconomy, expanding_economy
@@ -702,6 +702,31 @@ class WageProfitFrontier:
     numeraire: pd.Series
 
 
+def _crossing(single: _Single, wl: np.ndarray, u: np.ndarray, s_lo: np.ndarray,
+              s_hi: np.ndarray, lo: float, hi: float) -> float:
+    """The rate where the sets ``s_lo`` and ``s_hi`` give the same prices, within a bracket.
+
+    The bisection on which set is cheapest leaves the switch point known to the
+    cost tolerance of a switch; the root of ``u · (p_lo(r) − p_hi(r))`` (both sets
+    price every commodity the same at a switch point) is exact. The bracket is
+    widened a little to hold it; without a sign change (the sets touch without
+    crossing) the bracket's midpoint is kept.
+    """
+    def gap(r: float) -> float:
+        m_r = single.advances(r)
+        a, b = _solve_set(s_lo, m_r, wl), _solve_set(s_hi, m_r, wl)
+        if a is None or b is None:
+            return float("nan")
+        return float((a - b) @ u)
+
+    pad = 1e-6 * max(1.0, abs(hi))
+    left, right = lo - pad, hi + pad
+    f_left, f_right = gap(left), gap(right)
+    if np.isfinite(f_left) and np.isfinite(f_right) and f_left * f_right < 0:
+        return float(brentq(gap, left, right, xtol=1e-15, rtol=4 * np.finfo(float).eps))
+    return 0.5 * (lo + hi)
+
+
 def _label(table: ActivityTable, s: np.ndarray) -> str:
     return ", ".join(f"{c}:{table.techniques[j]}" for c, j in zip(table.commodities, s,
                                                                   strict=True))
@@ -785,9 +810,9 @@ def wage_profit_frontier(table: ActivityTable, profit_rates: ArrayLike | None = 
         if np.array_equal(s_lo, s_hi):
             return
         if hi - lo <= tol * max(1.0, abs(hi)):
-            mid = 0.5 * (lo + hi)
-            s_mid, p_mid = solve(mid, s_lo)
-            switches.append((mid, wage_of(p_mid), _label(table, s_lo), _label(table, s_hi)))
+            at = _crossing(single, wl, u, s_lo, s_hi, lo, hi)
+            switches.append((at, wage_of(solve(at, s_lo)[1]),
+                             _label(table, s_lo), _label(table, s_hi)))
             return
         mid = 0.5 * (lo + hi)
         s_mid, _ = solve(mid, s_lo)
