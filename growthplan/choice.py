@@ -579,12 +579,49 @@ def _policy_iteration(single: _Single, r: float, wl: np.ndarray,
     raise RuntimeError(f"policy iteration did not settle in {max_iter} steps")
 
 
-def _maximal_rate(table: ActivityTable) -> float:
-    """``R``: the largest profit rate at which some technique set is productive."""
-    p, q = _von_neumann_system(table)
-    if np.any(p.sum(axis=0) <= 0):
-        return float("inf")
-    return expanding_economy(p, q).expansion_factor - 1.0
+def _maximal_rate(single: _Single, tol: float = 1e-9) -> float:
+    """``R``: the supremum of the profit rates at which some technique set is productive.
+
+    Some set is productive at ``r`` exactly when ``(B − M(r)) x ≥ 1`` has a
+    solution ``x ≥ 0`` (see :func:`_start`); by the theorem of the alternative
+    it has none exactly when some prices ``p ≥ 0``, ``p ≠ 0`` make no technique
+    lose, ``p Q ≤ (1 + r) p P`` in the von Neumann system. So ``R = β* − 1``,
+    the interest rate of :func:`von_neumann_choice` at zero wages (equal to its
+    growth rate when the system is irreducible; for a decomposable one it is
+    the slowest part that limits prices). Found by bisection on that
+    feasibility test; at ``r = −1`` every set is productive. ``inf`` when sets
+    stay productive beyond ``r = 1e6`` (a chain of techniques without a cycle
+    of produced inputs).
+    """
+    def productive(r: float) -> bool:
+        return _start(single, single.advances(r)) is not None
+
+    lo, hi = -1.0, 1.0
+    while productive(hi):
+        lo, hi = hi, 2.0 * hi
+        if hi > 1e6:
+            return float("inf")
+    while hi - lo > tol * max(1.0, abs(hi)):
+        mid = 0.5 * (lo + hi)
+        if productive(mid):
+            lo = mid
+        else:
+            hi = mid
+    # The solver's feasibility tolerance blurs the test within ~1e-9 of R; the set
+    # productive at lo is the one that reaches R, and its own limit, where
+    # ρ(M_s(r)) = 1 (the radius rises with r), is exact.
+    s = _start(single, single.advances(lo))
+    if s is None:
+        return lo
+
+    def excess(r: float) -> float:
+        return spectral_radius(single.advances(r)[:, s]) - 1.0
+
+    top = hi + 1e-6 * max(1.0, abs(hi))
+    if excess(lo) < 0 <= excess(top):
+        return max(lo, float(brentq(excess, lo, top, xtol=1e-15,
+                                    rtol=4 * np.finfo(float).eps)))
+    return lo
 
 
 def cheapest_techniques(table: ActivityTable, wage: ArrayLike | pd.Series | float = 1.0,
@@ -652,7 +689,7 @@ def cheapest_techniques(table: ActivityTable, wage: ArrayLike | pd.Series | floa
     wl = w @ single.lab
     found = _policy_iteration(single, r, wl)
     if found is None:
-        rate = _maximal_rate(table)
+        rate = _maximal_rate(single)
         raise invalid("profit_rate", f"be below the maximal profit rate R = {rate:.6g} "
                       "(no technique set is productive at it)", r)
     s, p, steps = found
@@ -690,7 +727,9 @@ class WageProfitFrontier:
     reswitching : list of str
         Sets that are cheapest on two or more separate ranges of profit rates.
     maximal_profit_rate : float
-        ``R``, where the wage falls to 0 (``inf`` when not bounded by the table).
+        ``R``: beyond it no technique set is productive and the wage has fallen
+        to 0 (``inf`` when the table does not bound it); the interest rate of
+        :func:`von_neumann_choice`.
     numeraire : pandas.Series
         The basket whose price is 1.
     """
@@ -754,7 +793,7 @@ def wage_profit_frontier(table: ActivityTable, profit_rates: ArrayLike | None = 
     profit_rates : array_like, optional
         Rates to evaluate, increasing. Default: ``points`` rates from 0 up to
         (not including) the maximal profit rate ``R``; required when ``R``
-        is unbounded (a technique with no produced inputs).
+        is unbounded (techniques without a cycle of produced inputs).
     numeraire : array_like or Series, shape (n,), optional
         The basket whose price is 1 (default one unit of every commodity).
     wage_relatives : float, array_like or Series, default 1
@@ -779,11 +818,11 @@ def wage_profit_frontier(table: ActivityTable, profit_rates: ArrayLike | None = 
         u = np.asarray(numeraire, dtype=float)
     if u.shape != (n,) or not np.all(np.isfinite(u)) or np.any(u < 0) or not np.any(u > 0):
         raise invalid("numeraire", f"be {n} finite numbers >= 0, not all 0", numeraire)
-    big_r = _maximal_rate(table)
+    big_r = _maximal_rate(single)
     if profit_rates is None:
         if not np.isfinite(big_r):
-            raise invalid("profit_rates", "be given when a technique uses no produced inputs "
-                          "or capital (the maximal profit rate is then unbounded)", None)
+            raise invalid("profit_rates", "be given when the maximal profit rate is unbounded "
+                          "(techniques without a cycle of produced inputs)", None)
         rates = np.linspace(0.0, big_r, max(int(points), 2) + 1)[:-1]
     else:
         rates = np.asarray(profit_rates, dtype=float).ravel()

@@ -228,6 +228,26 @@ class TestSwitching:
         at = gp.cheapest_techniques(t, 1.0, 0.5)
         assert at.extra_cost.abs().max() < 1e-12 and len(at.ties) == 1
 
+    def test_decomposable_maximal_rate_is_the_interest_rate(self):
+        # Two unrelated commodities: c1 by seed 0.5 (R1 = 1), c2 by seed 0.2 (R2 = 4). c2 can
+        # grow by 400 % alone, but c1 cannot be priced beyond r = 1, so R = 1, the interest
+        # rate β* − 1 of the von Neumann system (Kemeny, Morgenstern and Thompson 1956: β* is
+        # the smallest factor, α* the largest; derived by hand here).
+        t = gp.activity_table([[0.5, 0.0], [0.0, 0.2]], labour=[1.0, 1.0],
+                              produces=["c1", "c2"], commodities=["c1", "c2"])
+        vn = gp.von_neumann_choice(t)
+        assert vn.growth_rate == pytest.approx(4.0, rel=1e-8)
+        assert vn.interest_rate == pytest.approx(1.0, rel=1e-8)
+        f = gp.wage_profit_frontier(t, points=10)
+        assert f.maximal_profit_rate == pytest.approx(1.0, rel=1e-10)
+        r = f.table["profit_rate"].to_numpy()
+        # u = (1, 1): p1 = w/(1 − 0.5x), p2 = w/(1 − 0.2x), x = 1 + r
+        np.testing.assert_allclose(f.table["wage"],
+                                   1 / (1 / (1 - 0.5 * (1 + r)) + 1 / (1 - 0.2 * (1 + r))),
+                                   rtol=1e-10)
+        with pytest.raises(gp.InvalidInput, match="R = 1"):
+            gp.cheapest_techniques(t, 1.0, 1.0)
+
     def test_profit_rate_beyond_the_maximum_is_refused(self):
         with pytest.raises(gp.InvalidInput, match=r"profit_rate must be below the maximal "
                                                   r"profit rate R = 4"):
