@@ -233,7 +233,8 @@ def activity_table(inputs: ArrayLike | pd.DataFrame, outputs: ArrayLike | pd.Dat
     elif np.any(b[[rows.index(c) for c in prod], np.arange(m)] <= 0):
         raise invalid("produces", "name a commodity each technique outputs", prod)
     if isinstance(labour, pd.Series):
-        labour = labour.to_frame().T if labour.index.isin(cols).all() else labour
+        if labour.index.isin(cols).all():
+            labour = labour.rename(labour.name or "labour").to_frame().T
     if isinstance(labour, pd.DataFrame):
         lab, kinds, _ = _matrix(labour, "labour", list(map(str, labour.index)), cols)
     else:
@@ -403,7 +404,9 @@ def von_neumann_choice(table: ActivityTable, *, wage_basket: ArrayLike | pd.Seri
     table : ActivityTable
     wage_basket : array_like or Series, shape (n,), optional
         Commodities consumed per unit of labour (all kinds); without it labour
-        is not a constraint and the growth rate is the maximal profit rate ``R``.
+        is not a constraint and the interest rate is the maximal profit rate
+        ``R`` of :func:`wage_profit_frontier` (the growth rate too, when the
+        system is irreducible).
     tol : float, default 1e-11
         Relative tolerance of the bisection.
 

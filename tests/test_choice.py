@@ -79,6 +79,13 @@ class TestActivityTable:
         assert t.outputs.loc["grain", "g_new"] == 1.0 and t.outputs.loc["steel", "s"] == 1.0
         assert not t.joint_production
         assert t.capital.to_numpy().sum() == 0 and t.depreciation.sum() == 0
+        by_label = gp.activity_table(a, labour=pd.Series({"s": 2.0, "g_old": 1.0,
+                                                          "g_new": 0.5}),
+                                     produces=pd.Series({"s": "steel", "g_old": "grain",
+                                                         "g_new": "grain"}))
+        assert by_label.labour_kinds == ["labour"]
+        assert by_label.labour.loc["labour"].tolist() == [1.0, 0.5, 2.0]
+        assert by_label.produces.tolist() == ["grain", "grain", "steel"]
 
     def test_products_inferred_from_outputs(self):
         t = gp.activity_table([[0.1, 0.2], [0.2, 0.1]], [[2.0, 0.0], [0.5, 1.0]],
