@@ -724,7 +724,8 @@ class WageProfitFrontier:
         Tidy: ``profit_rate``, ``wage`` (wage units per unit of the numeraire),
         ``techniques`` (the cheapest set, ``commodity:technique`` joined by
         ``", "``) and ``switch`` (True on the rows added at switch points,
-        where the two sets on either side give the same wage).
+        where the two sets on either side give the same wage; such a row
+        lists the set that takes over).
     switch_points : pandas.DataFrame
         ``profit_rate``, ``wage``, ``before`` and ``after`` (the sets on either side).
     reswitching : list of str

@@ -278,20 +278,22 @@ class TestPolicyIterationAgainstLP:
         assert got.extra_cost.min() > -1e-10
         assert (got.extra_cost[got.techniques.to_numpy()].abs() < 1e-10).all()
 
-    def test_frontier_is_the_envelope_of_every_set(self):
+    @pytest.mark.parametrize("seed, capital", [(11, False), (12, True), (13, True)])
+    def test_frontier_is_the_envelope_of_every_set(self, seed, capital):
         # Brute force over all 2·3·2 sets: the frontier's wage is the largest wage of any
-        # productive set at each rate (the envelope; definition).
+        # productive set at each rate, switch points included (the envelope; definition).
         import itertools
 
-        rng = np.random.default_rng(11)
-        t = random_table(rng, [2, 3, 2])
+        rng = np.random.default_rng(seed)
+        t = random_table(rng, [2, 3, 2], capital=capital)
         a, lab = t.inputs.to_numpy(), t.labour.to_numpy()[0]
+        k, d = t.capital.to_numpy(), t.depreciation.to_numpy()
         groups = [np.nonzero(t.produces.to_numpy() == c)[0] for c in t.commodities]
         f = gp.wage_profit_frontier(t, points=15)
         for r, w in zip(f.table["profit_rate"], f.table["wage"], strict=True):
             best = 0.0
             for s in itertools.product(*groups):
-                ms = (1 + r) * a[:, list(s)]
+                ms = (1 + r) * a[:, list(s)] + k[:, list(s)] * (r + d[list(s)])
                 if max(abs(np.linalg.eigvals(ms))) < 1:
                     p = np.linalg.solve((np.eye(3) - ms).T, lab[list(s)])
                     best = max(best, 1 / p.sum())
