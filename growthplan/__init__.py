@@ -24,6 +24,7 @@ from .errors import (
     UnproductiveEconomy,
 )
 from .expanding import ExpandingEconomy, expanding_economy
+from .io.build import BuildReport, build_economy, economy_spec_schema, write_economy
 from .io.planfile import load_plan_file, plan_file_schema, save_plan_file
 from .io.supply_use import SupplyUseTable, SymmetricTable
 from .io.tables import TransactionsTable, read_transactions
@@ -133,4 +134,8 @@ __all__ = [
     "reoptimise",
     "robust_plan",
     "stress_test",
+    "BuildReport",
+    "build_economy",
+    "economy_spec_schema",
+    "write_economy",
 ]

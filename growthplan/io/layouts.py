@@ -481,16 +481,6 @@ def _totals(loc: LocatedTable, totals: set[str], skip: set[str], tol: float
     tcols = [c for c in f.columns if c.lower() in totals]
     drows = [r for r in f.index if r not in trows and r not in skip]
     dcols = [c for c in f.columns if c not in tcols and c not in skip]
-    for t in trows:
-        sums = f.loc[drows].sum(axis=0)
-        for c in f.columns:
-            if c in skip:
-                continue
-            total, got = float(f.at[t, c]), float(sums[c])
-            if abs(total - got) > tol * abs(total) + 1e-9 * max(abs(total), 1.0):
-                raise loc.error(t, c, f"equal the sum of the rows above within "
-                                f"{100 * tol:g} % (it is a totals row; the rows sum to "
-                                f"{got:.6g})", total)
     for t in tcols:
         sums = f[dcols].sum(axis=1)
         for r in f.index:
@@ -501,6 +491,16 @@ def _totals(loc: LocatedTable, totals: set[str], skip: set[str], tol: float
                 raise loc.error(r, t, f"equal the sum of the other columns of its row "
                                 f"within {100 * tol:g} % (it is a totals column; they sum "
                                 f"to {got:.6g})", total)
+    for t in trows:
+        sums = f.loc[drows].sum(axis=0)
+        for c in f.columns:
+            if c in skip:
+                continue
+            total, got = float(f.at[t, c]), float(sums[c])
+            if abs(total - got) > tol * abs(total) + 1e-9 * max(abs(total), 1.0):
+                raise loc.error(t, c, f"equal the sum of the rows above within "
+                                f"{100 * tol:g} % (it is a totals row; the rows sum to "
+                                f"{got:.6g})", total)
     frame = f.loc[drows, dcols]
     if frame.empty:
         raise invalid(loc.where(), "hold data besides totals", list(f.index)[:5])
