@@ -466,6 +466,13 @@ def _capital_stocks(files: _Files, spec: EconomySpec, products: list[str],
     if (life < 1).any():
         raise invalid("capital.service_life", "be years >= 1", float(life.min()))
 
+    def shares(comp: pd.Series | pd.DataFrame) -> pd.Series | pd.DataFrame:
+        unknown = [str(r) for r in comp.index if str(r) not in products]
+        if unknown:
+            raise invalid("capital.composition", "name products of the supply table",
+                          unknown[:5])
+        return comp.reindex(products).fillna(0.0)  # products not invested in: zero
+
     def matrix(t: LocatedTable) -> pd.DataFrame:
         for r in t.frame.index:
             if r not in products:
@@ -494,7 +501,8 @@ def _capital_stocks(files: _Files, spec: EconomySpec, products: list[str],
         assumptions.append(f"Capital: composition from the capital-flows table; {steady}.")
     elif source == "investment":
         inv = files.values(cap.investment, "capital.investment")  # type: ignore[arg-type]
-        comp = files.values(cap.composition, "capital.composition")  # type: ignore[arg-type]
+        comp = shares(files.values(cap.composition,  # type: ignore[arg-type]
+                                   "capital.composition"))
         flows = investment_matrix(inv, comp, products=products)
         flows = flows.reindex(columns=industries)
         if flows.isna().any().any():
@@ -507,7 +515,8 @@ def _capital_stocks(files: _Files, spec: EconomySpec, products: list[str],
     else:
         ratios = files.values(cap.capital_output_ratios,  # type: ignore[arg-type]
                               "capital.capital_output_ratios")
-        comp = files.values(cap.composition, "capital.composition")  # type: ignore[arg-type]
+        comp = shares(files.values(cap.composition,  # type: ignore[arg-type]
+                                   "capital.composition"))
         b = capital_coefficients_from_ratios(ratios, comp, products=products)
         b = b.reindex(columns=industries)
         if b.isna().any().any():
