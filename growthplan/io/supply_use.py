@@ -48,6 +48,12 @@ used: every user of a product takes the same share of imports,
 ``m_k / (total use of k less exports)`` (a final-demand column named
 ``exports`` is taken as wholly domestic). Imported inputs by industry are
 then a row beside value added, turned like it.
+
+Aggregation
+-----------
+:meth:`SupplyUseTable.aggregate` merges products and industries by
+concordances before the transformation: every table is summed over the
+merged codes and its grand total checked to be kept.
 """
 
 from __future__ import annotations
