@@ -36,6 +36,7 @@ from .errors import (
     UnproductiveEconomy,
 )
 from .expanding import ExpandingEconomy, expanding_economy
+from .io.build import BuildReport, build_economy, economy_spec_schema, write_economy
 from .io.planfile import load_plan_file, plan_file_schema, save_plan_file
 from .io.supply_use import SupplyUseTable, SymmetricTable
 from .io.tables import TransactionsTable, read_transactions
@@ -155,4 +156,8 @@ __all__ = [
     "plot_wage_profit",
     "von_neumann_choice",
     "wage_profit_frontier",
+    "BuildReport",
+    "build_economy",
+    "economy_spec_schema",
+    "write_economy",
 ]

@@ -32,3 +32,14 @@ def test_docstring_examples(module):
     mod = importlib.import_module(f"growthplan.{module}")
     failures, tried = doctest.testmod(mod, optionflags=doctest.NORMALIZE_WHITESPACE)
     assert tried > 0 and failures == 0
+
+
+def test_readme_supply_use_example_runs(tmp_path, monkeypatch):
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    block = re.search(r"## From supply and use tables.*?```python\n(.*?)```", text,
+                      re.S).group(1)
+    monkeypatch.chdir(tmp_path)
+    namespace: dict = {}
+    exec(compile(block, "README.md", "exec"), namespace)  # noqa: S102 - our own README
+    assert (tmp_path / "arvenna-economy" / "assumptions.md").exists()
+    assert namespace["econ"].n == 5

@@ -8,6 +8,7 @@ Exit codes: 0 optimal plan (or success), 1 infeasible plan, 2 invalid input,
 3 solver failure or interrupt, 4 unbounded plan.
 """
 
+from . import economy as _economy  # noqa: F401 - registers the economy commands
 from . import plan as _plan  # noqa: F401 - registers the plan commands
 from .base import main
 

@@ -5,7 +5,10 @@
 or Excel), :mod:`~growthplan.io.supply_use` turns supply and use tables into
 symmetric ones, :mod:`~growthplan.io.balancing` updates a matrix to new
 totals (RAS, GRAS), :mod:`~growthplan.io.capital_flows` estimates capital
-coefficients, and :mod:`~growthplan.io.atomic` is the one writer every export
+coefficients, :mod:`~growthplan.io.layouts` reads the tables offices publish
+(wide and long), :mod:`~growthplan.io.employment` labour by kind,
+:mod:`~growthplan.io.build` the economy spec that turns them into an
+economy, and :mod:`~growthplan.io.atomic` is the one writer every export
 goes through (written aside, renamed into place only on success).
 
 The names below are loaded on first use, so that ``growthplan.io.atomic``
@@ -22,7 +25,14 @@ from .atomic import atomic_file, atomic_files, atomic_folder
 
 if TYPE_CHECKING:
     from .balancing import Balanced, gras, ras
-    from .capital_flows import capital_coefficients_from_ratios, investment_matrix
+    from .build import BuildReport, EconomySpec, build_economy, economy_spec_schema, write_economy
+    from .capital_flows import (
+        capital_coefficients_from_ratios,
+        investment_matrix,
+        stocks_from_investment,
+    )
+    from .employment import Employment, employment_table, labour_coefficients
+    from .layouts import LAYOUT_VERSION, LocatedTable, TableLayout, read_table
     from .planfile import (
         EconomyTables,
         PlanFile,
@@ -53,6 +63,12 @@ _LAZY = {
     "Balanced": "balancing", "ras": "balancing", "gras": "balancing",
     "capital_coefficients_from_ratios": "capital_flows", "investment_matrix": "capital_flows",
     "MODELS": "supply_use", "SupplyUseTable": "supply_use", "SymmetricTable": "supply_use",
+    "BuildReport": "build", "EconomySpec": "build", "build_economy": "build",
+    "economy_spec_schema": "build", "write_economy": "build",
+    "Employment": "employment", "employment_table": "employment",
+    "labour_coefficients": "employment",
+    "LAYOUT_VERSION": "layouts", "LocatedTable": "layouts", "TableLayout": "layouts",
+    "read_table": "layouts", "stocks_from_investment": "capital_flows",
 }
 
 __all__ = [
@@ -81,6 +97,19 @@ __all__ = [
     "read_transactions",
     "save_plan_file",
     "write_coefficient_tables",
+    "BuildReport",
+    "EconomySpec",
+    "Employment",
+    "LAYOUT_VERSION",
+    "LocatedTable",
+    "TableLayout",
+    "build_economy",
+    "economy_spec_schema",
+    "employment_table",
+    "labour_coefficients",
+    "read_table",
+    "stocks_from_investment",
+    "write_economy",
 ]
 
 

@@ -17,6 +17,14 @@ per unit of capacity of sector ``j``):
 
 :func:`investment_matrix` spreads investment by sector over products by the
 same composition, for checking against published investment by product.
+
+Where only investment is published (a capital-flows table of one year, or
+investment by sector and its composition), :func:`stocks_from_investment`
+estimates the stock by the perpetual inventory in a steady state: with
+investment growing at ``g`` a year and geometric retirement at
+``δ = 1 / L`` (``L`` the mean service life), ``K_t = I_t + (1 − δ) K_{t−1}``
+gives ``K = I (1 + g) / (g + δ)``; with ``g = 0`` the stock is investment
+times the service life.
 """
 
 from __future__ import annotations
@@ -30,7 +38,7 @@ from ..errors import invalid
 from .tables import _numeric, capital_coefficients_from_stocks
 
 __all__ = ["capital_coefficients_from_ratios", "capital_coefficients_from_stocks",
-           "investment_matrix"]
+           "investment_matrix", "stocks_from_investment"]
 
 
 def _ratios(value: Any, what: str, names: list[str] | None = None) -> pd.Series:
@@ -159,3 +167,51 @@ def investment_matrix(investment: Any, composition: Any, *,
     """
     inv = _ratios(investment, "investment")
     return _composition(composition, list(inv.index), products).mul(inv, axis=1)
+
+
+def stocks_from_investment(investment: Any, service_life: Any, *,
+                           past_growth: float = 0.0) -> pd.DataFrame:
+    """Capital stocks from one year's investment, by the steady-state perpetual inventory.
+
+    ``K_ij = I_ij (1 + g) / (g + 1 / L_j)``: investment grew at ``g`` a year
+    in the past and capital retires geometrically over a mean service life
+    ``L_j`` (see the module notes).
+
+    Parameters
+    ----------
+    investment : DataFrame, products × sectors
+        Investment of the base year (a capital-flows table), >= 0.
+    service_life : float, or Series or dict by sector
+        Mean service life in years, >= 1.
+    past_growth : float, default 0
+        Yearly growth of investment before the base year, above -1/L.
+
+    Returns
+    -------
+    DataFrame, products × sectors
+    """
+    inv = _numeric(pd.DataFrame(investment).copy(), "investment").fillna(0.0)
+    inv.index = [str(i) for i in inv.index]
+    inv.columns = [str(c) for c in inv.columns]
+    sectors = list(inv.columns)
+    arr = inv.to_numpy()
+    if (arr < 0).any() or not np.all(np.isfinite(arr)):
+        i, j = np.argwhere(~(np.isfinite(arr) & (arr >= 0)))[0]
+        raise invalid(f"investment[{inv.index[i]}, {inv.columns[j]}]", "be >= 0",
+                      float(arr[i, j]))
+    if isinstance(service_life, int | float) and not isinstance(service_life, bool):
+        life = pd.Series(float(service_life), index=sectors)
+    else:
+        life = _ratios(service_life, "service_life", sectors)
+    short = life[~(life >= 1)]
+    if len(short):
+        raise invalid(f"service_life[{short.index[0]}]", "be a number of years >= 1",
+                      float(short.iloc[0]))
+    g = past_growth
+    if isinstance(g, bool) or not isinstance(g, int | float) or not np.isfinite(g):
+        raise invalid("past_growth", "be a yearly growth rate", g)
+    delta = 1.0 / life
+    if (g + delta <= 0).any() or g <= -1:
+        raise invalid("past_growth", "be above minus the retirement rate 1 / service_life "
+                      "(else no steady stock exists)", g)
+    return inv.mul((1.0 + g) / (g + delta), axis=1)

@@ -48,6 +48,12 @@ used: every user of a product takes the same share of imports,
 ``m_k / (total use of k less exports)`` (a final-demand column named
 ``exports`` is taken as wholly domestic). Imported inputs by industry are
 then a row beside value added, turned like it.
+
+Aggregation
+-----------
+:meth:`SupplyUseTable.aggregate` merges products and industries by
+concordances before the transformation: every table is summed over the
+merged codes and its grand total checked to be kept.
 """
 
 from __future__ import annotations
@@ -135,6 +141,24 @@ def _series(value: Any, what: str, names: list[str], axis: str) -> pd.Series:
     value.index = _labels(value.index)
     frame = _frame(value.to_frame("v"), what, names, ["v"], axis, "values")
     return frame["v"].rename(None)
+
+
+def _concordance(mapping: dict[str, str] | None, codes: list[str], what: str
+                 ) -> dict[str, str]:
+    if mapping is None:
+        return {c: c for c in codes}
+    if not isinstance(mapping, dict):
+        raise invalid(what, "be a mapping {old code: new code}", type(mapping).__name__)
+    mapping = {str(k): str(v).strip() for k, v in mapping.items()}
+    missing = [c for c in codes if c not in mapping]
+    unknown = [c for c in mapping if c not in codes]
+    if missing or unknown:
+        raise invalid(what, f"map every code once (missing {missing[:5]}; unknown "
+                      f"{unknown[:5]})", sorted(mapping)[:5])
+    empty = [k for k, v in mapping.items() if not v]
+    if empty:
+        raise invalid(f"{what}[{empty[0]}]", "be a non-empty new code", "")
+    return mapping
 
 
 def _negative_table(z: pd.DataFrame, x: pd.Series) -> pd.DataFrame:
@@ -306,6 +330,69 @@ class SupplyUseTable:
                               "be at most the total use in that cell",
                               f"{self.imports_use.iat[i, j]:.6g} against "
                               f"{self.use.iat[i, j]:.6g}")
+
+    # -- aggregation ------------------------------------------------------------------
+    def aggregate(self, products: dict[str, str] | None = None,
+                  industries: dict[str, str] | None = None) -> SupplyUseTable:
+        """Merge products and industries by concordances ``{old code: new code}``.
+
+        Every table is summed over the merged codes (supply, use, imports,
+        imported use, final demand, value added, labour); coefficients are
+        computed afterwards from the sums, never averaged. The grand totals of
+        every table are checked to be kept.
+
+        Parameters
+        ----------
+        products, industries : dict of str to str, optional
+            The new code of every old code (each old code once); default keep
+            them. New codes keep the order of their first old code.
+
+        Returns
+        -------
+        SupplyUseTable
+
+        Raises
+        ------
+        InvalidInput
+            A mapping that leaves a code out or names an unknown one.
+        """
+        pmap = _concordance(products, self.products, "products")
+        imap = _concordance(industries, self.industries, "industries")
+        pkey = np.array([pmap[p] for p in self.products], dtype=object)
+        ikey = np.array([imap[i] for i in self.industries], dtype=object)
+        pnew = list(dict.fromkeys(pkey))
+        inew = list(dict.fromkeys(ikey))
+
+        def rows(frame: pd.DataFrame, key: np.ndarray, new: list[str]) -> pd.DataFrame:
+            return frame.groupby(key, sort=False).sum().loc[new]
+
+        def cols(frame: pd.DataFrame, key: np.ndarray, new: list[str]) -> pd.DataFrame:
+            return rows(frame.T, key, new).T
+
+        make = cols(rows(self.make, ikey, inew), pkey, pnew)
+        use = cols(rows(self.use, pkey, pnew), ikey, inew)
+        out = SupplyUseTable(
+            use, make=make, final_demand=rows(self.final_demand, pkey, pnew),
+            value_added=rows(self.value_added.to_frame("v"), ikey, inew)["v"],
+            imports=rows(self.imports.to_frame("v"), pkey, pnew)["v"],
+            imports_use=None if self.imports_use is None else cols(
+                rows(self.imports_use, pkey, pnew), ikey, inew),
+            labour=None if self.labour is None else cols(self.labour, ikey, inew),
+            tolerance=self.tolerance)
+        for what, before, after in (
+                ("make", self.make, out.make), ("use", self.use, out.use),
+                ("final_demand", self.final_demand, out.final_demand),
+                ("imports", self.imports, out.imports),
+                ("value_added", self.value_added, out.value_added),
+                ("labour", self.labour, out.labour),
+                ("imports_use", self.imports_use, out.imports_use)):
+            if before is None or after is None:
+                continue
+            a, b = float(np.sum(before.to_numpy())), float(np.sum(after.to_numpy()))
+            if abs(a - b) > 1e-9 * max(abs(a), 1.0):  # a guard: sums must be kept
+                raise invalid(f"aggregate.{what}", "keep the grand total",
+                              f"{b:.12g} against {a:.12g}")
+        return out
 
     # -- totals and coefficients (Miller & Blair ch. 5) ------------------------
     @property

@@ -367,3 +367,111 @@ def test_supply_and_use_to_an_optimal_plan():
                    objective=gp.objectives.TerminalCapacity(proportions={n: 1.0
                                                                          for n in P}))
     assert_optimal(plan.solve())
+
+
+# -- Eurostat (2008), ch. 11: the axioms the models are judged by ----------------------------
+
+
+def _coefficients(t: SupplyUseTable, model: str) -> np.ndarray:
+    """The model's coefficients before any remedy of negative flows."""
+    return t._raw(model)[0].div(t.product_output, axis=1).to_numpy()
+
+
+def test_scale_invariance_holds_for_product_technology_only():
+    # Eurostat (2008), ch. 11 (the axioms of Kop Jansen & ten Raa, from memory): doubling an
+    # industry (its make row and use column) leaves product-technology coefficients unchanged;
+    # industry-technology coefficients change with the market shares
+    k = pd.Series([1.0, 2.0, 1.0], index=I)
+    # the households take up the extra output less the extra intermediate use
+    extra = V.mul(k, axis=0).sum(axis=0) - V.sum(axis=0) - ((U * k).sum(axis=1) - U.sum(axis=1))
+    scaled = SupplyUseTable(U * k, make=V.mul(k, axis=0),
+                            final_demand=F.assign(households=F["households"] + extra))
+    for model, holds in (("product_technology", True), ("industry_technology", False)):
+        assert np.allclose(_coefficients(scaled, model), _coefficients(sut(), model),
+                           rtol=1e-9, atol=1e-12) is holds
+
+
+def test_price_invariance_holds_for_product_technology_only():
+    # Eurostat (2008), ch. 11 (Kop Jansen & ten Raa's price invariance, from memory): valuing
+    # products at other prices p turns product-technology coefficients into p̂ A p̂⁻¹; the
+    # industry-technology model does not have this property
+    p = pd.Series([2.0, 0.5, 1.0], index=P)
+    repriced = SupplyUseTable(U.mul(p, axis=0), make=V.mul(p, axis=1),
+                              final_demand=F.mul(p, axis=0))
+    for model, holds in (("product_technology", True), ("industry_technology", False)):
+        expected = np.diag(p) @ _coefficients(sut(), model) @ np.diag(1 / p)
+        assert np.allclose(_coefficients(repriced, model), expected, rtol=1e-9) is holds
+
+
+# -- aggregation ------------------------------------------------------------------------------
+
+
+def test_aggregation_keeps_totals_and_sums_tables():
+    # common practice: aggregated tables are sums over merged codes, coefficients recomputed
+    t = sut(imports=pd.Series({"food": 0.0, "metal": 0.0, "services": 0.0}),
+            labour=pd.Series({"farms": 10.0, "mills": 20.0, "offices": 30.0}))
+    agg = t.aggregate(products={"food": "goods", "metal": "goods", "services": "services"},
+                      industries={"farms": "making", "mills": "making", "offices": "offices"})
+    assert agg.products == ["goods", "services"] and agg.industries == ["making", "offices"]
+    for a, b in ((t.make, agg.make), (t.use, agg.use), (t.final_demand, agg.final_demand),
+                 (t.labour, agg.labour)):
+        assert a.to_numpy().sum() == pytest.approx(b.to_numpy().sum(), rel=1e-14)
+    np.testing.assert_allclose(agg.use.loc["goods", "making"],
+                               U.loc[["food", "metal"], ["farms", "mills"]].to_numpy().sum())
+    np.testing.assert_allclose(agg.value_added.sum(), t.value_added.sum())
+    # aggregation before or after the industry-technology transformation: the same output
+    np.testing.assert_allclose(agg.product_output.sum(), t.product_output.sum())
+    with pytest.raises(gp.InvalidInput, match=r"products must map every code once \(missing "
+                       r"\['services'\]; unknown \['steel'\]\)"):
+        t.aggregate(products={"food": "goods", "metal": "goods", "steel": "x"})
+
+
+# -- labour by kind -----------------------------------------------------------------------------
+
+
+def test_employment_head_count_and_labour_input():
+    from growthplan.io import employment_table, labour_coefficients
+
+    e = pd.DataFrame({"skilled": [10.0, 20.0, 30.0], "unskilled": [40.0, 5.0, 6.0]}, index=I)
+    heads = employment_table(e, unit="thousand persons", person_years_per_person=0.9,
+                             expected=I)
+    assert heads.unit == "thousand person-years" and heads.kinds == ["skilled", "unskilled"]
+    np.testing.assert_allclose(heads.labour.loc["skilled"], [9.0, 18.0, 27.0])
+    years = employment_table(e.T, unit="million hours", industries="columns")
+    assert years.unit == "million hours" and "as published" in years.assumption
+    t = sut(labour=heads.labour)
+    # an industry table keeps labour by industry: l = L ĝ⁻¹ (closed form)
+    d = t.symmetric("fixed_product_sales").to_table().labour_coefficients()
+    np.testing.assert_allclose(d, labour_coefficients(heads, t.industry_output))
+    with pytest.raises(gp.InvalidInput, match=r"unit must say labour input"):
+        employment_table(e, unit="thousand arvens")
+    with pytest.raises(gp.InvalidInput, match=r"person_years_per_person must be given only "
+                       r"for a head count"):
+        employment_table(e, unit="thousand person-years", person_years_per_person=0.9)
+    with pytest.raises(gp.InvalidInput, match=r"must give the labour of every industry"):
+        employment_table(e.iloc[:2], unit="thousand persons", expected=I)
+
+
+# -- capital stocks from investment ---------------------------------------------------------------
+
+
+def test_stocks_from_investment_closed_form():
+    from growthplan.io import stocks_from_investment
+
+    inv = pd.DataFrame({"food": [0.0, 6.0, 4.0], "metal": [0.0, 9.0, 1.0]}, index=P)
+    # g = 0: the stock is investment times the service life (closed form)
+    k0 = stocks_from_investment(inv, {"food": 20.0, "metal": 10.0})
+    np.testing.assert_allclose(k0.sum(axis=0), [200.0, 100.0])
+    # steady growth g: K = I (1 + g) / (g + 1/L); checked against the perpetual inventory
+    # K_t = I_t + (1 − 1/L) K_{t−1} run for a long time (independent recursion)
+    g, life = 0.04, 20.0
+    k = stocks_from_investment(inv, life, past_growth=g)
+    stock = 0.0
+    for t in range(2000):
+        stock = 10.0 * (1 + g) ** (t - 1999) + (1 - 1 / life) * stock
+    assert k["food"].sum() == pytest.approx(stock, rel=1e-9)
+    # one sector: stock over output is the capital–output ratio (closed form)
+    one = stocks_from_investment(pd.DataFrame({"goods": [30.0]}, index=["goods"]), 25.0)
+    assert one.iloc[0, 0] / 250.0 == pytest.approx(30.0 * 25.0 / 250.0)
+    with pytest.raises(gp.InvalidInput, match=r"past_growth must be above minus"):
+        stocks_from_investment(inv, 2.0, past_growth=-0.6)

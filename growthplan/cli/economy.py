@@ -1,0 +1,40 @@
+"""The economy commands: build an economy from supply and use tables."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import click
+
+from .base import _check_outputs, _input_file, _overwrite, _reading, _writing, main
+
+
+@main.group(help="Economies from the statistical office's tables.")
+def economy() -> None:
+    pass
+
+
+@economy.command(help="Build an economy from an economy spec (supply and use, employment and "
+                 "capital tables) and write its coefficient tables, economy.yaml and "
+                 "assumptions.md into a new folder.")
+@click.argument("spec", type=click.Path(path_type=Path))
+@click.option("--out", type=click.Path(path_type=Path), required=True,
+              help="Write the economy into this new folder.")
+@_overwrite
+def build(spec: Path, out: Path, overwrite: bool) -> None:
+    from ..io.build import build_economy, write_economy
+
+    _check_outputs(out, None, None, overwrite, inputs=(spec,))
+    with _reading(spec):
+        econ, report = build_economy(_input_file(spec, "economy spec"))
+    sym = report.symmetric
+    click.echo(f"{spec}: {len(report.supply_use.products)} products, "
+               f"{len(report.supply_use.industries)} industries → {econ.n} sectors "
+               f"({sym.model.replace('_', ' ')} model)")
+    click.echo(f"  spectral radius of the input coefficients {econ.spectral_radius():.6f}")
+    if len(sym.negatives):
+        click.echo(f"  {len(sym.negatives)} negative flow(s) remedied ({sym.remedy})")
+    with _writing(out):
+        written = write_economy(econ, report, out, overwrite=overwrite)
+    for p in written:
+        click.echo(f"wrote {p}")
