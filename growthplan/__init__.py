@@ -42,6 +42,7 @@ from .results import CAUTION, Audit, Diagnosis, PlanResult
 from .revision import compare, plot_compare, revise
 from .steady import BalancedGrowth
 from .sweep import SerialExecutor, Sweep, sweep, variant
+from .technique import Technique, technique_arrays
 from .uncertainty import (
     Empirical,
     LogNormal,
@@ -133,4 +134,6 @@ __all__ = [
     "reoptimise",
     "robust_plan",
     "stress_test",
+    "Technique",
+    "technique_arrays",
 ]

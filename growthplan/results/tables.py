@@ -118,7 +118,8 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     value = np.where(np.abs(value) < 1e-12, 0.0, value)
     prices = lp.rows["balance"].take(value)
     out["shadow_prices"] = frame(prices, columns=goods)
-    out["shadow_prices_current"] = frame(current_prices(prices, output, discount_rate),
+    out["shadow_prices_current"] = frame(current_prices(prices, d.supplied(output),
+                                                        discount_rate),
                                          columns=goods)
     rents = lp.rows["capacity"].take(value)  # per technique
     out["quasi_rents"] = frame(_best(d, rents))
@@ -133,7 +134,7 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
         tv["value"] = lp.rows["targets"].take(value)
     out["target_values"] = tv
     out["level"] = s.level
-    out["terminal_value"] = float(d.prices @ cap[-1])
+    out["terminal_value"] = float(d.prices @ sector_cap[-1])
     out["accounts"] = national_accounts(d, s, retired)
     out["employment"] = employment(d, s)
     factor = money_factor(d, prices, d.supplied(output))
