@@ -156,7 +156,7 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     else:
         out["floor_values"] = pd.Series(np.full(T, np.nan), index=idx,
                                         name="consumption_floor_value")
-    out["calibration"] = calibration(d, d.by_sector(output))
+    out["calibration"] = calibration(d, output)
     out["technique_rents"] = rents
     out["technique_retirements"] = retired
     units = dict(zip(names, d.units, strict=True))
@@ -190,14 +190,15 @@ def calibration(d: PlanData, output: np.ndarray) -> pd.DataFrame:
     if d.base_output is None:
         return pd.DataFrame(index=pd.Index([], name="sector"))
     base = d.base_output
-    first = output[0]
+    first = d.by_sector(output)[0]  # output: years × techniques
     with np.errstate(divide="ignore", invalid="ignore"):
         change = np.where(base > 0, first / base - 1.0, np.nan)
     out = pd.DataFrame({"base_output": base, "first_year_output": first, "change": change},
                        index=pd.Index(d.names, name="sector"))
     for k, kind in enumerate(d.labour_all_kinds):
-        out[f"base employment {kind}"] = base * d.labour_all[k]
-        out[f"first-year employment {kind}"] = first * d.labour_all[k]
+        # the base year ran on the base techniques, the first columns
+        out[f"base employment {kind}"] = base * d.labour_all[k, : d.n]
+        out[f"first-year employment {kind}"] = d.by_sector(output[0] * d.labour_all[k])
     out.attrs["units"] = dict(zip(d.names, d.units, strict=True))
     return out
 

@@ -90,8 +90,8 @@ def technique_years(result: PlanResult, *, tol: float = 1e-9) -> pd.DataFrame:
     Returns
     -------
     pandas.DataFrame
-        Indexed by technique: sector, label, first_start, last_used (None
-        when never).
+        Indexed by technique: sector, label, first_start, last_used (missing,
+        ``pd.NA``, when never).
     """
     table = technique_table(result)
     out = []
@@ -105,7 +105,10 @@ def technique_years(result: PlanResult, *, tol: float = 1e-9) -> pd.DataFrame:
                     "label": part["label"].iloc[0],
                     "first_start": int(started.min()) if len(started) else None,
                     "last_used": int(used.max()) if len(used) else None})
-    return pd.DataFrame(out).set_index("technique")
+    frame = pd.DataFrame(out).set_index("technique")
+    for col in ("first_start", "last_used"):  # whole years, missing where never
+        frame[col] = frame[col].astype("Int64")
+    return frame
 
 
 def _values(result: PlanResult) -> tuple[np.ndarray, np.ndarray]:
