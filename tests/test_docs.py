@@ -32,3 +32,15 @@ def test_docstring_examples(module):
     mod = importlib.import_module(f"growthplan.{module}")
     failures, tried = doctest.testmod(mod, optionflags=doctest.NORMALIZE_WHITESPACE)
     assert tried > 0 and failures == 0
+
+
+def test_readme_techniques_example_runs():
+    """The "Choosing techniques" example; its switch year is the closed form it states."""
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    block = re.search(r"## Choosing techniques\s.*?```python\n(.*?)```", text, re.S).group(1)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        namespace: dict = {}
+        exec(compile(block, "README.md", "exec"), namespace)  # noqa: S102 - our own README
+    assert namespace["result"].ok
+    assert namespace["result"].technique_years.loc["goods:saving", "first_start"] == 2032
