@@ -32,7 +32,7 @@ coefficients of ``τ`` for its whole life.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 from pydantic import Field, field_validator, model_validator
@@ -42,7 +42,7 @@ from ._validation import Model, Rule
 if TYPE_CHECKING:
     from .economy import CapitalSpec, Economy
 
-__all__ = ["Technique", "TechniqueSet", "technique_arrays"]
+__all__ = ["Technique", "TechniqueSet", "technique_arrays", "refuse_techniques"]
 
 BASE = "base"
 
@@ -189,6 +189,25 @@ class TechniqueSet:
         """One technique per sector, in the sectors' order, without by-products."""
         n = self.outputs.shape[0]
         return self.m == n and bool(np.array_equal(self.outputs, np.eye(n)))
+
+
+def refuse_techniques(plan: Any, what: str) -> None:
+    """Refuse a plan with alternative techniques or embodied change where they are not handled.
+
+    Raises
+    ------
+    InvalidInput
+        Naming ``techniques`` (or ``technical_change.embodied``).
+    """
+    from .errors import invalid
+
+    if getattr(plan, "techniques", None):
+        raise invalid("techniques", f"be left out for {what} (not available with "
+                      "alternative techniques yet)", len(plan.techniques))
+    tc = getattr(plan, "technical_change", None)
+    if tc is not None and tc.embodied:
+        raise invalid("technical_change.embodied", f"be false for {what} (not available "
+                      "with embodied change yet)", True)
 
 
 def check_techniques(economy: Economy, techniques: list[Technique]) -> None:

@@ -300,3 +300,15 @@ def test_cbc_gives_the_same_objective_with_techniques(seed, n, years):
         return
     c = assert_optimal(plan.solve_pulp(cbc_solver()))
     assert c.objective == pytest.approx(r.objective, rel=1e-6)
+
+
+def test_revision_and_uncertainty_refuse_techniques():
+    """Not yet available with techniques: a clear refusal, never a wrong answer."""
+    plan = gp.Plan(economy=one_sector(), years=range(2030, 2034),
+                   techniques=[gp.Technique(sector="goods", label="x")])
+    with pytest.raises(InvalidInput, match="techniques must be left out for revision"):
+        gp.revise(plan, {"goods": [1.0]}, 2031)
+    spec = gp.UncertaintySpec(items=[gp.Uncertain(what="capital_coefficients",
+                                                  distribution=gp.Uniform(low=0.9, high=1.1))])
+    with pytest.raises(InvalidInput, match="techniques must be left out for stress tests"):
+        gp.stress_test(plan, spec, draws=2)
