@@ -19,6 +19,10 @@ each technique's output is within its own capacity, and labour use is
 zero. A plan without techniques has exactly one technique per sector and the
 same LP as before.
 
+The yearly rates of a :class:`~growthplan.TechnicalChange` apply to every
+technique of the sector they name. Starts ceilings of a sector bound the
+starts of each of its techniques.
+
 Embodied technical change (``TechnicalChange(embodied=True)``) is written as
 vintage techniques: every technique of a sector whose coefficients change is
 split into one technique per plan year ``τ``, whose coefficients are those of
