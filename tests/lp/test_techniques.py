@@ -312,3 +312,26 @@ def test_revision_and_uncertainty_refuse_techniques():
                                                   distribution=gp.Uniform(low=0.9, high=1.1))])
     with pytest.raises(InvalidInput, match="techniques must be left out for stress tests"):
         gp.stress_test(plan, spec, draws=2)
+
+
+@pytest.mark.parametrize("objective, sign", [
+    (gp.objectives.LeastLabour(), -1.0),
+    (gp.objectives.DiscountedConsumption(rate=0.03), 1.0)])
+def test_profits_follow_the_objectives_sense(objective, sign):
+    """For a minimised objective the profit is minus HiGHS's reduced cost (LP duality).
+
+    HiGHS reports ``c − Mᵀy``, ≥ 0 at a lower bound when minimising; a profit
+    is an improvement of the objective, so ≤ 0 in both senses.
+    """
+    econ = economy(3, seed=5)
+    plan = make_plan(econ, 5).model_copy(update={
+        "techniques": [gp.Technique(sector="s1", label="lean", labour=0.05,
+                                    capital={"s0": 2.0})],
+        "objective": objective, "consumption": gp.Consumption(basket={"s2": 1.0}, floor=5.0),
+        "targets": [gp.Target("s1", year=2034, output_at_least=150.0)]})
+    r = assert_optimal(plan.solve(method="simplex"))
+    prof = r.technique_profits
+    z = r.lp.cols["starts"]
+    highs = r.outcome.col_dual[z.start:z.stop].reshape(5, r.data.m).T.ravel()
+    assert prof["profit"].to_numpy() == pytest.approx(sign * highs, abs=1e-9)
+    assert prof.loc[prof["available"], "profit"].max() <= 1e-9
