@@ -231,6 +231,10 @@ def test_embodied_vintages_carry_their_start_years_coefficients():
      "techniques.0.first_year"),
     ({"sector": "goods", "label": "base", "labour": 0.3}, "techniques.0.label"),
     ({"sector": "goods", "label": "x", "labour": {"skilled": 1.0}}, "techniques.0.labour"),
+    ({"sector": "goods", "label": "x", "profile": "bogus"}, "techniques.0.profile"),
+    ({"sector": "goods", "label": "x", "service_life": 0.5}, "techniques.0.service_life"),
+    ({"sector": "goods", "label": "x", "by_products": {"goods": 0.5}},
+     "techniques.0.by_products"),
 ])
 def test_bad_techniques_are_refused_with_the_template(bad, field):
     with pytest.raises(InvalidInput) as info:
