@@ -269,10 +269,10 @@ def _spec(economy: Economy, tq: Technique, where: str) -> CapitalSpec:
         fields.update(lead_time=tq.lead_time, spending_profile=None)
     try:
         return CapitalSpec(**fields)
-    except InvalidInput as exc:  # name the technique's name field and value
+    except InvalidInput as exc:  # name the technique's own field and value
         name = {"mean_service_life": "service_life", "retirement": "profile",
-               "lead_time": "lead_time"}.get((exc.field or "").rsplit(".", 1)[-1],
-                                              "service_life")
+                "lead_time": "lead_time"}.get((exc.field or "").rsplit(".", 1)[-1],
+                                               "service_life")
         text = str(exc)
         rule = text.split(" must ", 1)[-1].rsplit(". Got ", 1)[0]
         raise Rule(rule, getattr(tq, name), field=f"{where}.{name}") from None
