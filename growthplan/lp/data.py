@@ -64,11 +64,11 @@ class PlanData:
 
     names: list[str]
     years: list[int]
-    a: np.ndarray
-    b: np.ndarray
-    labour: np.ndarray               # kinds with a supply × sectors
+    a: np.ndarray                    # commodities × techniques
+    b: np.ndarray                    # commodities × techniques
+    labour: np.ndarray               # kinds with a supply × techniques
     labour_kinds: list[str]
-    labour_all: np.ndarray           # every kind × sectors
+    labour_all: np.ndarray           # every kind × techniques
     labour_all_kinds: list[str]
     supply: np.ndarray               # kinds with a supply × years
     basket: np.ndarray
@@ -77,17 +77,17 @@ class PlanData:
     max_fall: float | None
     demand: np.ndarray               # years × sectors
     theta: np.ndarray
-    spending: np.ndarray             # sectors × max(1, max lead time)
+    spending: np.ndarray             # techniques × max(1, max lead time)
     util: np.ndarray
-    surv: np.ndarray                 # sectors × (T + 2): S(0..T+1)
-    surv_full: list[np.ndarray]      # each sector's whole survival profile
+    surv: np.ndarray                 # techniques × (T + 2): S(0..T+1)
+    surv_full: list[np.ndarray]      # each technique's whole survival profile
     geometric_rate: np.ndarray       # δ for geometric profiles, NaN for the others
-    initial: np.ndarray              # (T+1) × sectors: initial capacity still in service
-    pipeline: list[np.ndarray]       # per sector: starts made before the plan, oldest first
-    base: np.ndarray                 # (T+1) × sectors: initial + pipeline capacity
+    initial: np.ndarray              # (T+1) × techniques: initial capacity still in service
+    pipeline: list[np.ndarray]       # per technique: starts made before the plan, oldest first
+    base: np.ndarray                 # (T+1) × techniques: initial + pipeline capacity
     pipe_deliveries: np.ndarray      # years × commodities
-    upper_starts: np.ndarray         # years × sectors
-    ceilings: list[tuple[int, list[int], float]]  # (sector, year indices, at most)
+    upper_starts: np.ndarray         # years × techniques (0 outside availability)
+    ceilings: list[tuple[int, list[int], float]]  # (technique, year indices, at most)
     targets: list[TargetData]
     proportions: np.ndarray | None
     proportions_source: str
@@ -102,10 +102,10 @@ class PlanData:
     labour_units: list[str] = field(default_factory=list)  # of the kinds with a supply
     labour_all_units: list[str] = field(default_factory=list)
     value_unit: str = ""
-    a_year: np.ndarray | None = None          # years × n × n (technical change)
-    b_year: np.ndarray | None = None          # years × n × n, for starts made in each year
-    labour_year: np.ndarray | None = None     # years × kinds with a supply × n
-    labour_all_year: np.ndarray | None = None  # years × every kind × n
+    a_year: np.ndarray | None = None          # years × n × m (technical change)
+    b_year: np.ndarray | None = None          # years × n × m, for starts made in each year
+    labour_year: np.ndarray | None = None     # years × kinds with a supply × m
+    labour_all_year: np.ndarray | None = None  # years × every kind × m
     population: np.ndarray | None = None      # per plan year
     base_output: np.ndarray | None = None     # base-year gross output, by sector
     first_year_within: float | None = None
