@@ -55,6 +55,7 @@ from .results import CAUTION, Audit, Diagnosis, PlanResult
 from .revision import compare, plot_compare, revise
 from .steady import BalancedGrowth
 from .sweep import SerialExecutor, Sweep, sweep, variant
+from .technique import Technique, technique_arrays
 from .uncertainty import (
     Empirical,
     LogNormal,
@@ -160,4 +161,6 @@ __all__ = [
     "build_economy",
     "economy_spec_schema",
     "write_economy",
+    "Technique",
+    "technique_arrays",
 ]

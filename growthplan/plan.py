@@ -29,6 +29,7 @@ from ._validation import Model, Rule
 from .economy import Economy
 from .lp import data as lowering
 from .series import series as _series
+from .technique import Technique, check_techniques
 
 if TYPE_CHECKING:
     from .lp.data import PlanData
@@ -279,11 +280,17 @@ class TechnicalChange(Model):
         The same for capital coefficients (capital goods per unit of new capacity).
     labour_rate : dict of str to float
         The same for labour coefficients (every labour kind).
+    embodied : bool, default False
+        Embodied change instead: capacity started in year ``τ`` keeps the
+        input and labour coefficients of year ``τ`` for its whole life, and
+        the capacity from before the plan keeps the base year's (see
+        :mod:`growthplan.technique`: the LP splits output by vintage).
     """
 
     input_rate: dict[str, float] = Field(default_factory=dict)
     capital_rate: dict[str, float] = Field(default_factory=dict)
     labour_rate: dict[str, float] = Field(default_factory=dict)
+    embodied: bool = False
 
     @field_validator("input_rate", "capital_rate", "labour_rate")
     @classmethod
@@ -348,6 +355,9 @@ class Plan(Model):
         Imports and exports; a closed economy when omitted.
     technical_change : TechnicalChange, optional
         Input, capital and labour coefficients that change year by year.
+    techniques : list of Technique, optional
+        Alternative techniques of sectors (and phase-outs of their base
+        techniques); see :mod:`growthplan.technique`.
     first_year_within : float, optional
         Hold the first plan year's output of every sector at least at
         ``(1 − share)`` times its base-year output (the economy's
@@ -376,6 +386,7 @@ class Plan(Model):
     terminal: TerminalGrowth | None = None
     trade: Trade | None = None
     technical_change: TechnicalChange | None = None
+    techniques: list[Technique] = Field(default_factory=list)
     allow_high_rates: bool = False
     first_year_within: float | None = Field(default=None, gt=0, lt=1, allow_inf_nan=False)
     objective: (obj.TerminalCapacity | obj.DiscountedConsumption | obj.LeastLabour
@@ -499,6 +510,8 @@ class Plan(Model):
                                    f"year (spectral radius < 1; {rho:.4g} in "
                                    f"{year})", tc.input_rate,
                                    field="technical_change.input_rate")
+        if self.techniques:
+            check_techniques(econ, self.techniques)
         if self.first_year_within is not None and econ.base_output is None:
             raise Rule("come with the economy's base_output (Economy.from_tables keeps it)",
                        self.first_year_within, field="first_year_within")

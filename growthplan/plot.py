@@ -327,3 +327,56 @@ def save_charts(result: PlanResult, folder: str | Path, *, overwrite: bool = Fal
                 plt.close(fig)
             names.append(f"{name}.png")
     return [folder / n for n in names]
+
+
+def plot_techniques(result: PlanResult, sector: str, *, what: str = "output",
+                    ax: Axes | None = None) -> Axes:
+    """The technique mix of one sector: output (or capacity, starts) stacked by technique.
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result.
+    sector : str
+        A sector of the plan.
+    what : {"output", "capacity", "starts"}, default "output"
+        Which schedule to stack.
+    ax : matplotlib.axes.Axes, optional
+        Where to draw; default a new figure.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    from .errors import invalid
+
+    if what not in ("output", "capacity", "starts"):
+        raise invalid("what", "be one of output, capacity, starts", what)
+    table = result.techniques
+    if sector not in set(table["sector"]):
+        raise invalid("sector", "name a sector of the plan", sector)
+    part = table[table["sector"] == sector]
+    frame = part.pivot(index="year", columns="label", values=what)
+    frame = frame[list(dict.fromkeys(part["label"]))]  # the plan's order of techniques
+    if ax is None:
+        ax = _plt().subplots(figsize=(7, 4))[1]
+    # its own greys and hatches: a mix reads in print without the package palette
+    shades = ["#202020", "#6a6a6a", "#a8a8a8", "#d0d0d0"]
+    hatches = ["", "//", "..", "xx", "\\\\", "++"]
+    bottom = np.zeros(len(frame))
+    for i, col in enumerate(frame.columns):
+        values = np.maximum(frame[col].to_numpy(dtype=float), 0.0)
+        ax.bar(frame.index, values, bottom=bottom, label=str(col),
+               color=shades[i % len(shades)], hatch=hatches[i % len(hatches)],
+               edgecolor="white", linewidth=0.5)
+        bottom += values
+    unit = dict(zip(result.data.names, result.data.units, strict=True)).get(sector, "") \
+        if result.data is not None else ""
+    ax.set_xlabel("year")
+    ax.set_ylabel(f"{what}" + (f" ({unit})" if unit else ""), fontsize="small")
+    ax.set_title(f"Techniques of {sector}: {what} by technique")
+    ax.legend(fontsize="small", frameon=False)
+    return ax
+
+
+__all__ += ["plot_techniques"]

@@ -105,6 +105,9 @@ def revise(plan: Any, actuals: Any, from_year: int, *, capacity: dict[str, float
     from .economy import CapitalSpec, Economy
     from .lp.data import consumption_floor, exogenous_demand, labour_supply, trade_sides
     from .plan import Consumption, LabourSupply, Plan, StartsCeiling, Trade
+    from .technique import refuse_techniques
+
+    refuse_techniques(plan, "revision")
 
     years = list(plan.years)
     if isinstance(from_year, bool) or not isinstance(from_year, int | np.integer) \

@@ -661,6 +661,9 @@ def stress_test(plan: Any, spec: UncertaintySpec, draws: int = 100, *, nominal: 
         ``result.probability()`` gives the probability that each condition
         is met and the distribution of shortfalls.
     """
+    from .technique import refuse_techniques
+
+    refuse_techniques(plan, "stress tests")
     spec.check(plan)
     n = _check_draws(draws)
     if nominal is None:
@@ -695,6 +698,9 @@ def reoptimise(plan: Any, spec: UncertaintySpec, draws: int = 100, *,
         ``result.probability()`` holds the probability that the plan is
         feasible at all; ``result.quantiles("capacity")`` the fan of capacity.
     """
+    from .technique import refuse_techniques
+
+    refuse_techniques(plan, "re-optimisation per draw")
     spec.check(plan)
     n = _check_draws(draws)
     table = _run("reoptimise", plan, spec, n, dict(solve_options or {}), executor,
@@ -795,6 +801,9 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
     from .backends.base import Status
     from .backends.highs import HighsBackend
     from .lp.build import build
+    from .technique import refuse_techniques
+
+    refuse_techniques(plan, "robust plans")
     from .lp.program import Block, LinearProgram
     from .solve import run
 

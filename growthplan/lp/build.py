@@ -36,8 +36,11 @@ BYTES_PER_NONZERO = 60   # peak while building: blocks, the stacked copy and CSC
 
 
 def capacity_operator(d: PlanData) -> sparse.csr_array:
-    """``G`` with ``C = base + G z``: rows (t, j) for t = 0..T, columns starts (τ, j)."""
-    T, n = d.T, d.n
+    """``G`` with ``C = base + G z``: rows (t, k) for t = 0..T, columns starts (τ, k).
+
+    ``k`` runs over techniques (sectors when there are no alternatives).
+    """
+    T, n = d.T, d.m
     t = np.arange(T + 1)[:, None, None]
     tau = np.arange(T)[None, :, None]
     j = np.arange(n)[None, None, :]
@@ -52,9 +55,9 @@ def capacity_operator(d: PlanData) -> sparse.csr_array:
 
 
 def deliveries_operator(d: PlanData) -> sparse.csr_array:
-    """``W`` with capital goods delivered = ``W z``: rows (t, commodity), columns (τ, sector)."""
-    T, n = d.T, d.n
-    out = sparse.csr_array((T * n, T * n))
+    """``W`` with capital goods delivered = ``W z``: rows (t, commodity), columns (τ, technique)."""
+    T, n, m = d.T, d.n, d.m
+    out = sparse.csr_array((T * n, T * m))
     for s in range(min(d.spending.shape[1], T)):  # deliveries after the plan are not rows
         w = d.spending[:, s][None, :]
         if not np.any(w):
@@ -63,8 +66,8 @@ def deliveries_operator(d: PlanData) -> sparse.csr_array:
             diag = sparse.block_diag([sparse.csr_array(d.b_at(tau) * w) for tau in range(T - s)],
                                      format="csr")
             if s:  # deliveries of year τ + s: rows shifted down s years
-                diag = sparse.vstack([sparse.csr_array((s * n, (T - s) * n)), diag])
-                diag = sparse.hstack([diag, sparse.csr_array((T * n, s * n))])
+                diag = sparse.vstack([sparse.csr_array((s * n, (T - s) * m)), diag])
+                diag = sparse.hstack([diag, sparse.csr_array((T * n, s * m))])
             out = out + sparse.csr_array(diag)
             continue
         shift = sparse.eye_array(T, T, k=-s, format="csr")
@@ -74,9 +77,9 @@ def deliveries_operator(d: PlanData) -> sparse.csr_array:
 
 def columns(d: PlanData) -> list[tuple[str, tuple[int, ...], tuple[tuple[Any, ...], ...]]]:
     """The decision columns: (name, shape, labels) in order."""
-    years, names = tuple(d.years), tuple(d.names)
+    years, names = tuple(d.years), tuple(d.tech_names)  # one column per technique
     out: list[tuple[str, tuple[int, ...], tuple[tuple[Any, ...], ...]]] = [
-        ("output", (d.T, d.n), (years, names)), ("starts", (d.T, d.n), (years, names))]
+        ("output", (d.T, d.m), (years, names)), ("starts", (d.T, d.m), (years, names))]
     if d.has_consumption:
         out.append(("consumption", (d.T,), (years,)))
     if d.proportions is not None:
@@ -114,6 +117,9 @@ def _upper_bound(plan: Plan) -> int:
     T, n = len(plan.years), plan.economy.n
     assert plan.economy.capital is not None
     width = max(1, max(s.lead_time for s in plan.economy.capital.values()))
+    if plan.techniques or (plan.technical_change is not None
+                           and plan.technical_change.embodied):
+        return 2**62  # the exact count decides (techniques have their own lead times)
     return (T * n * n * (1 + width) + T * n * (T + 9) + T * len(plan.labour) * n + 4 * T
             + len(plan.targets) * (T + 1) + n * width * (T + 1) + n + T * n * 2)
 

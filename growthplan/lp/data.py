@@ -20,8 +20,10 @@ from ..series import series
 
 if TYPE_CHECKING:
     from ..plan import Plan
+    from ..technique import TechniqueSet
 
-__all__ = ["PlanData", "TargetData", "TradeSide", "lower", "basket", "consumption_floor",
+__all__ = ["PlanData", "TargetData", "TradeSide", "lower", "techniques", "basket",
+           "consumption_floor",
            "population",
            "labour_supply", "exogenous_demand", "trade_sides", "terminal_proportions"]
 
@@ -51,15 +53,22 @@ class TradeSide:
 
 @dataclass
 class PlanData:
-    """A validated plan as arrays (``T`` years, ``n`` sectors)."""
+    """A validated plan as arrays (``T`` years, ``n`` sectors, ``m`` techniques).
+
+    Commodity arrays (balances, demand, prices) have ``n`` entries; the
+    arrays of activities (coefficient columns, capital specs, capacity,
+    starts) have one entry per technique, ``m`` of them. Without alternative
+    techniques ``m = n`` and technique ``j`` is sector ``j``
+    (``tech`` is None).
+    """
 
     names: list[str]
     years: list[int]
-    a: np.ndarray
-    b: np.ndarray
-    labour: np.ndarray               # kinds with a supply × sectors
+    a: np.ndarray                    # commodities × techniques
+    b: np.ndarray                    # commodities × techniques
+    labour: np.ndarray               # kinds with a supply × techniques
     labour_kinds: list[str]
-    labour_all: np.ndarray           # every kind × sectors
+    labour_all: np.ndarray           # every kind × techniques
     labour_all_kinds: list[str]
     supply: np.ndarray               # kinds with a supply × years
     basket: np.ndarray
@@ -68,17 +77,17 @@ class PlanData:
     max_fall: float | None
     demand: np.ndarray               # years × sectors
     theta: np.ndarray
-    spending: np.ndarray             # sectors × max(1, max lead time)
+    spending: np.ndarray             # techniques × max(1, max lead time)
     util: np.ndarray
-    surv: np.ndarray                 # sectors × (T + 2): S(0..T+1)
-    surv_full: list[np.ndarray]      # each sector's whole survival profile
+    surv: np.ndarray                 # techniques × (T + 2): S(0..T+1)
+    surv_full: list[np.ndarray]      # each technique's whole survival profile
     geometric_rate: np.ndarray       # δ for geometric profiles, NaN for the others
-    initial: np.ndarray              # (T+1) × sectors: initial capacity still in service
-    pipeline: list[np.ndarray]       # per sector: starts made before the plan, oldest first
-    base: np.ndarray                 # (T+1) × sectors: initial + pipeline capacity
+    initial: np.ndarray              # (T+1) × techniques: initial capacity still in service
+    pipeline: list[np.ndarray]       # per technique: starts made before the plan, oldest first
+    base: np.ndarray                 # (T+1) × techniques: initial + pipeline capacity
     pipe_deliveries: np.ndarray      # years × commodities
-    upper_starts: np.ndarray         # years × sectors
-    ceilings: list[tuple[int, list[int], float]]  # (sector, year indices, at most)
+    upper_starts: np.ndarray         # years × techniques (0 outside availability)
+    ceilings: list[tuple[int, list[int], float]]  # (technique, year indices, at most)
     targets: list[TargetData]
     proportions: np.ndarray | None
     proportions_source: str
@@ -93,14 +102,50 @@ class PlanData:
     labour_units: list[str] = field(default_factory=list)  # of the kinds with a supply
     labour_all_units: list[str] = field(default_factory=list)
     value_unit: str = ""
-    a_year: np.ndarray | None = None          # years × n × n (technical change)
-    b_year: np.ndarray | None = None          # years × n × n, for starts made in each year
-    labour_year: np.ndarray | None = None     # years × kinds with a supply × n
-    labour_all_year: np.ndarray | None = None  # years × every kind × n
+    a_year: np.ndarray | None = None          # years × n × m (technical change)
+    b_year: np.ndarray | None = None          # years × n × m, for starts made in each year
+    labour_year: np.ndarray | None = None     # years × kinds with a supply × m
+    labour_all_year: np.ndarray | None = None  # years × every kind × m
     population: np.ndarray | None = None      # per plan year
     base_output: np.ndarray | None = None     # base-year gross output, by sector
     first_year_within: float | None = None
     extra: dict[str, Any] = field(default_factory=dict)
+    tech: TechniqueSet | None = None          # alternative techniques (None: one per sector)
+
+    @property
+    def m(self) -> int:
+        """Number of techniques (activities): ``n`` without alternatives."""
+        return self.n if self.tech is None else self.tech.m
+
+    @property
+    def tech_names(self) -> list[str]:
+        """Column label of each technique (the sector's name for its base technique)."""
+        return self.names if self.tech is None else self.tech.keys
+
+    @property
+    def tech_sector(self) -> np.ndarray:
+        """Index of the commodity each technique makes."""
+        return np.arange(self.n) if self.tech is None else self.tech.sector
+
+    @property
+    def sel(self) -> np.ndarray:
+        """``n × m``: 1 where technique ``k`` makes commodity ``i`` as its main product."""
+        out = np.zeros((self.n, self.m))
+        out[self.tech_sector, np.arange(self.m)] = 1.0
+        return out
+
+    @property
+    def q(self) -> np.ndarray:
+        """``n × m`` output coefficients (main product and by-products)."""
+        return np.eye(self.n) if self.tech is None else self.tech.outputs
+
+    def by_sector(self, x: np.ndarray) -> np.ndarray:
+        """Sum a technique array (``… × m``) over the techniques of each sector (``… × n``)."""
+        return x if self.tech is None else x @ self.sel.T
+
+    def supplied(self, x: np.ndarray) -> np.ndarray:
+        """Commodities produced ``Q x_t`` of each year, main products and by-products."""
+        return x if self.tech is None else x @ self.tech.outputs.T
 
     @property
     def T(self) -> int:  # noqa: N802 - the trade's symbol
@@ -109,7 +154,7 @@ class PlanData:
 
     @property
     def n(self) -> int:
-        """Number of sectors."""
+        """Number of sectors (commodities)."""
         return len(self.names)
 
     @property
@@ -276,6 +321,29 @@ def terminal_proportions(plan: Plan) -> tuple[np.ndarray, str]:
     return c0 / (prices @ c0), "initial capacity"
 
 
+def techniques(plan: Plan) -> TechniqueSet | None:
+    """The plan's techniques as arrays, None when each sector has only its base technique.
+
+    Embodied technical change splits each changing technique by vintage
+    (:func:`growthplan.technique.split_vintages`).
+    """
+    from ..technique import split_vintages, technique_arrays
+
+    tc = plan.technical_change
+    embodied = tc is not None and tc.embodied and bool(tc.input_rate or tc.capital_rate
+                                                      or tc.labour_rate)
+    if not plan.techniques and not embodied:
+        return None
+    ts = technique_arrays(plan.economy, plan.techniques)
+    if embodied:
+        assert tc is not None
+        T = len(plan.years)
+        ts = split_vintages(ts, list(plan.years),
+                            {k: tc.factors(plan.economy.names, T, k)
+                             for k in ("input", "capital", "labour")})
+    return ts
+
+
 def _pipeline_capacity(theta: int, starts: np.ndarray, surv: np.ndarray, T: int) -> np.ndarray:
     """Capacity in service in years 0..T from starts made before the plan (oldest first)."""
     out = np.zeros(T + 1)
@@ -301,27 +369,33 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
     names, years = econ.names, list(plan.years)
     T, n = len(years), econ.n
     assert econ.capital is not None  # Plan's validation requires it
-    specs = [econ.capital[k] for k in names]
+    ts = techniques(plan)
+    if ts is None:
+        specs = [econ.capital[k] for k in names]
+        b = np.asarray(econ.capital_coefficients, dtype=float)
+        owner = np.arange(n)
+    else:
+        specs, b, owner = ts.specs, ts.capital, ts.sector
+    m = len(specs)
     theta = np.array([s.lead_time for s in specs], dtype=int)
     width = int(max(1, theta.max()))
-    spending = np.zeros((n, width))
+    spending = np.zeros((m, width))
     for j, s in enumerate(specs):
         spending[j, : len(s.spending_profile or [])] = s.spending_profile
     surv_full = [np.asarray(s.survival(), dtype=float) for s in specs]
-    surv = np.zeros((n, T + 2))
+    surv = np.zeros((m, T + 2))
     for j, prof in enumerate(surv_full):
         k = min(prof.size, T + 2)
         surv[j, :k] = prof[:k]
     geo = np.array([s.declining_balance / s.mean_service_life if s.retirement == "geometric"
                     else np.nan for s in specs])
     initial = np.array([s.initial_capacity * s.initial_survival(T) for s in specs]).T.reshape(
-        T + 1, n).copy()
-    b = np.asarray(econ.capital_coefficients, dtype=float)
+        T + 1, m).copy()
     base = initial.copy()
     pipe_del = np.zeros((T, n))
-    pipeline = [np.zeros(0) for _ in names]
+    pipeline = [np.zeros(0) for _ in range(m)]
     for sector, past in (plan.under_construction or {}).items():
-        j = names.index(sector)
+        j = names.index(sector)  # the base technique (its first vintage) builds them
         v = np.asarray(past, dtype=float)
         pipeline[j] = v
         base[:, j] += _pipeline_capacity(int(theta[j]), v, surv_full[j], T)
@@ -330,18 +404,26 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
                 if 0 <= s_ - back < T:
                     pipe_del[s_ - back] += b[:, j] * spending[j, s_] * amount
     util = np.array([s.max_utilisation for s in specs], dtype=float)
-    upper = np.full((T, n), np.inf)
+    upper = np.full((T, m), np.inf)
+    if ts is not None:  # starts outside a technique's availability years are held at zero
+        yr = np.array(years)[:, None]
+        lo = np.array([-np.inf if v is None else v for v in ts.first_year])[None, :]
+        hi = np.array([np.inf if v is None else v for v in ts.last_start])[None, :]
+        upper[(yr < lo) | (yr > hi)] = 0.0
     ceilings = []
     for sc in plan.starts_ceilings:
-        j = names.index(sc.sector)
         rows = [years.index(y) for y in sc.years] if sc.years else list(range(T))
-        upper[rows, j] = np.minimum(upper[rows, j], sc.at_most)
-        ceilings.append((j, rows, float(sc.at_most)))
+        for col in np.flatnonzero(owner == names.index(sc.sector)):  # each of its techniques
+            upper[rows, col] = np.minimum(upper[rows, col], sc.at_most)
+            ceilings.append((int(col), rows, float(sc.at_most)))
     kinds = list(econ.labour_kinds or [])
-    labour_all = (np.asarray(econ.labour_coefficients, dtype=float)
-                  if econ.labour_coefficients is not None else np.zeros((0, n)))
+    if ts is not None:
+        labour_all = ts.labour
+    else:
+        labour_all = (np.asarray(econ.labour_coefficients, dtype=float)
+                      if econ.labour_coefficients is not None else np.zeros((0, n)))
     sup_kinds = [ls.kind for ls in plan.labour]
-    labour = labour_all[[kinds.index(k) for k in sup_kinds]] if sup_kinds else np.zeros((0, n))
+    labour = labour_all[[kinds.index(k) for k in sup_kinds]] if sup_kinds else np.zeros((0, m))
     targets = []
     for i, tg in enumerate(plan.targets):
         jt = names.index(tg.sector) if tg.sector is not None else None
@@ -354,7 +436,8 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
     psi = None if rate is None else np.array([s.starts_per_capacity(rate) for s in specs])
     imports, exports, inflow = trade_sides(plan)
     data = PlanData(
-        names=list(names), years=years, a=np.asarray(econ.input_coefficients, dtype=float),
+        names=list(names), years=years,
+        a=np.asarray(econ.input_coefficients, dtype=float) if ts is None else ts.inputs,
         b=b, labour=labour, labour_kinds=sup_kinds, labour_all=labour_all,
         labour_all_kinds=kinds, supply=labour_supply(plan), basket=basket(plan),
         has_consumption=plan.consumption is not None, floor=consumption_floor(plan),
@@ -368,16 +451,26 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
         labour_units=[econ.labour_unit_names[kinds.index(k)] for k in sup_kinds],
         labour_all_units=econ.labour_unit_names, value_unit=econ.value_unit,
         base_output=None if econ.base_output is None else np.asarray(econ.base_output),
-        first_year_within=plan.first_year_within, population=population(plan))
+        first_year_within=plan.first_year_within, population=population(plan), tech=ts)
     tc = plan.technical_change
-    if tc is not None and (tc.input_rate or tc.capital_rate or tc.labour_rate):
-        fa = tc.factors(data.names, T, "input")
-        fb = tc.factors(data.names, T, "capital")
-        fl = tc.factors(data.names, T, "labour")
+    if tc is not None and not tc.embodied and (tc.input_rate or tc.capital_rate
+                                               or tc.labour_rate):
+        own = data.tech_sector  # a technique changes at its sector's rates
+        fa = tc.factors(data.names, T, "input")[:, own]
+        fb = tc.factors(data.names, T, "capital")[:, own]
+        fl = tc.factors(data.names, T, "labour")[:, own]
         data.a_year = data.a[None, :, :] * fa[:, None, :]
         data.b_year = data.b[None, :, :] * fb[:, None, :]
         data.labour_year = data.labour[None, :, :] * fl[:, None, :]
         data.labour_all_year = data.labour_all[None, :, :] * fl[:, None, :]
+    if tc is not None and tc.embodied and ts is not None and np.any(ts.vintage > 0):
+        from ..technique import technique_arrays
+
+        first = technique_arrays(econ, plan.techniques)  # before the split, for the audit
+        data.extra["vintage_factors"] = {
+            "input": tc.factors(names, T, "input"), "labour": tc.factors(names, T, "labour"),
+            "capital": tc.factors(names, T, "capital"), "base_inputs": first.inputs,
+            "base_labour": first.labour}
     for arr_name in ("initial", "base", "surv", "pipe_deliveries", "demand", "supply"):
         arr = getattr(data, arr_name)
         if not np.all(np.isfinite(arr)):

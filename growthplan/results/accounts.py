@@ -50,7 +50,7 @@ def _retired_value(d: PlanData, s: Schedules) -> np.ndarray:
     p = d.prices
     out = np.zeros(d.T)
     base_value = p @ d.b
-    for j in range(d.n):
+    for j in range(d.m):
         surv = np.append(d.surv_full[j], 0.0)  # S(a) = 0 past the profile's end
         last = surv.size - 1
         theta = int(d.theta[j])
@@ -76,7 +76,7 @@ def national_accounts(d: PlanData, s: Schedules, retirements: np.ndarray) -> pd.
     s : Schedules
         The solution.
     retirements : numpy.ndarray
-        Capacity retired in each year, years × sectors.
+        Capacity retired in each year, years × techniques (sectors).
 
     Returns
     -------
@@ -91,7 +91,7 @@ def national_accounts(d: PlanData, s: Schedules, retirements: np.ndarray) -> pd.
     p = d.prices
     x = s.output
     kappa = np.zeros(d.T) if s.consumption is None else s.consumption
-    gross = x @ p
+    gross = d.supplied(x) @ p
     inter = d.intermediate(x) @ p
     gdp = gross - inter
     invest = s.deliveries @ p
@@ -141,10 +141,13 @@ def employment(d: PlanData, s: Schedules) -> pd.DataFrame:
     """
     cols = {}
     for k, kind in enumerate(d.labour_all_kinds):
-        for j, name in enumerate(d.names):
+        for name in d.names:
+            cols[(kind, name)] = np.zeros(d.T)
+        for j, sector in enumerate(d.tech_sector):  # a sector's techniques add up
             coef = d.labour_all[k, j] if d.labour_all_year is None \
                 else d.labour_all_year[:, k, j]
-            cols[(kind, name)] = s.output[:, j] * coef
+            key = (kind, d.names[sector])
+            cols[key] = cols[key] + s.output[:, j] * coef
     out = pd.DataFrame(cols, index=pd.Index(d.years, name="year"))
     if cols:
         out.columns = pd.MultiIndex.from_tuples(list(cols), names=["kind", "sector"])

@@ -59,10 +59,10 @@ class Audit:
 
 
 def recompute_capacity(d: PlanData, starts: np.ndarray) -> np.ndarray:
-    """Capacity in service in years ``0..T`` from the starts, vintage by vintage."""
+    """Capacity in service in years ``0..T`` from the starts, vintage by vintage, per technique."""
     T = d.T
     cap = d.initial.copy()
-    for j in range(d.n):
+    for j in range(d.m):
         s = d.surv_full[j]
         theta = int(d.theta[j])
         vintages = [(-(k + 1), v) for k, v in enumerate(d.pipeline[j][::-1])]
@@ -79,7 +79,7 @@ def recompute_deliveries(d: PlanData, starts: np.ndarray) -> np.ndarray:
     """Capital goods delivered by commodity in each plan year."""
     T = d.T
     out = np.zeros((T, d.n))
-    for j in range(d.n):
+    for j in range(d.m):
         vintages = [(-(k + 1), v) for k, v in enumerate(d.pipeline[j][::-1])]
         vintages += [(tau, starts[tau, j]) for tau in range(T)]
         for tau, amount in vintages:
@@ -119,7 +119,7 @@ def _accounts_checks(d: PlanData, s: Schedules) -> list[Check]:
     p = d.prices
     x = s.output
     kappa = np.zeros(d.T) if s.consumption is None else s.consumption
-    supply = x.copy()
+    supply = d.supplied(x).copy()
     for flows, side, sign in ((s.imports, d.imports, 1.0), (s.exports, d.exports, -1.0)):
         if flows is not None and side is not None:
             for i, j in enumerate(side.index):
@@ -127,14 +127,14 @@ def _accounts_checks(d: PlanData, s: Schedules) -> list[Check]:
     inter = d.intermediate(x)
     use = inter + s.deliveries_check + kappa[:, None] * d.basket[None, :] + d.demand
     disposal = (supply - use) @ p
-    production = (x - inter) @ p
+    production = (d.supplied(x) - inter) @ p
     exports = np.zeros(d.T) if s.exports is None or d.exports is None else \
         s.exports @ p[d.exports.index]
     imports = np.zeros(d.T) if s.imports is None or d.imports is None else \
         s.imports @ p[d.imports.index]
     expenditure = (s.deliveries_check @ p + kappa * float(d.basket @ p) + d.demand @ p
                    + exports - imports)
-    scale = np.abs(x) @ p + np.abs(inter) @ p + np.abs(use) @ p
+    scale = np.abs(d.supplied(x)) @ p + np.abs(inter) @ p + np.abs(use) @ p
     labels = [("national accounts", y) for y in d.years]
     zeros = np.zeros(d.T, int)
     return [Check("GDP identity", np.abs(production - expenditure - disposal), scale, labels,

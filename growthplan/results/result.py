@@ -315,6 +315,51 @@ class PlanResult:
             out = out.groupby("year", sort=True).head(top)
         return out.reset_index(drop=True)
 
+    # -- techniques -------------------------------------------------------------
+    @property
+    def techniques(self) -> pd.DataFrame:
+        """Output, capacity and starts of every technique by year (tidy).
+
+        Columns technique, sector, label, year, output, capacity, starts
+        (see :mod:`growthplan.results.techniques`).
+        """
+        from .techniques import technique_table
+
+        return technique_table(self)
+
+    @property
+    def technique_years(self) -> pd.DataFrame:
+        """First year each technique is started and last year it is used."""
+        from .techniques import technique_years
+
+        return technique_years(self)
+
+    @property
+    def technique_profits(self) -> pd.DataFrame:
+        """Profit of every technique and year at the shadow prices (≤ 0, = 0 when in use).
+
+        See :mod:`growthplan.results.techniques` for the expressions.
+        """
+        from .techniques import technique_profits
+
+        return technique_profits(self)
+
+    def explain_technique(self, sector: str, year: int) -> str:
+        """A short text table comparing a sector's techniques in one year.
+
+        Parameters
+        ----------
+        sector : str
+        year : int
+
+        Returns
+        -------
+        str
+        """
+        from .techniques import explain_technique
+
+        return explain_technique(self, sector, year)
+
     def summary(self) -> Summary:
         """A short report: text in a terminal (``print``), a table in a notebook.
 

@@ -28,14 +28,14 @@ PER_SECTOR = ("output", "starts", "capacity", "capital_deliveries", "retirements
 
 def schedules(d: PlanData, lp: LinearProgram, x: np.ndarray) -> Schedules:
     """The solution's schedules as arrays (capacity and deliveries through the operators)."""
-    T, n = d.T, d.n
+    T, n = d.T, d.m  # per technique (per sector without alternatives)
     output = lp.cols["output"].take(x)
     starts = lp.cols["starts"].take(x)
     kappa = lp.cols["consumption"].take(x) if "consumption" in lp.cols else None
     level = float(x[lp.cols["level"].start]) if "level" in lp.cols else None
     g, w = lp.operators["capacity"], lp.operators["deliveries"]
     cap = (d.base.ravel() + g @ starts.ravel()).reshape(T + 1, n)
-    deliv = (w @ starts.ravel()).reshape(T, n) + d.pipe_deliveries
+    deliv = (w @ starts.ravel()).reshape(T, d.n) + d.pipe_deliveries
     imports = lp.cols["imports"].take(x) if "imports" in lp.cols else None
     exports = lp.cols["exports"].take(x) if "exports" in lp.cols else None
     return Schedules(output=output, starts=starts, consumption=kappa, level=level,
@@ -46,13 +46,13 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
            discount_rate: float | None) -> dict[str, Any]:
     """Every table of the result, labelled."""
     names, years = d.names, d.years
-    T, n = d.T, d.n
+    T, m = d.T, d.m
     idx = pd.Index(years, name="year")
     cols = pd.Index(names, name="sector")
     goods = pd.Index(names, name="commodity")
     output, starts, cap, kappa = s.output, s.starts, s.capacity, s.consumption
-    entering = np.zeros((T + 1, n))  # capacity entering service at age 0 in each year
-    for j in range(n):
+    entering = np.zeros((T + 1, m))  # capacity entering service at age 0 in each year
+    for j in range(m):
         th = int(d.theta[j])
         for tau in range(T):
             if tau + th <= T:
@@ -60,19 +60,23 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
         for back, amount in enumerate(d.pipeline[j][::-1], start=1):
             if 0 <= th - back <= T:
                 entering[th - back, j] += amount
-    retire = cap[:-1] + entering[1:] - cap[1:]
+    retire = cap[:-1] + entering[1:] - cap[1:]  # per technique
+    retired = np.maximum(retire, 0.0) * (np.abs(retire) > 1e-12)
     out: dict[str, Any] = {}
 
     def frame(a: np.ndarray, index: pd.Index = idx, columns: pd.Index = cols) -> pd.DataFrame:
         return pd.DataFrame(a, index=index, columns=columns)
 
-    out["output"] = frame(output)
-    out["starts"] = frame(starts)
-    out["capacity"] = frame(cap, index=pd.Index([*years, years[-1] + 1], name="year"))
+    # sector tables sum the sector's techniques (their main product)
+    out["output"] = frame(d.by_sector(output))
+    out["starts"] = frame(d.by_sector(starts))
+    sector_cap = d.by_sector(cap)
+    out["capacity"] = frame(sector_cap, index=pd.Index([*years, years[-1] + 1], name="year"))
     with np.errstate(divide="ignore", invalid="ignore"):
-        out["utilisation"] = frame(np.where(cap[:-1] > 0, output / cap[:-1], np.nan))
+        out["utilisation"] = frame(np.where(sector_cap[:-1] > 0,
+                                            d.by_sector(output) / sector_cap[:-1], np.nan))
     out["capital_deliveries"] = frame(s.deliveries, columns=goods)
-    out["retirements"] = frame(np.maximum(retire, 0.0) * (np.abs(retire) > 1e-12))
+    out["retirements"] = frame(d.by_sector(retired))
     if d.labour.shape[0]:
         used = d.labour_used(output)
         lab = {}
@@ -95,7 +99,7 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     use = d.intermediate(output) + s.deliveries + d.demand
     if kappa is not None:
         use = use + kappa[:, None] * d.basket
-    supply = output.copy()
+    supply = d.supplied(output).copy()
     for key, side, direction, flows in (("imports", d.imports, 1.0, s.imports),
                                         ("exports", d.exports, -1.0, s.exports)):
         if flows is not None and side is not None:
@@ -114,9 +118,11 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     value = np.where(np.abs(value) < 1e-12, 0.0, value)
     prices = lp.rows["balance"].take(value)
     out["shadow_prices"] = frame(prices, columns=goods)
-    out["shadow_prices_current"] = frame(current_prices(prices, output, discount_rate),
+    out["shadow_prices_current"] = frame(current_prices(prices, d.supplied(output),
+                                                        discount_rate),
                                          columns=goods)
-    out["quasi_rents"] = frame(lp.rows["capacity"].take(value))
+    rents = lp.rows["capacity"].take(value)  # per technique
+    out["quasi_rents"] = frame(_best(d, rents))
     if "labour" in lp.rows:
         out["labour_values"] = pd.DataFrame(lp.rows["labour"].take(value), index=idx,
                                             columns=pd.Index(d.labour_kinds, name="kind"))
@@ -128,14 +134,14 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
         tv["value"] = lp.rows["targets"].take(value)
     out["target_values"] = tv
     out["level"] = s.level
-    out["terminal_value"] = float(d.prices @ cap[-1])
-    out["accounts"] = national_accounts(d, s, out["retirements"].to_numpy())
+    out["terminal_value"] = float(d.prices @ sector_cap[-1])
+    out["accounts"] = national_accounts(d, s, retired)
     out["employment"] = employment(d, s)
-    factor = money_factor(d, prices, output)
+    factor = money_factor(d, prices, d.supplied(output))
     money_note = (f"{d.value_unit} per unit; numeraire: the first year's output bundle has "
                   "the same value at shadow prices as at base-year prices")
     out["shadow_prices_money"] = frame(prices * factor[:, None], columns=goods)
-    out["quasi_rents_money"] = frame(lp.rows["capacity"].take(value) * factor[:, None])
+    out["quasi_rents_money"] = frame(_best(d, rents) * factor[:, None])
     if "labour" in lp.rows:
         out["labour_values_money"] = pd.DataFrame(
             lp.rows["labour"].take(value) * factor[:, None], index=idx,
@@ -151,6 +157,8 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
         out["floor_values"] = pd.Series(np.full(T, np.nan), index=idx,
                                         name="consumption_floor_value")
     out["calibration"] = calibration(d, output)
+    out["technique_rents"] = rents
+    out["technique_retirements"] = retired
     units = dict(zip(names, d.units, strict=True))
     for key in PER_SECTOR:
         out[key].attrs["units"] = units
@@ -163,6 +171,16 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     return out
 
 
+def _best(d: PlanData, rents: np.ndarray) -> np.ndarray:
+    """A sector's quasi-rent: the largest over its techniques (its own without alternatives)."""
+    if d.tech is None:
+        return rents
+    out = np.full((rents.shape[0], d.n), -np.inf)
+    for k, j in enumerate(d.tech_sector):
+        out[:, j] = np.maximum(out[:, j], rents[:, k])
+    return out
+
+
 def calibration(d: PlanData, output: np.ndarray) -> pd.DataFrame:
     """The first plan year against the base year, by sector (empty without a base year).
 
@@ -172,14 +190,15 @@ def calibration(d: PlanData, output: np.ndarray) -> pd.DataFrame:
     if d.base_output is None:
         return pd.DataFrame(index=pd.Index([], name="sector"))
     base = d.base_output
-    first = output[0]
+    first = d.by_sector(output)[0]  # output: years × techniques
     with np.errstate(divide="ignore", invalid="ignore"):
         change = np.where(base > 0, first / base - 1.0, np.nan)
     out = pd.DataFrame({"base_output": base, "first_year_output": first, "change": change},
                        index=pd.Index(d.names, name="sector"))
     for k, kind in enumerate(d.labour_all_kinds):
-        out[f"base employment {kind}"] = base * d.labour_all[k]
-        out[f"first-year employment {kind}"] = first * d.labour_all[k]
+        # the base year ran on the base techniques, the first columns
+        out[f"base employment {kind}"] = base * d.labour_all[k, : d.n]
+        out[f"first-year employment {kind}"] = d.by_sector(output[0] * d.labour_all[k])
     out.attrs["units"] = dict(zip(d.names, d.units, strict=True))
     return out
 

@@ -31,8 +31,8 @@ class Context:
     data: PlanData
     cols: dict[str, Block]
     ncol: int
-    capacity: sparse.csr_array    # G: rows (t, j) for t = 0..T, columns starts (τ, j)
-    deliveries: sparse.csr_array  # W: rows (t, i), columns starts (τ, j)
+    capacity: sparse.csr_array    # G: rows (t, k) for t = 0..T, columns starts (τ, k)
+    deliveries: sparse.csr_array  # W: rows (t, i), columns starts (τ, k); k: techniques
 
     def width(self, name: str) -> int:
         return self.cols[name].size
@@ -52,7 +52,11 @@ class RowBlock:
 
 @dataclass
 class Schedules:
-    """A solution as arrays (years × sectors and the like), the audit's input."""
+    """A solution as arrays (years × techniques and the like), the audit's input.
+
+    ``output``, ``starts`` and ``capacity`` have one column per technique
+    (per sector when there are no alternative techniques).
+    """
 
     output: np.ndarray
     starts: np.ndarray
@@ -130,16 +134,16 @@ class Condition:
 
 
 def capacity_nnz_by_row(d: PlanData) -> np.ndarray:
-    """Nonzeros of each row of the capacity operator ``G``, shape (T + 1) × sectors."""
+    """Nonzeros of each row of the capacity operator ``G``, shape (T + 1) × techniques."""
     T = d.T
-    nz = (d.surv != 0).astype(np.int64)              # sectors × (T + 2)
-    csum = np.concatenate([np.zeros((d.n, 1), np.int64), np.cumsum(nz, axis=1)], axis=1)
+    nz = (d.surv != 0).astype(np.int64)              # techniques × (T + 2)
+    csum = np.concatenate([np.zeros((d.m, 1), np.int64), np.cumsum(nz, axis=1)], axis=1)
     t = np.arange(T + 1)[:, None]
     hi = t - d.theta[None, :]                        # oldest vintage's age: τ = 0
     lo = hi - (T - 1)                                # youngest: τ = T − 1
     hi_c = np.clip(hi, -1, T + 1)
     lo_c = np.clip(lo, 0, T + 2)
-    rows = np.arange(d.n)[None, :]
+    rows = np.arange(d.m)[None, :]
     out = csum[rows, hi_c + 1] - csum[rows, lo_c]
     return np.where(hi >= 0, np.maximum(out, 0), 0)
 
@@ -152,12 +156,13 @@ def _registry() -> list[Condition]:
     from .labour import Labour
     from .level import TerminalLevel
     from .targets import Targets
+    from .techniques import Techniques
     from .terminal import Terminal
     from .trade import ForeignExchange, TradeBounds
 
     return [Balance(), Capacity(), Labour(), ForeignExchange(), ConsumptionFloor(),
             ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds(),
-            FirstYear()]
+            FirstYear(), Techniques()]
 
 
 CONDITIONS: list[Condition] = _registry()

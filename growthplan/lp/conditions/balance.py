@@ -1,8 +1,9 @@
 """Commodity balances: supply covers intermediate use, capital goods, consumption and demand.
 
-``(I − A) x_t + m_t − e_t − W z − h κ_t ≥ g_t + pipeline deliveries_t``
-(free disposal: a surplus is allowed). Hard in the diagnosis: a balance is
-physics, not a wish.
+``(Q − A) x_t + m_t − e_t − W z − h κ_t ≥ g_t + pipeline deliveries_t``
+(free disposal: a surplus is allowed), ``x_t`` the output of each technique
+and ``Q`` what each makes (``Q = I`` with one technique per sector). Hard in
+the diagnosis: a balance is physics, not a wish.
 """
 
 from __future__ import annotations
@@ -24,7 +25,7 @@ class Balance(Condition):
 
     def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         T, n = d.T, d.n
-        eye = np.eye(n)
+        eye = d.q
         nnz = sum(int(np.count_nonzero(eye - d.a_at(t))) for t in range(T)) if d.changing \
             else T * int(np.count_nonzero(eye - d.a))
         for s in range(min(d.spending.shape[1], T)):
@@ -42,11 +43,12 @@ class Balance(Condition):
         d = ctx.data
         T, n = d.T, d.n
         eye_t = sparse.eye_array(T, format="csr")
+        q = d.q
         if d.changing:  # each year's own input coefficients
-            years = [sparse.csr_array(np.eye(n) - d.a_at(t)) for t in range(T)]
+            years = [sparse.csr_array(q - d.a_at(t)) for t in range(T)]
             out = sparse.csr_array(sparse.block_diag(years, format="csr"))
         else:
-            out = sparse.kron(eye_t, sparse.csr_array(np.eye(n) - d.a), format="csr")
+            out = sparse.kron(eye_t, sparse.csr_array(q - d.a), format="csr")
         coeffs: dict[str, sparse.sparray] = {"output": out, "starts": -ctx.deliveries}
         if "consumption" in ctx.cols:
             coeffs["consumption"] = sparse.kron(eye_t, sparse.csr_array(-d.basket[:, None]),
@@ -66,7 +68,7 @@ class Balance(Condition):
         intermediate = d.intermediate(s.output)
         cons = kappa[:, None] * d.basket[None, :]
         use = intermediate + deliv + cons + d.demand
-        supply = s.output.copy()
+        supply = d.supplied(s.output).copy()
         traded = np.zeros_like(supply)
         for flows, side, sign in ((s.imports, d.imports, 1.0), (s.exports, d.exports, -1.0)):
             if side is not None and side.goods:
@@ -74,7 +76,7 @@ class Balance(Condition):
                 for i, j in enumerate(side.index):
                     supply[:, j] += sign * flows[:, i]
                     traded[:, j] += np.abs(flows[:, i])
-        scale = np.abs(s.output) + np.abs(intermediate) + np.abs(deliv) + np.abs(cons) \
+        scale = np.abs(d.supplied(s.output)) + np.abs(intermediate) + np.abs(deliv) + np.abs(cons) \
             + d.demand + traded
         labels = [("balance", y, c) for y in d.years for c in d.names]
         groups = np.tile(np.arange(d.n), d.T)

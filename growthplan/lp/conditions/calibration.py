@@ -26,7 +26,7 @@ class FirstYear(Condition):
         return d.first_year_within is not None and d.base_output is not None
 
     def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
-        return d.n, d.n
+        return d.n, d.m
 
     def _floor(self, d: PlanData) -> np.ndarray:
         assert d.base_output is not None and d.first_year_within is not None
@@ -34,14 +34,15 @@ class FirstYear(Condition):
 
     def build(self, ctx: Context) -> RowBlock:
         d = ctx.data
-        sel = sparse.csr_array((np.ones(d.n), (np.arange(d.n), np.arange(d.n))),
-                               shape=(d.n, d.T * d.n))
+        # a sector's first-year output: the sum over its techniques
+        sel = sparse.csr_array((np.ones(d.m), (d.tech_sector, np.arange(d.m))),
+                               shape=(d.n, d.T * d.m))
         return RowBlock("first_year", (d.n,), (tuple((d.years[0], c) for c in d.names),),
                         {"output": sel}, self._floor(d), np.inf)
 
     def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         floor = self._floor(d)
-        x0 = s.output[0]
+        x0 = d.by_sector(s.output)[0]
         return [Check("first-year output", floor - x0, floor + np.abs(x0),
                       [("first-year output", d.years[0], c) for c in d.names], np.arange(d.n))]
 

@@ -1,6 +1,6 @@
-"""Capacity: output of each sector within the capacity in service.
+"""Capacity: output of each technique (sector) within its capacity in service.
 
-``x_jt − u_j (G z)_jt ≤ u_j base_jt`` where ``C = base + G z`` is the
+``x_kt − u_k (G z)_kt ≤ u_k base_kt`` where ``C = base + G z`` is the
 capacity in service (see :mod:`growthplan.lp.build`). Hard in the diagnosis.
 The audit also checks starts against their ceilings and every schedule
 against its sign.
@@ -25,14 +25,14 @@ class Capacity(Condition):
 
     def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         g = capacity_nnz_by_row(d)[: d.T]
-        return d.T * d.n, d.T * d.n + int(g.sum())
+        return d.T * d.m, d.T * d.m + int(g.sum())
 
     def build(self, ctx: Context) -> RowBlock:
         d = ctx.data
-        T, n = d.T, d.n
+        T, n = d.T, d.m
         u = np.tile(d.util, T)
         g_plan = ctx.capacity[: T * n]
-        return RowBlock("capacity", (T, n), (tuple(d.years), tuple(d.names)),
+        return RowBlock("capacity", (T, n), (tuple(d.years), tuple(d.tech_names)),
                         {"output": sparse.eye_array(T * n, format="csr"),
                          "starts": sparse.csr_array(-(sparse.diags_array(u) @ g_plan))},
                         -np.inf, d.base[:T] * d.util[None, :])
@@ -40,15 +40,15 @@ class Capacity(Condition):
     def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         cap = s.capacity_check
         assert cap is not None
-        groups = np.tile(np.arange(d.n), d.T)
-        grid = [(y, c) for y in d.years for c in d.names]
+        groups = np.tile(np.arange(d.m), d.T)
+        grid = [(y, c) for y in d.years for c in d.tech_names]
         checks = [
             Check("capacity", (s.output - d.util * cap[:-1]).ravel(),
                   (np.abs(s.output) + d.util * np.abs(cap[:-1])).ravel(),
                   [("capacity", *g) for g in grid], groups),
             Check("reported capacity", np.abs(s.capacity - cap).ravel(), np.abs(cap).ravel(),
                   [("capacity in service", y, c) for y in [*d.years, d.years[-1] + 1]
-                   for c in d.names], np.tile(np.arange(d.n), d.T + 1)),
+                   for c in d.tech_names], np.tile(np.arange(d.m), d.T + 1)),
             Check("non-negative output", -s.output.ravel(), np.abs(s.output).ravel(),
                   [("output", *g) for g in grid], groups),
             Check("non-negative starts", -s.starts.ravel(), np.abs(s.starts).ravel(),
@@ -56,7 +56,8 @@ class Capacity(Condition):
         for j, rows, at_most in d.ceilings:
             got = s.starts[rows, j]
             checks.append(Check("starts ceiling", got - at_most, np.abs(got) + at_most,
-                                [("starts ceiling", d.years[r], d.names[j]) for r in rows],
+                                [("starts ceiling", d.years[r], d.tech_names[j])
+                                 for r in rows],
                                 np.full(len(rows), j)))
         return checks
 

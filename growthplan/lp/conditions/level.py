@@ -26,23 +26,28 @@ class TerminalLevel(Condition):
 
     def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         assert d.proportions is not None
+        # each technique's capacity counts towards its sector's row only
         return d.n, int(capacity_nnz_by_row(d)[d.T].sum()) + int(np.count_nonzero(d.proportions))
 
     def build(self, ctx: Context) -> RowBlock:
         d = ctx.data
         assert d.proportions is not None
+        g_end = sparse.csr_array(ctx.capacity[d.T * d.m:])
+        if d.tech is not None:
+            g_end = sparse.csr_array(sparse.csr_array(d.sel) @ g_end)
         return RowBlock("terminal_level", (d.n,), (tuple(d.names),),
-                        {"starts": sparse.csr_array(ctx.capacity[d.T * d.n:]),
+                        {"starts": g_end,
                          "level": sparse.csr_array(-d.proportions[:, None])},
-                        -d.base[d.T], np.inf)
+                        -d.by_sector(d.base[d.T]), np.inf)
 
     def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         if s.level is None:
             return []
         cap = s.capacity_check
         assert cap is not None and d.proportions is not None
-        return [Check("terminal level", s.level * d.proportions - cap[-1],
-                      np.abs(s.level) * d.proportions + np.abs(cap[-1]),
+        end = d.by_sector(cap[-1])
+        return [Check("terminal level", s.level * d.proportions - end,
+                      np.abs(s.level) * d.proportions + np.abs(end),
                       [("terminal level", d.years[-1] + 1, c) for c in d.names],
                       np.arange(d.n))]
 

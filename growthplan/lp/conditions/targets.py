@@ -26,25 +26,36 @@ class Targets(Condition):
 
     def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         g = capacity_nnz_by_row(d)
-        nnz = sum(int(g[tg.t, tg.j]) if tg.quantity == "capacity" else 1 for tg in d.targets)
+        own = d.tech_sector
+        nnz = 0
+        for tg in d.targets:  # a sector's output and capacity: the sum over its techniques
+            ks = np.flatnonzero(own == tg.j)
+            nnz += int(g[tg.t, ks].sum()) if tg.quantity == "capacity" else \
+                (len(ks) if tg.quantity == "output" else 1)
         return len(d.targets), nnz
 
     def build(self, ctx: Context) -> RowBlock:
         d = ctx.data
-        T, n = d.T, d.n
+        T, n = d.T, d.m
+        own = d.tech_sector
         parts: dict[str, list[Any]] = {"output": [], "starts": [], "consumption": []}
         lower = []
         for tg in d.targets:
             row = {c: sparse.csr_array((1, ctx.width(c))) for c in parts if c in ctx.cols}
             if tg.quantity == "output":
                 assert tg.j is not None
-                row["output"] = sparse.csr_array(([1.0], ([0], [tg.t * n + tg.j])),
+                ks = np.flatnonzero(own == tg.j)
+                row["output"] = sparse.csr_array((np.ones(ks.size), (np.zeros(ks.size, int),
+                                                                     tg.t * n + ks)),
                                                  shape=(1, T * n))
                 lower.append(tg.required)
             elif tg.quantity == "capacity":
                 assert tg.j is not None
-                row["starts"] = sparse.csr_array(ctx.capacity[[tg.t * n + tg.j]])
-                lower.append(tg.required - d.base[tg.t, tg.j])
+                ks = np.flatnonzero(own == tg.j)
+                g_rows = ctx.capacity[tg.t * n + ks]
+                row["starts"] = sparse.csr_array(g_rows if ks.size == 1 else
+                                                 g_rows.sum(axis=0)[None, :])
+                lower.append(tg.required - float(d.base[tg.t, ks].sum()))
             else:
                 coef = 1.0 if tg.j is None else float(d.basket[tg.j])
                 row["consumption"] = sparse.csr_array(([coef], ([0], [tg.t])), shape=(1, T))
@@ -60,12 +71,13 @@ class Targets(Condition):
         cap = s.capacity_check
         assert cap is not None
         kappa = np.zeros(d.T) if s.consumption is None else s.consumption
+        output, capacity = d.by_sector(s.output), d.by_sector(cap)
         viol, scale, labels, groups = [], [], [], []
         for tg in d.targets:
             if tg.quantity == "output":
-                got = s.output[tg.t, tg.j]
+                got = output[tg.t, tg.j]
             elif tg.quantity == "capacity":
-                got = cap[tg.t, tg.j]
+                got = capacity[tg.t, tg.j]
             else:
                 got = kappa[tg.t] * (1.0 if tg.j is None else d.basket[tg.j])
             viol.append(tg.required - got)
