@@ -17,6 +17,7 @@ again is reported by name and takes no other variant with it.
 
 from __future__ import annotations
 
+import difflib
 import itertools
 import os
 import traceback
@@ -33,7 +34,7 @@ import pandas as pd
 from .errors import invalid
 from .plan import Plan
 
-__all__ = ["Sweep", "SerialExecutor", "sweep", "variant"]
+__all__ = ["Sweep", "SerialExecutor", "check_parameters", "sweep", "variant"]
 
 _T = TypeVar("_T")
 # one variant's work: (plan, parameters, solve options, keep the result)
@@ -92,28 +93,81 @@ class Sweep:
         return self.table[self.table["status"] == "error"]
 
 
-def _set_path(data: dict[str, Any], path: str, value: Any) -> None:
-    parts = path.split(".")
+def _resolve(data: dict[str, Any], path: str) -> list[str | int]:
+    """The steps of a dotted ``path`` into ``data``, checked: each names an existing field.
+
+    A list of one entry (one labour supply) may be stepped over, so
+    ``"labour.growth"`` means ``"labour.0.growth"``. A step that names
+    nothing raises InvalidInput naming the path, with the nearest field names.
+    """
+    steps: list[str | int] = []
     node: Any = data
-    for i, part in enumerate(parts[:-1]):
+    parts = path.split(".") if isinstance(path, str) else []
+    if not parts or any(p == "" for p in parts):
+        raise invalid("parameter", "be a dotted path into the plan's fields (like "
+                      "'labour.0.growth')", path)
+    k = 0
+    while k < len(parts):
+        part = parts[k]
         if isinstance(node, list):
-            node = node[int(part)]
-        elif isinstance(node, dict):
-            if part not in node or node[part] is None:
-                raise invalid(f"parameter {path!r}", f"name fields of the plan (no "
-                              f"{'.'.join(parts[: i + 1])!r})", value)
+            if part.isdigit() and int(part) < len(node):
+                steps.append(int(part))
+                node = node[int(part)]
+                k += 1
+                continue
+            if len(node) == 1 and not part.isdigit():  # the one entry of a list
+                steps.append(0)
+                node = node[0]
+                continue
+            where = ".".join(str(s) for s in steps) or "the plan"
+            raise invalid(f"parameter {path!r}", f"index {where} by 0..{len(node) - 1}",
+                          part)
+        if isinstance(node, dict) and part in node and (node[part] is not None
+                                                        or k == len(parts) - 1):
+            steps.append(part)
             node = node[part]
-        else:
-            raise invalid(f"parameter {path!r}", "name fields of the plan", value)
-    last = parts[-1]
-    if isinstance(node, list):
-        node[int(last)] = value
-    elif isinstance(node, dict):
-        if last not in node:
-            raise invalid(f"parameter {path!r}", "name an existing field of the plan", value)
-        node[last] = value
-    else:
-        raise invalid(f"parameter {path!r}", "name fields of the plan", value)
+            k += 1
+            continue
+        where = ".".join(str(s) for s in steps)
+        if isinstance(node, dict):
+            options = [str(x) for x in node if node[x] is not None or k == len(parts) - 1]
+            close = difflib.get_close_matches(part, options, n=1, cutoff=0.6)
+            hint = f"Did you mean {'.'.join([*map(str, steps), close[0]])!r}?" if close \
+                else f"fields here: {', '.join(sorted(options)[:12])}"
+            if part in node:  # present but unset: nothing below it to change
+                unset = f"{where}.{part}" if where else part
+                raise invalid(f"parameter {path!r}", f"name a field the plan has ({unset} "
+                              "is not set)", part)
+            raise invalid(f"parameter {path!r}", "name an existing field of the plan", part,
+                          hint=hint)
+        raise invalid(f"parameter {path!r}", f"stop at {where} (it has no fields)", part)
+    return steps
+
+
+def _set_path(data: dict[str, Any], path: str, value: Any) -> None:
+    steps = _resolve(data, path)
+    node: Any = data
+    for step in steps[:-1]:
+        node = node[step]
+    node[steps[-1]] = value
+
+
+def check_parameters(plan: Plan, paths: Any) -> None:
+    """Raise InvalidInput for the first path that names no field of ``plan``.
+
+    Parameters
+    ----------
+    plan : Plan
+    paths : iterable of str
+        Dotted parameter paths, as for :func:`variant`.
+    """
+    paths = list(paths)
+    touches_economy = any(isinstance(p, str) and p.startswith("economy.") for p in paths)
+    data = plan.model_dump(exclude=set() if touches_economy else {"economy"})
+    if not touches_economy:
+        data["economy"] = {}
+    for path in paths:
+        _resolve(data, path)
 
 
 def variant(plan: Plan, params: dict[str, Any]) -> Plan:
@@ -133,6 +187,12 @@ def variant(plan: Plan, params: dict[str, Any]) -> Plan:
     Plan
         The changed plan, validated like a new one (the economy is shared
         unless a path starts with ``economy.``).
+
+    Notes
+    -----
+    A list of one entry may be stepped over: with one labour supply,
+    ``"labour.growth"`` is ``"labour.0.growth"``. A path naming no field
+    raises InvalidInput with the nearest field name.
     """
     touches_economy = any(p.startswith("economy.") for p in params)
     data = plan.model_dump(exclude=set() if touches_economy else {"economy"})
@@ -192,6 +252,12 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
     """
     from .progress import sweep_progress
 
+    for name, params in (scenarios or {}).items():
+        if not isinstance(params, dict):
+            raise invalid(f"scenarios.{name}", "be a mapping of parameter paths to values",
+                          type(params).__name__)
+    # every path checked before any scenario runs: a misspelt key fails at once
+    check_parameters(plan, [*(grid or {}), *(k for p in (scenarios or {}).values() for k in p)])
     variants: list[tuple[str, dict[str, Any]]] = []
     if grid:
         keys = list(grid)
