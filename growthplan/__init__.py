@@ -24,7 +24,7 @@ from .errors import (
     UnproductiveEconomy,
 )
 from .expanding import ExpandingEconomy, expanding_economy
-from .io.planfile import load_plan_file, plan_file_schema, save_plan_file
+from .io.planfile import load_plan_file, load_uncertainty, plan_file_schema, save_plan_file
 from .io.supply_use import SupplyUseTable, SymmetricTable
 from .io.tables import TransactionsTable, read_transactions
 from .lp.program import LinearProgram
@@ -133,4 +133,5 @@ __all__ = [
     "reoptimise",
     "robust_plan",
     "stress_test",
+    "load_uncertainty",
 ]

@@ -159,7 +159,9 @@ Distribution = Annotated[Normal | LogNormal | Uniform | Triangular | Empirical,
                          Field(discriminator="kind")]
 
 _WHAT = Literal["input_coefficients", "capital_coefficients", "labour_coefficients",
-                "mean_service_life", "labour_growth", "final_demand"]
+                "mean_service_life", "labour_growth", "final_demand", "import_prices",
+                "export_prices"]
+_PRICES = ("import_prices", "export_prices")
 
 
 class Uncertain(Model):
@@ -171,7 +173,9 @@ class Uncertain(Model):
         ``"input_coefficients"``, ``"capital_coefficients"``,
         ``"labour_coefficients"`` (cells ``rows`` × ``cols``),
         ``"mean_service_life"`` or ``"final_demand"`` (``cols``: sectors) or
-        ``"labour_growth"`` (``cols``: labour kinds with a supply).
+        ``"labour_growth"`` (``cols``: labour kinds with a supply), or
+        ``"import_prices"``/``"export_prices"`` (``cols``: goods of the plan's
+        trade with such a price; world prices in the plan's value unit).
     rows, cols : str or list of str, optional
         Commodities (labour kinds for labour coefficients) and sectors
         selected; all when omitted. One row and one column select one cell.
@@ -186,12 +190,28 @@ class Uncertain(Model):
         ``rows`` × ``cols``) joined by a Gaussian copula.
     """
 
-    what: _WHAT
-    rows: list[str] | None = None
-    cols: list[str] | None = None
-    distribution: Distribution
-    relative: bool = True
-    correlation: Literal["shared", "independent"] | list[list[float]] = "shared"
+    what: _WHAT = Field(description=(
+        "What is uncertain: input_coefficients, capital_coefficients, labour_coefficients "
+        "(cells rows x cols), mean_service_life, final_demand (cols: sectors), labour_growth "
+        "(cols: labour kinds with a supply), import_prices or export_prices (cols: traded "
+        "goods)."))
+    rows: list[str] | None = Field(default=None, description=(
+        "Commodities (labour kinds for labour_coefficients) selected; all when omitted. "
+        "Coefficient blocks only."))
+    cols: list[str] | None = Field(default=None, description=(
+        "Sectors (or labour kinds, or goods) selected; all when omitted. One row and one "
+        "column select one cell."))
+    distribution: Distribution = Field(description=(
+        "The distribution of the drawn value: normal (truncated at zero), lognormal (its own "
+        "mean and sd), uniform, triangular or empirical (a sample)."))
+    relative: bool = Field(default=True, description=(
+        "True: the draw multiplies the nominal value (a factor around 1). False: it replaces "
+        "it. final_demand is relative only (its whole path is scaled)."))
+    correlation: Literal["shared", "independent"] | list[list[float]] = Field(
+        default="shared", description=(
+            "shared: one draw for every selected cell (perfect correlation); independent: one "
+            "per cell; or a correlation matrix over the cells in row-major order (a Gaussian "
+            "copula)."))
 
     @field_validator("rows", "cols", mode="before")
     @classmethod
@@ -242,6 +262,12 @@ class Uncertain(Model):
             if not all_cols:
                 raise invalid(f"{where}.what", "name a block the plan has (no labour supply)",
                               self.what)
+        elif self.what in _PRICES:
+            prices = getattr(plan.trade, self.what, None) if plan.trade is not None else None
+            if not prices:
+                raise invalid(f"{where}.what", "name a block the plan has (no trade with "
+                              f"{self.what})", self.what)
+            all_rows, all_cols = [""], list(prices)
         else:
             all_rows, all_cols = [""], econ.names
         rows = self.rows if self.rows is not None else all_rows
@@ -278,6 +304,10 @@ class UncertaintySpec(Model):
         Applied in order (two relative items on the same cell multiply).
     seed : int, default 0
         Draw ``i`` uses ``numpy.random.SeedSequence(seed).spawn(i + 1)[i]``.
+    draws : int, default 100
+        Drawn economies used by :func:`stress_test` and :func:`reoptimise`
+        when they are not given a number (a plan file's ``uncertainty:``
+        section sets it).
 
     Examples
     --------
@@ -285,8 +315,14 @@ class UncertaintySpec(Model):
     ...     distribution=Uniform(low=0.9, high=1.1))], seed=7)
     """
 
-    items: list[Uncertain] = Field(min_length=1)
-    seed: int = Field(default=0, ge=0)
+    items: list[Uncertain] = Field(min_length=1, description=(
+        "The uncertain quantities, applied in order (two relative items on one cell "
+        "multiply)."))
+    seed: int = Field(default=0, ge=0, description=(
+        "Seed of the draws: draw i uses numpy.random.SeedSequence(seed).spawn(i + 1)[i], so "
+        "a draw is the same whatever computes it and in whatever order."))
+    draws: int = Field(default=100, ge=1, le=10_000_000, description=(
+        "Number of drawn economies the analyses use when not told otherwise."))
 
     def check(self, plan: Any) -> None:
         """Raise InvalidInput when an item selects cells the plan does not have."""
@@ -311,7 +347,7 @@ class UncertaintySpec(Model):
         """Plan of draw ``i``: the nominal plan with every item's cells drawn (validated anew)."""
         from .economy import CapitalSpec, Economy
         from .lp.data import exogenous_demand
-        from .plan import LabourSupply, Plan
+        from .plan import LabourSupply, Plan, Trade
 
         econ = plan.economy
         blocks = {"input_coefficients": np.array(econ.input_coefficients, dtype=float),
@@ -321,13 +357,16 @@ class UncertaintySpec(Model):
         lives = np.array([econ.capital[k].mean_service_life for k in econ.names], dtype=float)
         growth = np.array([ls.growth for ls in plan.labour], dtype=float)
         demand = np.ones(econ.n)
+        prices = {w: np.array(list(getattr(plan.trade, w).values()), dtype=float)
+                  for w in _PRICES if plan.trade is not None}
         touched: set[str] = set()
         for k, (item, drawn) in enumerate(zip(self.items, self.values(plan, i), strict=True)):
             all_rows, all_cols, rows, cols = item._cells(plan, f"items.{k}")
             r = np.array([all_rows.index(x) for x in rows])
             c = np.array([all_cols.index(x) for x in cols])
             target = {"mean_service_life": lives[None, :], "labour_growth": growth[None, :],
-                      "final_demand": demand[None, :]}.get(item.what)
+                      "final_demand": demand[None, :],
+                      **{w: v[None, :] for w, v in prices.items()}}.get(item.what)
             if target is None:
                 target = blocks[item.what]
             cell = np.ix_(r, c)
@@ -353,6 +392,11 @@ class UncertaintySpec(Model):
             path = exogenous_demand(plan) * demand[None, :]
             fields["final_demand"] = pd.DataFrame(path, index=plan.years, columns=econ.names)
             fields["final_demand_growth"] = 0.0
+        if touched & set(_PRICES):
+            trade = plan.trade.model_dump()
+            for w, v in prices.items():
+                trade[w] = dict(zip(trade[w], v.tolist(), strict=True))
+            fields["trade"] = Trade(**trade)
         return Plan(**fields)
 
 
@@ -630,7 +674,7 @@ def _alone(job: tuple[Any, ...], mp_context: Any) -> list[tuple[Any, ...]]:
     return rows
 
 
-def stress_test(plan: Any, spec: UncertaintySpec, draws: int = 100, *, nominal: Any = None,
+def stress_test(plan: Any, spec: UncertaintySpec, draws: int | None = None, *, nominal: Any = None,
                 executor: Executor | None = None, max_workers: int | None = None,
                 chunk: int | None = None, progress: bool = False) -> UncertaintyResult:
     """What a fixed plan delivers in drawn economies.
@@ -647,7 +691,8 @@ def stress_test(plan: Any, spec: UncertaintySpec, draws: int = 100, *, nominal: 
     ----------
     plan : Plan
     spec : UncertaintySpec
-    draws : int, default 100
+    draws : int, optional
+        Drawn economies (default ``spec.draws``).
     nominal : PlanResult, optional
         The solved nominal plan whose starts are kept (solved here when omitted).
     executor, max_workers, progress
@@ -662,7 +707,7 @@ def stress_test(plan: Any, spec: UncertaintySpec, draws: int = 100, *, nominal: 
         is met and the distribution of shortfalls.
     """
     spec.check(plan)
-    n = _check_draws(draws)
+    n = _check_draws(spec.draws if draws is None else draws)
     if nominal is None:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
@@ -673,7 +718,7 @@ def stress_test(plan: Any, spec: UncertaintySpec, draws: int = 100, *, nominal: 
     return UncertaintyResult(table, "stress_test", nominal)
 
 
-def reoptimise(plan: Any, spec: UncertaintySpec, draws: int = 100, *,
+def reoptimise(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
                executor: Executor | None = None, max_workers: int | None = None,
                chunk: int | None = None, progress: bool = False,
                solve_options: dict[str, Any] | None = None) -> UncertaintyResult:
@@ -683,7 +728,8 @@ def reoptimise(plan: Any, spec: UncertaintySpec, draws: int = 100, *,
     ----------
     plan : Plan
     spec : UncertaintySpec
-    draws : int, default 100
+    draws : int, optional
+        Drawn economies (default ``spec.draws``).
     executor, max_workers, chunk, progress
         As for :func:`stress_test`.
     solve_options : dict, optional
@@ -696,7 +742,7 @@ def reoptimise(plan: Any, spec: UncertaintySpec, draws: int = 100, *,
         feasible at all; ``result.quantiles("capacity")`` the fan of capacity.
     """
     spec.check(plan)
-    n = _check_draws(draws)
+    n = _check_draws(spec.draws if draws is None else draws)
     table = _run("reoptimise", plan, spec, n, dict(solve_options or {}), executor,
                  max_workers, chunk, progress)
     return UncertaintyResult(table, "reoptimise")
