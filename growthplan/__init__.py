@@ -39,7 +39,7 @@ from .plan import (
     Trade,
 )
 from .results import CAUTION, Audit, Diagnosis, PlanResult
-from .revision import compare, plot_compare, revise
+from .revision import compare, plot_compare, read_actuals, revise
 from .steady import BalancedGrowth
 from .sweep import SerialExecutor, Sweep, sweep, variant
 from .uncertainty import (
@@ -134,4 +134,5 @@ __all__ = [
     "robust_plan",
     "stress_test",
     "load_uncertainty",
+    "read_actuals",
 ]

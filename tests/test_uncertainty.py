@@ -284,3 +284,21 @@ def test_trade_prices_can_be_uncertain():
     got = drawn.trade.export_prices
     assert got["s1"] == 0.9 and 0.5 <= got["s2"] <= 0.6
     assert got["s2"] == spec.values(plan, 0)[0][0, 0]
+
+
+def test_stress_draws_of_a_plan_in_large_units_are_certified():
+    # the demo's starts are thousands of units: held fixed (or as ceilings) their reduced
+    # costs times those values must count in the optimality certificate, or every draw
+    # ends "not_verified"
+    plan = gp.demo_plan()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        nominal = plan.solve()
+    spec = UncertaintySpec(items=[
+        Uncertain(what="capital_coefficients", correlation="independent",
+                  distribution=Uniform(low=0.9, high=1.1)),
+        Uncertain(what="mean_service_life", cols="energy",
+                  distribution=Triangular(low=0.7, mode=1.0, high=1.1))], seed=7)
+    res = stress_test(plan, spec, 3, nominal=nominal, executor=SERIAL)
+    assert set(res.table["status"]) <= {"met", "short"}, set(res.table["status"])
+    assert res.table[res.table.quantity == "starts_cut"]["value"].isin([0.0, 1.0]).all()
