@@ -17,12 +17,15 @@ again is reported by name and takes no other variant with it.
 
 from __future__ import annotations
 
+import csv
 import difflib
 import itertools
 import os
+import time
 import traceback
 import warnings
-from collections.abc import Callable
+from collections import deque
+from collections.abc import Callable, Iterator
 from concurrent.futures import FIRST_COMPLETED, Executor, Future, ProcessPoolExecutor, wait
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass
@@ -219,7 +222,8 @@ def _run_one(task: _Task) -> _Outcome:
 def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
           scenarios: dict[str, dict[str, Any]] | None = None, executor: Executor | None = None,
           max_workers: int | None = None, keep_results: bool = True, progress: bool = False,
-          solve_options: dict[str, Any] | None = None) -> Sweep:
+          solve_options: dict[str, Any] | None = None, out: Any = None,
+          overwrite: bool = False, in_flight: int | None = None) -> Sweep:
     """Solve variants of ``plan`` and gather their key figures.
 
     Parameters
@@ -244,6 +248,18 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
         A per-variant progress bar.
     solve_options : dict, optional
         Keywords for :meth:`Plan.solve` (method, time_limit, …).
+    out : path, optional
+        A CSV file the table's rows are appended to as the variants finish
+        (in order; variants solved again after a worker died come last). It
+        is written aside and renamed into place when the sweep ends, so an
+        interrupted sweep leaves no half file.
+    overwrite : bool, default False
+        Replace an existing ``out``.
+    in_flight : int, optional
+        Most variants sent to the executor and not yet collected (default
+        four per worker): memory, here and in a Dask scheduler, stays bounded
+        however many variants there are. Results are still kept unless
+        ``keep_results=False``.
 
     Returns
     -------
@@ -268,32 +284,43 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
         variants.append((name, dict(params)))
     if not variants:
         raise invalid("grid", "or scenarios name at least one variant", None)
-    tasks = [(plan, params, dict(solve_options or {}), keep_results) for _, params in variants]
+    options = dict(solve_options or {})
     own = executor is None
     workers = max_workers or os.cpu_count() or 1
-    pool = executor or ProcessPoolExecutor(max_workers=workers)
+    key = _token()
+    if own:  # the base plan goes to each worker once, when it starts, not with every task
+        pool: Executor = ProcessPoolExecutor(max_workers=workers, initializer=_warm,
+                                             initargs=(key, (plan, options, keep_results)))
+        fn: Callable[[Any], _Outcome] = _run_warm
+        args: Any = _Lazy(lambda i: (key, variants[i][1]), len(variants))
+    else:
+        assert executor is not None
+        pool, fn = executor, _run_one
+        args = _Lazy(lambda i: (plan, variants[i][1], options, keep_results), len(variants))
+    window = max(1, in_flight or 4 * workers)
     lost: list[int] = []
+    outcomes: list[Any] = [None] * len(variants)
+    stream = _Stream(out, overwrite)
     try:
-        futures = [pool.submit(_run_one, t) for t in tasks]
-        outcomes: list[Any] = [None] * len(futures)
-        with sweep_progress(progress, len(futures)) as bar:
-            for i, fut in enumerate(futures):  # in submission order: deterministic
-                try:
-                    outcomes[i] = fut.result()
-                except BrokenProcessPool:  # a worker died: solved again below
+        with sweep_progress(progress, len(variants)) as bar, stream:
+            for i, got in in_order(pool, fn, args, window):  # in order: deterministic
+                if got is LOST:  # a worker died: solved again below
                     lost.append(i)
                     continue
-                except Exception as exc:  # the executor itself failed on this variant
-                    outcomes[i] = ({"status": "error", "error": f"{type(exc).__name__}: {exc}"},
-                                   None)
+                if isinstance(got, BaseException):  # the executor itself failed
+                    got = ({"status": "error", "error": f"{type(got).__name__}: {got}"}, None)
+                outcomes[i] = got
+                stream.write({"scenario": variants[i][0], **variants[i][1], **got[0]})
                 bar.update(1)
             if lost:
                 if not own:
                     workers = getattr(pool, "_max_workers", None) or workers
-                retried = _solve_alone([tasks[i] for i in lost], [variants[i][0] for i in lost],
+                retried = _solve_alone([(plan, variants[i][1], options, keep_results)
+                                        for i in lost], [variants[i][0] for i in lost],
                                        workers, getattr(pool, "_mp_context", None))
                 for i, outcome in zip(lost, retried, strict=True):
                     outcomes[i] = outcome
+                    stream.write({"scenario": variants[i][0], **variants[i][1], **outcome[0]})
                     bar.update(1)
     finally:
         if own:
@@ -303,6 +330,136 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
         rows.append({"scenario": name, **params, **figures})
     table = pd.DataFrame(rows)
     return Sweep(table=table, results=[r for _, r in outcomes])
+
+
+# -- running many tasks with few in flight --------------------------------------------------
+
+LOST = object()
+"""What :func:`in_order` yields for a task whose process pool broke."""
+
+_WARM: dict[str, Any] = {}  # per worker process: the base of each analysis, by key
+
+
+def _token() -> str:
+    return f"{os.getpid()}-{time.monotonic_ns()}-{next(_COUNTER)}"
+
+
+_COUNTER = itertools.count()
+
+
+def _warm(key: str, base: Any) -> None:
+    """Process-pool initializer: keep ``base`` for the tasks that name ``key``."""
+    _WARM.clear()  # a worker serves one analysis; the last one's base can go
+    _WARM[key] = base
+
+
+def _run_warm(task: tuple[str, dict[str, Any]]) -> _Outcome:
+    key, params = task
+    plan, options, keep = _WARM[key]
+    return _run_one((plan, params, options, keep))
+
+
+class _Lazy:
+    """A sequence whose items are made when asked for (tasks built as they are sent)."""
+
+    def __init__(self, make: Callable[[int], Any], n: int) -> None:
+        self.make, self.n = make, n
+
+    def __len__(self) -> int:
+        return self.n
+
+    def __getitem__(self, i: int) -> Any:
+        return self.make(i)
+
+
+def in_order(pool: Executor, fn: Callable[[Any], _T], args: Any,
+             window: int) -> Iterator[tuple[int, Any]]:
+    """Run ``fn(args[i])`` on ``pool`` with at most ``window`` tasks in flight.
+
+    Yields ``(i, result)`` in the order of ``args`` whatever order the tasks
+    finish in, so memory (in this process and in a cluster's scheduler) holds
+    ``window`` futures, never all of them. The result is :data:`LOST` when the
+    process pool broke (a worker died) and the exception itself when the
+    executor failed on the task; tasks not yet sent to a broken pool are lost
+    too.
+    """
+    pending: deque[tuple[int, Future[Any]]] = deque()
+    nxt, n, broken = 0, len(args), False
+    while nxt < n or pending:
+        while not broken and nxt < n and len(pending) < window:
+            try:
+                pending.append((nxt, pool.submit(fn, args[nxt])))
+            except BrokenProcessPool:
+                broken = True
+                break
+            nxt += 1
+        if not pending:  # the pool broke before these were sent
+            for i in range(nxt, n):
+                yield i, LOST
+            return
+        i, fut = pending.popleft()
+        got: Any
+        try:
+            got = fut.result()
+        except BrokenProcessPool:
+            broken, got = True, LOST
+        except Exception as exc:
+            got = exc
+        del fut
+        yield i, got
+
+
+class _Stream:
+    """Rows appended to a CSV file as they arrive, written aside and renamed at the end.
+
+    The columns are fixed by the first row without an error (rows before it
+    wait in memory); later keys outside them are left out of the file.
+    """
+
+    def __init__(self, path: Any, overwrite: bool) -> None:
+        self.path, self.overwrite = path, overwrite
+        self.columns: list[str] | None = None
+        self.waiting: list[dict[str, Any]] = []
+        self.handle: Any = None
+        self.writer: Any = None
+        self._context: Any = None
+
+    def __enter__(self) -> _Stream:
+        if self.path is not None:
+            from .io.atomic import atomic_file
+
+            self._context = atomic_file(self.path, overwrite=self.overwrite)
+            tmp = self._context.__enter__()
+            self.handle = open(tmp, "w", newline="", encoding="utf-8")  # noqa: SIM115
+        return self
+
+    def write(self, row: dict[str, Any]) -> None:
+        if self.handle is None:
+            return
+        if self.columns is None:
+            self.waiting.append(row)
+            if row.get("status") == "error":
+                return
+            keys = list(dict.fromkeys(k for r in self.waiting for k in r))
+            self.columns = [k for k in keys if k not in ("error", "detail")] + ["error"]
+            self.writer = csv.DictWriter(self.handle, self.columns, extrasaction="ignore")
+            self.writer.writeheader()
+            rows, self.waiting = self.waiting, []
+        else:
+            rows = [row]
+        self.writer.writerows(rows)
+        self.handle.flush()
+
+    def __exit__(self, *exc: Any) -> None:
+        if self.handle is None:
+            return
+        if self.columns is None:  # every row failed: their own columns
+            keys = list(dict.fromkeys(k for r in self.waiting for k in r))
+            writer = csv.DictWriter(self.handle, keys, extrasaction="ignore")
+            writer.writeheader()
+            writer.writerows(self.waiting)
+        self.handle.close()
+        self._context.__exit__(*exc)
 
 
 def _solve_alone(tasks: list[_Task], names: list[str], workers: int,

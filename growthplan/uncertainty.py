@@ -627,29 +627,51 @@ def _check_draws(draws: Any) -> int:
     return int(draws)
 
 
+def _chunk_warm(task: tuple[str, list[int]]) -> list[tuple[Any, ...]]:
+    """A chunk of draws of the analysis a pool worker was started with (by its key)."""
+    from .sweep import _WARM
+
+    key, draws = task
+    kind, plan, spec, extra = _WARM[key]
+    return _chunk((kind, plan, spec, draws, extra))
+
+
 def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
          executor: Executor | None, max_workers: int | None, chunk: int | None,
-         progress: bool) -> pd.DataFrame:
-    """Run chunks of draws on an executor, results in draw order, failures as rows."""
+         progress: bool, in_flight: int | None = None) -> pd.DataFrame:
+    """Run chunks of draws on an executor, results in draw order, failures as rows.
+
+    The default process pool receives the plan, the spec and the extra data
+    once per worker (its initializer); tasks then carry only draw numbers.
+    At most ``in_flight`` chunks are out at a time (default four per worker).
+    """
     from .progress import sweep_progress
+    from .sweep import LOST, _token, _warm, in_order
 
     own = executor is None
     workers = max_workers or os.cpu_count() or 1
     size = chunk or max(1, math.ceil(draws / (4 * workers)))
     groups = [list(range(s, min(s + size, draws))) for s in range(0, draws, size)]
     jobs = [(kind, plan, spec, g, extra) for g in groups]
-    pool = executor or ProcessPoolExecutor(max_workers=workers)
+    key = _token()
+    if own:
+        pool: Executor = ProcessPoolExecutor(max_workers=workers, initializer=_warm,
+                                             initargs=(key, (kind, plan, spec, extra)))
+        fn: Any = _chunk_warm
+        args: list[Any] = [(key, g) for g in groups]
+    else:
+        assert executor is not None
+        pool, fn, args = executor, _chunk, jobs
     parts: list[list[tuple[Any, ...]]] = [[] for _ in jobs]
     try:
-        futures = [pool.submit(_chunk, job) for job in jobs]
         with sweep_progress(progress, draws) as bar:
-            for k, fut in enumerate(futures):  # in submission order: deterministic
-                try:
-                    parts[k] = fut.result()
-                except BrokenProcessPool:  # a worker died: each draw again, alone
+            for k, got in in_order(pool, fn, args, max(1, in_flight or 4 * workers)):
+                if got is LOST:  # a worker died: each draw again, alone
                     parts[k] = _alone(jobs[k], getattr(pool, "_mp_context", None))
-                except Exception as exc:  # the executor itself failed on this chunk
-                    parts[k] = [r for i in groups[k] for r in _error_row(i, exc)]
+                elif isinstance(got, BaseException):  # the executor failed on this chunk
+                    parts[k] = [r for i in groups[k] for r in _error_row(i, got)]
+                else:
+                    parts[k] = got
                 bar.update(len(groups[k]))
     finally:
         if own:
@@ -674,9 +696,10 @@ def _alone(job: tuple[Any, ...], mp_context: Any) -> list[tuple[Any, ...]]:
     return rows
 
 
-def stress_test(plan: Any, spec: UncertaintySpec, draws: int | None = None, *, nominal: Any = None,
-                executor: Executor | None = None, max_workers: int | None = None,
-                chunk: int | None = None, progress: bool = False) -> UncertaintyResult:
+def stress_test(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
+                nominal: Any = None, executor: Executor | None = None,
+                max_workers: int | None = None, chunk: int | None = None,
+                progress: bool = False, in_flight: int | None = None) -> UncertaintyResult:
     """What a fixed plan delivers in drawn economies.
 
     The capacity starts of the nominal plan are kept (the starts columns
@@ -699,6 +722,11 @@ def stress_test(plan: Any, spec: UncertaintySpec, draws: int | None = None, *, n
         As for :func:`growthplan.sweep` (default: a process pool).
     chunk : int, optional
         Draws per task (default: about four tasks per worker).
+    in_flight : int, optional
+        Most tasks sent and not yet collected (default four per worker), so
+        memory here and in a Dask scheduler stays bounded. The default
+        process pool receives the plan and the spec once per worker, when it
+        starts; tasks carry only draw numbers.
 
     Returns
     -------
@@ -714,14 +742,16 @@ def stress_test(plan: Any, spec: UncertaintySpec, draws: int | None = None, *, n
             nominal = plan.solve()
     nominal.raise_for_status()
     starts = nominal.starts.to_numpy()
-    table = _run("stress", plan, spec, n, starts, executor, max_workers, chunk, progress)
+    table = _run("stress", plan, spec, n, starts, executor, max_workers, chunk, progress,
+                 in_flight)
     return UncertaintyResult(table, "stress_test", nominal)
 
 
 def reoptimise(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
                executor: Executor | None = None, max_workers: int | None = None,
                chunk: int | None = None, progress: bool = False,
-               solve_options: dict[str, Any] | None = None) -> UncertaintyResult:
+               solve_options: dict[str, Any] | None = None,
+               in_flight: int | None = None) -> UncertaintyResult:
     """The optimal plan of every drawn economy: objective, key figures and shadow prices.
 
     Parameters
@@ -730,7 +760,7 @@ def reoptimise(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
     spec : UncertaintySpec
     draws : int, optional
         Drawn economies (default ``spec.draws``).
-    executor, max_workers, chunk, progress
+    executor, max_workers, chunk, progress, in_flight
         As for :func:`stress_test`.
     solve_options : dict, optional
         Keywords for :meth:`Plan.solve`.
@@ -744,7 +774,7 @@ def reoptimise(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
     spec.check(plan)
     n = _check_draws(spec.draws if draws is None else draws)
     table = _run("reoptimise", plan, spec, n, dict(solve_options or {}), executor,
-                 max_workers, chunk, progress)
+                 max_workers, chunk, progress, in_flight)
     return UncertaintyResult(table, "reoptimise")
 
 

@@ -302,3 +302,30 @@ def test_stress_draws_of_a_plan_in_large_units_are_certified():
     res = stress_test(plan, spec, 3, nominal=nominal, executor=SERIAL)
     assert set(res.table["status"]) <= {"met", "short"}, set(res.table["status"])
     assert res.table[res.table.quantity == "starts_cut"]["value"].isin([0.0, 1.0]).all()
+
+
+def test_warm_pool_and_a_dask_cluster_give_the_serial_table(small):
+    # the analysis's own pool sends the plan once per worker; a Dask cluster gets it with
+    # every chunk; both must give the serial table exactly (same seed, same draws)
+    plan, nominal = small
+    spec = UncertaintySpec(items=[
+        Uncertain(what="capital_coefficients", distribution=Uniform(low=0.9, high=1.1),
+                  correlation="independent"),
+        Uncertain(what="labour_growth", relative=False,
+                  distribution=Uniform(low=0.0, high=0.02))], seed=12)
+
+    def same(a, b):
+        keep_a = a.table[a.table.quantity != "solve_seconds"].reset_index(drop=True)
+        keep_b = b.table[b.table.quantity != "solve_seconds"].reset_index(drop=True)
+        pd.testing.assert_frame_equal(keep_a, keep_b)
+
+    serial = reoptimise(plan, spec, 5, executor=SERIAL)
+    same(serial, reoptimise(plan, spec, 5, max_workers=2, chunk=2))
+    stressed = stress_test(plan, spec, 3, nominal=nominal, executor=SERIAL)
+    same(stressed, stress_test(plan, spec, 3, nominal=nominal, max_workers=2, chunk=1))
+    distributed = pytest.importorskip("distributed")
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                  dashboard_address=None) as cluster, \
+            distributed.Client(cluster) as client:
+        same(serial, reoptimise(plan, spec, 5, executor=client.get_executor(), chunk=1,
+                                in_flight=2))
