@@ -322,6 +322,10 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
                     outcomes[i] = outcome
                     stream.write({"scenario": variants[i][0], **variants[i][1], **outcome[0]})
                     bar.update(1)
+    except BaseException:
+        if own:  # an interrupt: our workers stop now, not after their queue
+            stop_pool(pool)
+        raise
     finally:
         if own:
             pool.shutdown()
@@ -357,6 +361,16 @@ def _run_warm(task: tuple[str, dict[str, Any]]) -> _Outcome:
     key, params = task
     plan, options, keep = _WARM[key]
     return _run_one((plan, params, options, keep))
+
+
+def stop_pool(pool: Executor) -> None:
+    """Cancel a process pool's queued tasks and end its workers at once."""
+    pool.shutdown(wait=False, cancel_futures=True)
+    for proc in list((getattr(pool, "_processes", None) or {}).values()):
+        try:
+            proc.terminate()
+        except (OSError, ValueError, AttributeError):  # already gone
+            pass
 
 
 class _Lazy:

@@ -646,7 +646,7 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
     At most ``in_flight`` chunks are out at a time (default four per worker).
     """
     from .progress import sweep_progress
-    from .sweep import LOST, _token, _warm, in_order
+    from .sweep import LOST, _token, _warm, in_order, stop_pool
 
     own = executor is None
     workers = max_workers or os.cpu_count() or 1
@@ -673,6 +673,10 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
                 else:
                     parts[k] = got
                 bar.update(len(groups[k]))
+    except BaseException:
+        if own:  # an interrupt: our workers stop now, not after their queue
+            stop_pool(pool)
+        raise
     finally:
         if own:
             pool.shutdown()

@@ -76,7 +76,9 @@ def main() -> None:
     args = ap.parse_args()
     import distributed
 
-    plan = make_plan(economy(args.sectors), args.years)
+    base = make_plan(economy(args.sectors), args.years)
+    plan = gp.Plan(**{**{f: getattr(base, f) for f in type(base).model_fields},
+                      "terminal": gp.TerminalGrowth(rate=0.02)})
     sizes = [16, 200] + ([1000] if args.full else [])
     print(f"plans of {args.sectors} sectors x {args.years} years on a local Dask cluster of "
           f"{args.workers} worker processes; at most {args.in_flight} scenarios in flight")
