@@ -58,8 +58,9 @@ class Normal(_Distribution):
     """Normal distribution truncated at zero (``mean``, ``sd`` of the untruncated one)."""
 
     kind: Literal["normal"] = "normal"
-    mean: float = Field(allow_inf_nan=False)
-    sd: float = Field(ge=0, allow_inf_nan=False)
+    mean: float = Field(allow_inf_nan=False, description="Mean of the untruncated normal.")
+    sd: float = Field(ge=0, allow_inf_nan=False,
+                      description="Standard deviation of the untruncated normal, >= 0.")
 
     @model_validator(mode="after")
     def _positive(self) -> Normal:
@@ -79,8 +80,10 @@ class LogNormal(_Distribution):
     """Lognormal distribution given by its own ``mean`` and ``sd`` (not those of the log)."""
 
     kind: Literal["lognormal"] = "lognormal"
-    mean: float = Field(gt=0, allow_inf_nan=False)
-    sd: float = Field(ge=0, allow_inf_nan=False)
+    mean: float = Field(gt=0, allow_inf_nan=False,
+                        description="Mean of the drawn values (not of their log), > 0.")
+    sd: float = Field(ge=0, allow_inf_nan=False,
+                      description="Standard deviation of the drawn values, >= 0.")
 
     def ppf(self, u: np.ndarray) -> np.ndarray:
         if self.sd == 0:
@@ -94,8 +97,8 @@ class Uniform(_Distribution):
     """Uniform distribution on ``[low, high]``."""
 
     kind: Literal["uniform"] = "uniform"
-    low: float = Field(allow_inf_nan=False)
-    high: float = Field(allow_inf_nan=False)
+    low: float = Field(allow_inf_nan=False, description="Smallest value.")
+    high: float = Field(allow_inf_nan=False, description="Largest value, >= low.")
 
     @model_validator(mode="after")
     def _order(self) -> Uniform:
@@ -113,9 +116,9 @@ class Triangular(_Distribution):
     """Triangular distribution on ``[low, high]`` with its peak at ``mode``."""
 
     kind: Literal["triangular"] = "triangular"
-    low: float = Field(allow_inf_nan=False)
-    mode: float = Field(allow_inf_nan=False)
-    high: float = Field(allow_inf_nan=False)
+    low: float = Field(allow_inf_nan=False, description="Smallest value.")
+    mode: float = Field(allow_inf_nan=False, description="Most likely value.")
+    high: float = Field(allow_inf_nan=False, description="Largest value.")
 
     @model_validator(mode="after")
     def _order(self) -> Triangular:
@@ -139,7 +142,8 @@ class Empirical(_Distribution):
     """An empirical sample: each draw is one of its values, each equally likely."""
 
     kind: Literal["empirical"] = "empirical"
-    sample: list[float]
+    sample: list[float] = Field(description="The observed values, each drawn with equal "
+                                            "probability.")
 
     @field_validator("sample")
     @classmethod
