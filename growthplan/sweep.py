@@ -295,8 +295,15 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
         args: Any = _Lazy(lambda i: (key, variants[i][1]), len(variants))
     else:
         assert executor is not None
-        pool, fn = executor, _run_one
-        args = _Lazy(lambda i: (plan, variants[i][1], options, keep_results), len(variants))
+        pool = executor
+        ref = _scattered(executor, (plan, options, keep_results))
+        if ref is not None:  # a Dask cluster: the base sits on every worker once
+            fn = _run_based
+            args = _Lazy(lambda i: (ref, variants[i][1]), len(variants))
+        else:
+            fn = _run_one
+            args = _Lazy(lambda i: (plan, variants[i][1], options, keep_results),
+                         len(variants))
     window = max(1, in_flight or 4 * workers)
     lost: list[int] = []
     outcomes: list[Any] = [None] * len(variants)
@@ -360,6 +367,21 @@ def _warm(key: str, base: Any) -> None:
 def _run_warm(task: tuple[str, dict[str, Any]]) -> _Outcome:
     key, params = task
     plan, options, keep = _WARM[key]
+    return _run_one((plan, params, options, keep))
+
+
+def _scattered(executor: Executor, base: Any) -> Any:
+    """A Dask future of ``base`` copied to every worker, when ``executor`` is a Dask
+    client's executor (None otherwise): tasks then carry the future, not the base."""
+    client = getattr(executor, "_client", None)
+    if client is None or not hasattr(client, "scatter") or \
+            not type(executor).__module__.startswith("distributed"):
+        return None
+    return client.scatter([base], broadcast=True, hash=False)[0]
+
+
+def _run_based(task: tuple[Any, dict[str, Any]]) -> _Outcome:
+    (plan, options, keep), params = task
     return _run_one((plan, params, options, keep))
 
 

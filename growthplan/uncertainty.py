@@ -640,6 +640,12 @@ def _chunk_warm(task: tuple[str, list[int]]) -> list[tuple[Any, ...]]:
     return _chunk((kind, plan, spec, draws, extra))
 
 
+def _chunk_based(task: tuple[tuple[Any, ...], list[int]]) -> list[tuple[Any, ...]]:
+    """A chunk of draws whose base (kind, plan, spec, extra) a Dask worker holds already."""
+    (kind, plan, spec, extra), draws = task
+    return _chunk((kind, plan, spec, draws, extra))
+
+
 def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
          executor: Executor | None, max_workers: int | None, chunk: int | None,
          progress: bool, in_flight: int | None = None) -> pd.DataFrame:
@@ -650,7 +656,7 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
     At most ``in_flight`` chunks are out at a time (default four per worker).
     """
     from .progress import sweep_progress
-    from .sweep import LOST, _token, _warm, in_order, stop_pool
+    from .sweep import LOST, _scattered, _token, _warm, in_order, stop_pool
 
     own = executor is None
     workers = max_workers or os.cpu_count() or 1
@@ -666,6 +672,9 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
     else:
         assert executor is not None
         pool, fn, args = executor, _chunk, jobs
+        ref = _scattered(executor, (kind, plan, spec, extra))
+        if ref is not None:  # a Dask cluster: the base sits on every worker once
+            fn, args = _chunk_based, [(ref, g) for g in groups]
     parts: list[list[tuple[Any, ...]]] = [[] for _ in jobs]
     try:
         with sweep_progress(progress, draws) as bar:

@@ -7,7 +7,9 @@ one thread each) through ``client.get_executor()``, with at most
 ``--in-flight`` scenarios sent and not yet collected, and streams its rows to
 a CSV file. Prints scenarios per second and the peak growth of this
 process's resident memory (it holds the client and the cluster's scheduler)
-while the sweep ran, sampled every 20 ms; then, for comparison, the 200
+while the sweep ran and the most tasks the scheduler held at once, sampled
+every 20 ms (the scheduler's own logs of finished tasks, bounded by Dask's
+log length, grow with the count); then, for comparison, the 200
 sweep with every scenario sent at once. The 16-scenario sweep is checked
 against a serial run (identical objectives). Timings and memory on a shared
 machine vary from run to run.
@@ -39,11 +41,13 @@ def grid_of(n: int) -> dict[str, list[float]]:
 
 
 class Peak:
-    """Largest resident-memory growth of this process while the block runs."""
+    """Largest resident-memory growth of this process, and most tasks the cluster's
+    scheduler held at once, while the block runs."""
 
-    def __init__(self) -> None:
+    def __init__(self, scheduler: object) -> None:
         self.proc = psutil.Process()
-        self.base = self.peak = 0
+        self.scheduler = scheduler
+        self.base = self.peak = self.tasks = 0
         self.done = threading.Event()
 
     def __enter__(self) -> Peak:
@@ -55,6 +59,7 @@ class Peak:
     def _sample(self) -> None:
         while not self.done.wait(0.02):
             self.peak = max(self.peak, self.proc.memory_info().rss)
+            self.tasks = max(self.tasks, len(getattr(self.scheduler, "tasks", ())))
 
     def __exit__(self, *exc: object) -> None:
         self.done.set()
@@ -90,7 +95,7 @@ def main() -> None:
         gp.sweep(plan, {"labour.growth": [0.0]}, executor=ex, keep_results=False)  # warm up
         for n, flight in [(s, args.in_flight) for s in sizes] + [(200, 200)]:
             out = Path(tmp) / f"sweep-{n}-{flight}.csv"
-            with Peak() as peak:
+            with Peak(cluster.scheduler) as peak:
                 t0 = time.perf_counter()
                 s = gp.sweep(plan, grid_of(n), executor=ex, keep_results=False, out=out,
                              in_flight=flight)
@@ -99,8 +104,9 @@ def main() -> None:
             label = "every scenario at once" if flight == n and n > args.in_flight else \
                 f"{flight} in flight"
             print(f"  {n:5d} scenarios ({label}): {n / seconds:.2f} scenarios/s, "
-                  f"{seconds:.1f} s, peak memory growth {peak.grown_mb:.1f} MB, "
-                  f"{rows} rows streamed, {len(s.failed)} failed")
+                  f"{seconds:.1f} s, peak memory growth {peak.grown_mb:.1f} MB, at most "
+                  f"{peak.tasks} tasks in the scheduler, {rows} rows streamed, "
+                  f"{len(s.failed)} failed")
             if n == 16:
                 serial = gp.sweep(plan, grid_of(16), executor=gp.SerialExecutor(),
                                   keep_results=False)
