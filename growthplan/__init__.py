@@ -37,7 +37,7 @@ from .errors import (
 )
 from .expanding import ExpandingEconomy, expanding_economy
 from .io.build import BuildReport, build_economy, economy_spec_schema, write_economy
-from .io.planfile import load_plan_file, plan_file_schema, save_plan_file
+from .io.planfile import load_plan_file, load_uncertainty, plan_file_schema, save_plan_file
 from .io.supply_use import SupplyUseTable, SymmetricTable
 from .io.tables import TransactionsTable, read_transactions
 from .lp.program import LinearProgram
@@ -52,7 +52,7 @@ from .plan import (
     Trade,
 )
 from .results import CAUTION, Audit, Diagnosis, PlanResult
-from .revision import compare, plot_compare, revise
+from .revision import compare, plot_compare, read_actuals, revise
 from .steady import BalancedGrowth
 from .sweep import SerialExecutor, Sweep, sweep, variant
 from .technique import Technique, technique_arrays
@@ -163,4 +163,6 @@ __all__ = [
     "write_economy",
     "Technique",
     "technique_arrays",
+    "load_uncertainty",
+    "read_actuals",
 ]

@@ -26,7 +26,10 @@ import pandas as pd
 
 from .errors import invalid
 
-__all__ = ["revise", "compare", "plot_compare"]
+__all__ = ["revise", "compare", "plot_compare", "read_actuals"]
+
+ACTUALS_MAX_BYTES = 50 << 20
+"""Largest actuals file read (50 MB)."""
 
 
 def _actuals(plan: Any, actuals: Any, k: int) -> np.ndarray:
@@ -59,6 +62,64 @@ def _actuals(plan: Any, actuals: Any, k: int) -> np.ndarray:
     if not np.all(np.isfinite(out)) or np.any(out < 0):
         raise invalid("actuals", "hold finite starts >= 0", "a negative or non-finite start")
     return out
+
+
+def read_actuals(path: Any) -> pd.DataFrame:
+    """Capacity starts actually made, from a tidy CSV file, as years × sectors.
+
+    The file has a header and three columns, ``year,sector,starts``: one row
+    per year and sector, in any order. A sector missing from a year started
+    nothing that year; every year before the revision must have at least one
+    row (write ``0`` to say nothing was started). Starts are in each sector's
+    own unit of capacity, as ``result.starts``.
+
+    Parameters
+    ----------
+    path : path
+        The CSV file.
+
+    Returns
+    -------
+    DataFrame
+        Years as rows, sectors as columns: the ``actuals`` of :func:`revise`.
+
+    Raises
+    ------
+    InvalidInput
+        Naming the file: missing columns, a year that is not whole, a start
+        that is not a finite number >= 0, or a (year, sector) given twice.
+    """
+    import io
+
+    from .io._files import read_regular_file
+
+    raw = read_regular_file(path, what="actuals", limit=ACTUALS_MAX_BYTES)
+    try:
+        frame = pd.read_csv(io.BytesIO(raw), dtype=str, keep_default_na=False)
+    except (ValueError, UnicodeDecodeError, pd.errors.ParserError) as exc:
+        raise invalid(f"{path}", "be a CSV file with columns year, sector, starts",
+                      type(exc).__name__) from None
+    frame.columns = [str(c).strip().lower() for c in frame.columns]
+    if sorted(frame.columns) != ["sector", "starts", "year"]:
+        raise invalid(f"{path}", "have the columns year, sector, starts", list(frame.columns))
+    if frame.empty:
+        raise invalid(f"{path}", "hold at least one row", "no rows")
+    years = pd.to_numeric(frame["year"].str.strip(), errors="coerce")
+    bad = frame["year"][years.isna() | (years != years.round())]
+    if len(bad):
+        raise invalid(f"{path}: year", "hold whole years", bad.iloc[0])
+    starts = pd.to_numeric(frame["starts"].str.strip(), errors="coerce")
+    bad = frame["starts"][~np.isfinite(starts.to_numpy(dtype=float)) | (starts < 0)]
+    if len(bad):
+        raise invalid(f"{path}: starts", "hold finite numbers >= 0", bad.iloc[0])
+    tidy = pd.DataFrame({"year": years.astype(int), "sector": frame["sector"].str.strip(),
+                         "starts": starts.astype(float)})
+    twice = tidy[tidy.duplicated(["year", "sector"])]
+    if len(twice):
+        raise invalid(f"{path}", "give each year and sector once",
+                      f"{twice.iloc[0]['year']} {twice.iloc[0]['sector']} again")
+    wide = tidy.pivot(index="year", columns="sector", values="starts").fillna(0.0)
+    return wide.sort_index().rename_axis(index="year", columns="sector")
 
 
 def _vintages(spec: Any, c0: float) -> np.ndarray:
@@ -100,7 +161,8 @@ def revise(plan: Any, actuals: Any, from_year: int, *, capacity: dict[str, float
         Same economy coefficients, targets and ceilings of the remaining
         years, terminal condition and objective; initial capacity and
         ``under_construction`` from the actuals. Consumption's limit on the
-        fall from the year before the revised plan is not carried over.
+        fall from the year before the revised plan is not carried over, nor
+        is ``first_year_within`` (a condition on the original first year).
     """
     from .economy import CapitalSpec, Economy
     from .lp.data import consumption_floor, exogenous_demand, labour_supply, trade_sides
@@ -191,6 +253,8 @@ def revise(plan: Any, actuals: Any, from_year: int, *, capacity: dict[str, float
         fields_p["final_demand"] = pd.DataFrame(exogenous_demand(plan)[k:], index=new_years,
                                                 columns=names)
         fields_p["final_demand_growth"] = 0.0
+    # the first plan year's nearness to the base year is a condition on that year alone
+    fields_p["first_year_within"] = None
     fields_p["targets"] = [t for t in plan.targets if t.year >= from_year]
     ceilings = []
     for sc in plan.starts_ceilings:

@@ -58,8 +58,9 @@ class Normal(_Distribution):
     """Normal distribution truncated at zero (``mean``, ``sd`` of the untruncated one)."""
 
     kind: Literal["normal"] = "normal"
-    mean: float = Field(allow_inf_nan=False)
-    sd: float = Field(ge=0, allow_inf_nan=False)
+    mean: float = Field(allow_inf_nan=False, description="Mean of the untruncated normal.")
+    sd: float = Field(ge=0, allow_inf_nan=False,
+                      description="Standard deviation of the untruncated normal, >= 0.")
 
     @model_validator(mode="after")
     def _positive(self) -> Normal:
@@ -79,8 +80,10 @@ class LogNormal(_Distribution):
     """Lognormal distribution given by its own ``mean`` and ``sd`` (not those of the log)."""
 
     kind: Literal["lognormal"] = "lognormal"
-    mean: float = Field(gt=0, allow_inf_nan=False)
-    sd: float = Field(ge=0, allow_inf_nan=False)
+    mean: float = Field(gt=0, allow_inf_nan=False,
+                        description="Mean of the drawn values (not of their log), > 0.")
+    sd: float = Field(ge=0, allow_inf_nan=False,
+                      description="Standard deviation of the drawn values, >= 0.")
 
     def ppf(self, u: np.ndarray) -> np.ndarray:
         if self.sd == 0:
@@ -94,8 +97,8 @@ class Uniform(_Distribution):
     """Uniform distribution on ``[low, high]``."""
 
     kind: Literal["uniform"] = "uniform"
-    low: float = Field(allow_inf_nan=False)
-    high: float = Field(allow_inf_nan=False)
+    low: float = Field(allow_inf_nan=False, description="Smallest value.")
+    high: float = Field(allow_inf_nan=False, description="Largest value, >= low.")
 
     @model_validator(mode="after")
     def _order(self) -> Uniform:
@@ -113,9 +116,9 @@ class Triangular(_Distribution):
     """Triangular distribution on ``[low, high]`` with its peak at ``mode``."""
 
     kind: Literal["triangular"] = "triangular"
-    low: float = Field(allow_inf_nan=False)
-    mode: float = Field(allow_inf_nan=False)
-    high: float = Field(allow_inf_nan=False)
+    low: float = Field(allow_inf_nan=False, description="Smallest value.")
+    mode: float = Field(allow_inf_nan=False, description="Most likely value.")
+    high: float = Field(allow_inf_nan=False, description="Largest value.")
 
     @model_validator(mode="after")
     def _order(self) -> Triangular:
@@ -139,7 +142,8 @@ class Empirical(_Distribution):
     """An empirical sample: each draw is one of its values, each equally likely."""
 
     kind: Literal["empirical"] = "empirical"
-    sample: list[float]
+    sample: list[float] = Field(description="The observed values, each drawn with equal "
+                                            "probability.")
 
     @field_validator("sample")
     @classmethod
@@ -159,7 +163,9 @@ Distribution = Annotated[Normal | LogNormal | Uniform | Triangular | Empirical,
                          Field(discriminator="kind")]
 
 _WHAT = Literal["input_coefficients", "capital_coefficients", "labour_coefficients",
-                "mean_service_life", "labour_growth", "final_demand"]
+                "mean_service_life", "labour_growth", "final_demand", "import_prices",
+                "export_prices"]
+_PRICES = ("import_prices", "export_prices")
 
 
 class Uncertain(Model):
@@ -171,7 +177,9 @@ class Uncertain(Model):
         ``"input_coefficients"``, ``"capital_coefficients"``,
         ``"labour_coefficients"`` (cells ``rows`` × ``cols``),
         ``"mean_service_life"`` or ``"final_demand"`` (``cols``: sectors) or
-        ``"labour_growth"`` (``cols``: labour kinds with a supply).
+        ``"labour_growth"`` (``cols``: labour kinds with a supply), or
+        ``"import_prices"``/``"export_prices"`` (``cols``: goods of the plan's
+        trade with such a price; world prices in the plan's value unit).
     rows, cols : str or list of str, optional
         Commodities (labour kinds for labour coefficients) and sectors
         selected; all when omitted. One row and one column select one cell.
@@ -186,12 +194,28 @@ class Uncertain(Model):
         ``rows`` × ``cols``) joined by a Gaussian copula.
     """
 
-    what: _WHAT
-    rows: list[str] | None = None
-    cols: list[str] | None = None
-    distribution: Distribution
-    relative: bool = True
-    correlation: Literal["shared", "independent"] | list[list[float]] = "shared"
+    what: _WHAT = Field(description=(
+        "What is uncertain: input_coefficients, capital_coefficients, labour_coefficients "
+        "(cells rows x cols), mean_service_life, final_demand (cols: sectors), labour_growth "
+        "(cols: labour kinds with a supply), import_prices or export_prices (cols: traded "
+        "goods)."))
+    rows: list[str] | None = Field(default=None, description=(
+        "Commodities (labour kinds for labour_coefficients) selected; all when omitted. "
+        "Coefficient blocks only."))
+    cols: list[str] | None = Field(default=None, description=(
+        "Sectors (or labour kinds, or goods) selected; all when omitted. One row and one "
+        "column select one cell."))
+    distribution: Distribution = Field(description=(
+        "The distribution of the drawn value: normal (truncated at zero), lognormal (its own "
+        "mean and sd), uniform, triangular or empirical (a sample)."))
+    relative: bool = Field(default=True, description=(
+        "True: the draw multiplies the nominal value (a factor around 1). False: it replaces "
+        "it. final_demand is relative only (its whole path is scaled)."))
+    correlation: Literal["shared", "independent"] | list[list[float]] = Field(
+        default="shared", description=(
+            "shared: one draw for every selected cell (perfect correlation); independent: one "
+            "per cell; or a correlation matrix over the cells in row-major order (a Gaussian "
+            "copula)."))
 
     @field_validator("rows", "cols", mode="before")
     @classmethod
@@ -242,6 +266,12 @@ class Uncertain(Model):
             if not all_cols:
                 raise invalid(f"{where}.what", "name a block the plan has (no labour supply)",
                               self.what)
+        elif self.what in _PRICES:
+            prices = getattr(plan.trade, self.what, None) if plan.trade is not None else None
+            if not prices:
+                raise invalid(f"{where}.what", "name a block the plan has (no trade with "
+                              f"{self.what})", self.what)
+            all_rows, all_cols = [""], list(prices)
         else:
             all_rows, all_cols = [""], econ.names
         rows = self.rows if self.rows is not None else all_rows
@@ -278,6 +308,10 @@ class UncertaintySpec(Model):
         Applied in order (two relative items on the same cell multiply).
     seed : int, default 0
         Draw ``i`` uses ``numpy.random.SeedSequence(seed).spawn(i + 1)[i]``.
+    draws : int, default 100
+        Drawn economies used by :func:`stress_test` and :func:`reoptimise`
+        when they are not given a number (a plan file's ``uncertainty:``
+        section sets it).
 
     Examples
     --------
@@ -285,8 +319,14 @@ class UncertaintySpec(Model):
     ...     distribution=Uniform(low=0.9, high=1.1))], seed=7)
     """
 
-    items: list[Uncertain] = Field(min_length=1)
-    seed: int = Field(default=0, ge=0)
+    items: list[Uncertain] = Field(min_length=1, description=(
+        "The uncertain quantities, applied in order (two relative items on one cell "
+        "multiply)."))
+    seed: int = Field(default=0, ge=0, description=(
+        "Seed of the draws: draw i uses numpy.random.SeedSequence(seed).spawn(i + 1)[i], so "
+        "a draw is the same whatever computes it and in whatever order."))
+    draws: int = Field(default=100, ge=1, le=10_000_000, description=(
+        "Number of drawn economies the analyses use when not told otherwise."))
 
     def check(self, plan: Any) -> None:
         """Raise InvalidInput when an item selects cells the plan does not have."""
@@ -311,7 +351,7 @@ class UncertaintySpec(Model):
         """Plan of draw ``i``: the nominal plan with every item's cells drawn (validated anew)."""
         from .economy import CapitalSpec, Economy
         from .lp.data import exogenous_demand
-        from .plan import LabourSupply, Plan
+        from .plan import LabourSupply, Plan, Trade
 
         econ = plan.economy
         blocks = {"input_coefficients": np.array(econ.input_coefficients, dtype=float),
@@ -321,13 +361,16 @@ class UncertaintySpec(Model):
         lives = np.array([econ.capital[k].mean_service_life for k in econ.names], dtype=float)
         growth = np.array([ls.growth for ls in plan.labour], dtype=float)
         demand = np.ones(econ.n)
+        prices = {w: np.array(list(getattr(plan.trade, w).values()), dtype=float)
+                  for w in _PRICES if plan.trade is not None}
         touched: set[str] = set()
         for k, (item, drawn) in enumerate(zip(self.items, self.values(plan, i), strict=True)):
             all_rows, all_cols, rows, cols = item._cells(plan, f"items.{k}")
             r = np.array([all_rows.index(x) for x in rows])
             c = np.array([all_cols.index(x) for x in cols])
             target = {"mean_service_life": lives[None, :], "labour_growth": growth[None, :],
-                      "final_demand": demand[None, :]}.get(item.what)
+                      "final_demand": demand[None, :],
+                      **{w: v[None, :] for w, v in prices.items()}}.get(item.what)
             if target is None:
                 target = blocks[item.what]
             cell = np.ix_(r, c)
@@ -353,6 +396,11 @@ class UncertaintySpec(Model):
             path = exogenous_demand(plan) * demand[None, :]
             fields["final_demand"] = pd.DataFrame(path, index=plan.years, columns=econ.names)
             fields["final_demand_growth"] = 0.0
+        if touched & set(_PRICES):
+            trade = plan.trade.model_dump()
+            for w, v in prices.items():
+                trade[w] = dict(zip(trade[w], v.tolist(), strict=True))
+            fields["trade"] = Trade(**trade)
         return Plan(**fields)
 
 
@@ -583,30 +631,65 @@ def _check_draws(draws: Any) -> int:
     return int(draws)
 
 
+def _chunk_warm(task: tuple[str, list[int]]) -> list[tuple[Any, ...]]:
+    """A chunk of draws of the analysis a pool worker was started with (by its key)."""
+    from .sweep import _WARM
+
+    key, draws = task
+    kind, plan, spec, extra = _WARM[key]
+    return _chunk((kind, plan, spec, draws, extra))
+
+
+def _chunk_based(task: tuple[tuple[Any, ...], list[int]]) -> list[tuple[Any, ...]]:
+    """A chunk of draws whose base (kind, plan, spec, extra) a Dask worker holds already."""
+    (kind, plan, spec, extra), draws = task
+    return _chunk((kind, plan, spec, draws, extra))
+
+
 def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
          executor: Executor | None, max_workers: int | None, chunk: int | None,
-         progress: bool) -> pd.DataFrame:
-    """Run chunks of draws on an executor, results in draw order, failures as rows."""
+         progress: bool, in_flight: int | None = None) -> pd.DataFrame:
+    """Run chunks of draws on an executor, results in draw order, failures as rows.
+
+    The default process pool receives the plan, the spec and the extra data
+    once per worker (its initializer); tasks then carry only draw numbers.
+    At most ``in_flight`` chunks are out at a time (default four per worker).
+    """
     from .progress import sweep_progress
+    from .sweep import LOST, _scattered, _token, _warm, in_order, stop_pool
 
     own = executor is None
     workers = max_workers or os.cpu_count() or 1
     size = chunk or max(1, math.ceil(draws / (4 * workers)))
     groups = [list(range(s, min(s + size, draws))) for s in range(0, draws, size)]
     jobs = [(kind, plan, spec, g, extra) for g in groups]
-    pool = executor or ProcessPoolExecutor(max_workers=workers)
+    key = _token()
+    if own:
+        pool: Executor = ProcessPoolExecutor(max_workers=workers, initializer=_warm,
+                                             initargs=(key, (kind, plan, spec, extra)))
+        fn: Any = _chunk_warm
+        args: list[Any] = [(key, g) for g in groups]
+    else:
+        assert executor is not None
+        pool, fn, args = executor, _chunk, jobs
+        ref = _scattered(executor, (kind, plan, spec, extra))
+        if ref is not None:  # a Dask cluster: the base sits on every worker once
+            fn, args = _chunk_based, [(ref, g) for g in groups]
     parts: list[list[tuple[Any, ...]]] = [[] for _ in jobs]
     try:
-        futures = [pool.submit(_chunk, job) for job in jobs]
         with sweep_progress(progress, draws) as bar:
-            for k, fut in enumerate(futures):  # in submission order: deterministic
-                try:
-                    parts[k] = fut.result()
-                except BrokenProcessPool:  # a worker died: each draw again, alone
+            for k, got in in_order(pool, fn, args, max(1, in_flight or 4 * workers)):
+                if got is LOST:  # a worker died: each draw again, alone
                     parts[k] = _alone(jobs[k], getattr(pool, "_mp_context", None))
-                except Exception as exc:  # the executor itself failed on this chunk
-                    parts[k] = [r for i in groups[k] for r in _error_row(i, exc)]
+                elif isinstance(got, BaseException):  # the executor failed on this chunk
+                    parts[k] = [r for i in groups[k] for r in _error_row(i, got)]
+                else:
+                    parts[k] = got
                 bar.update(len(groups[k]))
+    except BaseException:
+        if own:  # an interrupt: our workers stop now, not after their queue
+            stop_pool(pool)
+        raise
     finally:
         if own:
             pool.shutdown()
@@ -630,9 +713,10 @@ def _alone(job: tuple[Any, ...], mp_context: Any) -> list[tuple[Any, ...]]:
     return rows
 
 
-def stress_test(plan: Any, spec: UncertaintySpec, draws: int = 100, *, nominal: Any = None,
-                executor: Executor | None = None, max_workers: int | None = None,
-                chunk: int | None = None, progress: bool = False) -> UncertaintyResult:
+def stress_test(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
+                nominal: Any = None, executor: Executor | None = None,
+                max_workers: int | None = None, chunk: int | None = None,
+                progress: bool = False, in_flight: int | None = None) -> UncertaintyResult:
     """What a fixed plan delivers in drawn economies.
 
     The capacity starts of the nominal plan are kept (the starts columns
@@ -647,13 +731,19 @@ def stress_test(plan: Any, spec: UncertaintySpec, draws: int = 100, *, nominal: 
     ----------
     plan : Plan
     spec : UncertaintySpec
-    draws : int, default 100
+    draws : int, optional
+        Drawn economies (default ``spec.draws``).
     nominal : PlanResult, optional
         The solved nominal plan whose starts are kept (solved here when omitted).
     executor, max_workers, progress
         As for :func:`growthplan.sweep` (default: a process pool).
     chunk : int, optional
         Draws per task (default: about four tasks per worker).
+    in_flight : int, optional
+        Most tasks sent and not yet collected (default four per worker), so
+        memory here and in a Dask scheduler stays bounded. The default
+        process pool receives the plan and the spec once per worker, when it
+        starts; tasks carry only draw numbers.
 
     Returns
     -------
@@ -665,29 +755,32 @@ def stress_test(plan: Any, spec: UncertaintySpec, draws: int = 100, *, nominal: 
 
     refuse_techniques(plan, "stress tests")
     spec.check(plan)
-    n = _check_draws(draws)
+    n = _check_draws(spec.draws if draws is None else draws)
     if nominal is None:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             nominal = plan.solve()
     nominal.raise_for_status()
     starts = nominal.starts.to_numpy()
-    table = _run("stress", plan, spec, n, starts, executor, max_workers, chunk, progress)
+    table = _run("stress", plan, spec, n, starts, executor, max_workers, chunk, progress,
+                 in_flight)
     return UncertaintyResult(table, "stress_test", nominal)
 
 
-def reoptimise(plan: Any, spec: UncertaintySpec, draws: int = 100, *,
+def reoptimise(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
                executor: Executor | None = None, max_workers: int | None = None,
                chunk: int | None = None, progress: bool = False,
-               solve_options: dict[str, Any] | None = None) -> UncertaintyResult:
+               solve_options: dict[str, Any] | None = None,
+               in_flight: int | None = None) -> UncertaintyResult:
     """The optimal plan of every drawn economy: objective, key figures and shadow prices.
 
     Parameters
     ----------
     plan : Plan
     spec : UncertaintySpec
-    draws : int, default 100
-    executor, max_workers, chunk, progress
+    draws : int, optional
+        Drawn economies (default ``spec.draws``).
+    executor, max_workers, chunk, progress, in_flight
         As for :func:`stress_test`.
     solve_options : dict, optional
         Keywords for :meth:`Plan.solve`.
@@ -702,9 +795,9 @@ def reoptimise(plan: Any, spec: UncertaintySpec, draws: int = 100, *,
 
     refuse_techniques(plan, "re-optimisation per draw")
     spec.check(plan)
-    n = _check_draws(draws)
+    n = _check_draws(spec.draws if draws is None else draws)
     table = _run("reoptimise", plan, spec, n, dict(solve_options or {}), executor,
-                 max_workers, chunk, progress)
+                 max_workers, chunk, progress, in_flight)
     return UncertaintyResult(table, "reoptimise")
 
 

@@ -100,3 +100,43 @@ def test_bad_revisions_use_the_message_template(kwargs, match):
     kwargs = {"actuals": {"s0": [1.0, 1.0, 1.0]}, **kwargs}
     with pytest.raises(gp.InvalidInput, match=match):
         revise(plan, kwargs.pop("actuals"), **kwargs)
+
+
+@pytest.mark.parametrize("text, match", [
+    ("year,sector\n2027,s0\n", "must have the columns year, sector, starts"),
+    ("year,sector,starts\n2027.5,s0,1\n", "year must hold whole years. Got '2027.5'"),
+    ("year,sector,starts\n2027,s0,x\n", "starts must hold finite numbers >= 0. Got 'x'"),
+    ("year,sector,starts\n2027,s0,1\n2027,s0,2\n", "give each year and sector once"),
+    ("year,sector,starts\n", "hold at least one row"),
+])
+def test_read_actuals_refuses_malformed_files(tmp_path, text, match):
+    (tmp_path / "a.csv").write_text(text)
+    with pytest.raises(gp.InvalidInput, match=match):
+        gp.read_actuals(tmp_path / "a.csv")
+
+
+def test_read_actuals_gives_years_by_sectors_and_revise_takes_it(tmp_path):
+    (tmp_path / "a.csv").write_text("year,sector,starts\n2031,s1,2.5\n2030,s0,1\n"
+                                    "2031,s0,1.5\n2032,s0,0\n")
+    frame = gp.read_actuals(tmp_path / "a.csv")
+    assert frame.index.tolist() == [2030, 2031, 2032]
+    assert frame.loc[2030, "s1"] == 0.0 and frame.loc[2031, "s1"] == 2.5
+    plan = make_plan(economy(2), 6)
+    from_dict = revise(plan, {"s0": [1.0, 1.5, 0.0], "s1": [0.0, 2.5, 0.0]}, 2033)
+    from_file = revise(plan, frame, 2033)
+    for name in ("s0", "s1"):
+        assert from_file.economy.capital[name].initial_capacity == \
+            from_dict.economy.capital[name].initial_capacity
+    assert from_file.under_construction == from_dict.under_construction
+    with pytest.raises(gp.InvalidInput, match="actuals must name sectors"):
+        revise(plan, frame.rename(columns={"s1": "nowhere"}), 2033)
+
+
+def test_bellman_holds_with_a_first_year_condition():
+    # Bellman's principle again, on the demo plan of Arvenna: its first-year condition
+    # (output near the base year) concerns 2027 alone and is not imposed on 2031
+    plan = gp.demo_plan()
+    r = plan.solve()
+    r2 = revise(plan, r.starts, 2031).solve()
+    assert r.ok and r2.ok
+    assert r2.objective == pytest.approx(r.objective, rel=1e-7)

@@ -117,3 +117,77 @@ def test_a_users_pool_that_breaks_is_retried_on_fresh_pools():
         s = gp.sweep(base_plan(), scenarios=scenarios, executor=pool, keep_results=True)
     assert s.table.status.tolist() == ["optimal", "error", "optimal"]
     assert s.results[1] is None and s.results[2].plan.terminal.rate == 0.02
+
+
+class CountingExecutor(gp.SerialExecutor):
+    """Serial, counting the tasks it was given."""
+
+    def __init__(self) -> None:
+        self.calls = 0
+
+    def submit(self, fn, /, *args, **kwargs):
+        self.calls += 1
+        return super().submit(fn, *args, **kwargs)
+
+
+@pytest.mark.parametrize("grid, scenarios, match", [
+    ({"labour.0.growth": [0.0], "terminal.rat": [0.01]}, None,
+     r"parameter 'terminal.rat' must name an existing field .* Did you mean 'terminal.rate'"),
+    (None, {"a": {"labour.0.growth": 0.01}, "b": {"labour.0.grwoth": 0.02}},
+     r"'labour.0.grwoth' .* Did you mean 'labour.0.growth'"),
+    ({"economy.capital.goods.mean_service_lfe": [10.0]}, None,
+     r"Did you mean 'economy.capital.goods.mean_service_life'"),
+    ({"consumption.floor": [1.0]}, None, r"consumption is not set"),
+    ({"labour.2.growth": [0.0]}, None, r"must index labour by 0..0"),
+])
+def test_misspelt_parameters_fail_before_any_scenario_runs(grid, scenarios, match):
+    ex = CountingExecutor()
+    with pytest.raises(gp.InvalidInput, match=match):
+        gp.sweep(base_plan(), grid, scenarios=scenarios, executor=ex)
+    assert ex.calls == 0
+
+
+def test_one_labour_kind_is_reached_without_its_index():
+    s = gp.sweep(base_plan(), {"labour.growth": [0.0, 0.02]}, executor=gp.SerialExecutor())
+    ref = gp.sweep(base_plan(), {"labour.0.growth": [0.0, 0.02]},
+                   executor=gp.SerialExecutor())
+    assert list(s.table.columns[:2]) == ["scenario", "labour.growth"]
+    assert [r.plan.labour[0].growth for r in s.results] == [0.0, 0.02]
+    np.testing.assert_array_equal(s.table.objective, ref.table.objective)
+
+
+class Tracking(gp.SerialExecutor):
+    """Runs each task at once, counting the futures still referenced when one is sent."""
+
+    def __init__(self) -> None:
+        import weakref
+
+        self.alive = weakref.WeakSet()
+        self.most = 0
+
+    def submit(self, fn, /, *args, **kwargs):
+        fut = super().submit(fn, *args, **kwargs)
+        self.alive.add(fut)
+        self.most = max(self.most, len(self.alive))
+        return fut
+
+
+def test_rows_stream_to_a_file_with_few_futures_in_flight(tmp_path):
+    grid = {"terminal.rate": [0.0, 0.01, 0.02, 0.03, 0.04], "labour.growth": [0.0, 0.01]}
+    ex = Tracking()
+    s = gp.sweep(base_plan(), grid, executor=ex, keep_results=False, out=tmp_path / "s.csv",
+                 in_flight=3)
+    assert ex.most <= 3
+    streamed = pd.read_csv(tmp_path / "s.csv")
+    assert len(streamed) == 10 and streamed["error"].isna().all()
+    pd.testing.assert_frame_equal(streamed.drop(columns=["solve_seconds", "error"]),
+                                  figures(s).reset_index(drop=True), check_dtype=False)
+    with pytest.raises(gp.InvalidInput, match="overwrite"):
+        gp.sweep(base_plan(), grid, executor=ex, out=tmp_path / "s.csv")
+    again = gp.sweep(base_plan(), {"terminal.rate": [0.0]},
+                     scenarios={"broken": {"labour.0.growth": -5.0}}, executor=ex,
+                     out=tmp_path / "s.csv", overwrite=True)
+    streamed = pd.read_csv(tmp_path / "s.csv")
+    assert streamed["status"].tolist() == again.table["status"].tolist() == ["optimal",
+                                                                              "error"]
+    assert "labour" in streamed["error"].iloc[1]

@@ -203,3 +203,129 @@ def test_selection_is_checked_against_the_plan(small):
     with pytest.raises(gp.InvalidInput, match="draws must"):
         reoptimise(plan, UncertaintySpec(items=spec.items[:0] + [Uncertain(
             what="capital_coefficients", distribution=Uniform(low=1, high=1))]), 0)
+
+
+# -- the plan file's uncertainty section ----------------------------------------------------
+
+SECTION = """
+uncertainty:
+  seed: 7
+  draws: 12
+  items:
+    - what: capital_coefficients
+      correlation: independent
+      distribution: {kind: uniform, low: 0.9, high: 1.1}
+    - what: mean_service_life
+      cols: [energy]
+      distribution: {kind: triangular, low: 0.8, mode: 1.0, high: 1.1}
+    - what: final_demand
+      distribution: {kind: lognormal, mean: 1.0, sd: 0.05}
+"""
+
+
+def _demo_copy(tmp_path, section):
+    import shutil
+
+    from growthplan.demo import DEMO_DIR, PLAN_FILE
+
+    for f in ("flows.csv", "capital.csv", "capital_stocks.csv"):
+        shutil.copy(DEMO_DIR / f, tmp_path / f)
+    path = tmp_path / "plan.yaml"
+    path.write_text((DEMO_DIR / PLAN_FILE).read_text() + section)
+    return path
+
+
+def test_plan_file_section_is_read_checked_and_in_the_schema(tmp_path):
+    path = _demo_copy(tmp_path, SECTION)
+    plan, _ = gp.load_plan_file(path)
+    spec = gp.load_uncertainty(path)
+    assert spec.seed == 7 and spec.draws == 12 and len(spec.items) == 3
+    assert spec.items[1].cols == ["energy"] and spec.items[1].distribution.mode == 1.0
+    assert spec == UncertaintySpec(seed=7, draws=12, items=[
+        Uncertain(what="capital_coefficients", correlation="independent",
+                  distribution=Uniform(low=0.9, high=1.1)),
+        Uncertain(what="mean_service_life", cols=["energy"],
+                  distribution=Triangular(low=0.8, mode=1.0, high=1.1)),
+        Uncertain(what="final_demand", distribution=LogNormal(mean=1.0, sd=0.05))])
+    spec.check(plan)
+    assert gp.load_uncertainty(_demo_copy(tmp_path, "")) is None
+    schema = gp.plan_file_schema()
+    assert "uncertainty" in schema["properties"]
+    assert schema["properties"]["uncertainty"]["description"]
+    props = schema["$defs"]["Uncertain"]["properties"]
+    assert all(props[k].get("description") for k in ("what", "rows", "cols", "distribution",
+                                                     "relative", "correlation"))
+    assert schema["$defs"]["UncertaintySpec"]["properties"]["draws"]["description"]
+
+
+@pytest.mark.parametrize("section, match", [
+    (SECTION.replace("cols: [energy]", "cols: [enrgy]"),
+     r"plan.yaml, line \d+: uncertainty.items.1.cols must name entries of mean_service_life"),
+    (SECTION.replace("high: 1.1}\n    - what: mean", "high: 0.5}\n    - what: mean"),
+     r"plan.yaml, line \d+: .*high must be >= low"),
+    (SECTION.replace("draws: 12", "draws: 0"), r"line \d+: .*draws must"),
+    (SECTION.replace("what: final_demand", "what: import_prices"),
+     r"line \d+: uncertainty.items.2.what must name a block the plan has"),
+])
+def test_plan_file_section_errors_name_file_field_and_line(tmp_path, section, match):
+    path = _demo_copy(tmp_path, section)
+    with pytest.raises(gp.InvalidInput, match=match):
+        gp.load_plan_file(path)
+
+
+def test_trade_prices_can_be_uncertain():
+    plan = make_plan(economy(3), 5).model_copy(update={"trade": gp.Trade(
+        import_prices={"s0": 1.2}, export_prices={"s1": 0.9, "s2": 0.8},
+        import_ceilings={"s0": 5.0}, export_ceilings={"s1": 5.0, "s2": 5.0})})
+    spec = UncertaintySpec(items=[
+        Uncertain(what="export_prices", cols="s2", relative=False,
+                  distribution=Uniform(low=0.5, high=0.6))], seed=3)
+    drawn = spec.draw(plan, 0)
+    got = drawn.trade.export_prices
+    assert got["s1"] == 0.9 and 0.5 <= got["s2"] <= 0.6
+    assert got["s2"] == spec.values(plan, 0)[0][0, 0]
+
+
+def test_stress_draws_of_a_plan_in_large_units_are_certified():
+    # the demo's starts are thousands of units: held fixed (or as ceilings) their reduced
+    # costs times those values must count in the optimality certificate, or every draw
+    # ends "not_verified"
+    plan = gp.demo_plan()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        nominal = plan.solve()
+    spec = UncertaintySpec(items=[
+        Uncertain(what="capital_coefficients", correlation="independent",
+                  distribution=Uniform(low=0.9, high=1.1)),
+        Uncertain(what="mean_service_life", cols="energy",
+                  distribution=Triangular(low=0.7, mode=1.0, high=1.1))], seed=7)
+    res = stress_test(plan, spec, 3, nominal=nominal, executor=SERIAL)
+    assert set(res.table["status"]) <= {"met", "short"}, set(res.table["status"])
+    assert res.table[res.table.quantity == "starts_cut"]["value"].isin([0.0, 1.0]).all()
+
+
+def test_warm_pool_and_a_dask_cluster_give_the_serial_table(small):
+    # the analysis's own pool sends the plan once per worker; a Dask cluster gets it with
+    # every chunk; both must give the serial table exactly (same seed, same draws)
+    plan, nominal = small
+    spec = UncertaintySpec(items=[
+        Uncertain(what="capital_coefficients", distribution=Uniform(low=0.9, high=1.1),
+                  correlation="independent"),
+        Uncertain(what="labour_growth", relative=False,
+                  distribution=Uniform(low=0.0, high=0.02))], seed=12)
+
+    def same(a, b):
+        keep_a = a.table[a.table.quantity != "solve_seconds"].reset_index(drop=True)
+        keep_b = b.table[b.table.quantity != "solve_seconds"].reset_index(drop=True)
+        pd.testing.assert_frame_equal(keep_a, keep_b)
+
+    serial = reoptimise(plan, spec, 5, executor=SERIAL)
+    same(serial, reoptimise(plan, spec, 5, max_workers=2, chunk=2))
+    stressed = stress_test(plan, spec, 3, nominal=nominal, executor=SERIAL)
+    same(stressed, stress_test(plan, spec, 3, nominal=nominal, max_workers=2, chunk=1))
+    distributed = pytest.importorskip("distributed")
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                  dashboard_address=None) as cluster, \
+            distributed.Client(cluster) as client:
+        same(serial, reoptimise(plan, spec, 5, executor=client.get_executor(), chunk=1,
+                                in_flight=2))

@@ -100,6 +100,13 @@ def optimality_gap(lp: LinearProgram, x: np.ndarray, y: np.ndarray, *,
         return float("inf")
     bound[up] = lp.col_upper[up]
     bound[lo] = lp.col_lower[lo]
+    # a reduced cost within the tolerance counts at the finite bound x sits on (a fixed
+    # column, or one held at a ceiling): dropping a tiny rc times a large bound (capacity
+    # starts held at another plan's) would open a false gap
+    for side in (lp.col_lower, lp.col_upper):
+        on = ~(up | lo) & np.isfinite(side) & (np.abs(x - side) <= 1e-9 * np.maximum(
+            1.0, np.abs(np.where(np.isfinite(side), side, 0.0))))
+        bound[on] = side[on]
     dual = float(np.sum(np.where(np.isfinite(rhs), rhs, 0.0) * y) + np.sum(rc * bound))
     primal = float(lp.cost @ x)
     # relative to the objective's own size, never to a fixed 1: an objective in

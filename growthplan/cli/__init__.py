@@ -10,6 +10,7 @@ Exit codes: 0 optimal plan (or success), 1 infeasible plan, 2 invalid input,
 
 from . import economy as _economy  # noqa: F401 - registers the economy commands
 from . import plan as _plan  # noqa: F401 - registers the plan commands
+from . import scenarios as _scenarios  # noqa: F401 - registers the scenario commands
 from .base import main
 
 __all__ = ["main"]

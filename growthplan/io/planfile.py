@@ -19,9 +19,20 @@ The file points at its tables by paths relative to the file itself. Layout
       terminal: {rate: 0.04}
       objective: {kind: terminal_capacity}
     solve: {method: auto, time_limit: 600}
+    uncertainty:                        # optional: see growthplan.uncertainty
+      seed: 7
+      draws: 200
+      items:
+        - {what: capital_coefficients, correlation: independent,
+           distribution: {kind: uniform, low: 0.9, high: 1.1}}
+        - {what: mean_service_life, cols: [energy],
+           distribution: {kind: triangular, low: 0.8, mode: 1.0, high: 1.1}}
 
 Everything under ``plan`` is validated by :class:`~growthplan.Plan` itself;
-:func:`plan_file_schema` publishes the JSON Schema of the whole file.
+:func:`plan_file_schema` publishes the JSON Schema of the whole file. The
+``uncertainty`` section is an :class:`~growthplan.UncertaintySpec`:
+:func:`load_plan_file` checks it against the plan (every selected cell must
+exist) and :func:`load_uncertainty` returns it.
 
 A plan file may come from anyone, so it is read defensively: at most
 :data:`PLAN_FILE_MAX_BYTES`, parsed once by a safe YAML loader (the C one
@@ -48,13 +59,14 @@ from .._validation import Model, Rule
 from ..economy import Economy, Sector
 from ..errors import InvalidInput, invalid, show
 from ..plan import Plan
+from ..uncertainty import UncertaintySpec
 from ._files import read_regular_file
 from .atomic import atomic_files
 from .tables import _coefficient_frames, _write_csv, economy_from_coefficients
 
 __all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "save_plan_file",
            "plan_file_schema", "plan_file_inputs", "PLAN_FILE_MAX_BYTES", "MAX_DEPTH",
-           "MAX_YEARS"]
+           "MAX_YEARS", "load_uncertainty"]
 
 _TABLE_FIELDS = ("flows", "input_coefficients", "labour_coefficients", "capital",
                  "capital_stocks", "capital_coefficients")
@@ -167,6 +179,11 @@ class PlanFile(Model):
     economy: EconomyTables
     plan: dict[str, Any]
     solve: SolveOptions = Field(default_factory=SolveOptions)
+    uncertainty: UncertaintySpec | None = Field(default=None, description=(
+        "Optional: what is uncertain (coefficient blocks or cells, service lives, labour "
+        "growth, exogenous demand, trade prices), by which distribution and correlation, "
+        "the seed and the number of draws; read by load_uncertainty and the stress and "
+        "reoptimise commands."))
 
     @field_validator("plan")
     @classmethod
@@ -489,7 +506,45 @@ def load_plan_file(path: str | os.PathLike[str], *,
         raise _located(exc, path, node, ["plan"]) from None
     except TypeError as exc:
         raise InvalidInput(f"{path}: plan: {show(str(exc))[1:-1]}", field="plan") from None
+    if spec.uncertainty is not None:
+        try:
+            spec.uncertainty.check(plan)
+        except InvalidInput as exc:
+            raise _located(exc, path, node, ["uncertainty"]) from None
     return plan, spec.solve
+
+
+def load_uncertainty(path: str | os.PathLike[str]) -> UncertaintySpec | None:
+    """The plan file's ``uncertainty`` section (None when it has none).
+
+    Only the section is read and validated here; :func:`load_plan_file`
+    checks its selections against the plan (every named sector, labour kind
+    or traded good must exist), so load the plan first.
+
+    Parameters
+    ----------
+    path : path
+        A ``.yaml``, ``.yml`` or ``.toml`` plan file.
+
+    Returns
+    -------
+    UncertaintySpec or None
+        Its items, seed and number of draws.
+
+    Raises
+    ------
+    InvalidInput
+        Naming the file, the field and (for YAML) the line.
+    """
+    path = Path(path)
+    data, node = _read(path)
+    section = data.get("uncertainty")
+    if section is None:
+        return None
+    try:
+        return UncertaintySpec.model_validate(section)
+    except InvalidInput as exc:
+        raise _located(exc, path, node, ["uncertainty"]) from None
 
 
 def plan_file_inputs(path: str | os.PathLike[str]) -> list[Path]:
