@@ -8,7 +8,7 @@ from importlib.metadata import PackageNotFoundError, version
 
 from . import backends, capital, objectives
 from .backends import HighsBackend, PulpBackend, Status
-from .demo import DEMO_DIR, demo_economy, demo_plan
+from .demo import DEMO_DIR, copy_demo, demo_economy, demo_plan
 from .economy import CapitalSpec, Economy, Sector
 from .errors import (
     EndEffectsWarning,
@@ -69,6 +69,7 @@ __all__ = [
     "DEMO_DIR",
     "demo_economy",
     "demo_plan",
+    "copy_demo",
     "HighsBackend",
     "PulpBackend",
     "backends",
