@@ -6,7 +6,7 @@ from here.
 
 from importlib.metadata import PackageNotFoundError, version
 
-from . import backends, capital, objectives
+from . import backends, capital, objectives, plot
 from .backends import HighsBackend, PulpBackend, Status
 from .demo import DEMO_DIR, copy_demo, demo_economy, demo_plan
 from .economy import CapitalSpec, Economy, Sector
@@ -88,6 +88,7 @@ __all__ = [
     "TerminalGrowth",
     "Trade",
     "objectives",
+    "plot",
     "BalancedGrowth",
     "CapitalSpec",
     "Economy",

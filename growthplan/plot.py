@@ -255,9 +255,9 @@ def plot_labour(result: PlanResult, *, ax: Axes | None = None) -> Axes:
             n += 1
     _year_axis(ax, frame.index, pad=0.4)
     if mixed:
-        ax.set_ylabel("labour a year\n(each kind in its own unit, see legend)")
+        ax.set_ylabel("labour\n(each kind in its own unit, see legend)")
     else:
-        ax.set_ylabel(f"labour\n({units.get(kinds[0], 'person-years')} a year)")
+        ax.set_ylabel(f"labour\n({units.get(kinds[0], 'person-years')})")
     ax.set_title("Labour use and supply")
     _legend(ax, n)
     ax.grid(alpha=0.3)
