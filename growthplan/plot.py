@@ -95,6 +95,14 @@ def _year_positions(ax: Axes, years: Sequence[Any]) -> None:
     ax.set_xlabel("year")
 
 
+def _after_label(ax: Axes, after: int) -> None:
+    """"after the plan" under the year after the plan's tick (beside the axis title, over
+    no data)."""
+    ax.annotate("after the plan", xy=(after, 0.0), xycoords=ax.get_xaxis_transform(),
+                xytext=(0, -22), textcoords="offset points", ha="center", va="top",
+                fontsize="x-small", color="#333333", annotation_clip=False)
+
+
 def _legend(ax: Axes, n: int) -> None:
     """A legend beside the axes (never over the data)."""
     if n == 0:
@@ -176,8 +184,7 @@ def plot_paths(result: PlanResult, what: str = "output", *, sectors: list[str] |
     if what == "capacity" and len(frame.index) > len(result.plan.years):
         after = int(frame.index[-1])
         ax.axvspan(after - 0.5, after + 0.4, color="#999999", alpha=0.18, linewidth=0)
-        ax.text(after - 0.05, 0.02, "after the plan", transform=ax.get_xaxis_transform(),
-                rotation=90, ha="center", va="bottom", fontsize="x-small", color="#333333")
+        _after_label(ax, after)
     title = "Output by sector" if what == "output" else "Capacity in service by sector"
     ax.set_title(title + (" (first year = 1)" if index else ""))
     _legend(ax, len(frame.columns))
@@ -549,6 +556,7 @@ def plot_ray_distance(result: PlanResult, *, ax: Axes | None = None) -> Axes:
     if len(d.index) > len(result.plan.years):
         after = int(d.index[-1])
         ax.axvspan(after - 0.5, after + 0.4, color="#999999", alpha=0.18, linewidth=0)
+        _after_label(ax, after)
     ax.set_ylabel("angle from the ray\n(degrees)")
     ax.set_title("Capacity's angle from the balanced-growth ray (0 = balanced proportions)")
     ax.set_ylim(bottom=0)
