@@ -111,3 +111,16 @@ def test_demo_copy_on_the_command_line(tmp_path):
     assert again.exit_code == 2 and "--copy must name a new or empty folder" in again.output
     over = CliRunner().invoke(main, ["demo", "--copy", str(tmp_path / "mine"), "--overwrite"])
     assert over.exit_code == 0, over.output
+
+
+def test_demo_charts_without_matplotlib_fail_before_the_solve(tmp_path, monkeypatch):
+    import importlib.util
+
+    real = importlib.util.find_spec
+    monkeypatch.setattr(importlib.util, "find_spec",
+                        lambda name, *a: None if name == "matplotlib" else real(name, *a))
+    res = CliRunner().invoke(main, ["demo", "--no-progress", "--charts", str(tmp_path / "c")])
+    assert res.exit_code == 2
+    assert "--charts must be used with matplotlib installed" in res.output
+    assert "growthplan result" not in res.output  # nothing solved
+    assert not (tmp_path / "c").exists()

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import importlib.util
 import json
 from pathlib import Path
 from typing import Any
@@ -146,6 +147,10 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
         click.echo(f"Edit {written[0]}, then: growthplan solve {written[0]}")
         return
     _check_outputs(out, excel, charts, overwrite, report=report)
+    has_plot = importlib.util.find_spec("matplotlib") is not None
+    if charts is not None and not has_plot:  # said before the solve, not after it
+        raise invalid("--charts", "be used with matplotlib installed (pip install "
+                      "'growthplan[plot]')", str(charts))
     with _reading(DEMO_DIR / PLAN_FILE):
         plan, _ = load_plan_file(DEMO_DIR / PLAN_FILE)
     econ = plan.economy
@@ -215,7 +220,9 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
                    "edit my-plan/plan.yaml\n"
                    "                                          (data/demo/plan.yaml in a "
                    "source checkout)\n"
-                   "  growthplan solve my-plan/plan.yaml      then solve your version")
+                   "  growthplan solve my-plan/plan.yaml      then solve your version"
+                   + ("" if has_plot else "\n(charts need matplotlib: "
+                      "pip install 'growthplan[plot]')"))
     _exit(_exit_code(result))
 
 
