@@ -70,19 +70,22 @@ def _bar_style(i: int) -> dict[str, Any]:
 
 
 def _year_ticks(years: Sequence[int]) -> list[int]:
-    """Every year up to 16, then every 2nd, 5th or 10th: labels that never overlap."""
+    """At most ten labelled years (every 1, 2, 5, 10… years): labels that never overlap,
+    even in a narrow figure with a legend beside it."""
     n = len(years)
-    step = 1 if n <= 16 else 2 if n <= 32 else 5 if n <= 80 else 10
+    step = next((s for s in (1, 2, 5, 10, 20, 50, 100) if -(-n // s) <= 10), 100)
     return [int(y) for y in years if (int(y) - int(years[0])) % step == 0]
 
 
 def _year_axis(ax: Axes, years: Iterable[Any], *, pad: float = 0.5) -> None:
-    """Year ticks that stay readable, and limits that fit bars or points."""
+    """Year ticks that stay readable (every year marked, some labelled), and limits that
+    fit bars or points."""
     ys = [int(y) for y in years]
     if not ys:
         return
     ticks = _year_ticks(ys)
     ax.set_xticks(ticks, [str(t) for t in ticks])
+    ax.set_xticks(ys, minor=True)
     ax.set_xlim(ys[0] - pad, ys[-1] + pad)
     ax.set_xlabel("year")
 
@@ -220,6 +223,7 @@ def plot_starts(result: PlanResult, *, ax: Axes | None = None) -> Axes:
                **_bar_style(i))
         bottom += frame[col].to_numpy()
     _year_axis(ax, frame.index, pad=0.6)
+    ax.set_ylim(bottom=0.0)
     ax.set_ylabel(f"capacity started\n({result.data.value_unit} of annual output)")
     ax.set_title("Capacity started by sector, valued at base-year prices")
     _legend(ax, len(frame.columns))
