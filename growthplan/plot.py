@@ -228,6 +228,7 @@ def plot_starts(result: PlanResult, *, ax: Axes | None = None) -> Axes:
     ax.set_title("Capacity started by sector, valued at base-year prices")
     _legend(ax, len(frame.columns))
     ax.grid(alpha=0.3, axis="y")
+    ax.set_axisbelow(True)  # grid lines behind the bars
     return ax
 
 
@@ -448,6 +449,7 @@ def plot_targets(result: PlanResult, *, ax: Axes | None = None) -> Axes:
     ax.set_xlabel("reached, % of what the target requires (dashed line: 100 %)")
     ax.set_title(title)
     ax.grid(alpha=0.3, axis="x")
+    ax.set_axisbelow(True)  # grid lines behind the bars
     return ax
 
 
@@ -501,15 +503,20 @@ def plot_diagnosis(result: PlanResult, *, top: int = 20, ax: Axes | None = None)
         pct = 100.0 * float(row.share)
         ax.barh(pos[k], pct, height=0.5, **_bar_style(k))
         unit = _shortfall_unit(result, str(row.condition), str(row.sector))
+        inside = pct > 55.0  # a long bar carries its words inside, on a white ground
         ax.annotate(f"short by {_fmt(float(row.shortfall))}\n{unit}".rstrip(),
-                    xy=(pct, pos[k]), xytext=(4, 0), textcoords="offset points",
-                    va="center", fontsize="x-small")
+                    xy=(pct, pos[k]), xytext=(-4 if inside else 4, 0),
+                    textcoords="offset points", ha="right" if inside else "left",
+                    va="center", fontsize="x-small",
+                    bbox={"boxstyle": "round,pad=0.2", "fc": "white", "ec": "none",
+                          "alpha": 0.85} if inside else None)
     ax.set_yticks(pos, names)
-    ax.set_xlim(0, max(100.0, 100.0 * float(short["share"].max())) * 1.6)
+    ax.set_xlim(0, 100)  # a shortfall is at most all that its condition asks
     ax.set_ylim(-0.7, len(short) - 0.3)
     ax.set_xlabel("shortfall, % of what the condition asks")
     ax.set_title(title)
     ax.grid(alpha=0.3, axis="x")
+    ax.set_axisbelow(True)  # grid lines behind the bars
     return ax
 
 
