@@ -6,7 +6,7 @@ from here.
 
 from importlib.metadata import PackageNotFoundError, version
 
-from . import backends, capital, objectives
+from . import backends, capital, objectives, plot
 from .backends import HighsBackend, PulpBackend, Status
 from .choice import (
     ActivityTable,
@@ -20,7 +20,7 @@ from .choice import (
     von_neumann_choice,
     wage_profit_frontier,
 )
-from .demo import DEMO_DIR, demo_economy, demo_plan
+from .demo import DEMO_DIR, copy_demo, demo_economy, demo_plan
 from .economy import CapitalSpec, Economy, Sector
 from .errors import (
     EndEffectsWarning,
@@ -83,6 +83,7 @@ __all__ = [
     "DEMO_DIR",
     "demo_economy",
     "demo_plan",
+    "copy_demo",
     "HighsBackend",
     "PulpBackend",
     "backends",
@@ -101,6 +102,7 @@ __all__ = [
     "TerminalGrowth",
     "Trade",
     "objectives",
+    "plot",
     "BalancedGrowth",
     "CapitalSpec",
     "Economy",

@@ -1,47 +1,112 @@
 """The demo scenario: the invented Republic of Arvenna plans 2027–2041.
 
-Arvenna is a fictional country; its tables in ``data/demo/`` are invented
-for illustration and describe no real economy.
+Arvenna is a fictional country; its tables are invented for illustration and
+describe no real economy. They ship inside the package (``DEMO_DIR``, the
+folder ``growthplan/demo_data/``), so the demo runs from an installed wheel
+as well as from a source checkout, where ``data/demo/`` holds the same files
+for reading and editing. :func:`copy_demo` writes them into a folder of your
+own to edit and solve.
 """
 
 from __future__ import annotations
 
+import shutil
 from pathlib import Path
 
 from .economy import Economy
 from .io.planfile import load_plan_file
 from .plan import Plan
 
-__all__ = ["DEMO_DIR", "PLAN_FILE", "demo_economy", "demo_plan"]
+__all__ = ["DEMO_DIR", "PLAN_FILE", "DEMO_FILES", "SUPPLY_USE_FILES", "demo_economy", "demo_plan",
+           "copy_demo"]
 
-DEMO_DIR = Path(__file__).resolve().parent.parent / "data" / "demo"
+DEMO_DIR = Path(__file__).resolve().parent / "demo_data"
 
 PLAN_FILE = "plan.yaml"
 
+DEMO_FILES = ("plan.yaml", "flows.csv", "capital.csv", "capital_stocks.csv", "README.md")
+
+# the same country's supply and use tables and the spec that builds an economy from them
+SUPPLY_USE_FILES = tuple(f"supply_use/{name}" for name in (
+    "supply.csv", "use.csv", "employment.csv", "capital_flows.csv", "economy.yaml"))
+
 
 def demo_plan(folder: str | Path | None = None) -> Plan:
-    """Arvenna's fifteen-year plan, read from ``data/demo/plan.yaml``.
+    """Arvenna's fifteen-year plan, read from the demo's ``plan.yaml``.
 
     Households are guaranteed a consumption level rising 2 % a year and never
     falling; the government's own demand for services and construction grows
     3 % a year; labour grows 1.2 % a year; the energy programme wants 3,400
-    units of power capacity in service by 2034 and the machinery programme
-    3,600 units of output in 2033. The plan maximises terminal capacity in
+    million arvens a year of power capacity in service by 2034 and the
+    machinery programme 3,600 million arvens of output in 2033 (the tables
+    are in money: one unit of a sector is one million arvens' worth of its
+    output at 2026 prices). The plan maximises terminal capacity in
     balanced-growth proportions and keeps capacity growing at 4 % after 2041.
+
+    Parameters
+    ----------
+    folder : str or Path, optional
+        A folder holding the demo files (such as one written by
+        :func:`copy_demo` and edited); default the copy inside the package.
+
+    Returns
+    -------
+    Plan
     """
     return load_plan_file(_folder(folder) / PLAN_FILE)[0]
 
 
 def demo_economy(folder: str | Path | None = None) -> Economy:
-    """Arvenna's economy: ten sectors from the demo tables."""
+    """Arvenna's economy: ten sectors from the demo tables.
+
+    Parameters
+    ----------
+    folder : str or Path, optional
+        As for :func:`demo_plan`.
+
+    Returns
+    -------
+    Economy
+    """
     return demo_plan(folder).economy
+
+
+def copy_demo(folder: str | Path, *, overwrite: bool = False) -> list[Path]:
+    """Write the demo's plan file and tables into ``folder``, to edit and solve.
+
+    The files are written aside and moved in together (see
+    :func:`growthplan.io.atomic_folder`); an existing, non-empty folder is
+    written only with ``overwrite=True``, and then only files growthplan
+    wrote there before are replaced.
+
+    Parameters
+    ----------
+    folder : str or Path
+        The folder to write; created when missing.
+    overwrite : bool, default False
+        Write into an existing, non-empty folder.
+
+    Returns
+    -------
+    list of Path
+        The files written, the plan file first.
+    """
+    from .io.atomic import atomic_folder
+
+    source = _folder(None)
+    target = Path(folder)
+    with atomic_folder(target, overwrite=overwrite, kind="demo") as tmp:
+        for name in DEMO_FILES:
+            shutil.copyfile(source / name, tmp / name)
+    return [target / name for name in DEMO_FILES]
 
 
 def _folder(folder: str | Path | None) -> Path:
     d = Path(folder) if folder is not None else DEMO_DIR
-    if not (d / PLAN_FILE).exists():
+    if not (d / PLAN_FILE).is_file():
         from .errors import invalid
 
-        raise invalid("folder", "hold the demo plan file and tables (run from a source "
-                      "checkout)", str(d))
+        raise invalid("folder", "hold the demo plan file and its tables (plan.yaml, flows.csv, "
+                      "capital.csv, capital_stocks.csv)", str(d))
     return d
+

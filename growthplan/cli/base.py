@@ -214,7 +214,8 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
             raise invalid(opt, "lie in a writable folder", str(p))
 
 
-_CHART_NAMES = ("output", "capacity", "starts", "labour", "shadow_prices", "ray_distance")
+_CHART_NAMES = ("output", "capacity", "starts", "labour", "shadow_prices", "ray_distance",
+                "consumption", "targets", "utilisation", "diagnosis")
 
 
 def _finite(value: float | None) -> float | None:

@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+import importlib.util
 import json
 from pathlib import Path
+from typing import Any
 
 import click
 import numpy as np
@@ -23,6 +25,7 @@ from .base import (
     _report,
     _report_opt,
     _solve,
+    _writing,
     main,
 )
 
@@ -117,38 +120,137 @@ def schema() -> None:
     click.echo(json.dumps(plan_file_schema(), indent=2))
 
 
-@main.command(help="Solve the demo plan of the invented Republic of Arvenna and print it.")
+@main.command(help="Solve the demo plan of the invented Republic of Arvenna and explain it.")
 @_out
 @_excel
 @_report_opt
 @_charts
 @_overwrite
 @click.option("--progress/--no-progress", default=True, show_default=True)
+@click.option("--copy", "copy_to", type=click.Path(path_type=Path), default=None,
+              help="Write the demo's plan file and tables into this folder, to edit and "
+                   "solve with 'growthplan solve FOLDER/plan.yaml', and stop.")
 def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path | None,
-         overwrite: bool, progress: bool) -> None:
+         overwrite: bool, progress: bool, copy_to: Path | None) -> None:
     from .. import load_plan_file
-    from ..demo import DEMO_DIR, PLAN_FILE
+    from ..demo import DEMO_DIR, PLAN_FILE, copy_demo
+    from ..results.report import targets_table
 
+    if copy_to is not None:
+        if copy_to.exists() and not overwrite and (not copy_to.is_dir()
+                                                   or any(copy_to.iterdir())):
+            raise invalid("--copy", "name a new or empty folder (pass --overwrite to replace "
+                          "the demo files written there before)", str(copy_to))
+        with _writing(copy_to):
+            written = copy_demo(copy_to, overwrite=overwrite)
+        click.echo(f"wrote {', '.join(str(p) for p in written)}")
+        click.echo(f"Edit {written[0]}, then: growthplan solve {written[0]}")
+        return
     _check_outputs(out, excel, charts, overwrite, report=report)
+    has_plot = importlib.util.find_spec("matplotlib") is not None
+    if charts is not None and not has_plot:  # said before the solve, not after it
+        raise invalid("--charts", "be used with matplotlib installed (pip install "
+                      "'growthplan[plot]')", str(charts))
     with _reading(DEMO_DIR / PLAN_FILE):
         plan, _ = load_plan_file(DEMO_DIR / PLAN_FILE)
     econ = plan.economy
     bg = econ.dynamic_balanced_growth()
-    click.echo("The Republic of Arvenna (an invented country) plans its development "
-               f"for {plan.years[0]}–{plan.years[-1]}.")
-    click.echo(f"Its ten-sector economy is productive (spectral radius of the input "
-               f"coefficients {econ.spectral_radius():.3f}); with no consumption its "
-               f"capital could grow at most {100 * bg.rate:.1f} % a year.")
-    click.echo("The plan guarantees households a consumption level rising 2 % a year, "
-               "meets an energy-capacity and a machinery-output target, respects the "
-               "labour supply (+1.2 % a year) and maximises capacity at the end, in "
-               "balanced proportions, growing on at 4 % after the plan.\n")
+    money = econ.value_unit
+    sector_units = set(econ.units)
+    labour_unit = ", ".join(econ.labour_units or ["person-years"])
+    first, last = plan.years[0], plan.years[-1]
+    units = (f"each sector's output, capacity and capacity started in {money} a year (the "
+             "tables are in money)" if sector_units == {money} else
+             "each sector's output, capacity and capacity started in its own unit a year "
+             f"({', '.join(sorted(sector_units))})")
+    _say_wrapped(f"The Republic of Arvenna (an invented country) plans its development for "
+                 f"{first}–{last}.")
+    _say_wrapped(f"Units: {units}; labour in {labour_unit}; consumption in baskets, one "
+                 f"basket worth {float(econ.prices @ _basket(plan)):,.4g} {money}.")
+    _say_wrapped(f"Its {econ.n}-sector economy is productive (spectral radius of the input "
+                 f"coefficients {econ.spectral_radius():.3f}); with no consumption its "
+                 f"capital could grow at most {100 * bg.rate:.1f} % a year.")
+    _say_wrapped("The plan guarantees households a consumption level rising 2 % a year, "
+                 "meets an energy-capacity and a machinery-output target, respects the "
+                 "labour supply (+1.2 % a year) and maximises capacity at the end, in "
+                 "balanced proportions, growing on at 4 % after the plan.")
+    click.echo()
     result = _solve(plan, progress=progress)
     _report(result, out, excel, charts, overwrite, report=report)
     if result.ok:
-        click.echo("\nOutput by sector in the first, middle and last plan year:")
-        click.echo(result.output.iloc[[0, plan.horizon // 2, -1]].T.round(0).to_string())
-        click.echo("\nWhat binds first (value of one more unit, first plan year):")
+        shown = [0, plan.horizon // 2, plan.horizon - 1]
+        click.echo(f"\nOutput by sector ({money} a year) in the first, middle and last "
+                   "plan year:")
+        click.echo(result.output.iloc[shown].T.round(0).to_string())
+        assert result.data is not None
+        level = result.consumption["level"].to_numpy()
+        floor = result.data.floor
+        on_floor = int((level <= floor * (1 + 1e-6) + 1e-9).sum())
+        click.echo()
+        _say_wrapped(f"Consumption (baskets a year): {level[0]:,.0f} in {first} (floor "
+                     f"{floor[0]:,.0f}), {level[-1]:,.0f} in {last} (floor {floor[-1]:,.0f}); "
+                     f"at the floor in {on_floor} of {plan.horizon} years: the plan invests "
+                     "what it does not have to consume.")
+        targets = targets_table(result)
+        if not targets.empty:
+            click.echo("\nTargets:")
+            for t in targets.itertuples():
+                tight = " (binding: met exactly)" if abs(t.margin) <= 1e-6 * max(
+                    1.0, t.required) else ""
+                unit = f" {t.unit}" if t.unit else ""
+                _say_wrapped(f"{t.target} in {t.year}: {t.verdict}; required "
+                             f"{t.required:,.0f}{unit}, reached {t.reached:,.0f}, margin "
+                             f"{t.margin:+,.0f}{tight}", indent="  ")
+        click.echo()
+        _say_wrapped("The objective: " + _objective_words(result))
+        click.echo()
+        _say_wrapped("What binds first, in the first plan year: value is what one more "
+                     "unit of the commodity (or of the sector's capacity) would add to the "
+                     "objective, in bundles; per_value is the same per unit of base-year "
+                     "value.")
         b = result.bottlenecks(top=5)
         click.echo(b[b.year == plan.years[0]].to_string(index=False))
+        click.echo("\nTry next:\n"
+                   "  growthplan demo --report arvenna.html   one page to open in a browser "
+                   "(charts, targets, accounts)\n"
+                   "  growthplan demo --excel arvenna.xlsx    the workbook, one sheet per "
+                   "schedule, with units\n"
+                   "  growthplan demo --charts charts         the charts as PNG files\n"
+                   "  growthplan demo --copy my-plan          the plan file and tables, to "
+                   "edit my-plan/plan.yaml\n"
+                   "                                          (data/demo/plan.yaml in a "
+                   "source checkout)\n"
+                   "  growthplan solve my-plan/plan.yaml      then solve your version"
+                   + ("" if has_plot else "\n(charts need matplotlib: "
+                      "pip install 'growthplan[plot]')"))
     _exit(_exit_code(result))
+
+
+def _basket(plan: Any) -> np.ndarray:
+    """The demo's consumption basket as an array over the sectors (zeros without one)."""
+    from ..lp.data import basket
+
+    return basket(plan)
+
+
+def _objective_words(result: Any) -> str:
+    """The demo's objective value in words and units."""
+    unit = result.plan.economy.value_unit
+    after = result.plan.years[-1] + 1
+    if result.level is None:
+        return f"value {result.objective:,.6g} ({type(result.plan.objective).__name__})."
+    return (f"the capacity in service in {after}, the year after the plan, counted in "
+            "bundles of the balanced-growth proportions, each bundle able to make 1 "
+            f"{unit} of output a year. The optimum is {result.level:,.0f} bundles: in {after} "
+            f"Arvenna can make output worth at least {result.level:,.0f} {unit} a year in "
+            "balanced proportions. Capacity beyond those proportions adds nothing to the "
+            "objective; all capacity then in service could make "
+            f"{result.terminal_value:,.0f} {unit} a year.")
+
+
+def _say_wrapped(text: str, indent: str = "") -> None:
+    """One paragraph wrapped to 88 columns (the demo is read in a terminal)."""
+    import textwrap
+
+    click.echo(textwrap.fill(text, width=88, initial_indent=indent,
+                             subsequent_indent=indent + ("  " if indent else "")))

@@ -415,19 +415,10 @@ def _charts(result: PlanResult) -> tuple[list[tuple[str, str]], str]:
                     "(pip install 'growthplan[plot]').")
     from .. import plot
 
-    draw = [("Output by sector", lambda ax: plot.plot_paths(result, "output", ax=ax)),
-            ("Capacity starts, valued at base-year prices",
-             lambda ax: plot.plot_starts(result, ax=ax))]
-    if not result.labour.empty:
-        draw.append(("Labour used and available", lambda ax: plot.plot_labour(result, ax=ax)))
-    draw.append(("Shadow prices in current-year terms",
-                 lambda ax: plot.plot_shadow_prices(result, ax=ax)))
-    if result.data is not None and np.any(result.data.b):
-        draw.append(("Capacity's distance from balanced growth",
-                     lambda ax: plot.plot_ray_distance(result, ax=ax)))
+    draw = [(caption, fn) for _, caption, fn in plot.chart_list(result)]
     out, failed = [], []
     for caption, fn in draw:
-        fig = Figure(figsize=(8, 4.2), layout="constrained")
+        fig = Figure(figsize=(9, 4.5), layout="constrained")
         try:
             fn(fig.add_subplot())
             buf = io.BytesIO()
@@ -439,6 +430,17 @@ def _charts(result: PlanResult) -> tuple[list[tuple[str, str]], str]:
         out.append((caption, uri))
     note = f"Could not draw: {', '.join(failed)}." if failed else ""
     return out, note
+
+
+def _charts_section(result: PlanResult, charts: bool) -> str:
+    if not charts:
+        return ('<section><h2>Charts</h2><p class="note">Charts are left out of '
+                "this report.</p></section>")
+    pics, note = _charts(result)
+    figs = "".join(f'<figure><img src="{uri}" alt="{_e(cap)}">'
+                   f"<figcaption>{_e(cap)}</figcaption></figure>" for cap, uri in pics)
+    note_html = f'<p class="note">{_e(note)}</p>' if note else ""
+    return f"<section><h2>Charts</h2>{note_html}{figs}</section>"
 
 
 def _job(result: PlanResult) -> str:
@@ -515,19 +517,13 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
             parts.append("<section><h2>Bottlenecks</h2><p>The three conditions worth most "
                          "per unit of base-year value in each year: more of them would "
                          "raise the objective most.</p>" + _table(table) + "</section>")
-        if charts:
-            pics, note = _charts(result)
-            figs = "".join(f'<figure><img src="{uri}" alt="{_e(cap)}">'
-                           f"<figcaption>{_e(cap)}</figcaption></figure>" for cap, uri in pics)
-            note_html = f'<p class="note">{_e(note)}</p>' if note else ""
-            parts.append(f"<section><h2>Charts</h2>{note_html}{figs}</section>")
-        else:
-            parts.append('<section><h2>Charts</h2><p class="note">Charts are left out of '
-                         "this report.</p></section>")
+        parts.append(_charts_section(result, charts))
         money = result.shadow_prices_money
         parts.append("<section><h2>Shadow prices in base-year money</h2>"
                      f'<p class="note">{_e(money.attrs.get("note", unit))}.</p>'
                      + _table(money) + "</section>")
+    elif result.diagnosis is not None:
+        parts.append(_charts_section(result, charts))
     warnings = list(result.warnings)
     solver = result.solver
     rows = [("status", f"{status} ({result.message})"),

@@ -125,7 +125,12 @@ def test_demo_report(demo, tmp_path):
     assert f"<th>GDP</th><td class=\"num\">{gdp.iloc[0]:,.0f}</td>" in doc
     assert html.escape(demo.shadow_prices_money.attrs["note"]) in doc
     assert "Bottlenecks" in doc and demo.bottlenecks(top=1)["name"].iloc[0] in doc
-    assert doc.count("<img src=\"data:image/png;base64,") >= 4  # matplotlib is a dev extra
+    assert doc.count("<img src=\"data:image/png;base64,") == 9  # matplotlib is a dev extra
+    for caption in ("Consumption level against its floor", "Targets: reached against required",
+                    "Utilisation of capacity by sector and year",
+                    "Shadow prices in base-year money"):
+        assert f"<figcaption>{caption}</figcaption>" in doc
+    assert "Could not draw" not in doc
     assert "met</td>" in doc
     assert "http" not in without_data(doc)  # nothing fetched from the network
     assert "<script" not in doc
@@ -159,6 +164,8 @@ def test_impossible_plan_report(impossible, tmp_path):
             f"{row['achievable']:,.2f} can be reached: short by {row['shortfall']:,.2f}") in doc
     assert "missed</td>" in doc
     assert html.escape(CAUTION) in doc
+    assert doc.count("<img src=\"data:image/png;base64,") == 2  # targets and shortfalls
+    assert "<figcaption>Shortfalls of the impossible plan</figcaption>" in doc
 
 
 def test_user_strings_are_escaped():
