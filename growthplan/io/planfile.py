@@ -46,7 +46,7 @@ from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 
 from .._validation import Model, Rule
 from ..economy import Economy, Sector
-from ..errors import InvalidInput, invalid, show
+from ..errors import InvalidInput, invalid, show, suggest
 from ..plan import Plan
 from ._files import read_regular_file
 from .atomic import atomic_files
@@ -146,7 +146,8 @@ class SolveOptions(Model):
     Parameters
     ----------
     method : str, default "auto"
-        HiGHS method (``auto``, ``simplex``, ``ipm``, ``ipm-crossover``, ``pdlp``).
+        HiGHS method: ``auto`` (chosen by the plan's size) or one of
+        :data:`growthplan.backends.highs.METHODS`.
     time_limit : float, optional
         Seconds for the solver, > 0.
     threads : int, optional
@@ -159,6 +160,16 @@ class SolveOptions(Model):
     time_limit: float | None = Field(default=None, gt=0)
     threads: int | None = Field(default=None, ge=1)
     tolerance: float | None = Field(default=None, gt=0, lt=1)
+
+    @field_validator("method")
+    @classmethod
+    def _method(cls, v: str) -> str:
+        from ..backends.highs import METHODS
+
+        if v != "auto" and v not in METHODS:
+            raise Rule(f"be 'auto' or one of {', '.join(METHODS)}", v,
+                       hint=suggest(v, ["auto", *METHODS], sentence=True))
+        return v
 
 
 class PlanFile(Model):
@@ -194,7 +205,36 @@ def plan_file_schema() -> dict[str, Any]:
     defs.update(plan_schema.pop("$defs", {}))
     defs["PlanSection"] = plan_schema
     schema["properties"]["plan"] = {"$ref": "#/$defs/PlanSection"}
+    _as_loaded(plan_schema["properties"], defs)
+    from .. import objectives
+    from .. import plan as plan_module
+    from ._schema import describe
+
+    classes: dict[str, type] = {name: c for module in (plan_module, objectives)
+                                for name, c in vars(module).items()
+                                if isinstance(c, type) and issubclass(c, Model)}
+    classes.update({"": PlanFile, "PlanSection": Plan, "EconomyTables": EconomyTables,
+                    "SolveOptions": SolveOptions})
+    describe(schema, classes)
+    plan_schema["properties"]["years"]["description"] = (
+        "Consecutive calendar years of the plan: a list, or first and last.")
     return schema
+
+
+def _as_loaded(plan: dict[str, Any], defs: dict[str, Any]) -> None:
+    """The plan section's schema as the loader reads it: ``years`` as a list or as
+    first and last, one labour supply as a mapping or several as a list."""
+    year = {"type": "integer"}
+    plan["years"] = {"anyOf": [
+        {"type": "array", "items": year, "minItems": 1},
+        {"type": "object", "additionalProperties": False, "required": ["first", "last"],
+         "properties": {"first": {**year, "description": "The first plan year."},
+                        "last": {**year, "description": "The last plan year."}}}]}
+    supply = {"$ref": "#/$defs/LabourSupply"}
+    plan["labour"] = {"anyOf": [supply, {"type": "array", "items": supply}]}
+    from ..backends.highs import METHODS
+
+    defs["SolveOptions"]["properties"]["method"]["enum"] = ["auto", *METHODS]
 
 
 class _Refused(Exception):
@@ -367,8 +407,10 @@ def _located(exc: InvalidInput, path: Path, node: Node | None,
     parts = prefix + [p for p in field.split(".") if p]
     line = _line_of(node, parts)
     where = f"{path}" + (f", line {line}" if line else "")
-    return InvalidInput(f"{where}: {'.'.join(prefix) + '.' if prefix else ''}{exc}",
-                        field=".".join(parts))
+    head, *items = str(exc).split("\n  ")  # several problems: each item gets the prefix
+    lead = ".".join(prefix) + "." if prefix else ""
+    text = f"{head}\n  " + "\n  ".join(lead + i for i in items) if items else lead + head
+    return InvalidInput(f"{where}: {text}", field=".".join(parts))
 
 
 def _whole(value: Any) -> bool:
