@@ -223,7 +223,8 @@ def plan_file_schema() -> dict[str, Any]:
 
 def _as_loaded(plan: dict[str, Any], defs: dict[str, Any]) -> None:
     """The plan section's schema as the loader reads it: ``years`` as a list or as
-    first and last, one labour supply as a mapping or several as a list."""
+    first and last, one labour supply as a mapping or several as a list, the
+    methods HiGHS takes, an objective's kind always given."""
     year = {"type": "integer"}
     plan["years"] = {"anyOf": [
         {"type": "array", "items": year, "minItems": 1},
@@ -235,6 +236,9 @@ def _as_loaded(plan: dict[str, Any], defs: dict[str, Any]) -> None:
     from ..backends.highs import METHODS
 
     defs["SolveOptions"]["properties"]["method"]["enum"] = ["auto", *METHODS]
+    for definition in defs.values():  # an objective's kind picks it: never implied
+        if "const" in definition.get("properties", {}).get("kind", {}):
+            definition["required"] = ["kind", *definition.get("required", [])]
 
 
 class _Refused(Exception):
@@ -576,6 +580,57 @@ def _plain(value: Any) -> Any:
     return value
 
 
+def _is_default(value: Any, info: Any) -> bool:
+    """Whether a field holds its default (then a plan file leaves it out)."""
+    from pydantic_core import PydanticUndefined
+
+    if info.default_factory is not None:
+        default = info.default_factory()
+    elif info.default is PydanticUndefined:
+        return False
+    else:
+        default = info.default
+    try:
+        return bool(type(value) is type(default) and value == default) or (
+            value is None and default is None)
+    except (TypeError, ValueError):  # arrays and frames: never a default
+        return False
+
+
+def _compact(value: Any) -> Any:
+    """A model as a plan file writes it: defaults left out, the kind of an objective kept."""
+    from pydantic import BaseModel
+
+    from ..objectives import Objective
+
+    if isinstance(value, BaseModel):
+        out = {}
+        for name, info in type(value).model_fields.items():
+            v = getattr(value, name)
+            keep = name == "kind" and isinstance(value, Objective)  # the tag is never implied
+            if keep or not _is_default(v, info):
+                out[name] = _compact(v)
+        return out
+    if isinstance(value, list | tuple):
+        return [_compact(v) for v in value]
+    if isinstance(value, dict):
+        return {k: _compact(v) for k, v in value.items()}
+    return _plain(value)
+
+
+def _plan_section(plan: Plan) -> dict[str, Any]:
+    """The ``plan`` section: defaults left out, years as first and last, one labour
+    supply as a mapping."""
+    fields = {k: v for k, v in _compact(plan).items()
+              if k != "economy" and v not in (None, [], {})}
+    years = list(plan.years)
+    if years == list(range(years[0], years[-1] + 1)):
+        fields["years"] = {"first": years[0], "last": years[-1]}
+    if len(fields.get("labour", [])) == 1:
+        fields["labour"] = fields["labour"][0]
+    return fields
+
+
 def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool = False,
                    solve: SolveOptions | None = None) -> Path:
     """Write ``plan`` as a YAML plan file with its coefficient tables beside it.
@@ -597,6 +652,12 @@ def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool 
     solve : SolveOptions, optional
         Solver settings stored in the file's ``solve`` section (method, time
         limit, threads, tolerance); default the library's defaults.
+
+    Notes
+    -----
+    The file is written compactly: fields that hold their defaults are left
+    out, ``years`` is written as ``{first, last}`` and one labour supply as a
+    mapping, as a person would write them.
 
     Returns
     -------
@@ -624,10 +685,10 @@ def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool 
         economy["prices"] = {sec.name: sec.price for sec in econ.sectors}
     if econ.base_output is not None:
         economy["base_output"] = dict(zip(econ.names, econ.base_output.tolist(), strict=True))
-    fields = plan.model_dump(exclude={"economy"}, mode="python")
-    fields = _plain({k: v for k, v in fields.items() if v not in (None, [], {})})
-    doc = {"economy": economy, "plan": fields,
-           "solve": (solve or SolveOptions()).model_dump(exclude_none=True)}
+    doc = {"economy": economy, "plan": _plan_section(plan)}
+    settings = _compact(solve or SolveOptions())
+    if settings:
+        doc["solve"] = settings
     targets = [path, *(path.parent / name for name, _ in frames.values())]
     with atomic_files(targets, overwrite=overwrite) as (plan_tmp, *table_tmps):
         for (key, (_, frame)), tmp in zip(frames.items(), table_tmps, strict=True):
