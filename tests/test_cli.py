@@ -191,6 +191,8 @@ def test_a_report_without_matplotlib_is_written_without_charts(folder, no_matplo
     res = run("solve", folder / "plan.yaml", "--no-progress", "--report", folder / "p.html")
     assert res.exit_code == 0, res.output
     assert "growthplan[plot]" in (folder / "p.html").read_text(encoding="utf-8")
+    steps = res.stdout.split("Next:")[1]  # the charts it suggests name the extra
+    assert '--charts FOLDER (charts as PNG; needs pip install "growthplan[plot]")' in steps
 
 
 def test_time_limit_zero_is_refused(installed):

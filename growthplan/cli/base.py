@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import contextlib
 import gc
+import importlib.util
 import os
 import shutil
 import signal
@@ -236,6 +237,13 @@ _SUFFIXES = {"--excel": (".xlsx",), "--report": (".html", ".htm")}
 PLOT_EXTRA = 'pip install "growthplan[plot]"'
 
 
+def _has_matplotlib() -> bool:
+    try:
+        return importlib.util.find_spec("matplotlib") is not None
+    except (ImportError, ValueError):
+        return False
+
+
 def _plot_extra(option: str) -> None:
     """Refuse ``option`` in one line when matplotlib (the ``plot`` extra) is missing."""
     try:
@@ -448,7 +456,8 @@ def _next_steps(out: Path | None, excel: Path | None, report: Path | None,
     steps = [(out, "--out FOLDER", "every schedule as CSV"),
              (excel, "--excel FILE.xlsx", "a workbook"),
              (report, "--report FILE.html", "a report for readers"),
-             (charts, "--charts FOLDER", "charts as PNG")]
+             (charts, "--charts FOLDER", "charts as PNG" + (
+                 "" if _has_matplotlib() else f"; needs {PLOT_EXTRA}"))]
     left = [f"{flag} ({what})" for given, flag, what in steps if given is None]
     if left:
         click.echo(f"\nNext: {'; '.join(left)}.")
