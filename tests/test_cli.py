@@ -340,3 +340,20 @@ def test_solve_prints_key_schedules_and_next_steps(installed):
     steps = res.stdout.split("Next:")[1]
     assert "--excel" in steps and "--report" in steps and "--charts" in steps
     assert "--out" not in steps  # it was used
+
+
+def test_chart_folder_with_the_users_file_refused_before_solving(folder, monkeypatch):
+    monkeypatch.chdir(folder)
+    first = run("solve", "plan.yaml", "--no-progress", "--charts", "charts")
+    assert first.exit_code == 0, first.output
+    again = run("solve", "plan.yaml", "--no-progress", "--charts", "charts", "--overwrite")
+    assert again.exit_code == 0, again.output  # the library's own charts are replaced
+    (folder / "charts" / ".growthplan-manifest").unlink()  # now none are known as ours
+
+    def no_solve(*args, **kwargs):
+        raise AssertionError("solved before the outputs were checked")
+
+    monkeypatch.setattr(gp.Plan, "solve", no_solve)
+    res = run("solve", "plan.yaml", "--no-progress", "--charts", "charts", "--overwrite")
+    one_line(res.exit_code, res.stderr, 2, "--charts must not hold files growthplan did not "
+             "write", "output.png")

@@ -222,6 +222,8 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
             # what the chart writer would refuse after the solve, refused before it
             raise invalid(opt, "not exist yet or be empty (pass --overwrite to replace the "
                           "charts growthplan wrote there)", str(p))
+        if opt == "--charts" and p.is_dir() and overwrite:
+            _charts_replaceable(p)
         if opt == "--charts":
             _plot_extra(opt)
         parent = full.parent
@@ -234,6 +236,20 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
 
 
 _SUFFIXES = {"--excel": (".xlsx",), "--report": (".html", ".htm")}
+_CHART_NAMES = ("output", "capacity", "starts", "labour", "shadow_prices", "ray_distance")
+
+
+def _charts_replaceable(folder: Path) -> None:
+    """Refuse before the solve a chart folder the chart writer would refuse after it:
+    one holding a file under a chart's name that growthplan did not write there."""
+    from ..io.atomic import _read_manifest
+
+    ours = {name for names in _read_manifest(folder).values() for name in names}
+    for name in _CHART_NAMES:
+        if (folder / f"{name}.png").exists() and f"{name}.png" not in ours:
+            raise invalid("--charts", "not hold files growthplan did not write under the "
+                          "names it writes (move them, or choose another folder)",
+                          str(folder / f"{name}.png"))
 PLOT_EXTRA = 'pip install "growthplan[plot]"'
 
 
