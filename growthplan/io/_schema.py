@@ -15,38 +15,9 @@ from typing import Any
 
 __all__ = ["describe", "field_docs"]
 
-# Fields documented nowhere else: the plan file's own sections and the
-# objectives' shared fields.
+# Fields the models' docstrings leave out (the objectives' shared fields and
+# the composite objectives' parts); a model's own ``Parameters`` come first.
 _EXTRA = {
-    "PlanFile": {
-        "economy": "Where the economy's tables are (paths relative to the plan file), "
-                   "its baskets, units and prices.",
-        "plan": "The plan: years, labour, consumption, targets, terminal condition, "
-                "objective.",
-        "solve": "Solver settings (method, time limit, threads, tolerance).",
-    },
-    "EconomyTables": {
-        "flows": "Transactions table (CSV or Excel): flows, gross_output row, labour rows "
-                 "and final-demand columns.",
-        "input_coefficients": "Input coefficients table, commodities × sectors (instead of "
-                              "flows).",
-        "labour_coefficients": "Labour coefficients table, labour kinds × sectors (with "
-                               "input_coefficients).",
-        "capital": "Capital table, one row per sector: initial capacity, service life, "
-                   "retirement, lead time, spending profile, utilisation.",
-        "capital_stocks": "Capital stocks table, commodities × sectors, divided by capacity "
-                          "into the capital coefficients.",
-        "capital_coefficients": "Capital coefficients table, commodities × sectors (capital "
-                                "goods per unit of new capacity).",
-        "consumption_basket": "Commodities per unit of the consumption level, by sector.",
-        "wage_basket": "Commodities per unit of labour, by sector.",
-        "value_unit": "The unit values are measured in (e.g. million arvens at 2026 prices).",
-        "labour_units": "The unit of each labour kind, in the order of the labour rows.",
-        "units": "Physical unit of each sector's output, by sector.",
-        "prices": "Base-year price of one unit of each sector's output, by sector "
-                  "(default 1: tables in money).",
-        "base_output": "Base-year gross output of every sector.",
-    },
     "Consumption": {
         "population_growth": "Yearly growth rate of a population given as a number.",
     },

@@ -73,6 +73,40 @@ class EconomyTables(Model):
     Either ``flows`` (a transactions table) or ``input_coefficients`` (with
     ``labour_coefficients`` and ``capital_coefficients`` as coefficient
     tables) describes the technology.
+
+    Parameters
+    ----------
+    flows : str, optional
+        Transactions table (CSV or Excel): flows, a gross_output row, labour
+        rows and final-demand columns.
+    input_coefficients : str, optional
+        Input coefficients table, commodities × sectors (instead of flows).
+    labour_coefficients : str, optional
+        Labour coefficients table, labour kinds × sectors (with input_coefficients).
+    capital : str, optional
+        Capital table, one row per sector: initial capacity, service life,
+        retirement, lead time, spending profile, utilisation.
+    capital_stocks : str, optional
+        Capital stocks table, commodities × sectors, divided by capacity into
+        the capital coefficients.
+    capital_coefficients : str, optional
+        Capital coefficients table, commodities × sectors (capital goods per
+        unit of new capacity).
+    consumption_basket : dict of str to float, optional
+        Commodities per unit of the consumption level, by sector.
+    wage_basket : dict of str to float, optional
+        Commodities per unit of labour, by sector.
+    value_unit : str, optional
+        The unit values are measured in (e.g. million arvens at 2026 prices).
+    labour_units : list of str, optional
+        The unit of each labour kind, in the order of the labour rows.
+    units : dict of str to str, optional
+        Physical unit of each sector's output, by sector.
+    prices : dict of str to float, optional
+        Base-year price of one unit of each sector's output, by sector
+        (default 1: tables in money).
+    base_output : dict of str to float, optional
+        Base-year gross output of every sector.
     """
 
     @model_validator(mode="after")
@@ -173,7 +207,19 @@ class SolveOptions(Model):
 
 
 class PlanFile(Model):
-    """The whole plan file: economy tables, the plan, solver settings."""
+    """The whole plan file: economy tables, the plan, solver settings.
+
+    Parameters
+    ----------
+    economy : EconomyTables
+        Where the economy's tables are (paths relative to the plan file), its
+        baskets, units and prices.
+    plan : dict
+        The plan: years, labour, consumption, targets, terminal condition,
+        objective (the fields of :class:`~growthplan.Plan` but its economy).
+    solve : SolveOptions, optional
+        Solver settings (method, time limit, threads, tolerance).
+    """
 
     economy: EconomyTables
     plan: dict[str, Any]
