@@ -72,6 +72,7 @@ def bad(tmp_path_factory):
     variant_file("text_number.yaml", lambda x: x["plan"]["labour"].update(start="12,5"))
     variant_file("bool_years.yaml", lambda x: x["plan"].update(years={"first": True,
                                                                        "last": 2030}))
+    variant_file("outside.yaml", lambda x: x["economy"].update(flows="../flows.csv"))
     variant_file("misspelt.yaml", lambda x: x["plan"].update(labor=x["plan"].pop("labour")))
     variant_file("bad_kind.yaml", lambda x: x["plan"].update(objective={"kind": "most"}))
     variant_file("bad_method.yaml", lambda x: x["solve"].update(method="simplx"))
@@ -125,6 +126,8 @@ PLAN_FILES = [
     ("huge.yaml", "labour"),
     ("text_number.yaml", "labour"),
     ("bool_years.yaml", "years"),
+    ("outside.yaml", "economy.flows must name a table in the plan file's folder or below "
+                     "it. Got '../flows.csv'."),
     ("misspelt.yaml", "plan.labor must be a known field (did you mean 'labour'?)"),
     ("bad_kind.yaml", "plan.objective.kind must be one of 'terminal_capacity'"),
     ("bad_method.yaml", "Did you mean 'simplex'?"),

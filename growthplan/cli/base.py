@@ -144,9 +144,13 @@ def _drop_frames(exc: BaseException | None) -> None:
         exc = exc.__cause__ or exc.__context__
 
 
+_PYTHON_ONLY = " (load_plan_file(..., allow_outside=True) reads others)"
+
+
 def _flags(message: str) -> str:
-    """A library message in the command line's words: ``--overwrite``, not the keyword."""
-    return message.replace("overwrite=True", "--overwrite")
+    """A library message in the command line's words: ``--overwrite``, not the keyword,
+    and no advice that only the Python interface can follow."""
+    return message.replace(_PYTHON_ONLY, "").replace("overwrite=True", "--overwrite")
 
 
 @contextlib.contextmanager
