@@ -7,6 +7,8 @@ Every error the library raises for bad input or an impossible plan is a
 
 from __future__ import annotations
 
+import difflib
+from collections.abc import Iterable
 from typing import Any
 
 import numpy as np
@@ -25,6 +27,7 @@ __all__ = [
     "TinyCoefficientsWarning",
     "invalid",
     "show",
+    "suggest",
 ]
 
 
@@ -139,3 +142,26 @@ def invalid(field: str, rule: str, value: Any, *, hint: str = "") -> InvalidInpu
     if hint:
         message += f" {hint}"
     return InvalidInput(message, field=field)
+
+
+def suggest(word: Any, choices: Iterable[Any], *, sentence: bool = False) -> str:
+    """``did you mean 'labour'?`` for a misspelt name, or ``""`` when nothing is close.
+
+    Parameters
+    ----------
+    word : Any
+        The name given.
+    choices : iterable
+        The names it may have meant.
+    sentence : bool, default False
+        Start with a capital, to follow a message as a sentence of its own.
+
+    Examples
+    --------
+    >>> suggest("labor", ["years", "labour", "consumption"])
+    "did you mean 'labour'?"
+    """
+    close = difflib.get_close_matches(str(word), [str(c) for c in choices], n=1, cutoff=0.6)
+    if not close:
+        return ""
+    return f"{'Did' if sentence else 'did'} you mean {close[0]!r}?"

@@ -57,7 +57,8 @@ class _Distribution(Model):
 class Normal(_Distribution):
     """Normal distribution truncated at zero (``mean``, ``sd`` of the untruncated one)."""
 
-    kind: Literal["normal"] = "normal"
+    kind: Literal["normal"] = Field(default="normal",
+                                 description="The distribution: normal truncated at zero.")
     mean: float = Field(allow_inf_nan=False, description="Mean of the untruncated normal.")
     sd: float = Field(ge=0, allow_inf_nan=False,
                       description="Standard deviation of the untruncated normal, >= 0.")
@@ -79,7 +80,8 @@ class Normal(_Distribution):
 class LogNormal(_Distribution):
     """Lognormal distribution given by its own ``mean`` and ``sd`` (not those of the log)."""
 
-    kind: Literal["lognormal"] = "lognormal"
+    kind: Literal["lognormal"] = Field(default="lognormal",
+                                 description="The distribution: lognormal.")
     mean: float = Field(gt=0, allow_inf_nan=False,
                         description="Mean of the drawn values (not of their log), > 0.")
     sd: float = Field(ge=0, allow_inf_nan=False,
@@ -96,7 +98,8 @@ class LogNormal(_Distribution):
 class Uniform(_Distribution):
     """Uniform distribution on ``[low, high]``."""
 
-    kind: Literal["uniform"] = "uniform"
+    kind: Literal["uniform"] = Field(default="uniform",
+                                 description="The distribution: uniform.")
     low: float = Field(allow_inf_nan=False, description="Smallest value.")
     high: float = Field(allow_inf_nan=False, description="Largest value, >= low.")
 
@@ -115,7 +118,8 @@ class Uniform(_Distribution):
 class Triangular(_Distribution):
     """Triangular distribution on ``[low, high]`` with its peak at ``mode``."""
 
-    kind: Literal["triangular"] = "triangular"
+    kind: Literal["triangular"] = Field(default="triangular",
+                                 description="The distribution: triangular.")
     low: float = Field(allow_inf_nan=False, description="Smallest value.")
     mode: float = Field(allow_inf_nan=False, description="Most likely value.")
     high: float = Field(allow_inf_nan=False, description="Largest value.")
@@ -141,7 +145,8 @@ class Triangular(_Distribution):
 class Empirical(_Distribution):
     """An empirical sample: each draw is one of its values, each equally likely."""
 
-    kind: Literal["empirical"] = "empirical"
+    kind: Literal["empirical"] = Field(default="empirical",
+                                 description="The distribution: an empirical sample.")
     sample: list[float] = Field(description="The observed values, each drawn with equal "
                                             "probability.")
 

@@ -72,6 +72,12 @@ def bad(tmp_path_factory):
     variant_file("text_number.yaml", lambda x: x["plan"]["labour"].update(start="12,5"))
     variant_file("bool_years.yaml", lambda x: x["plan"].update(years={"first": True,
                                                                        "last": 2030}))
+    variant_file("outside.yaml", lambda x: x["economy"].update(flows="../flows.csv"))
+    variant_file("misspelt.yaml", lambda x: x["plan"].update(labor=x["plan"].pop("labour")))
+    variant_file("bad_kind.yaml", lambda x: x["plan"].update(objective={"kind": "most"}))
+    variant_file("bad_method.yaml", lambda x: x["solve"].update(method="simplx"))
+    (d / "charts_in_use").mkdir()
+    (d / "charts_in_use" / "holiday.png").write_text("the user's")
     return d
 
 
@@ -120,6 +126,11 @@ PLAN_FILES = [
     ("huge.yaml", "labour"),
     ("text_number.yaml", "labour"),
     ("bool_years.yaml", "years"),
+    ("outside.yaml", "economy.flows must name a table in the plan file's folder or below "
+                     "it. Got '../flows.csv'."),
+    ("misspelt.yaml", "plan.labor must be a known field (did you mean 'labour'?)"),
+    ("bad_kind.yaml", "plan.objective.kind must be one of 'terminal_capacity'"),
+    ("bad_method.yaml", "Did you mean 'simplex'?"),
 ]
 
 
@@ -151,6 +162,12 @@ STEADY = [
      "existing file"),
     (["flows.csv", "--capital-stocks", "capital_stocks.csv"], "capital"),
     (["flows.csv", "--capital", "flows.csv"], "capital"),
+    (["flows.csv", "--capital", "capital.csv"], "--capital must come with --capital-stocks"),
+    (["flows.csv", "--capital-coefficients", "capital_stocks.csv"], "--capital must be given"),
+    (["flows.csv", "--capital", "capital.csv", "--capital-stocks", "capital_stocks.csv",
+      "--capital-coefficients", "capital_stocks.csv"], "not come with --capital-coefficients"),
+    (["flows.csv", "--capital", "capital.csv", "--capital-coefficients", "adir"],
+     "not a folder"),
 ]
 
 
@@ -185,6 +202,13 @@ OPTIONS = [
     ([*SOLVE, "--charts", "a file", "--overwrite"], "--charts must name a folder"),
     ([*SOLVE, "--out", "x", "--excel", "x"], "--excel must differ from --out"),
     ([*SOLVE, "--out", "x", "--charts", "./x"], "--charts must differ from --out"),
+    ([*SOLVE, "--excel", "out.csv"], "--excel must end in .xlsx"),
+    ([*SOLVE, "--excel", "out.XLS"], "--excel must end in .xlsx"),
+    ([*SOLVE, "--report", "x.pdf"], "--report must end in .html or .htm"),
+    ([*SOLVE, "--charts", "charts_in_use"], "--charts must not exist yet or be empty (pass "
+                                            "--overwrite"),
+    ([*SOLVE, "--method", "ipm_crossover"], "not one of 'auto', 'simplex'"),
+    (["demo", "--no-progress", "--excel", "x.csv"], "--excel must end in .xlsx"),
     (["demo", "--no-progress", "--out", "adir"], "--out must not exist yet"),
     (["demo", "--bogus"], "No such option"),
     (["check", "plan.yaml", "--out", "x"], "No such option"),

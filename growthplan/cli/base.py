@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import contextlib
 import gc
+import importlib.util
 import os
 import shutil
 import signal
@@ -82,7 +83,7 @@ def _report_failure(exc: BaseException) -> int:
         _say("interrupted")
         return EXIT_SOLVER
     if isinstance(exc, GrowthplanError):
-        _say(f"error: {exc}")
+        _say(f"error: {_flags(str(exc))}")
         return EXIT_INVALID if isinstance(exc, ValueError) else EXIT_SOLVER
     if isinstance(exc, BrokenPipeError):  # the reader of stdout went away (| head)
         with contextlib.suppress(OSError, ValueError):
@@ -143,12 +144,30 @@ def _drop_frames(exc: BaseException | None) -> None:
         exc = exc.__cause__ or exc.__context__
 
 
+_PYTHON_ONLY = " (load_plan_file(..., allow_outside=True) reads others)"
+
+
+def _flags(message: str) -> str:
+    """A library message in the command line's words: ``--overwrite``, not the keyword,
+    and no advice that only the Python interface can follow."""
+    return message.replace(_PYTHON_ONLY, "").replace("overwrite=True", "--overwrite")
+
+
 @contextlib.contextmanager
-def _writing(path: Path) -> Iterator[None]:
-    """Turn an operating-system failure while writing into exit 2, naming the path."""
+def _writing(path: Path, option: str = "") -> Iterator[None]:
+    """Turn an operating-system failure while writing into exit 2, naming the path;
+    a library refusal is worded for the command line (its option, ``--overwrite``)."""
     message = None
     try:
         yield
+    except GrowthplanError as exc:
+        if not isinstance(exc, ValueError):
+            raise
+        text = _flags(str(exc))
+        for word in ("folder", "path"):  # the library's parameter names the option here
+            if option and text.startswith(f"{word} must"):
+                text = option + text[len(word):]
+        raise Failure(text, EXIT_INVALID) from None
     except OSError as exc:
         message = f"cannot write {_culprit(exc, path)}: {exc.strerror or exc}"
         _drop_frames(exc)  # let the half-written files' objects go now
@@ -199,12 +218,18 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
             raise invalid(opt, "not be the plan file", str(p))
         if opt in ("--excel", "--report") and p.is_dir():
             raise invalid(opt, "name a file (it is a folder)", str(p))
+        if opt in _SUFFIXES and p.suffix.lower() not in _SUFFIXES[opt]:
+            raise invalid(opt, f"end in {' or '.join(_SUFFIXES[opt])}", str(p))
         if opt == "--charts" and p.exists() and not p.is_dir():
             raise invalid(opt, "name a folder (it is a file)", str(p))
-        if opt == "--charts" and p.is_dir() and not overwrite and any(
-                (p / f"{name}.png").exists() for name in _CHART_NAMES):
-            raise invalid(opt, "not hold charts yet (pass --overwrite to replace them)",
-                          str(p))
+        if opt == "--charts" and p.is_dir() and not overwrite and any(p.iterdir()):
+            # what the chart writer would refuse after the solve, refused before it
+            raise invalid(opt, "not exist yet or be empty (pass --overwrite to replace the "
+                          "charts growthplan wrote there)", str(p))
+        if opt == "--charts" and p.is_dir() and overwrite:
+            _charts_replaceable(p)
+        if opt == "--charts":
+            _plot_extra(opt)
         parent = full.parent
         while not parent.exists() and parent != parent.parent:
             parent = parent.parent
@@ -214,13 +239,57 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
             raise invalid(opt, "lie in a writable folder", str(p))
 
 
+_SUFFIXES = {"--excel": (".xlsx",), "--report": (".html", ".htm")}
 _CHART_NAMES = ("output", "capacity", "starts", "labour", "shadow_prices", "ray_distance",
                 "consumption", "targets", "utilisation", "diagnosis")
+
+
+def _charts_replaceable(folder: Path) -> None:
+    """Refuse before the solve a chart folder the chart writer would refuse after it:
+    one holding a file under a chart's name that growthplan did not write there."""
+    from ..io.atomic import _read_manifest
+
+    ours = {name for names in _read_manifest(folder).values() for name in names}
+    for name in _CHART_NAMES:
+        if (folder / f"{name}.png").exists() and f"{name}.png" not in ours:
+            raise invalid("--charts", "not hold files growthplan did not write under the "
+                          "names it writes (move them, or choose another folder)",
+                          str(folder / f"{name}.png"))
+PLOT_EXTRA = 'pip install "growthplan[plot]"'
+
+
+def _has_matplotlib() -> bool:
+    try:
+        return importlib.util.find_spec("matplotlib") is not None
+    except (ImportError, ValueError):
+        return False
+
+
+def _plot_extra(option: str) -> None:
+    """Refuse ``option`` in one line when matplotlib (the ``plot`` extra) is missing."""
+    try:
+        import matplotlib  # noqa: F401 - only whether it imports
+    except ImportError:
+        raise Failure(f"{option} needs matplotlib, which is not installed: {PLOT_EXTRA}",
+                      EXIT_INVALID) from None
 
 
 def _finite(value: float | None) -> float | None:
     if value is not None and not np.isfinite(value):  # NaN passes every range check
         raise click.BadParameter(f"{value} is not a number of seconds")
+    return value
+
+
+MAX_SECONDS = 1e9
+
+
+def _seconds(ctx: click.Context, param: click.Parameter, value: float | None) -> float | None:
+    """A time limit: a finite number of seconds above 0 (0 would stop before starting)."""
+    if value is None:
+        return None
+    if not (np.isfinite(value) and 0 < value <= MAX_SECONDS):
+        raise click.BadParameter(f"must be more than 0 and at most {MAX_SECONDS:g} seconds "
+                                 f"(leave it out for no limit). Got {value:g}.")
     return value
 
 
@@ -354,29 +423,63 @@ def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Pa
         click.echo("\nShortfalls (elastic re-solve):")
         click.echo(result.diagnosis.shortfalls.to_string(index=False))
     if report is not None:  # an impossible plan's report holds its diagnosis
-        with _writing(report):
+        with _writing(report, "--report"):
             click.echo(f"wrote {result.report(report, overwrite=overwrite, protect=protect)}")
     if not result.ok and result.diagnosis is None:
         return  # a stopped or unverified solve: nothing to hand on
     # an impossible plan's folder and workbook hold its diagnosis
     if out is not None:
-        with _writing(out):
+        with _writing(out, "--out"):
             click.echo(f"wrote {result.to_csv(out, overwrite=overwrite, protect=protect)}")
     if excel is not None:
-        with _writing(excel):
+        with _writing(excel, "--excel"):
             click.echo(f"wrote {result.to_excel(excel, overwrite=overwrite, protect=protect)}")
-    if not result.ok:
-        return
-    if charts is not None:
+    if charts is not None:  # an impossible plan's charts show its targets and shortfalls
         import matplotlib
 
         matplotlib.use("Agg")
         from ..plot import save_charts
 
-        with _writing(charts), _fresh_folder(charts, overwrite) as folder:
+        with _writing(charts, "--charts"), _fresh_folder(charts, overwrite) as folder:
             written = save_charts(result, folder, overwrite=overwrite, protect=protect)
         for p in written:
             click.echo(f"wrote {charts / p.name}")
+
+
+def _plural(n: int, word: str, many: str | None = None) -> str:
+    """``1 target``, ``2 targets``: a count with its noun in the right number."""
+    return f"{n} {word if n == 1 else (many or word + 's')}"
+
+
+def _key_schedules(result: PlanResult) -> None:
+    """Output by sector in the first, middle and last plan year, and what binds first."""
+    if not result.ok:
+        return
+    output = result.output
+    rows = sorted({0, (len(output) - 1) // 2, len(output) - 1})
+    which = {1: "the plan year", 2: "the first and last plan year",
+             3: "the first, middle and last plan year"}[len(rows)]
+    click.echo(f"\nOutput by sector in {which}:")
+    click.echo(output.iloc[rows].T.round(0).to_string())
+    first = output.index[0]
+    b = result.bottlenecks(top=5)
+    b = b[b.year == first]
+    if not b.empty:
+        click.echo(f"\nWhat binds first (value of one more unit, {first}):")
+        click.echo(b.to_string(index=False))
+
+
+def _next_steps(out: Path | None, excel: Path | None, report: Path | None,
+                charts: Path | None) -> None:
+    """The exports this run did not write, as the options that write them."""
+    steps = [(out, "--out FOLDER", "every schedule as CSV"),
+             (excel, "--excel FILE.xlsx", "a workbook"),
+             (report, "--report FILE.html", "a report for readers"),
+             (charts, "--charts FOLDER", "charts as PNG" + (
+                 "" if _has_matplotlib() else f"; needs {PLOT_EXTRA}"))]
+    left = [f"{flag} ({what})" for given, flag, what in steps if given is None]
+    if left:
+        click.echo(f"\nNext: {'; '.join(left)}.")
 
 
 def _show_warning(message: Warning | str, category: type[Warning], filename: str, lineno: int,

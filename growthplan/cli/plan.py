@@ -5,32 +5,72 @@ from __future__ import annotations
 import importlib.util
 import json
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import click
 import numpy as np
 
-from ..errors import invalid
+from ..backends.highs import METHODS
+from ..errors import InvalidInput, invalid
 from .base import (
     _charts,
     _check_outputs,
     _excel,
     _exit,
     _exit_code,
-    _finite,
     _input_file,
+    _key_schedules,
+    _next_steps,
     _out,
     _overwrite,
+    _plural,
     _reading,
     _report,
     _report_opt,
+    _seconds,
     _solve,
     _writing,
     main,
 )
 
+if TYPE_CHECKING:
+    from ..io.planfile import SolveOptions
+    from ..plan import Plan
 
-@main.command(help="Solve a plan file (YAML or TOML) and print a summary.")
+
+def _method_help() -> str:
+    return "HiGHS method: " + ", ".join(("auto", *METHODS)) + " (default: the plan file's)."
+
+
+def _solver_options(opts: SolveOptions, method: str | None,
+                    time_limit: float | None) -> dict[str, Any]:
+    """The solve's settings, refused here as the solve would refuse them."""
+    from ..backends.highs import HighsBackend
+
+    chosen: dict[str, Any] = {"method": method or opts.method,
+                              "time_limit": time_limit or opts.time_limit,
+                              "threads": opts.threads, "tolerance": opts.tolerance}
+    try:
+        HighsBackend(chosen["method"], time_limit=chosen["time_limit"],
+                     threads=chosen["threads"], tolerance=chosen["tolerance"])  # no solve
+    except InvalidInput as exc:
+        raise InvalidInput(f"solve.{exc}", field=f"solve.{exc.field}") from None
+    return chosen
+
+
+def _needs_capital(plan: Plan) -> None:
+    """Refuse a plan that maximises capacity when no capacity needs capital goods:
+    the solve would find it unbounded (starts would cost nothing)."""
+    econ = plan.economy
+    if plan.objective.needs_level() and not np.any(econ.capital_coefficients):
+        raise invalid("economy.capital_coefficients", "not be all zero when the objective "
+                      "maximises capacity (capacity would cost nothing and the plan be "
+                      "unbounded); give capital_stocks or capital_coefficients",
+                      "all zero")
+
+
+@main.command(help="Solve a plan file (YAML or TOML) and print a summary, the output by "
+              "sector and what binds.")
 @click.argument("plan_file", type=click.Path(path_type=Path))
 @_out
 @_excel
@@ -39,76 +79,100 @@ from .base import (
 @_overwrite
 @click.option("--progress/--no-progress", default=True, show_default=True,
               help="Show the solver's progress.")
-@click.option("--method", default=None,
-              help="HiGHS method: auto, simplex, ipm, ipm-crossover, pdlp.")
-@click.option("--time-limit", type=click.FloatRange(min=0, min_open=True, max=1e9),
-              default=None, callback=lambda ctx, param, v: _finite(v),
-              help="Seconds for the solver.")
+@click.option("--method", type=click.Choice(["auto", *METHODS]), default=None, metavar="METHOD",
+              help=_method_help())
+@click.option("--time-limit", type=float, default=None, callback=_seconds,
+              help="Seconds for the solver, more than 0 (default: the plan file's, or none).")
 def solve(plan_file: Path, out: Path | None, excel: Path | None, report: Path | None,
           charts: Path | None, overwrite: bool, progress: bool, method: str | None,
           time_limit: float | None) -> None:
     from .. import load_plan_file
-    from ..backends.highs import METHODS
 
-    methods = METHODS  # checked before the slow part starts
-    if method is not None and methods is not None and method != "auto" \
-            and method not in methods:
-        raise invalid("--method", f"be 'auto' or one of {sorted(methods)}", method)
     _check_outputs(out, excel, charts, overwrite, inputs=(plan_file,), report=report)
     with _reading(plan_file):
         plan, opts = load_plan_file(_input_file(plan_file, "plan file"))
-    result = _solve(plan, method=method or opts.method,
-                    time_limit=time_limit or opts.time_limit, threads=opts.threads,
-                    tolerance=opts.tolerance, progress=progress)
+    chosen = _solver_options(opts, method, time_limit)
+    result = _solve(plan, **chosen, progress=progress)
     from ..io.planfile import plan_file_inputs
 
     _report(result, out, excel, charts, overwrite, protect=tuple(plan_file_inputs(plan_file)),
             report=report)
+    _key_schedules(result)
+    if result.ok:
+        _next_steps(out, excel, report, charts)
     _exit(_exit_code(result))
 
 
-@main.command(help="Check a plan file without solving: validation and productiveness.")
+@main.command(help="Check a plan file without solving: the validation and settings the "
+              "solve would refuse, productiveness, the LP's size.")
 @click.argument("plan_file", type=click.Path(path_type=Path))
 def check(plan_file: Path) -> None:
     from .. import load_plan_file
 
     with _reading(plan_file):
-        plan, _ = load_plan_file(_input_file(plan_file, "plan file"))
+        plan, opts = load_plan_file(_input_file(plan_file, "plan file"))
+    chosen = _solver_options(opts, None, None)
+    _needs_capital(plan)
     econ = plan.economy
-    lp = plan.compile()
+    lp = plan.compile()  # the size guard and the build the solve runs first
     click.echo(f"{plan_file}: valid")
-    click.echo(f"  {econ.n} sectors, years {plan.years[0]}–{plan.years[-1]}, "
-               f"{len(plan.targets)} targets, objective {type(plan.objective).__name__}")
+    click.echo(f"  {_plural(econ.n, 'sector')}, years {plan.years[0]}–{plan.years[-1]}, "
+               f"{_plural(len(plan.targets), 'target')}, objective "
+               f"{plan.objective.kind}, method {chosen['method']}")
     click.echo(f"  spectral radius of the input coefficients {econ.spectral_radius():.6f} "
                "(productive)")
-    click.echo(f"  LP: {lp.shape[0]} rows, {lp.shape[1]} columns, {lp.nnz} nonzeros")
+    click.echo(f"  LP: {_plural(lp.shape[0], 'row')}, {_plural(lp.shape[1], 'column')}, "
+               f"{_plural(lp.nnz, 'nonzero')}")
 
 
-@main.command(help="Print the steady-state figures of an economy given as tables.")
+@main.command(help="Print the steady-state figures of an economy given as tables: the "
+              "static balanced growth (inputs only) and, with capital, the dynamic one.")
 @click.argument("flows", type=click.Path(path_type=Path))
 @click.option("--capital", type=click.Path(path_type=Path), default=None,
-              help="Capital table (one row per sector).")
+              help="Capital table (one row per sector); needs --capital-stocks or "
+                   "--capital-coefficients.")
 @click.option("--capital-stocks", type=click.Path(path_type=Path), default=None,
-              help="Capital stocks, commodities × sectors.")
-def steady(flows: Path, capital: Path | None, capital_stocks: Path | None) -> None:
+              help="Capital stocks, commodities × sectors (divided by capacity).")
+@click.option("--capital-coefficients", type=click.Path(path_type=Path), default=None,
+              help="Capital coefficients, commodities × sectors.")
+def steady(flows: Path, capital: Path | None, capital_stocks: Path | None,
+           capital_coefficients: Path | None) -> None:
     from .. import Economy
 
     _input_file(flows, "flows")
-    for what, p in (("--capital", capital), ("--capital-stocks", capital_stocks)):
+    given = (("--capital", capital), ("--capital-stocks", capital_stocks),
+             ("--capital-coefficients", capital_coefficients))
+    for what, p in given:
         if p is not None:
             _input_file(p, what)
+    if capital_stocks is not None and capital_coefficients is not None:
+        raise invalid("--capital-stocks", "not come with --capital-coefficients (give one)",
+                      str(capital_stocks))
+    if (capital_stocks is not None or capital_coefficients is not None) and capital is None:
+        raise invalid("--capital", "be given with --capital-stocks or --capital-coefficients "
+                      "(its lives and lead times turn them into growth)", None)
+    if capital is not None and capital_stocks is None and capital_coefficients is None:
+        raise invalid("--capital", "come with --capital-stocks or --capital-coefficients "
+                      "(the dynamic balanced growth needs capital coefficients)", str(capital))
     with _reading(flows):
-        econ = Economy.from_tables(flows, capital=capital, capital_stocks=capital_stocks)
-    click.echo(f"{econ.n} sectors; spectral radius {econ.spectral_radius():.6f}")
+        econ = Economy.from_tables(flows, capital=capital, capital_stocks=capital_stocks,
+                                   capital_coefficients=capital_coefficients)
+    click.echo(f"{_plural(econ.n, 'sector')}; spectral radius {econ.spectral_radius():.6f}")
     table = econ.output_multipliers().to_frame()
     if econ.labour_coefficients is not None:
         table = table.join(econ.labour_content().T.add_prefix("labour_content_"))
     bg = econ.balanced_growth()
     table["static_balanced"] = bg.proportions
-    click.echo(f"static balanced growth rate {100 * bg.rate:.3f} %")
-    if econ.capital is not None and np.any(econ.capital_coefficients):
+    click.echo(f"static balanced growth rate (current inputs only, ignoring capital) "
+               f"{100 * bg.rate:.3f} %")
+    if capital is not None:
+        if not np.any(econ.capital_coefficients):
+            raise invalid("--capital-stocks" if capital_stocks is not None
+                          else "--capital-coefficients", "hold some capital goods (all are "
+                          "zero, so capacity would cost nothing)", "all zero")
         dyn = econ.dynamic_balanced_growth()
-        click.echo(f"dynamic balanced growth rate with replacement {100 * dyn.rate:.3f} %")
+        click.echo(f"dynamic balanced growth rate (with capital and its replacement) "
+                   f"{100 * dyn.rate:.3f} %")
         table["dynamic_balanced"] = dyn.proportions
     click.echo(table.round(4).to_string())
 

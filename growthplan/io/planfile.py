@@ -57,7 +57,7 @@ from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 
 from .._validation import Model, Rule
 from ..economy import Economy, Sector
-from ..errors import InvalidInput, invalid, show
+from ..errors import InvalidInput, invalid, show, suggest
 from ..plan import Plan
 from ..uncertainty import UncertaintySpec
 from ._files import read_regular_file
@@ -85,6 +85,40 @@ class EconomyTables(Model):
     Either ``flows`` (a transactions table) or ``input_coefficients`` (with
     ``labour_coefficients`` and ``capital_coefficients`` as coefficient
     tables) describes the technology.
+
+    Parameters
+    ----------
+    flows : str, optional
+        Transactions table (CSV or Excel): flows, a gross_output row, labour
+        rows and final-demand columns.
+    input_coefficients : str, optional
+        Input coefficients table, commodities × sectors (instead of flows).
+    labour_coefficients : str, optional
+        Labour coefficients table, labour kinds × sectors (with input_coefficients).
+    capital : str, optional
+        Capital table, one row per sector: initial capacity, service life,
+        retirement, lead time, spending profile, utilisation.
+    capital_stocks : str, optional
+        Capital stocks table, commodities × sectors, divided by capacity into
+        the capital coefficients.
+    capital_coefficients : str, optional
+        Capital coefficients table, commodities × sectors (capital goods per
+        unit of new capacity).
+    consumption_basket : dict of str to float, optional
+        Commodities per unit of the consumption level, by sector.
+    wage_basket : dict of str to float, optional
+        Commodities per unit of labour, by sector.
+    value_unit : str, optional
+        The unit values are measured in (e.g. million arvens at 2026 prices).
+    labour_units : list of str, optional
+        The unit of each labour kind, in the order of the labour rows.
+    units : dict of str to str, optional
+        Physical unit of each sector's output, by sector.
+    prices : dict of str to float, optional
+        Base-year price of one unit of each sector's output, by sector
+        (default 1: tables in money).
+    base_output : dict of str to float, optional
+        Base-year gross output of every sector.
     """
 
     @model_validator(mode="after")
@@ -158,7 +192,8 @@ class SolveOptions(Model):
     Parameters
     ----------
     method : str, default "auto"
-        HiGHS method (``auto``, ``simplex``, ``ipm``, ``ipm-crossover``, ``pdlp``).
+        HiGHS method: ``auto`` (chosen by the plan's size) or one of
+        :data:`growthplan.backends.highs.METHODS`.
     time_limit : float, optional
         Seconds for the solver, > 0.
     threads : int, optional
@@ -172,9 +207,31 @@ class SolveOptions(Model):
     threads: int | None = Field(default=None, ge=1)
     tolerance: float | None = Field(default=None, gt=0, lt=1)
 
+    @field_validator("method")
+    @classmethod
+    def _method(cls, v: str) -> str:
+        from ..backends.highs import METHODS
+
+        if v != "auto" and v not in METHODS:
+            raise Rule(f"be 'auto' or one of {', '.join(METHODS)}", v,
+                       hint=suggest(v, ["auto", *METHODS], sentence=True))
+        return v
+
 
 class PlanFile(Model):
-    """The whole plan file: economy tables, the plan, solver settings."""
+    """The whole plan file: economy tables, the plan, solver settings.
+
+    Parameters
+    ----------
+    economy : EconomyTables
+        Where the economy's tables are (paths relative to the plan file), its
+        baskets, units and prices.
+    plan : dict
+        The plan: years, labour, consumption, targets, terminal condition,
+        objective (the fields of :class:`~growthplan.Plan` but its economy).
+    solve : SolveOptions, optional
+        Solver settings (method, time limit, threads, tolerance).
+    """
 
     economy: EconomyTables
     plan: dict[str, Any]
@@ -211,7 +268,41 @@ def plan_file_schema() -> dict[str, Any]:
     defs.update(plan_schema.pop("$defs", {}))
     defs["PlanSection"] = plan_schema
     schema["properties"]["plan"] = {"$ref": "#/$defs/PlanSection"}
+    _as_loaded(plan_schema["properties"], defs)
+    from .. import objectives, technique, uncertainty
+    from .. import plan as plan_module
+    from ._schema import describe
+
+    classes: dict[str, type] = {name: c for module in (plan_module, objectives, technique,
+                                                       uncertainty)
+                                for name, c in vars(module).items()
+                                if isinstance(c, type) and issubclass(c, Model)}
+    classes.update({"": PlanFile, "PlanSection": Plan, "EconomyTables": EconomyTables,
+                    "SolveOptions": SolveOptions})
+    describe(schema, classes)
+    plan_schema["properties"]["years"]["description"] = (
+        "Consecutive calendar years of the plan: a list, or first and last.")
     return schema
+
+
+def _as_loaded(plan: dict[str, Any], defs: dict[str, Any]) -> None:
+    """The plan section's schema as the loader reads it: ``years`` as a list or as
+    first and last, one labour supply as a mapping or several as a list, the
+    methods HiGHS takes, an objective's kind always given."""
+    year = {"type": "integer"}
+    plan["years"] = {"anyOf": [
+        {"type": "array", "items": year, "minItems": 1},
+        {"type": "object", "additionalProperties": False, "required": ["first", "last"],
+         "properties": {"first": {**year, "description": "The first plan year."},
+                        "last": {**year, "description": "The last plan year."}}}]}
+    supply = {"$ref": "#/$defs/LabourSupply"}
+    plan["labour"] = {"anyOf": [supply, {"type": "array", "items": supply}]}
+    from ..backends.highs import METHODS
+
+    defs["SolveOptions"]["properties"]["method"]["enum"] = ["auto", *METHODS]
+    for definition in defs.values():  # an objective's kind picks it: never implied
+        if "const" in definition.get("properties", {}).get("kind", {}):
+            definition["required"] = ["kind", *definition.get("required", [])]
 
 
 class _Refused(Exception):
@@ -384,8 +475,10 @@ def _located(exc: InvalidInput, path: Path, node: Node | None,
     parts = prefix + [p for p in field.split(".") if p]
     line = _line_of(node, parts)
     where = f"{path}" + (f", line {line}" if line else "")
-    return InvalidInput(f"{where}: {'.'.join(prefix) + '.' if prefix else ''}{exc}",
-                        field=".".join(parts))
+    head, *items = str(exc).split("\n  ")  # several problems: each item gets the prefix
+    lead = ".".join(prefix) + "." if prefix else ""
+    text = f"{head}\n  " + "\n  ".join(lead + i for i in items) if items else lead + head
+    return InvalidInput(f"{where}: {text}", field=".".join(parts))
 
 
 def _whole(value: Any) -> bool:
@@ -589,6 +682,57 @@ def _plain(value: Any) -> Any:
     return value
 
 
+def _is_default(value: Any, info: Any) -> bool:
+    """Whether a field holds its default (then a plan file leaves it out)."""
+    from pydantic_core import PydanticUndefined
+
+    if info.default_factory is not None:
+        default = info.default_factory()
+    elif info.default is PydanticUndefined:
+        return False
+    else:
+        default = info.default
+    try:
+        return bool(type(value) is type(default) and value == default) or (
+            value is None and default is None)
+    except (TypeError, ValueError):  # arrays and frames: never a default
+        return False
+
+
+def _compact(value: Any) -> Any:
+    """A model as a plan file writes it: defaults left out, the kind of an objective kept."""
+    from pydantic import BaseModel
+
+    from ..objectives import Objective
+
+    if isinstance(value, BaseModel):
+        out = {}
+        for name, info in type(value).model_fields.items():
+            v = getattr(value, name)
+            keep = name == "kind" and isinstance(value, Objective)  # the tag is never implied
+            if keep or not _is_default(v, info):
+                out[name] = _compact(v)
+        return out
+    if isinstance(value, list | tuple):
+        return [_compact(v) for v in value]
+    if isinstance(value, dict):
+        return {k: _compact(v) for k, v in value.items()}
+    return _plain(value)
+
+
+def _plan_section(plan: Plan) -> dict[str, Any]:
+    """The ``plan`` section: defaults left out, years as first and last, one labour
+    supply as a mapping."""
+    fields = {k: v for k, v in _compact(plan).items()
+              if k != "economy" and v not in (None, [], {})}
+    years = list(plan.years)
+    if years == list(range(years[0], years[-1] + 1)):
+        fields["years"] = {"first": years[0], "last": years[-1]}
+    if len(fields.get("labour", [])) == 1:
+        fields["labour"] = fields["labour"][0]
+    return fields
+
+
 def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool = False,
                    solve: SolveOptions | None = None) -> Path:
     """Write ``plan`` as a YAML plan file with its coefficient tables beside it.
@@ -610,6 +754,12 @@ def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool 
     solve : SolveOptions, optional
         Solver settings stored in the file's ``solve`` section (method, time
         limit, threads, tolerance); default the library's defaults.
+
+    Notes
+    -----
+    The file is written compactly: fields that hold their defaults are left
+    out, ``years`` is written as ``{first, last}`` and one labour supply as a
+    mapping, as a person would write them.
 
     Returns
     -------
@@ -637,10 +787,10 @@ def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool 
         economy["prices"] = {sec.name: sec.price for sec in econ.sectors}
     if econ.base_output is not None:
         economy["base_output"] = dict(zip(econ.names, econ.base_output.tolist(), strict=True))
-    fields = plan.model_dump(exclude={"economy"}, mode="python")
-    fields = _plain({k: v for k, v in fields.items() if v not in (None, [], {})})
-    doc = {"economy": economy, "plan": fields,
-           "solve": (solve or SolveOptions()).model_dump(exclude_none=True)}
+    doc = {"economy": economy, "plan": _plan_section(plan)}
+    settings = _compact(solve or SolveOptions())
+    if settings:
+        doc["solve"] = settings
     targets = [path, *(path.parent / name for name, _ in frames.values())]
     with atomic_files(targets, overwrite=overwrite) as (plan_tmp, *table_tmps):
         for (key, (_, frame)), tmp in zip(frames.items(), table_tmps, strict=True):

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 import os
+import re
 import shutil
 
 import numpy as np
@@ -335,3 +336,134 @@ def test_plan_file_inputs_protect_them_from_exports(folder):
 def test_table_source_of_the_wrong_type(folder):
     with pytest.raises(gp.InvalidInput, match="capital must be a DataFrame or the path"):
         gp.Economy.from_tables(folder / "flows.csv", capital={"energy": {}})
+
+
+# --- hostile plan files: every message in the library's template -------------------
+
+def _cell(table, row, column, value):
+    """Replace one cell of a demo table (by row and column label)."""
+    def change(folder, d):
+        lines = (folder / table).read_text().splitlines()
+        head = lines[0].split(",")
+        for i, line in enumerate(lines):
+            cells = line.split(",")
+            if cells[0] == row:
+                cells[head.index(column)] = value
+                lines[i] = ",".join(cells)
+        (folder / f"bad_{table}").write_text("\n".join(lines) + "\n")
+        d["economy"][table[:-4]] = f"bad_{table}"
+    return change
+
+
+def _plan(change):
+    return lambda folder, d: change(d["plan"])
+
+
+HOSTILE_MESSAGES = {  # name: (change, the message from the field on)
+    "misspelt plan key": (_plan(lambda p: p.update(labor=p.pop("labour"))),
+                          "plan.labor must be a known field (did you mean 'labour'?). "
+                          "Got 'labor'."),
+    "misspelt nested key": (_plan(lambda p: p["consumption"].update(flor=1)),
+                            "plan.consumption.flor must be a known field (did you mean "
+                            "'floor'?)"),
+    "misspelt target key": (_plan(lambda p: p["targets"][0].update(capacity_atleast=3)),
+                            "plan.targets.0.capacity_atleast must be a known field (did you "
+                            "mean 'capacity_at_least'?)"),
+    "misspelt table key": (lambda f, d: d["economy"].update(capital_stock="x.csv"),
+                           "economy.capital_stock must be a known field (did you mean "
+                           "'capital_stocks'?)"),
+    "misspelt section": (lambda f, d: d.update(solver=d.pop("solve")),
+                         "solver must be a known field (did you mean 'solve'?)"),
+    "unknown key, nothing close": (_plan(lambda p: p.update(zzz=1)),
+                                   "plan.zzz must be a known field (one of "),
+    "misspelt objective kind": (_plan(lambda p: p.update(objective={"kind": "terminal_capcity"})),
+                                "plan.objective.kind must be one of 'terminal_capacity', "),
+    "objective without kind": (_plan(lambda p: p.update(objective={"rate": 0.1})),
+                               "plan.objective.kind must be given: one of 'terminal_capacity'"),
+    "unknown key of an objective": (
+        _plan(lambda p: p.update(objective={"kind": "terminal_capacity", "bogus": 1})),
+        "plan.objective.bogus must be a known field"),
+    "missing field of an objective": (_plan(lambda p: p.update(objective={"kind": "fastest"})),
+                                      "plan.objective.max_years must be given. Got nothing."),
+    "unknown kind in a weighted term": (
+        _plan(lambda p: p.update(objective={"kind": "weighted", "terms": [
+            {"objective": {"kind": "nope"}, "weight": 1}]})),
+        "plan.objective.terms.0.objective.kind must be one of 'terminal_capacity'"),
+    "text for a number": (_plan(lambda p: p["targets"][0].update(capacity_at_least="lots")),
+                          "plan.targets.0.capacity_at_least must be a number. Got 'lots'."),
+    "two conditions in a target": (_plan(lambda p: p["targets"][0].update(output_at_least=3)),
+                                   "plan.targets.0 must give exactly one of output_at_least"),
+    "number for a section": (_plan(lambda p: p.update(terminal=0.04)),
+                             "plan.terminal must be a mapping of its fields. Got 0.04."),
+    "text for a flag": (_plan(lambda p: p.update(allow_high_rates="maybe")),
+                        "plan.allow_high_rates must be true or false. Got 'maybe'."),
+    "share above 1": (_plan(lambda p: p["consumption"].update(max_fall=2)),
+                      "plan.consumption.max_fall must be at most 1"),
+    "one labour supply, text": (_plan(lambda p: p["labour"].update(start="many")),
+                                "plan.labour.start must be a number. Got 'many'."),
+    "misspelt method": (lambda f, d: d["solve"].update(method="simplx"),
+                        "solve.method must be 'auto' or one of simplex"),
+    "zero time limit": (lambda f, d: d["solve"].update(time_limit=0),
+                        "solve.time_limit must be greater than 0"),
+    "text in a year list": (_plan(lambda p: p.update(under_construction={"energy": [1, "x"]})),
+                            "plan.under_construction.energy.1 must be a number. Got 'x'."),
+    "text in the capital table": (_cell("capital.csv", "mining", "initial_capacity", "big"),
+                                  "capital.mining.initial_capacity must be a number. Got 'big'."),
+    "text in the flows table": (_cell("flows.csv", "energy", "food", "lots"),
+                                "flows[energy, food] must be a number. Got 'lots'."),
+    "text in the stocks table": (_cell("capital_stocks.csv", "energy", "food", "x"),
+                                 "capital_stocks[energy, food] must be a number. Got 'x'."),
+}
+PYDANTIC_WORDS = ("Input should", "input should", "input tag", "found using", "valid number",
+                  "unable to", "Value error", "value error", "discriminator", "dictionary or "
+                  "instance", "Field required", "Extra inputs")
+
+
+def _class_names():
+    from growthplan import economy, objectives, plan
+    from growthplan._validation import Model
+    from growthplan.io import planfile
+
+    return {name for module in (plan, objectives, economy, planfile)
+            for name, c in vars(module).items()
+            if isinstance(c, type) and issubclass(c, Model)}
+
+
+@pytest.mark.parametrize("name", list(HOSTILE_MESSAGES))
+def test_hostile_plan_files_get_the_template(folder, name):
+    change, expected = HOSTILE_MESSAGES[name]
+    d = demo_data()
+    change(folder, d)
+    p = write(folder, d, "hostile.yaml")
+    with pytest.raises(gp.InvalidInput) as err:
+        load_plan_file(p)
+    msg = str(err.value)
+    assert msg.startswith(str(p)) and expected in msg, msg
+    assert "\n" not in msg and re.search(r" must .+\. Got .+\.", msg), msg
+    assert not [w for w in PYDANTIC_WORDS if w in msg], msg
+    path = msg.split(": ", 1)[1].split(" must ")[0]
+    assert not set(re.split(r"[.\[\], ]+", path)) & _class_names(), path
+    for tag in ("terminal_capacity", "weighted", "fastest", "function-after"):
+        assert f".{tag}." not in path, path
+    if "table" not in name:  # the plan file's own fields: the line is named
+        assert re.match(rf"{re.escape(str(p))}, line \d+: ", msg), msg
+
+
+def test_suggestions_only_for_close_names():
+    from growthplan.errors import suggest
+
+    assert suggest("labor", ["years", "labour"]) == "did you mean 'labour'?"
+    assert suggest("labor", ["years", "labour"], sentence=True) == "Did you mean 'labour'?"
+    assert suggest("zzz", ["years", "labour"]) == ""
+
+
+def test_several_problems_each_with_the_section(folder):
+    d = demo_data()
+    d["plan"]["consumption"]["max_fall"] = 2
+    d["plan"]["targets"][0]["year"] = "soon"
+    with pytest.raises(gp.InvalidInput) as err:
+        load_plan_file(write(folder, d))
+    lines = str(err.value).splitlines()
+    assert lines[0].endswith("2 problems:")
+    assert lines[1].strip().startswith("plan.consumption.max_fall must be at most 1")
+    assert lines[2].strip() == "plan.targets.0.year must be a whole number. Got 'soon'."
