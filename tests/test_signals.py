@@ -23,6 +23,20 @@ from growthplan.demo import DEMO_DIR
 pytestmark = pytest.mark.skipif(os.name != "posix", reason="POSIX signals")
 
 
+@pytest.fixture(autouse=True)
+def interactive_sigint():
+    """Ctrl-C as a terminal's foreground command gets it: a run started in the
+    background (``cmd &``, nohup) inherits SIGINT ignored, and the command line
+    rightly leaves an ignored signal ignored."""
+    saved = signal.signal(signal.SIGINT, signal.default_int_handler)
+    yield
+    signal.signal(signal.SIGINT, saved)
+
+
+def _foreground() -> None:  # in the child, before it runs: SIGINT as in a terminal
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
+
+
 @pytest.fixture(scope="module")
 def big_plan(tmp_path_factory):
     """A plan whose simplex solve takes several seconds (60 sectors × 25 years)."""
@@ -37,7 +51,8 @@ def start_solve(plan_file, out):
     """The installed command solving ``plan_file``, once HiGHS has started."""
     proc = subprocess.Popen([sys.executable, "-m", "growthplan.cli", "solve", str(plan_file),
                              "--method", "simplex", "--out", str(out), "--progress"],
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE,
+                            preexec_fn=_foreground)
     seen = b""
     while b"solving" not in seen:  # the progress bar opens when the solve starts
         chunk = os.read(proc.stderr.fileno(), 4096)
