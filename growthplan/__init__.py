@@ -8,6 +8,7 @@ from importlib.metadata import PackageNotFoundError, version
 
 from . import backends, capital, objectives
 from .backends import HighsBackend, PulpBackend, Status
+from .backends.highs import SlowMethodWarning
 from .demo import DEMO_DIR, demo_economy, demo_plan
 from .economy import CapitalSpec, Economy, Sector
 from .errors import (
@@ -133,4 +134,5 @@ __all__ = [
     "reoptimise",
     "robust_plan",
     "stress_test",
+    "SlowMethodWarning",
 ]

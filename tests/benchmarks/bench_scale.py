@@ -45,7 +45,7 @@ import numpy as np
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 from helpers import economy, make_plan  # noqa: E402
 
-from growthplan.backends.highs import METHODS  # noqa: E402
+from growthplan.backends.highs import AUTO_IPM_NONZEROS, METHODS, choose_method  # noqa: E402
 
 DEFAULT_SIZES = "30x20,100x30,200x30"
 
@@ -175,6 +175,37 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
     return out
 
 
+def crossover(sizes: str, rounds: int) -> None:
+    """Simplex against interior point on small plans, where ``auto`` switches.
+
+    Each round solves the plan by both methods, end to end (``plan.solve``)
+    and bare (HiGHS's run time), simplex first on even rounds; medians.
+    """
+    print(f"simplex / interior point (no crossover), median of {rounds} interleaved rounds; "
+          f"auto switches above {AUTO_IPM_NONZEROS:,} nonzeros")
+    for size in sizes.split(","):
+        n, years = (int(v) for v in size.lower().split("x"))
+        econ = economy(n)
+        lp = make_plan(econ, years).compile()
+        e2e: dict[str, list[float]] = {"simplex": [], "ipm": []}
+        run: dict[str, list[float]] = {"simplex": [], "ipm": []}
+        for k in range(rounds):
+            for m in (("simplex", "ipm") if k % 2 == 0 else ("ipm", "simplex")):
+                t0 = time.perf_counter()
+                with warnings.catch_warnings():
+                    warnings.simplefilter("ignore")
+                    make_plan(econ, years).solve(method=m)
+                e2e[m].append(time.perf_counter() - t0)
+                run[m].append(bare(lp, m)["run"])
+        es = statistics.median(e2e["simplex"]) / statistics.median(e2e["ipm"])
+        rs = statistics.median(run["simplex"]) / statistics.median(run["ipm"])
+        es_s, es_i = statistics.median(e2e["simplex"]), statistics.median(e2e["ipm"])
+        print(f"  {size:>6}: {lp.nnz:>7,} nonzeros; end to end simplex "
+              f"{es_s:.4f} s, ipm {es_i:.4f} s"
+              f" (ratio {es:.2f}); bare run ratio {rs:.2f}; auto picks {choose_method(lp.nnz)}",
+              flush=True)
+
+
 def show(r: dict[str, Any]) -> None:
     overhead = (r["e2e"] - r["bare_run"]) / r["bare_run"]
     tm = ", ".join(f"{k} {v:.3f}" for k, v in r["timings"].items())
@@ -209,12 +240,18 @@ def main() -> None:
     ap.add_argument("--repeats", type=int, default=3)
     ap.add_argument("--cheap-nonzeros", type=int, default=1_000_000,
                     help="repeat only LPs with fewer nonzeros")
+    ap.add_argument("--crossover", metavar="SIZES",
+                    help="only compare simplex and interior point on these small sizes "
+                         "(e.g. 5x10,10x15,15x15,25x20), where auto switches")
     ap.add_argument("--child", help=argparse.SUPPRESS)
     a = ap.parse_args()
     methods = [m for m in a.methods.split(",") if m]
     for m in methods:
         if m not in METHODS:
             raise SystemExit(f"unknown method {m!r}; known: {', '.join(METHODS)}")
+    if a.crossover:
+        crossover(a.crossover, a.repeats)
+        return
     if a.child:
         print("RESULT " + json.dumps(child(a.child, methods, a.time_limit, a.repeats,
                                             a.cheap_nonzeros)), flush=True)
