@@ -206,6 +206,87 @@ def crossover(sizes: str, rounds: int) -> None:
               flush=True)
 
 
+def _rss_mb() -> float:
+    """Resident memory now (Linux /proc), MB."""
+    try:
+        with open("/proc/self/statm") as f:
+            return int(f.read().split()[1]) * resource.getpagesize() / 2**20
+    except OSError:  # pragma: no cover - not Linux
+        return float("nan")
+
+
+def _peak_mb() -> float:
+    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+
+
+def memory_child(size: str, stages: bool) -> dict[str, Any]:
+    """Peak resident memory of a fresh process that builds and solves one plan.
+
+    With ``stages`` the LP is built and solved by hand (``plan.compile``,
+    ``passModel``, ``run``) and the resident memory taken after each step;
+    otherwise ``plan.solve()`` runs once, as a user would.
+    """
+    from growthplan.backends import highs as hb
+
+    n, years = (int(v) for v in size.lower().split("x"))
+    out: dict[str, Any] = {"size": size, "imports_mb": _rss_mb()}
+    plan = make_plan(economy(n), years)
+    est = plan.estimate_size()
+    out.update(nonzeros=int(est["nonzeros"]), estimate_mb=est["peak_bytes"] / 2**20)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        if not stages:
+            r = plan.solve()
+            out.update(status=str(r.status), peak_mb=_peak_mb())
+            return out
+        lp = plan.compile()
+    m = lp.matrix
+    out["lp_mb"] = (m.data.nbytes + m.indices.nbytes + m.indptr.nbytes
+                    + sum(o.data.nbytes + o.indices.nbytes + o.indptr.nbytes
+                          for o in (lp.operators or {}).values())) / 2**20
+    out["built"] = (_rss_mb(), _peak_mb())
+    h = hb._new_highs()
+    for k, v in {"output_flag": False, **METHODS["ipm"]}.items():
+        h.setOptionValue(k, v)
+    hb.load(h, lp)
+    out["passed"] = (_rss_mb(), _peak_mb())
+    h.run()
+    out["run"] = (_rss_mb(), _peak_mb())
+    out["status"] = h.modelStatusToString(h.getModelStatus())
+    out["peak_mb"] = _peak_mb()
+    return out
+
+
+def _spawn(args: list[str]) -> dict[str, Any] | str:
+    proc = subprocess.run([sys.executable, __file__, *args], capture_output=True, text=True,
+                          check=False)
+    lines = [ln for ln in proc.stdout.splitlines() if ln.startswith("RESULT ")]
+    if proc.returncode != 0 or not lines:
+        return f"failed (exit {proc.returncode})\n{proc.stderr[-2000:]}"
+    out: dict[str, Any] = json.loads(lines[-1][len("RESULT "):])
+    return out
+
+
+def memory(sizes: str, stages: bool) -> None:
+    """Measured peak memory against ``estimate_size()["peak_bytes"]``, a fresh process each."""
+    print("peak resident memory (ru_maxrss) of a fresh process that builds and solves the "
+          "plan" + (" by hand, step by step" if stages else " (plan.solve())"))
+    for size in sizes.split(","):
+        r = _spawn(["--memory-child", size] + (["--stages"] if stages else []))
+        if isinstance(r, str):
+            print(f"  {size}: {r}")
+            continue
+        err = r["estimate_mb"] / r["peak_mb"] - 1
+        print(f"  {size:>6}: {r['nonzeros']:>10,} nonzeros; measured {r['peak_mb']:7.0f} MB, "
+              f"estimate {r['estimate_mb']:7.0f} MB ({err:+.1%}); after imports "
+              f"{r['imports_mb']:.0f} MB; {r['status']}", flush=True)
+        if stages:
+            print(f"          the LP's own arrays {r['lp_mb']:.0f} MB; resident / peak after "
+                  f"build {r['built'][0]:.0f} / {r['built'][1]:.0f} MB, after passModel "
+                  f"{r['passed'][0]:.0f} / {r['passed'][1]:.0f} MB, after run "
+                  f"{r['run'][0]:.0f} / {r['run'][1]:.0f} MB", flush=True)
+
+
 def show(r: dict[str, Any]) -> None:
     overhead = (r["e2e"] - r["bare_run"]) / r["bare_run"]
     tm = ", ".join(f"{k} {v:.3f}" for k, v in r["timings"].items())
@@ -243,12 +324,24 @@ def main() -> None:
     ap.add_argument("--crossover", metavar="SIZES",
                     help="only compare simplex and interior point on these small sizes "
                          "(e.g. 5x10,10x15,15x15,25x20), where auto switches")
+    ap.add_argument("--memory", metavar="SIZES",
+                    help="only measure peak memory (a fresh process per size) against "
+                         "the estimate")
+    ap.add_argument("--stages", action="store_true",
+                    help="with --memory: resident memory after build, passModel and run")
+    ap.add_argument("--memory-child", help=argparse.SUPPRESS)
     ap.add_argument("--child", help=argparse.SUPPRESS)
     a = ap.parse_args()
     methods = [m for m in a.methods.split(",") if m]
     for m in methods:
         if m not in METHODS:
             raise SystemExit(f"unknown method {m!r}; known: {', '.join(METHODS)}")
+    if a.memory_child:
+        print("RESULT " + json.dumps(memory_child(a.memory_child, a.stages)), flush=True)
+        return
+    if a.memory:
+        memory(a.memory, a.stages)
+        return
     if a.crossover:
         crossover(a.crossover, a.repeats)
         return
