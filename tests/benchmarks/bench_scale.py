@@ -20,6 +20,15 @@ HiGHS method, and the model transfer by filling ``HighsLp`` field by field
 (the route the library took before) against the numpy ``passModel``.
 
 overhead/solve is (end to end − bare run) / bare run, for the same method.
+The growth exponent in sectors is the least-squares slope of log time on log
+sectors over the sizes of one horizon. The wall clock left out of the
+library's ``result.timings`` is printed, and the peak-memory and solve-time
+estimates of ``plan.estimate_size()`` beside the measured figures.
+
+``--crossover SIZES`` compares only simplex and interior point on small
+plans (where ``auto`` switches); ``--memory SIZES`` only measures the peak
+memory of a fresh process per size (``--stages``: after build, passModel and
+run).
 Peak memory is ``resource.getrusage(RUSAGE_SELF).ru_maxrss`` of the child
 process taken right after its first end-to-end solve (before any bare solve):
 the whole process (Python, imports, plan, LP, HiGHS), not the Python heap.
@@ -137,9 +146,13 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
           cheap: int) -> dict[str, Any]:
     n, years = (int(v) for v in size.lower().split("x"))
     econ = economy(n)
-    lp = make_plan(econ, years).compile()
+    plan = make_plan(econ, years)
+    est = plan.estimate_size()
+    lp = plan.compile()
+    del plan
     out: dict[str, Any] = {"size": size, "rows": lp.shape[0], "cols": lp.shape[1],
-                           "nonzeros": int(lp.nnz)}
+                           "nonzeros": int(lp.nnz), "estimate_mb": est["peak_bytes"] / 2**20,
+                           "estimate_seconds": est["seconds"]}
     reps = repeats if lp.nnz < cheap else 1
     e2e: list[dict[str, Any]] = []
     own: list[dict[str, Any]] = []
@@ -161,6 +174,8 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
     out["scaled"] = e2e[0]["scaled"]
     out["timings"] = {k: statistics.median(r["timings"].get(k, 0.0) for r in e2e)
                       for k in e2e[0]["timings"]}
+    # what the library's own timings leave out of the wall clock
+    out["unaccounted"] = statistics.median(r["wall"] - sum(r["timings"].values()) for r in e2e)
     out["bare_run"] = statistics.median(r["run"] for r in own)
     out["bare_run_all"] = [round(r["run"], 3) for r in own]
     out["bare_transfer"] = statistics.median(r["transfer"] for r in own)
@@ -236,8 +251,11 @@ def memory_child(size: str, stages: bool) -> dict[str, Any]:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         if not stages:
+            t0 = time.perf_counter()
             r = plan.solve()
-            out.update(status=str(r.status), peak_mb=_peak_mb())
+            out.update(status=str(r.status), peak_mb=_peak_mb(), wall=time.perf_counter() - t0,
+                       timings=dict(r.timings), estimate_seconds=est["seconds"],
+                       objective=float(r.objective))
             return out
         lp = plan.compile()
     m = lp.matrix
@@ -280,6 +298,11 @@ def memory(sizes: str, stages: bool) -> None:
         print(f"  {size:>6}: {r['nonzeros']:>10,} nonzeros; measured {r['peak_mb']:7.0f} MB, "
               f"estimate {r['estimate_mb']:7.0f} MB ({err:+.1%}); after imports "
               f"{r['imports_mb']:.0f} MB; {r['status']}", flush=True)
+        if not stages:
+            tm = ", ".join(f"{k} {v:.3f}" for k, v in r["timings"].items())
+            print(f"          end to end {r['wall']:.1f} s (rough estimate of the solve "
+                  f"{r['estimate_seconds']:.1f} s); timings: {tm}; objective "
+                  f"{r['objective']:.10g}", flush=True)
         if stages:
             print(f"          the LP's own arrays {r['lp_mb']:.0f} MB; resident / peak after "
                   f"build {r['built'][0]:.0f} / {r['built'][1]:.0f} MB, after passModel "
@@ -295,7 +318,9 @@ def show(r: dict[str, Any]) -> None:
     print(f"  library end to end     {r['e2e']:8.2f} s  {r['e2e_all']}  "
           f"({r['e2e_status']}, {r['method']}, scaled={r['scaled']}, "
           f"objective {r['e2e_objective']:.10g})")
-    print(f"    its timings: {tm}")
+    print(f"    its timings: {tm}; wall clock not in them {r['unaccounted']:.3f} s "
+          f"(first-call imports, the certificate, reading the solution)")
+    print(f"    rough estimate of the solve from estimate_size(): {r['estimate_seconds']:.2f} s")
     print(f"  bare {r['method']:<17} {r['bare_run']:8.2f} s  {r['bare_run_all']}  "
           f"({r['bare_status']}, objective {r['bare_objective']:.10g}); "
           f"transfer {r['bare_transfer']:.3f} s (numpy passModel)")
@@ -304,7 +329,8 @@ def show(r: dict[str, Any]) -> None:
     print(f"  transfer HighsLp field by field {r['transfer_field_by_field']:.3f} s = "
           f"{r['transfer_field_by_field'] / r['bare_transfer']:.1f} × the numpy passModel")
     print(f"  peak RSS of the process after the first end-to-end solve "
-          f"{r['peak_rss_mb']:.0f} MB")
+          f"{r['peak_rss_mb']:.0f} MB; estimate_size() said {r['estimate_mb']:.0f} MB "
+          f"({r['estimate_mb'] / r['peak_rss_mb'] - 1:+.1%})")
     for m, o in r["others"].items():
         print(f"  bare {m:<17} {o['run']:8.2f} s  ({o['status']}, objective "
               f"{o['objective']:.10g}); transfer {o['transfer']:.3f} s")
@@ -351,16 +377,52 @@ def main() -> None:
         return
     print(f"highspy {highspy.Highs().version()}; methods {', '.join(methods)}; "
           f"others limited to {a.time_limit:g} s")
+    done: list[dict[str, Any]] = []
     for size in a.sizes.split(","):
-        cmd = [sys.executable, __file__, "--child", size, "--methods", ",".join(methods),
-               "--time-limit", str(a.time_limit), "--repeats", str(a.repeats),
-               "--cheap-nonzeros", str(a.cheap_nonzeros)]
-        proc = subprocess.run(cmd, capture_output=True, text=True, check=False)
-        lines = [ln for ln in proc.stdout.splitlines() if ln.startswith("RESULT ")]
-        if proc.returncode != 0 or not lines:
-            print(f"\n== {size}: failed (exit {proc.returncode})\n{proc.stderr[-2000:]}")
+        r = _spawn(["--child", size, "--methods", ",".join(methods), "--time-limit",
+                    str(a.time_limit), "--repeats", str(a.repeats), "--cheap-nonzeros",
+                    str(a.cheap_nonzeros)])
+        if isinstance(r, str):
+            print(f"\n== {size}: {r}")
             continue
-        show(json.loads(lines[-1][len("RESULT "):]))
+        show(r)
+        done.append(r)
+    summary(done, methods)
+
+
+def _exponent(xs: list[float], ys: list[float]) -> float:
+    """Least-squares slope of log y on log x."""
+    return float(np.polyfit(np.log(xs), np.log(ys), 1)[0])
+
+
+def summary(done: list[dict[str, Any]], methods: list[str]) -> None:
+    """One table of every size, and the growth of the solve time fitted across sizes."""
+    if not done:
+        return
+    print("\n| size | rows | columns | nonzeros | end to end | "
+          + " | ".join(f"bare {m}" for m in methods)
+          + " | overhead / solve | peak memory | estimated |")
+    print("|---" * (8 + len(methods)) + "|")
+    for r in done:
+        bare_by = {r["method"]: f"{r['bare_run']:.2f} s ({r['bare_status']})"}
+        bare_by.update({m: f"{o['run']:.2f} s ({o['status']})" for m, o in r["others"].items()})
+        cells = [bare_by.get(m, "-") for m in methods]
+        print(f"| {r['size']} | {r['rows']:,} | {r['cols']:,} | {r['nonzeros']:,} | "
+              f"{r['e2e']:.2f} s | " + " | ".join(cells)
+              + f" | {(r['e2e'] - r['bare_run']) / r['bare_run']:.3f} | "
+              f"{r['peak_rss_mb']:.0f} MB | {r['estimate_mb']:.0f} MB |")
+    by_years: dict[int, list[dict[str, Any]]] = {}
+    for r in done:
+        by_years.setdefault(int(r["size"].lower().split("x")[1]), []).append(r)
+    for years, rs in by_years.items():
+        if len(rs) < 2:
+            continue
+        n = [float(r["size"].lower().split("x")[0]) for r in rs]
+        for key, what in (("bare_run", "bare solve"), ("e2e", "end to end")):
+            t = [r[key] for r in rs]
+            print(f"{what} at {years} years grows as sectors^{_exponent(n, t):.2f} "
+                  f"(nonzeros^{_exponent([r['nonzeros'] for r in rs], t):.2f}), least squares "
+                  f"over {', '.join(r['size'] for r in rs)}")
 
 
 if __name__ == "__main__":
