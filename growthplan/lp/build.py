@@ -37,7 +37,7 @@ BYTES_PER_NONZERO = 60   # peak while building: blocks, the stacked copy and CSC
 SECONDS_COEFFICIENT = 8.8e-8  # seconds = COEFFICIENT · nonzeros ** EXPONENT (see solve_seconds)
 SECONDS_EXPONENT = 1.35
 PROCESS_BYTES = 150 * 2**20    # Python with numpy, scipy, pandas, highspy and growthplan
-SOLVE_BYTES_PER_NONZERO = 220  # HiGHS's interior point: its copy, presolve, factors
+SOLVE_BYTES_PER_NONZERO = 190  # HiGHS's interior point at its peak: its copies, presolve, factors
 
 
 def capacity_operator(d: PlanData) -> sparse.csr_array:
