@@ -34,8 +34,8 @@ __all__ = ["build", "build_plan", "estimate_size", "columns", "capacity_operator
 
 SIZE_LIMIT = 25_000_000  # nonzeros; larger plans are refused unless told otherwise
 BYTES_PER_NONZERO = 60   # peak while building: blocks, the stacked copy and CSC arrays
-SECONDS_COEFFICIENT = 8.8e-8  # seconds = COEFFICIENT · nonzeros ** EXPONENT (see solve_seconds)
-SECONDS_EXPONENT = 1.35
+SECONDS_COEFFICIENT = 1.55e-8  # seconds = COEFFICIENT · nonzeros ** EXPONENT
+SECONDS_EXPONENT = 1.47
 PROCESS_BYTES = 150 * 2**20    # Python with numpy, scipy, pandas, highspy and growthplan
 SOLVE_BYTES_PER_NONZERO = 190  # HiGHS's interior point at its peak: its copies, presolve, factors
 
@@ -115,7 +115,17 @@ def peak_memory(nonzeros: int) -> int:
 
 
 def solve_seconds(nonzeros: int) -> float:
-    """A rough expected solve time (interior point) on the machine the fit was made on."""
+    """A rough expected solve time by interior point, in seconds.
+
+    ``SECONDS_COEFFICIENT · nonzeros ** SECONDS_EXPONENT``: a least-squares
+    power law fitted to the end-to-end times measured on one 2-core machine
+    for the dense random plans of the README's performance section from
+    60 × 25 to 200 × 30 (1.09 s, 4.9 s and 43.8 s at 0.20, 0.65 and 2.5
+    million nonzeros). The time grows faster than any one power over a wide
+    range, so on much larger plans this tends to underestimate; other
+    machines, sparser plans and other objectives differ, often by a factor
+    of two or more. A rough estimate, for planning a run, never a promise.
+    """
     return float(SECONDS_COEFFICIENT * max(nonzeros, 1) ** SECONDS_EXPONENT)
 
 
