@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import contextlib
 import re
+import threading
 import time
 from collections.abc import Callable, Iterator
 from typing import IO, Any
@@ -20,7 +21,8 @@ from typing import IO, Any
 __all__ = ["QUIET_SECONDS", "SolveStatus", "solve_progress", "sweep_progress", "clear_bars"]
 
 QUIET_SECONDS = 1.0  # solves shorter than this show no bar
-_REFRESH_SECONDS = 0.2  # at most this often the bar is redrawn
+_REFRESH_SECONDS = 0.2  # at most this often the bar is redrawn on a log line
+_TICK_SECONDS = 0.5  # and at least this often while the solve runs
 
 _OPEN: set[Any] = set()  # solve bars on screen, cleared before a one-line message
 
@@ -140,13 +142,11 @@ def solve_progress(enabled: bool, label: str, *, quiet: float = QUIET_SECONDS,
         yield None
         return
     status = SolveStatus(clock)
+    lock = threading.Lock()
+    done = threading.Event()
     held: dict[str, Any] = {"bar": None, "drawn": -_REFRESH_SECONDS}
 
-    def callback(line: str) -> None:
-        status.feed(line)
-        now = status.elapsed
-        if now < quiet or now - held["drawn"] < _REFRESH_SECONDS:
-            return
+    def draw(now: float) -> None:  # under the lock
         bar = held["bar"]
         if bar is None:
             from tqdm.auto import tqdm
@@ -156,9 +156,29 @@ def solve_progress(enabled: bool, label: str, *, quiet: float = QUIET_SECONDS,
         held["drawn"] = now
         bar.set_description_str(f"solving {label}: {status.text()}", refresh=True)
 
+    def callback(line: str) -> None:
+        with lock:
+            status.feed(line)
+            now = status.elapsed
+            if now >= quiet and now - held["drawn"] >= _REFRESH_SECONDS:
+                draw(now)
+
+    def tick() -> None:
+        # HiGHS may log nothing for many seconds (simplex, factorisations): the bar
+        # appears after the quiet time and its clock moves on without new lines
+        while not done.wait(_TICK_SECONDS):
+            with lock:
+                now = status.elapsed
+                if now >= quiet and now - held["drawn"] >= _TICK_SECONDS:
+                    draw(now)
+
+    ticker = threading.Thread(target=tick, name="solve-progress", daemon=True)
+    ticker.start()
     try:
         yield callback
     finally:
+        done.set()
+        ticker.join()
         if held["bar"] is not None:
             _OPEN.discard(held["bar"])
             held["bar"].close()

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import io
 import re
+import threading
 
 from helpers import economy, make_plan
 
@@ -109,3 +110,18 @@ def test_disabled_gives_no_callback():
 def test_a_solve_with_progress_on_returns_the_same_plan():
     plan = make_plan(economy(6), 5)
     assert plan.solve(progress=True).objective == plan.solve().objective
+
+
+def test_shown_after_the_quiet_time_even_when_highs_logs_nothing():
+    # simplex may write no line for many seconds: the bar still appears and its clock runs
+    clock, sink = Clock(), io.StringIO()
+    with solve_progress(True, "plan", clock=clock, file=sink) as cb:
+        assert cb is not None
+        cb(SIMPLEX_LOG[2])
+        clock.now = 2.0
+        for _ in range(100):  # the bar is drawn by a background tick, at most in 0.5 s
+            if "simplex iteration 0" in sink.getvalue():
+                break
+            threading.Event().wait(0.05)
+    assert "solving plan: simplex iteration 0" in sink.getvalue()
+    assert "| 2 s" in sink.getvalue()
