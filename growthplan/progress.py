@@ -33,10 +33,11 @@ _IPM_LINE = re.compile(rf"^\s*(\d+)\*?\s+({_NUMBER})\s+({_NUMBER})\s+({_NUMBER})
 # simplex: iteration, objective, "Ph1: n(sum); Du: n(sum)" or "Pr: ...", time with "s"
 _SIMPLEX_LINE = re.compile(rf"^\s*(\d+)\s+{_NUMBER}\s+((?:Ph1|Pr|Du):.*?)\s*(?:{_NUMBER}s)?\s*$")
 _INFEASIBILITY = re.compile(rf"(Ph1|Pr|Du):\s*(\d+)\(({_NUMBER})\)")
+# lines that open a phase, by how they begin (the closing summary names phases too)
 _PHASES = (("presolving", "presolve"), ("interior point solve", "interior point"),
-           ("ipx version", "interior point"), ("crossover", "crossover"),
-           ("dual simplex", "simplex"), ("primal simplex", "simplex"),
-           ("postsolve", "postsolve"), ("pdlp", "first-order method"))
+           ("ipx version", "interior point"), ("running crossover", "crossover"),
+           ("using dual simplex", "simplex"), ("using primal simplex", "simplex"),
+           ("performed postsolve", "postsolve"))
 _WORDS = {"Ph1": "phase-1 infeasibilities", "Pr": "primal infeasibilities",
           "Du": "dual infeasibilities"}
 
@@ -87,8 +88,8 @@ class SolveStatus:
                                       for k, n, s in _INFEASIBILITY.findall(m.group(2)))
             return
         low = text.lower()
-        for key, phase in _PHASES:
-            if key in low and phase != self.phase:
+        for key, phase in (*_PHASES, (low if "pdlp" in low else "\0", "first-order method")):
+            if low.startswith(key) and phase != self.phase:
                 self.phase, self.iteration, self.details = phase, None, ""
                 return
 
