@@ -8,6 +8,7 @@ from importlib.metadata import PackageNotFoundError, version
 
 from . import backends, capital, objectives, plot
 from .backends import HighsBackend, PulpBackend, Status
+from .backends.highs import SlowMethodWarning
 from .choice import (
     ActivityTable,
     CheapestTechniques,
@@ -167,4 +168,5 @@ __all__ = [
     "technique_arrays",
     "load_uncertainty",
     "read_actuals",
+    "SlowMethodWarning",
 ]

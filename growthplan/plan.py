@@ -620,13 +620,17 @@ class Plan(Model):
 
         return program(self, size_limit=size_limit)
 
-    def estimate_size(self) -> dict[str, int]:
-        """Rows, columns, nonzeros and peak build bytes of this plan's LP, without building it.
+    def estimate_size(self) -> dict[str, float]:
+        """Size, memory and a rough solve time of this plan's LP, without building it.
 
         Returns
         -------
         dict
-            ``rows``, ``columns``, ``nonzeros`` and ``bytes``.
+            ``rows``, ``columns``, ``nonzeros`` (exact), ``bytes`` (peak while
+            building), ``peak_bytes`` (peak resident memory of a process that
+            builds and solves it) and ``seconds`` (a rough expected solve time
+            by interior point, fitted on one machine); see
+            :func:`growthplan.lp.build.estimate_size`.
         """
         from .lp.build import estimate_size
 

@@ -13,12 +13,13 @@ import os
 import sys
 import threading
 import time
+import warnings
 from typing import Any
 
 import highspy
 import numpy as np
 
-from ..errors import SolverFailure, invalid
+from ..errors import GrowthplanWarning, SolverFailure, invalid
 from ..lp.program import LinearProgram
 from .base import Backend, Feature, SolverOutcome, Status
 from .certificate import (
@@ -32,7 +33,7 @@ from .certificate import (
 )
 
 __all__ = ["HighsBackend", "STATUS_TABLE", "METHODS", "choose_method", "highs_version",
-           "AUTO_IPM_NONZEROS"]
+           "AUTO_IPM_NONZEROS", "SLOW_METHOD_NONZEROS", "SlowMethodWarning"]
 
 _MS = highspy.HighsModelStatus
 STATUS_TABLE: dict[object, Status] = {
@@ -66,7 +67,20 @@ METHODS: dict[str, dict[str, object]] = {
     "pdlp": {"solver": "pdlp"},
     "highs-default": {"solver": "choose"},
 }
-AUTO_IPM_NONZEROS = 2_000
+AUTO_IPM_NONZEROS = 4_000
+SLOW_METHOD_NONZEROS = 200_000  # explicit simplex or crossover above this draws a warning
+_SLOW_METHODS = ("simplex", "ipm-crossover", "highs-default")
+
+
+class SlowMethodWarning(GrowthplanWarning):
+    """A method much slower than interior point was asked for on a large plan.
+
+    On the dense benchmark plans simplex (also HiGHS's default choice there)
+    took about 40 times as long as interior point without crossover at
+    60 × 25 (202,560 nonzeros), and interior point with crossover twice as
+    long at 60 × 25 and more than 6 times at 100 × 30; ``method="auto"``
+    picks interior point without crossover.
+    """
 
 
 def choose_method(nonzeros: int) -> str:
@@ -74,10 +88,12 @@ def choose_method(nonzeros: int) -> str:
 
     Multi-year plans have dense input and capital blocks repeated over years;
     on them the interior point method without crossover was many times faster
-    than simplex above about 2,000 nonzeros (measured with the dense random
-    plans of ``tests/benchmarks/bench_plan.py``: 2.5 times faster at 15 × 15,
-    16 times at 25 × 20, about equal at 8 × 10), while the smallest plans solve
-    fastest by simplex, which also returns a vertex.
+    than simplex above about 4,000 nonzeros, while the smallest plans solve
+    fastest by simplex, which also returns a vertex. Measured end to end on
+    the dense random plans of ``tests/benchmarks/bench_scale.py --crossover``
+    (two interleaved runs; simplex time over interior point time): 0.65–0.71
+    at 10 × 10 (2,760 nonzeros), 0.71 at 10 × 12 (3,430), 1.09 at 12 × 10
+    (3,792), 1.00–1.46 at 10 × 15 (4,510), 2.2 at 15 × 15 and 15 at 25 × 20.
     """
     return "ipm" if nonzeros > AUTO_IPM_NONZEROS else "simplex"
 
@@ -143,7 +159,8 @@ def load(h: highspy.Highs, lp: LinearProgram) -> float:
     times faster than filling a ``HighsLp`` field by field on 100 × 30 and
     200 × 30 plans (0.65 and 2.5 million nonzeros) and gives HiGHS the same
     model. An integrality array must be given (all continuous): an empty
-    one is read as garbage.
+    one is read as garbage. The matrix arrays are passed without copying
+    when they already have HiGHS's types (HiGHS makes its own copy).
 
     Returns
     -------
@@ -159,8 +176,9 @@ def load(h: highspy.Highs, lp: LinearProgram) -> float:
                      int(sense), 0.0, np.ascontiguousarray(lp.cost, dtype=np.float64),
                      _bounds(lp.col_lower, -inf), _bounds(lp.col_upper, inf),
                      _bounds(lp.row_lower, -inf), _bounds(lp.row_upper, inf),
-                     m.indptr.astype(np.int32), m.indices.astype(np.int32),
-                     m.data.astype(np.float64), np.zeros(ncol, dtype=np.int32))
+                     m.indptr.astype(np.int32, copy=False),
+                     m.indices.astype(np.int32, copy=False),
+                     m.data.astype(np.float64, copy=False), np.zeros(ncol, dtype=np.int32))
     if st == highspy.HighsStatus.kError:
         raise SolverFailure("HiGHS refused the model (passModel returned an error)")
     return time.perf_counter() - t0
@@ -234,6 +252,7 @@ class HighsBackend:
         self.options = dict(options or {})
         self.scale = scale
         self.presolve = presolve
+        self._warn_slow = True  # off for the stand-ins of alternatives(), and once warned
 
     def __repr__(self) -> str:
         return f"HighsBackend(method={self.method!r})"
@@ -244,7 +263,9 @@ class HighsBackend:
               "presolve": self.presolve}
         method = changes.pop("method", self.method)
         kw.update(changes)
-        return HighsBackend(method, **kw)
+        variant = HighsBackend(method, **kw)
+        variant._warn_slow = False  # the user did not pick this method
+        return variant
 
     def alternatives(self) -> list[Backend]:
         """Interior point and simplex stand in for each other; then simplex without presolve.
@@ -287,6 +308,11 @@ class HighsBackend:
             Status, primal values, duals and solver details; never raises for
             a failed solve.
         """
+        if self._warn_slow and self.method in _SLOW_METHODS and lp.nnz > SLOW_METHOD_NONZEROS:
+            self._warn_slow = False
+            warnings.warn(f"method {self.method!r} on a plan with {lp.nnz:,} nonzeros may take "
+                          "many times longer than method='ipm' (interior point without "
+                          "crossover, which 'auto' picks).", SlowMethodWarning, stacklevel=2)
         return self.confirm_unbounded(lp, self._solve(lp, stop, callback))
 
     def _solve(self, lp: LinearProgram, stop: Any, callback: Any) -> SolverOutcome:
@@ -367,12 +393,14 @@ class HighsBackend:
         method = choose_method(lp.nnz) if self.method == "auto" else self.method
         h, chosen = self._highs(method, callback, stop)
         r = c = None
+        t_start = time.perf_counter()
         try:
-            if scale:
+            if scale:  # the scaled copy is part of getting the model to HiGHS
                 r, c = equilibrate(lp)
-                transfer = load(h, scaled(lp, r, c))
+                load(h, scaled(lp, r, c))
             else:
-                transfer = load(h, lp)
+                load(h, lp)
+            transfer = time.perf_counter() - t_start
         except SolverFailure as exc:
             return SolverOutcome(status=Status.ERROR, message=str(exc), objective=float("nan"),
                                  x=np.full(lp.shape[1], np.nan), row_dual=None, method=method,

@@ -29,10 +29,15 @@ if TYPE_CHECKING:
     from ..plan import Plan
 
 __all__ = ["build", "build_plan", "estimate_size", "columns", "capacity_operator",
-           "deliveries_operator", "SIZE_LIMIT", "BYTES_PER_NONZERO"]
+           "deliveries_operator", "SIZE_LIMIT", "BYTES_PER_NONZERO", "peak_memory",
+           "solve_seconds"]
 
 SIZE_LIMIT = 25_000_000  # nonzeros; larger plans are refused unless told otherwise
 BYTES_PER_NONZERO = 60   # peak while building: blocks, the stacked copy and CSC arrays
+SECONDS_COEFFICIENT = 1.55e-8  # seconds = COEFFICIENT · nonzeros ** EXPONENT
+SECONDS_EXPONENT = 1.47
+PROCESS_BYTES = 150 * 2**20    # Python with numpy, scipy, pandas, highspy and growthplan
+SOLVE_BYTES_PER_NONZERO = 190  # HiGHS's interior point at its peak: its copies, presolve, factors
 
 
 def capacity_operator(d: PlanData) -> sparse.csr_array:
@@ -101,15 +106,56 @@ def _count(d: PlanData) -> dict[str, int]:
             "bytes": nnz * BYTES_PER_NONZERO}
 
 
-def estimate_size(plan: Plan | PlanData) -> dict[str, int]:
-    """Rows, columns, nonzeros and peak build bytes of a plan's LP, without building it.
+def peak_memory(nonzeros: int) -> int:
+    """Peak resident bytes of a process that builds and solves an LP of this size.
 
-    The sum of each condition family's own count (exact for rows, columns and
-    nonzeros; memory is ``BYTES_PER_NONZERO`` per nonzero, measured on dense
-    plans).
+    ``PROCESS_BYTES`` for the interpreter and libraries plus
+    ``SOLVE_BYTES_PER_NONZERO`` per nonzero, fitted to the peak resident
+    memory (``ru_maxrss``) of fresh processes solving the dense random plans
+    of ``tests/benchmarks/bench_scale.py --memory`` by interior point.
+    """
+    return int(PROCESS_BYTES + SOLVE_BYTES_PER_NONZERO * nonzeros)
+
+
+def solve_seconds(nonzeros: int) -> float:
+    """A rough expected solve time by interior point, in seconds.
+
+    ``SECONDS_COEFFICIENT · nonzeros ** SECONDS_EXPONENT``: a least-squares
+    power law fitted to the end-to-end times measured on one 2-core machine
+    for the dense random plans of the README's performance section from
+    60 × 25 to 200 × 30 (1.09 s, 4.9 s and 43.8 s at 0.20, 0.65 and 2.5
+    million nonzeros). The time grows faster than any one power over a wide
+    range, so on much larger plans this tends to underestimate; other
+    machines, sparser plans and other objectives differ, often by a factor
+    of two or more. A rough estimate, for planning a run, never a promise.
+    """
+    return float(SECONDS_COEFFICIENT * max(nonzeros, 1) ** SECONDS_EXPONENT)
+
+
+def estimate_size(plan: Plan | PlanData) -> dict[str, float]:
+    """Size, memory and a rough solve time of a plan's LP, without building it.
+
+    Parameters
+    ----------
+    plan : Plan or PlanData
+
+    Returns
+    -------
+    dict
+        ``rows``, ``columns``, ``nonzeros``: the sum of each condition
+        family's own count, exact. ``bytes``: peak memory while building
+        (``BYTES_PER_NONZERO`` per nonzero). ``peak_bytes``: peak resident
+        memory of a process building and solving the plan
+        (:func:`peak_memory`). ``seconds``: a rough expected solve time by
+        interior point (:func:`solve_seconds`), from a power law in nonzeros
+        fitted to measurements on one 2-core machine; other machines and
+        sparser plans differ, often by a factor of two or more.
     """
     d = plan if isinstance(plan, PlanData) else plan.lowered()
-    return _count(d)
+    out: dict[str, float] = dict(_count(d))
+    out["peak_bytes"] = peak_memory(int(out["nonzeros"]))
+    out["seconds"] = solve_seconds(int(out["nonzeros"]))
+    return out
 
 
 def _upper_bound(plan: Plan) -> int:
@@ -132,8 +178,8 @@ def guard_size(plan: Plan, size_limit: int | None) -> None:
     if est["nonzeros"] > size_limit:
         raise InvalidInput(
             f"plan is too large to build: about {est['rows']:,} rows, {est['columns']:,} "
-            f"columns and {est['nonzeros']:,} nonzeros, {est['bytes'] / 2**30:.1f} GiB at "
-            f"peak, above the limit of {size_limit:,} nonzeros. Aggregate sectors "
+            f"columns and {est['nonzeros']:,} nonzeros, {est['peak_bytes'] / 2**30:.1f} GiB "
+            f"at peak, above the limit of {size_limit:,} nonzeros. Aggregate sectors "
             "(TransactionsTable.aggregate), shorten the horizon, or pass "
             "size_limit=None (or a larger number) to build it anyway.", field="size_limit")
 

@@ -2,9 +2,13 @@
 
 from __future__ import annotations
 
+import warnings
+
 import numpy as np
+import pytest
 from helpers import economy, make_plan
 
+import growthplan as gp
 from growthplan.backends import highs as hb
 
 
@@ -42,3 +46,46 @@ def test_transfer_is_timed_apart_from_the_solve():
     r = plan.solve()
     assert r.ok
     assert r.timings["transfer"] == r.solver["options"]["transfer_seconds"] >= 0
+
+
+def test_auto_picks_simplex_only_for_the_smallest_plans():
+    assert hb.choose_method(hb.AUTO_IPM_NONZEROS) == "simplex"
+    assert hb.choose_method(hb.AUTO_IPM_NONZEROS + 1) == "ipm"
+    assert hb.choose_method(0) == "simplex"
+
+
+def _slow_warnings(backend, lp):
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        out = backend.solve(lp)
+    assert out.status is gp.Status.OPTIMAL
+    return [w for w in caught if issubclass(w.category, hb.SlowMethodWarning)]
+
+
+@pytest.mark.parametrize("method", ["simplex", "ipm-crossover"])
+def test_an_explicit_slow_method_on_a_large_plan_warns_once(monkeypatch, method):
+    # the threshold lowered so that a small plan counts as large
+    _, lp = _plan_lp()
+    monkeypatch.setattr(hb, "SLOW_METHOD_NONZEROS", lp.nnz - 1)
+    backend = hb.HighsBackend(method)
+    got = _slow_warnings(backend, lp)
+    assert len(got) == 1 and issubclass(got[0].category, gp.GrowthplanWarning)
+    text = str(got[0].message)
+    assert f"{method!r}" in text and f"{lp.nnz:,} nonzeros" in text and "\n" not in text
+    assert _slow_warnings(backend, lp) == []  # once per back end
+
+
+def test_no_slow_method_warning_for_interior_point_auto_small_plans_or_stand_ins(monkeypatch):
+    _, lp = _plan_lp()
+    assert _slow_warnings(hb.HighsBackend("simplex"), lp) == []  # below the threshold
+    monkeypatch.setattr(hb, "SLOW_METHOD_NONZEROS", lp.nnz - 1)
+    for backend in (hb.HighsBackend("ipm"), hb.HighsBackend("auto"),
+                    *hb.HighsBackend("ipm").alternatives()):
+        assert _slow_warnings(backend, lp) == []
+
+
+def test_the_slow_method_warning_reaches_plan_solve(monkeypatch):
+    plan, lp = _plan_lp()
+    monkeypatch.setattr(hb, "SLOW_METHOD_NONZEROS", lp.nnz - 1)
+    with pytest.warns(gp.SlowMethodWarning, match="'simplex'"):
+        assert plan.solve(method="simplex").ok

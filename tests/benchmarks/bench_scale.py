@@ -19,7 +19,18 @@ Then once each, with ``--time-limit`` seconds, the bare solve by every other
 HiGHS method, and the model transfer by filling ``HighsLp`` field by field
 (the route the library took before) against the numpy ``passModel``.
 
-overhead/solve is (end to end − bare run) / bare run, for the same method.
+overhead/solve is (end to end − bare run) / bare run, for the same method;
+it is also given in process CPU time, which other work on a shared machine
+disturbs far less than the wall clock.
+The growth exponent in sectors is the least-squares slope of log time on log
+sectors over the sizes of one horizon. The wall clock left out of the
+library's ``result.timings`` is printed, and the peak-memory and solve-time
+estimates of ``plan.estimate_size()`` beside the measured figures.
+
+``--crossover SIZES`` compares only simplex and interior point on small
+plans (where ``auto`` switches); ``--memory SIZES`` only measures the peak
+memory of a fresh process per size (``--stages``: after build, passModel and
+run).
 Peak memory is ``resource.getrusage(RUSAGE_SELF).ru_maxrss`` of the child
 process taken right after its first end-to-end solve (before any bare solve):
 the whole process (Python, imports, plan, LP, HiGHS), not the Python heap.
@@ -45,7 +56,7 @@ import numpy as np
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 from helpers import economy, make_plan  # noqa: E402
 
-from growthplan.backends.highs import METHODS  # noqa: E402
+from growthplan.backends.highs import AUTO_IPM_NONZEROS, METHODS, choose_method  # noqa: E402
 
 DEFAULT_SIZES = "30x20,100x30,200x30"
 
@@ -105,10 +116,11 @@ def bare(lp: Any, method: str, time_limit: float | None = None) -> dict[str, Any
     if h.passModel(*_arrays(lp)) == highspy.HighsStatus.kError:
         raise SystemExit("HiGHS refused the model")
     t1 = time.perf_counter()
+    c1 = time.process_time()
     h.run()
     t2 = time.perf_counter()
     info = h.getInfo()
-    return {"transfer": t1 - t0, "run": t2 - t1,
+    return {"transfer": t1 - t0, "run": t2 - t1, "cpu": time.process_time() - c1,
             "status": h.modelStatusToString(h.getModelStatus()),
             "objective": float(info.objective_function_value)}
 
@@ -123,12 +135,14 @@ def transfer_field_by_field(lp: Any) -> float:
 def end_to_end(econ: Any, years: int) -> dict[str, Any]:
     """The plan built (validated) and solved by the library, wall clock."""
     t0 = time.perf_counter()
+    c0 = time.process_time()
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         plan = make_plan(econ, years)
         r = plan.solve()
     wall = time.perf_counter() - t0
-    return {"wall": wall, "status": str(r.status), "objective": float(r.objective),
+    return {"wall": wall, "cpu": time.process_time() - c0, "status": str(r.status),
+            "objective": float(r.objective),
             "method": r.solver["method"], "scaled": r.solver["options"].get("scaled"),
             "timings": dict(r.timings)}
 
@@ -137,9 +151,13 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
           cheap: int) -> dict[str, Any]:
     n, years = (int(v) for v in size.lower().split("x"))
     econ = economy(n)
-    lp = make_plan(econ, years).compile()
+    plan = make_plan(econ, years)
+    est = plan.estimate_size()
+    lp = plan.compile()
+    del plan
     out: dict[str, Any] = {"size": size, "rows": lp.shape[0], "cols": lp.shape[1],
-                           "nonzeros": int(lp.nnz)}
+                           "nonzeros": int(lp.nnz), "estimate_mb": est["peak_bytes"] / 2**20,
+                           "estimate_seconds": est["seconds"]}
     reps = repeats if lp.nnz < cheap else 1
     e2e: list[dict[str, Any]] = []
     own: list[dict[str, Any]] = []
@@ -161,6 +179,10 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
     out["scaled"] = e2e[0]["scaled"]
     out["timings"] = {k: statistics.median(r["timings"].get(k, 0.0) for r in e2e)
                       for k in e2e[0]["timings"]}
+    # what the library's own timings leave out of the wall clock
+    out["unaccounted"] = statistics.median(r["wall"] - sum(r["timings"].values()) for r in e2e)
+    out["e2e_cpu"] = statistics.median(r["cpu"] for r in e2e)
+    out["bare_cpu"] = statistics.median(r["cpu"] for r in own)
     out["bare_run"] = statistics.median(r["run"] for r in own)
     out["bare_run_all"] = [round(r["run"], 3) for r in own]
     out["bare_transfer"] = statistics.median(r["transfer"] for r in own)
@@ -175,6 +197,126 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
     return out
 
 
+def crossover(sizes: str, rounds: int) -> None:
+    """Simplex against interior point on small plans, where ``auto`` switches.
+
+    Each round solves the plan by both methods, end to end (``plan.solve``)
+    and bare (HiGHS's run time), simplex first on even rounds; medians.
+    """
+    print(f"simplex / interior point (no crossover), median of {rounds} interleaved rounds; "
+          f"auto switches above {AUTO_IPM_NONZEROS:,} nonzeros")
+    for size in sizes.split(","):
+        n, years = (int(v) for v in size.lower().split("x"))
+        econ = economy(n)
+        lp = make_plan(econ, years).compile()
+        e2e: dict[str, list[float]] = {"simplex": [], "ipm": []}
+        run: dict[str, list[float]] = {"simplex": [], "ipm": []}
+        for k in range(rounds):
+            for m in (("simplex", "ipm") if k % 2 == 0 else ("ipm", "simplex")):
+                t0 = time.perf_counter()
+                with warnings.catch_warnings():
+                    warnings.simplefilter("ignore")
+                    make_plan(econ, years).solve(method=m)
+                e2e[m].append(time.perf_counter() - t0)
+                run[m].append(bare(lp, m)["run"])
+        es = statistics.median(e2e["simplex"]) / statistics.median(e2e["ipm"])
+        rs = statistics.median(run["simplex"]) / statistics.median(run["ipm"])
+        es_s, es_i = statistics.median(e2e["simplex"]), statistics.median(e2e["ipm"])
+        print(f"  {size:>6}: {lp.nnz:>7,} nonzeros; end to end simplex "
+              f"{es_s:.4f} s, ipm {es_i:.4f} s"
+              f" (ratio {es:.2f}); bare run ratio {rs:.2f}; auto picks {choose_method(lp.nnz)}",
+              flush=True)
+
+
+def _rss_mb() -> float:
+    """Resident memory now (Linux /proc), MB."""
+    try:
+        with open("/proc/self/statm") as f:
+            return int(f.read().split()[1]) * resource.getpagesize() / 2**20
+    except OSError:  # pragma: no cover - not Linux
+        return float("nan")
+
+
+def _peak_mb() -> float:
+    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+
+
+def memory_child(size: str, stages: bool) -> dict[str, Any]:
+    """Peak resident memory of a fresh process that builds and solves one plan.
+
+    With ``stages`` the LP is built and solved by hand (``plan.compile``,
+    ``passModel``, ``run``) and the resident memory taken after each step;
+    otherwise ``plan.solve()`` runs once, as a user would.
+    """
+    from growthplan.backends import highs as hb
+
+    n, years = (int(v) for v in size.lower().split("x"))
+    out: dict[str, Any] = {"size": size, "imports_mb": _rss_mb()}
+    plan = make_plan(economy(n), years)
+    est = plan.estimate_size()
+    out.update(nonzeros=int(est["nonzeros"]), estimate_mb=est["peak_bytes"] / 2**20)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        if not stages:
+            t0 = time.perf_counter()
+            r = plan.solve()
+            out.update(status=str(r.status), peak_mb=_peak_mb(), wall=time.perf_counter() - t0,
+                       timings=dict(r.timings), estimate_seconds=est["seconds"],
+                       objective=float(r.objective))
+            return out
+        lp = plan.compile()
+    m = lp.matrix
+    out["lp_mb"] = (m.data.nbytes + m.indices.nbytes + m.indptr.nbytes
+                    + sum(o.data.nbytes + o.indices.nbytes + o.indptr.nbytes
+                          for o in (lp.operators or {}).values())) / 2**20
+    out["built"] = (_rss_mb(), _peak_mb())
+    h = hb._new_highs()
+    for k, v in {"output_flag": False, **METHODS["ipm"]}.items():
+        h.setOptionValue(k, v)
+    hb.load(h, lp)
+    out["passed"] = (_rss_mb(), _peak_mb())
+    h.run()
+    out["run"] = (_rss_mb(), _peak_mb())
+    out["status"] = h.modelStatusToString(h.getModelStatus())
+    out["peak_mb"] = _peak_mb()
+    return out
+
+
+def _spawn(args: list[str]) -> dict[str, Any] | str:
+    proc = subprocess.run([sys.executable, __file__, *args], capture_output=True, text=True,
+                          check=False)
+    lines = [ln for ln in proc.stdout.splitlines() if ln.startswith("RESULT ")]
+    if proc.returncode != 0 or not lines:
+        return f"failed (exit {proc.returncode})\n{proc.stderr[-2000:]}"
+    out: dict[str, Any] = json.loads(lines[-1][len("RESULT "):])
+    return out
+
+
+def memory(sizes: str, stages: bool) -> None:
+    """Measured peak memory against ``estimate_size()["peak_bytes"]``, a fresh process each."""
+    print("peak resident memory (ru_maxrss) of a fresh process that builds and solves the "
+          "plan" + (" by hand, step by step" if stages else " (plan.solve())"))
+    for size in sizes.split(","):
+        r = _spawn(["--memory-child", size] + (["--stages"] if stages else []))
+        if isinstance(r, str):
+            print(f"  {size}: {r}")
+            continue
+        err = r["estimate_mb"] / r["peak_mb"] - 1
+        print(f"  {size:>6}: {r['nonzeros']:>10,} nonzeros; measured {r['peak_mb']:7.0f} MB, "
+              f"estimate {r['estimate_mb']:7.0f} MB ({err:+.1%}); after imports "
+              f"{r['imports_mb']:.0f} MB; {r['status']}", flush=True)
+        if not stages:
+            tm = ", ".join(f"{k} {v:.3f}" for k, v in r["timings"].items())
+            print(f"          end to end {r['wall']:.1f} s (rough estimate of the solve "
+                  f"{r['estimate_seconds']:.1f} s); timings: {tm}; objective "
+                  f"{r['objective']:.10g}", flush=True)
+        if stages:
+            print(f"          the LP's own arrays {r['lp_mb']:.0f} MB; resident / peak after "
+                  f"build {r['built'][0]:.0f} / {r['built'][1]:.0f} MB, after passModel "
+                  f"{r['passed'][0]:.0f} / {r['passed'][1]:.0f} MB, after run "
+                  f"{r['run'][0]:.0f} / {r['run'][1]:.0f} MB", flush=True)
+
+
 def show(r: dict[str, Any]) -> None:
     overhead = (r["e2e"] - r["bare_run"]) / r["bare_run"]
     tm = ", ".join(f"{k} {v:.3f}" for k, v in r["timings"].items())
@@ -183,16 +325,20 @@ def show(r: dict[str, Any]) -> None:
     print(f"  library end to end     {r['e2e']:8.2f} s  {r['e2e_all']}  "
           f"({r['e2e_status']}, {r['method']}, scaled={r['scaled']}, "
           f"objective {r['e2e_objective']:.10g})")
-    print(f"    its timings: {tm}")
+    print(f"    its timings: {tm}; wall clock not in them {r['unaccounted']:.3f} s "
+          f"(first-call imports, the certificate, reading the solution)")
+    print(f"    rough estimate of the solve from estimate_size(): {r['estimate_seconds']:.2f} s")
     print(f"  bare {r['method']:<17} {r['bare_run']:8.2f} s  {r['bare_run_all']}  "
           f"({r['bare_status']}, objective {r['bare_objective']:.10g}); "
           f"transfer {r['bare_transfer']:.3f} s (numpy passModel)")
     print(f"  overhead/solve          {overhead:8.3f}   (end to end / bare run "
-          f"{r['e2e'] / r['bare_run']:.3f})")
+          f"{r['e2e'] / r['bare_run']:.3f}); in CPU time {r['e2e_cpu']:.2f} s / "
+          f"{r['bare_cpu']:.2f} s, overhead {(r['e2e_cpu'] - r['bare_cpu']) / r['bare_cpu']:.3f}")
     print(f"  transfer HighsLp field by field {r['transfer_field_by_field']:.3f} s = "
           f"{r['transfer_field_by_field'] / r['bare_transfer']:.1f} × the numpy passModel")
     print(f"  peak RSS of the process after the first end-to-end solve "
-          f"{r['peak_rss_mb']:.0f} MB")
+          f"{r['peak_rss_mb']:.0f} MB; estimate_size() said {r['estimate_mb']:.0f} MB "
+          f"({r['estimate_mb'] / r['peak_rss_mb'] - 1:+.1%})")
     for m, o in r["others"].items():
         print(f"  bare {m:<17} {o['run']:8.2f} s  ({o['status']}, objective "
               f"{o['objective']:.10g}); transfer {o['transfer']:.3f} s")
@@ -209,28 +355,82 @@ def main() -> None:
     ap.add_argument("--repeats", type=int, default=3)
     ap.add_argument("--cheap-nonzeros", type=int, default=1_000_000,
                     help="repeat only LPs with fewer nonzeros")
+    ap.add_argument("--crossover", metavar="SIZES",
+                    help="only compare simplex and interior point on these small sizes "
+                         "(e.g. 5x10,10x15,15x15,25x20), where auto switches")
+    ap.add_argument("--memory", metavar="SIZES",
+                    help="only measure peak memory (a fresh process per size) against "
+                         "the estimate")
+    ap.add_argument("--stages", action="store_true",
+                    help="with --memory: resident memory after build, passModel and run")
+    ap.add_argument("--memory-child", help=argparse.SUPPRESS)
     ap.add_argument("--child", help=argparse.SUPPRESS)
     a = ap.parse_args()
     methods = [m for m in a.methods.split(",") if m]
     for m in methods:
         if m not in METHODS:
             raise SystemExit(f"unknown method {m!r}; known: {', '.join(METHODS)}")
+    if a.memory_child:
+        print("RESULT " + json.dumps(memory_child(a.memory_child, a.stages)), flush=True)
+        return
+    if a.memory:
+        memory(a.memory, a.stages)
+        return
+    if a.crossover:
+        crossover(a.crossover, a.repeats)
+        return
     if a.child:
         print("RESULT " + json.dumps(child(a.child, methods, a.time_limit, a.repeats,
                                             a.cheap_nonzeros)), flush=True)
         return
     print(f"highspy {highspy.Highs().version()}; methods {', '.join(methods)}; "
           f"others limited to {a.time_limit:g} s")
+    done: list[dict[str, Any]] = []
     for size in a.sizes.split(","):
-        cmd = [sys.executable, __file__, "--child", size, "--methods", ",".join(methods),
-               "--time-limit", str(a.time_limit), "--repeats", str(a.repeats),
-               "--cheap-nonzeros", str(a.cheap_nonzeros)]
-        proc = subprocess.run(cmd, capture_output=True, text=True, check=False)
-        lines = [ln for ln in proc.stdout.splitlines() if ln.startswith("RESULT ")]
-        if proc.returncode != 0 or not lines:
-            print(f"\n== {size}: failed (exit {proc.returncode})\n{proc.stderr[-2000:]}")
+        r = _spawn(["--child", size, "--methods", ",".join(methods), "--time-limit",
+                    str(a.time_limit), "--repeats", str(a.repeats), "--cheap-nonzeros",
+                    str(a.cheap_nonzeros)])
+        if isinstance(r, str):
+            print(f"\n== {size}: {r}")
             continue
-        show(json.loads(lines[-1][len("RESULT "):]))
+        show(r)
+        done.append(r)
+    summary(done, methods)
+
+
+def _exponent(xs: list[float], ys: list[float]) -> float:
+    """Least-squares slope of log y on log x."""
+    return float(np.polyfit(np.log(xs), np.log(ys), 1)[0])
+
+
+def summary(done: list[dict[str, Any]], methods: list[str]) -> None:
+    """One table of every size, and the growth of the solve time fitted across sizes."""
+    if not done:
+        return
+    print("\n| size | rows | columns | nonzeros | end to end | "
+          + " | ".join(f"bare {m}" for m in methods)
+          + " | overhead / solve | peak memory | estimated |")
+    print("|---" * (8 + len(methods)) + "|")
+    for r in done:
+        bare_by = {r["method"]: f"{r['bare_run']:.2f} s ({r['bare_status']})"}
+        bare_by.update({m: f"{o['run']:.2f} s ({o['status']})" for m, o in r["others"].items()})
+        cells = [bare_by.get(m, "-") for m in methods]
+        print(f"| {r['size']} | {r['rows']:,} | {r['cols']:,} | {r['nonzeros']:,} | "
+              f"{r['e2e']:.2f} s | " + " | ".join(cells)
+              + f" | {(r['e2e'] - r['bare_run']) / r['bare_run']:.3f} | "
+              f"{r['peak_rss_mb']:.0f} MB | {r['estimate_mb']:.0f} MB |")
+    by_years: dict[int, list[dict[str, Any]]] = {}
+    for r in done:
+        by_years.setdefault(int(r["size"].lower().split("x")[1]), []).append(r)
+    for years, rs in by_years.items():
+        if len(rs) < 2:
+            continue
+        n = [float(r["size"].lower().split("x")[0]) for r in rs]
+        for key, what in (("bare_run", "bare solve"), ("e2e", "end to end")):
+            t = [r[key] for r in rs]
+            print(f"{what} at {years} years grows as sectors^{_exponent(n, t):.2f} "
+                  f"(nonzeros^{_exponent([r['nonzeros'] for r in rs], t):.2f}), least squares "
+                  f"over {', '.join(r['size'] for r in rs)}")
 
 
 if __name__ == "__main__":

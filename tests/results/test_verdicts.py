@@ -189,6 +189,30 @@ class TestUnitsAndWrongOptima:
         a = audit(r.data, sched)
         assert not a.ok and a.max_violation == np.inf
 
+    def test_signs_are_judged_against_the_sectors_size(self):
+        """A start at -4e-10 beside starts in the thousands is within any solver's
+        feasibility tolerance (HiGHS: 1e-7, common practice); a start of -1 is not.
+        The revised demo plan solved by simplex once came back with such a -4e-10
+        and was wrongly refused."""
+        import dataclasses
+
+        from growthplan.results.audit import audit
+
+        r = assert_optimal(gp.demo_plan().solve())
+        j = r.starts.columns.get_loc("services")
+        t = int(np.flatnonzero(r.starts.iloc[:, j].to_numpy() == 0.0)[0])
+
+        def audited(value: float):
+            starts = r.starts.to_numpy(copy=True)
+            starts[t, j] = value
+            return audit(r.data, dataclasses.replace(r._schedules, starts=starts),
+                         tolerance=1e-6)
+
+        assert r.starts.iloc[:, j].max() > 100
+        assert audited(-4e-10).ok
+        bad = audited(-1.0)
+        assert not bad.ok
+
 
 class TestSolverOptions:
     def test_threads_can_change_between_solves(self):

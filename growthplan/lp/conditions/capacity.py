@@ -42,6 +42,14 @@ class Capacity(Condition):
         assert cap is not None
         groups = np.tile(np.arange(d.m), d.T)
         grid = [(y, c) for y in d.years for c in d.tech_names]
+        # a sign is judged against the size of the technique's sector over the plan (its
+        # largest output, start or capacity of any technique), not against the value
+        # itself: a basic variable at -4e-10 beside starts of 1,000, or in an idle
+        # alternative technique, is the solver's tolerance, not a negative plan
+        own = np.max(np.abs(np.vstack([s.output, s.starts, cap])), axis=0)
+        sector = np.zeros(d.n)
+        np.maximum.at(sector, d.tech_sector, own)
+        size = np.tile(sector[d.tech_sector], d.T)
         checks = [
             Check("capacity", (s.output - d.util * cap[:-1]).ravel(),
                   (np.abs(s.output) + d.util * np.abs(cap[:-1])).ravel(),
@@ -49,9 +57,9 @@ class Capacity(Condition):
             Check("reported capacity", np.abs(s.capacity - cap).ravel(), np.abs(cap).ravel(),
                   [("capacity in service", y, c) for y in [*d.years, d.years[-1] + 1]
                    for c in d.tech_names], np.tile(np.arange(d.m), d.T + 1)),
-            Check("non-negative output", -s.output.ravel(), np.abs(s.output).ravel(),
+            Check("non-negative output", -s.output.ravel(), size,
                   [("output", *g) for g in grid], groups),
-            Check("non-negative starts", -s.starts.ravel(), np.abs(s.starts).ravel(),
+            Check("non-negative starts", -s.starts.ravel(), size,
                   [("starts", *g) for g in grid], groups)]
         for j, rows, at_most in d.ceilings:
             got = s.starts[rows, j]

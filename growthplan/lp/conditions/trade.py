@@ -92,6 +92,7 @@ class TradeBounds(Condition):
                              np.where(np.isfinite(side.ceilings), flows - side.ceilings,
                                       -np.inf).ravel(),
                              (np.abs(flows) + ceil).ravel(), labels, groups))
-            out.append(Check(f"non-negative {word}s", -flows.ravel(), np.abs(flows).ravel(),
-                             labels, groups))
+            # judged against the good's largest flow over the plan, as capacity's signs are
+            size = np.tile(np.max(np.abs(flows), axis=0), d.T)
+            out.append(Check(f"non-negative {word}s", -flows.ravel(), size, labels, groups))
         return out
