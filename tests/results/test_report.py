@@ -309,6 +309,34 @@ def test_a_browser_renders_the_report(demo, tmp_path):
     assert float(np.std(pixels[..., :3])) > 0.05  # not a blank page
 
 
+# a probe added to a copy of the report (the report itself holds no script)
+WIDTH_PROBE = (
+    "<script>document.title = JSON.stringify({page: document.documentElement.scrollWidth, "
+    "view: document.documentElement.clientWidth, wide: Array.from("
+    "document.querySelectorAll('.scroll')).filter(d => d.scrollWidth > d.clientWidth)"
+    ".map(d => (d.querySelector('caption') || {}).textContent || '?')});</script>")
+
+
+@pytest.mark.skipif(CHROMIUM is None, reason="no chromium installed")
+def test_every_table_fits_a_1280_pixel_window(demo, tmp_path):
+    import json
+
+    page = tmp_path / "probe.html"
+    page.write_text(render(demo, charts=False).replace("</body>", WIDTH_PROBE + "</body>"),
+                    encoding="utf-8")
+    proc = subprocess.run(
+        [CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
+         "--no-first-run", "--disable-background-networking", "--disable-component-update",
+         "--disable-sync", f"--user-data-dir={tmp_path / 'profile'}", "--window-size=1280,2000",
+         "--dump-dom", page.resolve().as_uri()],
+        capture_output=True, text=True, timeout=120, check=False)
+    title = re.search(r"<title>(.*?)</title>", proc.stdout, re.S)
+    assert title is not None, proc.stderr[-2000:]
+    found = json.loads(html.unescape(title.group(1)))
+    assert found["wide"] == []  # no table needs a sideways scroll
+    assert found["page"] <= found["view"]
+
+
 def cli(*args, cwd: Path) -> subprocess.CompletedProcess:
     return subprocess.run([sys.executable, "-m", "growthplan.cli", *map(str, args)],
                           cwd=cwd, capture_output=True, text=True, timeout=300, check=False)
