@@ -439,9 +439,9 @@ class Economy(Model):
             if lab.ndim != 2 or lab.shape[1] != n:
                 raise Rule(f"have one column per sector ({n})", f"shape {lab.shape}",
                            field="labour_coefficients")
-            _nonneg(lab, "labour_coefficients", self.names)
             kinds = self.labour_kinds or (["labour"] if lab.shape[0] == 1 else
                                           [f"labour_{i}" for i in range(lab.shape[0])])
+            _nonneg(lab, "labour_coefficients", self.names, [str(k) for k in kinds])
             if len(kinds) != lab.shape[0] or len(set(kinds)) != len(kinds):
                 raise Rule(f"name each of the {lab.shape[0]} labour kinds once", kinds,
                            field="labour_kinds")
@@ -855,9 +855,16 @@ def _drop_tiny(m: np.ndarray, field: str, rows: list[str], cols: list[str],
     return out
 
 
-def _nonneg(m: np.ndarray, field: str, names: list[str]) -> None:
+def _nonneg(m: np.ndarray, field: str, names: list[str],
+            rows: list[str] | None = None) -> None:
+    """Refuse a negative entry, naming its cell by labels: ``field[row, sector]``.
+
+    ``names`` label the last axis (sectors); ``rows`` the first axis of a
+    matrix (commodities, the same names, by default; labour kinds for labour).
+    """
     if np.any(m < 0):
         pos = np.argwhere(m < 0)[0]
-        where = ", ".join(names[p] if i == m.ndim - 1 and p < len(names) else str(p)
-                          for i, p in enumerate(pos))
-        raise Rule("be >= 0", f"{m[tuple(pos)]} at [{where}]", field=field)
+        labels = [names] if m.ndim == 1 else [names if rows is None else rows, names]
+        where = ", ".join(str(lab[p]) if p < len(lab) else str(p)
+                          for lab, p in zip(labels, pos, strict=False))
+        raise Rule("be >= 0", float(m[tuple(pos)]), field=f"{field}[{where}]")

@@ -54,8 +54,9 @@ def series(value: Any, years: list[int], field: str, growth: float = 0.0) -> np.
         One finite, non-negative value per plan year.
     """
     t = np.arange(len(years), dtype=float)
-    if isinstance(value, int | float | np.integer | np.floating) and not isinstance(
-            value, bool | np.bool_):
+    scalar = isinstance(value, int | float | np.integer | np.floating) and not isinstance(
+        value, bool | np.bool_)
+    if scalar:
         with np.errstate(over="ignore", invalid="ignore"):
             out = float(value) * (1.0 + growth) ** t
     elif isinstance(value, dict | pd.Series):
@@ -64,7 +65,7 @@ def series(value: Any, years: list[int], field: str, growth: float = 0.0) -> np.
             y = _year(k, field)
             if y in items:
                 raise Rule("give each year once", k, field=field)
-            items[y] = _number(v, f"{field}.{y}")
+            items[y] = _number(v, f"{field}[{y}]")
         unknown = [y for y in items if y not in years]
         if unknown:
             raise Rule(f"give values for plan years {years[0]}..{years[-1]} only", unknown[:5],
@@ -80,10 +81,15 @@ def series(value: Any, years: list[int], field: str, growth: float = 0.0) -> np.
             seq = list(value)
         except TypeError:
             raise Rule(RULE, value, field=field) from None
-        out = np.array([_number(v, f"{field}.{i}") for i, v in enumerate(seq)], dtype=float)
-        if out.shape != (len(years),):
-            raise Rule(f"have one value per plan year ({len(years)})", f"{out.size} values",
+        if len(seq) != len(years):  # first, so every entry below has its year
+            raise Rule(f"have one value per plan year ({len(years)})", f"{len(seq)} values",
                        field=field)
-    if not np.all(np.isfinite(out)) or np.any(out < 0):
-        raise Rule("hold finite values >= 0", value, field=field)
+        out = np.array([_number(v, f"{field}[{y}]") for y, v in zip(years, seq, strict=True)],
+                       dtype=float)
+    bad = ~np.isfinite(out) | (out < 0)
+    if bad.any():
+        if scalar:  # a number grown out of range is the number's fault, not one year's
+            raise Rule("hold finite values >= 0", value, field=field)
+        i = int(np.argmax(bad))
+        raise Rule("hold finite values >= 0", float(out[i]), field=f"{field}[{years[i]}]")
     return out

@@ -123,6 +123,39 @@ def test_bad_input_names_the_field(field, bad):
     assert "must" in str(err.value) and "Got" in str(err.value)
 
 
+@pytest.mark.parametrize(("bad", "says"), [
+    (dict(input_coefficients=[[0.1, 0.2], [-0.1, 0.1]]),
+     "input_coefficients[food, farm] must be >= 0. Got -0.1."),
+    (dict(capital_coefficients=[[0.1, -2.0], [0.0, 0.1]]),
+     "capital_coefficients[farm, food] must be >= 0. Got -2.0."),
+    (dict(labour_coefficients=pd.DataFrame([[1.0, 2.0], [3.0, -1.0]], index=["skilled", "other"],
+                                           columns=["farm", "food"])),
+     "labour_coefficients[other, food] must be >= 0. Got -1.0."),
+    (dict(wage_basket=[1.0, -1.0], labour_coefficients=[[1.0, 1.0]]),
+     "wage_basket[food] must be >= 0. Got -1.0."),
+])
+def test_a_negative_entry_is_named_by_its_labels(bad, says):
+    kwargs = dict(sectors=["farm", "food"], input_coefficients=[[0.1, 0.2], [0.1, 0.1]])
+    kwargs.update(bad)
+    with pytest.raises(gp.InvalidInput) as err:
+        gp.Economy(**kwargs)
+    assert str(err.value) == says
+
+
+def test_a_negative_capital_stock_is_named_in_the_stocks_table():
+    flows = pd.DataFrame([[10.0, 20.0], [5.0, 10.0]], index=["farm", "food"],
+                         columns=["farm", "food"])
+    stocks = pd.DataFrame([[50.0, 40.0], [-3.0, 80.0]], index=["farm", "food"],
+                          columns=["farm", "food"])
+    capital = {n: dict(initial_capacity=120.0, mean_service_life=15) for n in ("farm", "food")}
+    with pytest.raises(gp.InvalidInput) as err:
+        gp.Economy.from_flows(flows, pd.Series({"farm": 100.0, "food": 100.0}),
+                              capital=capital, capital_stocks=stocks)
+    # the user wrote the stock, not the coefficient derived from it
+    assert str(err.value) == ("capital_stocks[food, farm] must be a finite capital stock >= 0. "
+                              "Got -3.0.")
+
+
 @pytest.mark.parametrize("sectors", [["a", "a"], ["a", " "], [], "ab", [1, 2]])
 def test_bad_sector_names(sectors):
     with pytest.raises(gp.InvalidInput, match="sectors"):

@@ -406,11 +406,15 @@ def _depth_exceeds(data: Any, limit: int) -> bool:
     return False
 
 
-def _line_of(root: Node | None, path: list[str]) -> int | None:
-    """Line (1-based) of a dotted field in the YAML node tree, where it can tell."""
+def _line_of(root: Node | None, path: list[str], first_year: int | None = None) -> int | None:
+    """Line (1-based) of a dotted field in the YAML node tree, where it can tell.
+
+    A part ``name[key]`` is ``name`` then ``key``: a mapping's key, or the year
+    of a per-year list (its position counted from ``first_year``).
+    """
     node = root
     line = None
-    for part in path:
+    for part, year in _parts(path):
         if isinstance(node, MappingNode):
             nxt = None
             for k, v in node.value:
@@ -420,13 +424,27 @@ def _line_of(root: Node | None, path: list[str]) -> int | None:
             if nxt is None:
                 return line
             node = nxt
-        elif isinstance(node, SequenceNode) and part.isdigit() and int(part) < len(
-                node.value):
-            node = node.value[int(part)]
+        elif isinstance(node, SequenceNode) and part.isdigit():
+            i = int(part) - (first_year or 0) if year else int(part)
+            if not 0 <= i < len(node.value) or (year and first_year is None):
+                return line
+            node = node.value[i]
             line = node.start_mark.line + 1
         else:
             return line
     return line
+
+
+def _parts(path: list[str]) -> list[tuple[str, bool]]:
+    """Dotted parts with ``name[key]`` split in two; True marks a bracketed key."""
+    out: list[tuple[str, bool]] = []
+    for part in path:
+        name, bracket, key = part.partition("[")
+        if bracket and key.endswith("]"):
+            out += [(name, False), (key[:-1], True)]
+        else:
+            out.append((part, False))
+    return out
 
 
 def _read(path: Path) -> tuple[dict[str, Any], Node | None]:
@@ -470,10 +488,11 @@ def _read(path: Path) -> tuple[dict[str, Any], Node | None]:
 
 
 def _located(exc: InvalidInput, path: Path, node: Node | None,
-             prefix: list[str]) -> InvalidInput:
+             prefix: list[str], years: Any = None) -> InvalidInput:
     field = exc.field or ""
     parts = prefix + [p for p in field.split(".") if p]
-    line = _line_of(node, parts)
+    first = years[0] if isinstance(years, list) and years and _whole(years[0]) else None
+    line = _line_of(node, parts, first)
     where = f"{path}" + (f", line {line}" if line else "")
     head, *items = str(exc).split("\n  ")  # several problems: each item gets the prefix
     lead = ".".join(prefix) + "." if prefix else ""
@@ -596,7 +615,7 @@ def load_plan_file(path: str | os.PathLike[str], *,
     try:
         plan = Plan(economy=econ, **fields)
     except InvalidInput as exc:
-        raise _located(exc, path, node, ["plan"]) from None
+        raise _located(exc, path, node, ["plan"], fields.get("years")) from None
     except TypeError as exc:
         raise InvalidInput(f"{path}: plan: {show(str(exc))[1:-1]}", field="plan") from None
     if spec.uncertainty is not None:

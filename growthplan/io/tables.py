@@ -53,6 +53,8 @@ CAPITAL_COLUMNS = set(CapitalSpec.model_fields)
 
 TABLE_MAX_BYTES = 64 << 20
 """Largest table file read (64 MB): a 1,000-sector table at full precision is ~20 MB."""
+_FLOW_RULE = "be a finite flow >= 0 (a blank cell reads as 0)"
+
 TABLE_MAX_CELLS = 4_000_000
 """Most cells read from one workbook sheet (a compressed workbook can expand a lot)."""
 
@@ -233,6 +235,23 @@ def _numeric(frame: pd.DataFrame, what: str) -> pd.DataFrame:
     return pd.DataFrame(numbers, index=frame.index, columns=frame.columns)
 
 
+def _named(what: str, source: Any) -> str:
+    """``what`` with the file it was read from, when it was read from one."""
+    return f"{what} ({Path(source).name})" if isinstance(source, str | os.PathLike) else what
+
+
+def _nonnegative_cells(frame: pd.DataFrame, what: str, rule: str) -> None:
+    """Refuse a table with a negative or non-finite cell, naming its first such cell."""
+    z = frame.to_numpy(dtype=float)
+    bad = ~np.isfinite(z) | (z < 0)
+    if bad.any():
+        r, c = np.argwhere(bad)[0]
+        more = int(bad.sum()) - 1
+        extra = f" ({more} more cell(s) break this)" if more else ""
+        raise invalid(f"{what}[{frame.index[r]}, {frame.columns[c]}]", rule + extra,
+                      float(z[r, c]))
+
+
 class TransactionsTable:
     """An input–output transactions table in flows.
 
@@ -302,9 +321,7 @@ class TransactionsTable:
         self.final_demand = None if final_demand is None else self._final(final_demand)
         self.value_added = None if value_added is None else self._vector(value_added,
                                                                          "value_added")
-        z = self.flows.to_numpy()
-        if not np.all(np.isfinite(z)) or np.any(z < 0):
-            raise invalid("flows", "hold finite flows >= 0", "a negative or missing flow")
+        _nonnegative_cells(self.flows, "flows", _FLOW_RULE)
         x = self.gross_output.to_numpy()
         zero = [n for n, v in zip(self.names, x, strict=True) if not v > 0]
         if zero:
@@ -532,7 +549,10 @@ def capital_coefficients_from_stocks(stocks: pd.DataFrame, capacity: pd.Series) 
     DataFrame
         Capital coefficients, commodities × sectors.
     """
-    stocks = _numeric(read_frame(stocks, what="capital_stocks"), "capital_stocks").fillna(0.0)
+    what = _named("capital_stocks", stocks)
+    stocks = _numeric(read_frame(stocks, what="capital_stocks"), what).fillna(0.0)
+    # checked here, where the user's cell is known, rather than on the coefficient
+    _nonnegative_cells(stocks, what, "be a finite capital stock >= 0")
     names = list(capacity.index)
     try:
         cols = align_labels(stocks.columns, names, "capital_stocks", "column")
@@ -622,7 +642,9 @@ def read_transactions(source: Any) -> TransactionsTable:
     fd_cols = [c for c in frame.columns if c.lower().startswith("final_demand")]
     sector_cols = [c for c in frame.columns if c not in fd_cols]
     body = frame.drop(index=special)
-    flows = body[sector_cols]
+    what = _named("flows", source)
+    flows = _numeric(body[sector_cols], what)
+    _nonnegative_cells(flows.fillna(0.0), what, _FLOW_RULE)  # named with its file
     gross = frame.loc[lower["gross_output"], sector_cols]
     lab_rows = [i for i in special if str(i).lower().startswith("labour")]
     labour = None

@@ -343,6 +343,9 @@ h2 { font-size:18px; border-bottom:2px solid var(--accent); padding-bottom:3px;
 .verdict { border-left:5px solid var(--bad); background:#f7e9e6; padding:8px 14px; }
 .note { color:var(--muted); font-size:13px; }
 .scroll { overflow-x:auto; }
+table.years thead th { white-space:normal; vertical-align:bottom; width:5.5em; }
+.side { display:flex; flex-wrap:wrap; gap:0 36px; align-items:flex-start; }
+.side > div { flex:none; }
 table { border-collapse:collapse; margin:4px 0 8px; font-size:13.5px; }
 caption { text-align:left; color:var(--muted); font-size:13px; padding-bottom:3px; }
 th, td { padding:3px 9px; border-bottom:1px solid var(--rule); vertical-align:top; }
@@ -372,14 +375,17 @@ def _table(frame: pd.DataFrame, *, caption: str = "", index: bool = True,
            ratios: Iterable[object] = ()) -> str:
     """A frame as an HTML table, numbers formatted per column (percents for shares)."""
     ratio_cols = set(ratios) | {c for c in frame.columns if _is_ratio(c)}
+    floats = [c for c in frame.columns if pd.api.types.is_float_dtype(frame[c])]
+    # one number format for the whole table, so columns read alike
+    plain = frame[[c for c in floats if c not in ratio_cols]].to_numpy(dtype=float).ravel()
+    plain = plain[np.isfinite(plain)]
+    dec = decimals_for(plain)
+    top = float(np.abs(plain).max()) if plain.size else 1.0
     fmt: dict[object, tuple[int, float]] = {}
-    for c in frame.columns:
-        col = frame[c]
-        if pd.api.types.is_float_dtype(col):
-            vals = col.to_numpy(dtype=float)
-            finite = vals[np.isfinite(vals)]
-            scale = float(np.abs(finite).max()) if finite.size else 1.0
-            fmt[c] = (decimals_for(finite), scale)
+    for c in floats:
+        vals = frame[c].to_numpy(dtype=float)
+        finite = vals[np.isfinite(vals)]
+        fmt[c] = (dec, float(np.abs(finite).max()) if finite.size and c in ratio_cols else top)
     head = "".join(f"<th>{_e(c)}</th>" if c in fmt else f'<th class="text">{_e(c)}</th>'
                    for c in frame.columns)
     if index:
@@ -406,8 +412,8 @@ def _table(frame: pd.DataFrame, *, caption: str = "", index: bool = True,
             f"<tbody>{''.join(rows)}</tbody></table></div>")
 
 
-def _charts(result: PlanResult) -> tuple[list[tuple[str, str]], str]:
-    """The standard charts as (caption, data URI) pairs, and a note when there are none."""
+def _charts(result: PlanResult) -> tuple[list[tuple[str, str, str]], str]:
+    """The standard charts as (title, data URI, what to read), and a note when there are none."""
     try:
         from matplotlib.figure import Figure
     except ImportError:
@@ -415,9 +421,9 @@ def _charts(result: PlanResult) -> tuple[list[tuple[str, str]], str]:
                     "(pip install 'growthplan[plot]').")
     from .. import plot
 
-    draw = [(caption, fn) for _, caption, fn in plot.chart_list(result)]
+    draw = [(name, caption, fn) for name, caption, fn in plot.chart_list(result)]
     out, failed = [], []
-    for caption, fn in draw:
+    for name, caption, fn in draw:
         fig = Figure(figsize=(9, 4.5), layout="constrained")
         try:
             fn(fig.add_subplot())
@@ -427,9 +433,34 @@ def _charts(result: PlanResult) -> tuple[list[tuple[str, str]], str]:
             failed.append(caption)
             continue
         uri = "data:image/png;base64," + base64.b64encode(buf.getvalue()).decode("ascii")
-        out.append((caption, uri))
+        out.append((caption, uri, _READING.get(name, "")))
     note = f"Could not draw: {', '.join(failed)}." if failed else ""
     return out, note
+
+
+# what to read in each chart (its title is drawn in the image and kept as its alt text)
+_READING = {
+    "output": "Read the turning points: a line turns up when new capacity enters service "
+              "after its lead time and levels off when capacity or inputs run short.",
+    "capacity": "Steep climbs are the sectors the plan builds up; the shaded last year is "
+                "the capacity handed on after the plan.",
+    "starts": "When the plan begins new capacity and in which sectors: the early bars are the "
+              "investment the later output rests on.",
+    "labour": "Where the used line meets the available one, labour limits the plan (see "
+              "Bottlenecks); a gap is labour to spare.",
+    "consumption": "Years on the floor are years when consumption is held at its minimum so "
+                   "that more can be invested.",
+    "targets": "A bar at 100 % is a target that binds; a longer bar is met with room to "
+               "spare, a shorter one is missed.",
+    "utilisation": "Cells at 100 % are capacity that limits output in that year; lower "
+                   "values are capacity standing partly idle.",
+    "shadow_prices": "Rising values mark commodities growing scarce; values near zero are "
+                     "commodities in surplus in that year.",
+    "ray_distance": "A falling line is the plan's mix of capacities moving toward the "
+                    "proportions of balanced growth.",
+    "diagnosis": "The longest bars are the conditions that fall furthest short of what they "
+                 "ask.",
+}
 
 
 def _charts_section(result: PlanResult, charts: bool) -> str:
@@ -438,7 +469,8 @@ def _charts_section(result: PlanResult, charts: bool) -> str:
                 "this report.</p></section>")
     pics, note = _charts(result)
     figs = "".join(f'<figure><img src="{uri}" alt="{_e(cap)}">'
-                   f"<figcaption>{_e(cap)}</figcaption></figure>" for cap, uri in pics)
+                   + (f"<figcaption>{_e(read)}</figcaption>" if read else "") + "</figure>"
+                   for cap, uri, read in pics)
     note_html = f'<p class="note">{_e(note)}</p>' if note else ""
     return f"<section><h2>Charts</h2>{note_html}{figs}</section>"
 
@@ -516,7 +548,8 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
                                  index=pd.Index(list(per_year), name="year"))
             parts.append("<section><h2>Bottlenecks</h2><p>The three conditions worth most "
                          "per unit of base-year value in each year: more of them would "
-                         "raise the objective most.</p>" + _table(table) + "</section>")
+                         "raise the objective most.</p>" + _table(table)
+                         + _end_effect(result, b, dec) + "</section>")
         parts.append(_charts_section(result, charts))
         money = result.shadow_prices_money
         parts.append("<section><h2>Shadow prices in base-year money</h2>"
@@ -543,6 +576,22 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
             + "".join(parts) + "</body></html>\n")
 
 
+def _end_effect(result: PlanResult, b: pd.DataFrame, dec: int) -> str:
+    """One sentence on a jump of the bottleneck values in the last plan year, or ""."""
+    top = b.groupby("year")["per_value"].max()
+    if len(top) < 2 or int(top.index[-1]) != int(result.plan.years[-1]):
+        return ""
+    last, before = float(top.iloc[-1]), float(top.iloc[-2])
+    if not last > 1.5 * max(before, 0.0):
+        return ""
+    why = ("the terminal condition" if result.plan.terminal is not None
+           else "the plan's end")
+    return (f'<p class="note">The jump in {int(top.index[-1])} (up to {_text(last, dec)} '
+            f"against {_text(before, dec)} in {int(top.index[-2])}) is an end effect of "
+            f"{why}: values in the last plan year carry the whole future after the plan, "
+            "so compare the earlier years with one another rather than with the last.</p>")
+
+
 def _binding(condition: str, name: str) -> str:
     """"metals balance", "metals capacity", "labour supply" (a bottleneck in words)."""
     if condition == "labour":
@@ -561,24 +610,40 @@ def _account_name(result: PlanResult, column: str) -> str:
     return name
 
 
+# the accounts' aggregates of output and its uses, as :func:`_account_name` words them
+_FLOWS = ("gross output", "intermediate use", "GDP", "investment", "consumption",
+          "exogenous demand", "exports", "imports", "disposal")
+
+
 def _accounts(acc: pd.DataFrame, unit: str) -> str:
-    """The accounts with measures as rows and years as columns (shares in percent)."""
-    t = acc.T
-    t.index.name = f"{unit}"
-    t.columns = [str(c) for c in t.columns]
+    """The accounts with years as rows, in tables narrow enough for a page: output and
+    its uses, the other levels, then shares and growth; each has one number format."""
+    rates = [c for c in acc.columns if _is_ratio(c)]
+    flows = [c for c in acc.columns if c in _FLOWS]
+    other = [c for c in acc.columns if c not in rates and c not in flows]
+    return (_years_table(acc[flows], f"Output and its uses, {unit}", ratio=False)
+            + '<div class="side">'
+            + _years_table(acc[other], f"Per head, retirements ({unit}) and employment",
+                           ratio=False)
+            + _years_table(acc[rates], "Shares and growth, in percent", ratio=True) + "</div>")
+
+
+def _years_table(t: pd.DataFrame, caption: str, *, ratio: bool) -> str:
+    if t.empty:
+        return ""
+    vals = t.to_numpy(dtype=float)
+    finite = vals[np.isfinite(vals)]
+    scale = float(np.abs(finite).max()) if finite.size else 1.0
+    # whole units for large aggregates keep a row short; one format for every column
+    dec = 0 if scale >= 10_000 else 1 if scale >= 100 else 2
     head = "".join(f"<th>{_e(c)}</th>" for c in t.columns)
     rows = []
-    for name, row in t.iterrows():
-        vals = row.to_numpy(dtype=float)
-        finite = vals[np.isfinite(vals)]
-        scale = float(np.abs(finite).max()) if finite.size else 1.0
-        # whole units for large aggregates keep fifteen years on one screen
-        dec = 0 if scale >= 10_000 else 1 if scale >= 100 else 2
-        cells = "".join(f'<td class="num">{_e(_text(v, dec, ratio=_is_ratio(name), scale=scale))}'
-                        "</td>" for v in vals)
-        rows.append(f"<tr><th>{_e(name)}</th>{cells}</tr>")
-    return (f'<div class="scroll"><table><caption>{_e(unit)}; shares and growth in percent'
-            f"</caption><thead><tr><th>measure</th>{head}</tr></thead>"
+    for year, row in zip(t.index, vals, strict=True):
+        cells = "".join(f'<td class="num">{_e(_text(v, dec, ratio=ratio, scale=scale))}</td>'
+                        for v in row)
+        rows.append(f"<tr><th>{_e(year)}</th>{cells}</tr>")
+    return (f'<div class="scroll"><table class="years"><caption>{_e(caption)}</caption>'
+            f"<thead><tr><th>year</th>{head}</tr></thead>"
             f"<tbody>{''.join(rows)}</tbody></table></div>")
 
 

@@ -90,6 +90,7 @@ class Case:
     allow_outside: bool = False
     expect: str | None = None  # "loaded", "refused", or None when either is right
     check: Callable[[gp.Plan], None] | None = None
+    says: str | None = None  # a refusal's message holds this (the cell it names)
     base: dict[str, str | bytes] = field(default_factory=base_files)
 
     @property
@@ -480,6 +481,37 @@ add("xlsx", "old .xls", files={**with_plan(edit(("economy", "flows"), "flows.xls
                                "flows.xls": b"\xd0\xcf\x11\xe0junk"}, expect="refused")
 
 
+# -- family: a bad cell is named by its labels, its file and its value ------------------------
+
+def _year_list(value) -> str:
+    data = plan_dict()
+    data["plan"]["final_demand"] = {"c": [5.0, 5.0, 5.0, value, 5.0, 5.0]}
+    return dump(data)
+
+
+def _year_map(value) -> str:
+    data = plan_dict()
+    data["plan"]["final_demand"] = {"c": {2030 + i: value if i == 3 else 5.0 for i in range(6)}}
+    return dump(data)
+
+
+for name, files, says in [
+        ("negative flow", {"flows.csv": flows_csv().replace("b,5,10,20", "b,5,-10,20")},
+         "flows (flows.csv)[b, b] must be a finite flow >= 0 (a blank cell reads as 0). "
+         "Got -10.0."),
+        ("infinite flow", {"flows.csv": flows_csv().replace("c,0,5,10", "c,0,5,inf")},
+         "flows (flows.csv)[c, c] must be a finite flow >= 0"),
+        ("negative capital stock", {"stocks.csv": stocks_csv().replace("b,100,80", "b,100,-80")},
+         "capital_stocks (stocks.csv)[b, b] must be a finite capital stock >= 0. Got -80.0."),
+        ("negative year in a list", with_plan(_year_list(-4.0)),
+         "line 25: plan.final_demand.c[2033] must hold finite values >= 0. Got -4.0."),
+        ("text year in a list", with_plan(_year_list("x")),
+         "line 25: plan.final_demand.c[2033] must hold numbers. Got 'x'."),
+        ("negative year in a mapping", with_plan(_year_map(-4.0)),
+         "line 25: plan.final_demand.c[2033] must hold finite values >= 0. Got -4.0.")]:
+    add("cells named", name, files=files, expect="refused", says=says)
+
+
 # -- the test --------------------------------------------------------------------------------
 
 class CaseTimeout(BaseException):
@@ -531,6 +563,8 @@ def test_hostile_file(case: Case, tmp_path: Path):
         assert case.plan.split(".")[0] in message or "flows" in message, message
     if case.expect is not None:
         assert outcome == case.expect, message or "loaded"
+    if case.says is not None:
+        assert case.says in message, message
     if plan is not None:
         assert isinstance(plan, gp.Plan) and np.all(np.isfinite(
             plan.economy.input_coefficients))

@@ -410,9 +410,11 @@ HOSTILE_MESSAGES = {  # name: (change, the message from the field on)
     "text in the capital table": (_cell("capital.csv", "mining", "initial_capacity", "big"),
                                   "capital.mining.initial_capacity must be a number. Got 'big'."),
     "text in the flows table": (_cell("flows.csv", "energy", "food", "lots"),
-                                "flows[energy, food] must be a number. Got 'lots'."),
+                                "flows (bad_flows.csv)[energy, food] must be a number. "
+                                "Got 'lots'."),
     "text in the stocks table": (_cell("capital_stocks.csv", "energy", "food", "x"),
-                                 "capital_stocks[energy, food] must be a number. Got 'x'."),
+                                 "capital_stocks (bad_capital_stocks.csv)[energy, food] must be a "
+                                 "number. Got 'x'."),
 }
 PYDANTIC_WORDS = ("Input should", "input should", "input tag", "found using", "valid number",
                   "unable to", "Value error", "value error", "discriminator", "dictionary or "

@@ -127,7 +127,7 @@ def test_sector_labels_that_look_missing_are_kept(tmp_path, label):
 def test_a_missing_value_word_in_a_cell_is_not_zero(tmp_path, cell):
     p = tmp_path / "flows.csv"
     p.write_text(flows_text().replace("s1,150", f"s1,{cell}"))
-    with pytest.raises(gp.InvalidInput, match=r"flows\[s1, s1\] must be a number"):
+    with pytest.raises(gp.InvalidInput, match=r"flows \(flows\.csv\)\[s1, s1\] must be a number"):
         gp.Economy.from_tables(p)
 
 

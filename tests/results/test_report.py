@@ -11,6 +11,7 @@ import shutil
 import stat
 import subprocess
 import sys
+from dataclasses import dataclass, field
 from html.parser import HTMLParser
 from pathlib import Path
 
@@ -58,6 +59,55 @@ class StrictChecker(HTMLParser):
             self.errors.append(f"</{tag}> closes {self.stack[-1:] or 'nothing'}")
         else:
             self.stack.pop()
+
+
+@dataclass
+class Table:
+    caption: str = ""
+    head: list[str] = field(default_factory=list)
+    rows: list[list[str]] = field(default_factory=list)
+
+
+class TableReader(HTMLParser):
+    """Each table's caption, head cells and body rows, as the text a reader sees."""
+
+    def __init__(self) -> None:
+        super().__init__(convert_charrefs=True)
+        self.tables: list[Table] = []
+        self.cell: list[str] | None = None
+        self.part = ""
+
+    def handle_starttag(self, tag: str, attrs: list) -> None:
+        if tag == "table":
+            self.tables.append(Table())
+        elif tag in ("thead", "tbody"):
+            self.part = tag
+        elif tag == "tr" and self.part == "tbody":
+            self.tables[-1].rows.append([])
+        if tag in ("caption", "th", "td"):
+            self.cell = []
+
+    def handle_data(self, data: str) -> None:
+        if self.cell is not None:
+            self.cell.append(data)
+
+    def handle_endtag(self, tag: str) -> None:
+        if tag not in ("caption", "th", "td") or self.cell is None:
+            return
+        text, self.cell = "".join(self.cell), None
+        t = self.tables[-1]
+        if tag == "caption":
+            t.caption = text
+        elif self.part == "thead":
+            t.head.append(text)
+        else:
+            t.rows[-1].append(text)
+
+
+def tables(doc: str) -> list[Table]:
+    reader = TableReader()
+    reader.feed(doc)
+    return reader.tables
 
 
 def check_html(doc: str) -> None:
@@ -122,14 +172,16 @@ def test_demo_report(demo, tmp_path):
     assert "million arvens at 2026 prices" in doc and "thousand person-years" in doc
     assert "National accounts at base-year prices" in doc
     gdp = demo.accounts["gdp"]
-    assert f"<th>GDP</th><td class=\"num\">{gdp.iloc[0]:,.0f}</td>" in doc
+    uses = next(t for t in tables(doc) if t.caption.startswith("Output and its uses"))
+    assert uses.rows[0][0] == "2027" and uses.rows[0][uses.head.index("GDP")] == \
+        f"{gdp.iloc[0]:,.0f}"
     assert html.escape(demo.shadow_prices_money.attrs["note"]) in doc
     assert "Bottlenecks" in doc and demo.bottlenecks(top=1)["name"].iloc[0] in doc
     assert doc.count("<img src=\"data:image/png;base64,") == 9  # matplotlib is a dev extra
-    for caption in ("Consumption level against its floor", "Targets: reached against required",
-                    "Utilisation of capacity by sector and year",
-                    "Shadow prices in base-year money"):
-        assert f"<figcaption>{caption}</figcaption>" in doc
+    for title in ("Consumption level against its floor", "Targets: reached against required",
+                  "Utilisation of capacity by sector and year",
+                  "Shadow prices in base-year money"):
+        assert f'alt="{title}"' in doc
     assert "Could not draw" not in doc
     assert "met</td>" in doc
     assert "http" not in without_data(doc)  # nothing fetched from the network
@@ -141,6 +193,64 @@ def test_demo_report(demo, tmp_path):
     assert [c for c in cells if c.startswith("−") and not c.strip("−0.,% ")] == []  # no -0
     with pytest.raises(gp.InvalidInput, match="overwrite"):
         demo.report(path)
+
+
+NUMBER = re.compile(r"(−?)\d{1,3}(?:,\d{3})*(?:\.(\d+))?( %)?")
+
+
+def test_each_table_has_one_number_format(demo):
+    doc = render(demo, charts=False)
+    found = tables(doc)
+    assert len(found) >= 6
+    for t in found:
+        formats = {}
+        for row in t.rows:
+            for cell in row[1:]:  # the first cell names the row (a sector, a year)
+                m = NUMBER.fullmatch(cell)
+                if m is None:
+                    continue
+                sign, decimals, percent = m.groups()
+                # common practice: a value shown as zero carries no sign
+                assert not (sign and not cell.strip("−0.,% ")), (t.caption, cell)
+                formats.setdefault(bool(percent), set()).add(len(decimals or ""))
+        assert all(len(f) == 1 for f in formats.values()), (t.caption, t.head, formats)
+    prices = next(t for t in found if t.head[1:] == demo.plan.economy.names)
+    cells = [c for row in prices.rows for c in row[1:]]
+    assert len(cells) == 150 and {len(c.split(".")[1]) for c in cells} == {3}
+    assert "0.000" in cells  # the solver's 1e-11 noise shows as a plain zero
+
+
+def test_accounts_have_years_as_rows_and_few_columns(demo):
+    found = [t for t in tables(render(demo, charts=False)) if t.head[:1] == ["year"]
+             and t.caption != ""]
+    accounts = [t for t in found if "percent" in t.caption or "arvens" in t.caption]
+    assert len(accounts) == 3
+    for t in accounts:
+        assert [r[0] for r in t.rows] == [str(y) for y in demo.plan.years]
+        assert len(t.head) <= 10  # year and at most nine measures: a page's width
+    heads = {h for t in accounts for h in t.head[1:]}
+    assert len(heads) == demo.accounts.shape[1]  # every measure is shown once
+
+
+def test_captions_say_what_to_read(demo):
+    doc = render(demo)
+    figures = re.findall(r'<figure><img src="[^"]*" alt="([^"]*)">(.*?)</figure>', doc)
+    assert len(figures) == 9
+    for title, rest in figures:
+        caption = re.fullmatch(r"<figcaption>(.*)</figcaption>", rest)
+        assert caption is not None, title
+        assert not caption.group(1).startswith(title.split(" (")[0]), title  # not the title
+
+
+def test_bottlenecks_explain_the_end_effect(demo):
+    doc = render(demo, charts=False)
+    top = demo.bottlenecks(top=3).groupby("year")["per_value"].max()
+    assert top.iloc[-1] > 4 * top.iloc[-2]  # the demo's last year jumps
+    assert (f"The jump in 2041 (up to {top.iloc[-1]:.3f} against {top.iloc[-2]:.3f} in 2040) "
+            "is an end effect of the terminal condition") in doc
+    bottlenecks = next(t for t in tables(doc) if t.head[:1] == ["year"] and
+                       t.head[1].startswith("binding conditions"))
+    assert len(bottlenecks.rows) == 15  # the last year is shown, not hidden
 
 
 def test_report_without_matplotlib(demo, monkeypatch):
@@ -165,7 +275,8 @@ def test_impossible_plan_report(impossible, tmp_path):
     assert "missed</td>" in doc
     assert html.escape(CAUTION) in doc
     assert doc.count("<img src=\"data:image/png;base64,") == 2  # targets and shortfalls
-    assert "<figcaption>Shortfalls of the impossible plan</figcaption>" in doc
+    assert 'alt="Shortfalls of the impossible plan"' in doc
+    assert "<figcaption>The longest bars are the conditions that fall furthest short" in doc
 
 
 def test_user_strings_are_escaped():
@@ -196,6 +307,34 @@ def test_a_browser_renders_the_report(demo, tmp_path):
     pixels = matplotlib.image.imread(shot)
     assert pixels.shape[:2] == (2000, 1280)
     assert float(np.std(pixels[..., :3])) > 0.05  # not a blank page
+
+
+# a probe added to a copy of the report (the report itself holds no script)
+WIDTH_PROBE = (
+    "<script>document.title = JSON.stringify({page: document.documentElement.scrollWidth, "
+    "view: document.documentElement.clientWidth, wide: Array.from("
+    "document.querySelectorAll('.scroll')).filter(d => d.scrollWidth > d.clientWidth)"
+    ".map(d => (d.querySelector('caption') || {}).textContent || '?')});</script>")
+
+
+@pytest.mark.skipif(CHROMIUM is None, reason="no chromium installed")
+def test_every_table_fits_a_1280_pixel_window(demo, tmp_path):
+    import json
+
+    page = tmp_path / "probe.html"
+    page.write_text(render(demo, charts=False).replace("</body>", WIDTH_PROBE + "</body>"),
+                    encoding="utf-8")
+    proc = subprocess.run(
+        [CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
+         "--no-first-run", "--disable-background-networking", "--disable-component-update",
+         "--disable-sync", f"--user-data-dir={tmp_path / 'profile'}", "--window-size=1280,2000",
+         "--dump-dom", page.resolve().as_uri()],
+        capture_output=True, text=True, timeout=120, check=False)
+    title = re.search(r"<title>(.*?)</title>", proc.stdout, re.S)
+    assert title is not None, proc.stderr[-2000:]
+    found = json.loads(html.unescape(title.group(1)))
+    assert found["wide"] == []  # no table needs a sideways scroll
+    assert found["page"] <= found["view"]
 
 
 def cli(*args, cwd: Path) -> subprocess.CompletedProcess:
