@@ -54,11 +54,13 @@ if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
     from .economy import Economy
+    from .plan import Plan
 
 __all__ = [
     "ActivityTable",
     "activity_table",
     "activity_table_from_economy",
+    "activity_table_from_plan",
     "VonNeumannChoice",
     "von_neumann_choice",
     "CheapestTechniques",
@@ -347,6 +349,51 @@ def activity_table_from_economy(economy: Economy,
                           capital=np.hstack(cols_k), depreciation=np.array(dep),
                           produces=prod, techniques=labels, commodities=names,
                           labour_kinds=kinds)
+
+
+def activity_table_from_plan(plan: Plan) -> ActivityTable:
+    """The activity table of a plan: its economy's techniques plus the plan's ``Technique``s.
+
+    The same description the plan's LP runs on (:func:`growthplan.technique_arrays`),
+    seen as a steady state: each technique is a column labelled by its key
+    (the sector's name for a base technique, ``"sector:label"`` for an
+    alternative), its capital goods are per unit of capacity, its
+    depreciation is ``1 / mean service life`` of its own capital spec (the
+    replacement rate at zero growth, as in :func:`activity_table_from_economy`),
+    and its by-products are outputs. Availability years are a matter of the
+    plan's calendar and are left out: every technique is in the table. The
+    coefficients are the base year's (technical change is not applied).
+
+    Parameters
+    ----------
+    plan : Plan
+        A plan; with no techniques the table equals
+        ``activity_table_from_economy(plan.economy)``.
+
+    Returns
+    -------
+    ActivityTable
+
+    Examples
+    --------
+    >>> import growthplan as gp
+    >>> plan = gp.demo_plan().model_copy(update={"techniques": [
+    ...     gp.Technique(sector="agriculture", label="mechanised", labour=0.1)]})
+    >>> gp.activity_table_from_plan(plan).techniques[-1]
+    'agriculture:mechanised'
+    """
+    from .technique import technique_arrays
+
+    economy = plan.economy
+    ts = technique_arrays(economy, list(plan.techniques))
+    names = list(economy.names)
+    kinds = list(economy.labour_kinds or ["labour"])
+    labour = ts.labour if ts.labour.shape[0] else np.zeros((1, ts.m))
+    depreciation = np.array([1.0 / spec.mean_service_life for spec in ts.specs])
+    return activity_table(ts.inputs, ts.outputs, labour=labour, capital=ts.capital,
+                          depreciation=depreciation,
+                          produces=[names[j] for j in ts.sector], techniques=ts.keys,
+                          commodities=names, labour_kinds=kinds)
 
 
 # -- von Neumann ---------------------------------------------------------------
