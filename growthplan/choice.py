@@ -934,8 +934,33 @@ def wage_profit_frontier(table: ActivityTable, profit_rates: ArrayLike | None = 
         numeraire=pd.Series(u, index=table.inputs.index, name="numeraire"))
 
 
+def _legend_labels(sets: list[str]) -> dict[str, str]:
+    """Each set named by the choices in which the sets differ ("agriculture: mechanised").
+
+    A set's name lists ``commodity:technique`` for every commodity; choices
+    shared by all sets are left out (with "others alike"), and a technique
+    labelled by its commodity (an economy's own) reads "base".
+    """
+    split = [name.split(", ") for name in sets]
+    common = set.intersection(*map(set, split)) if len(split) > 1 else set()
+
+    def word(entry: str) -> str:
+        commodity, _, tech = entry.partition(":")
+        tech = tech[len(commodity) + 1:] if tech.startswith(f"{commodity}:") else tech
+        return f"{commodity}: {'base' if tech == commodity else tech}"
+
+    out = {}
+    for name, entries in zip(sets, split, strict=True):
+        own = [e for e in entries if e not in common]
+        out[name] = ", ".join(map(word, own)) + ("; others alike" if common else "") \
+            if own else name
+    return out
+
+
 def plot_wage_profit(frontier: WageProfitFrontier, *, ax: Axes | None = None) -> Axes:
     """Chart the wage–profit frontier: one line style per technique set, switch points marked.
+
+    The legend names each set by the choices in which the sets drawn differ.
 
     Parameters
     ----------
@@ -955,12 +980,13 @@ def plot_wage_profit(frontier: WageProfitFrontier, *, ax: Axes | None = None) ->
     ax = _axes(ax)
     grid = frontier.table[~frontier.table["switch"]]
     order = list(dict.fromkeys(grid["techniques"]))
+    legend = _legend_labels(order)
     # one line per contiguous range, so a set that comes back is drawn twice in its style
     run = (grid["techniques"] != grid["techniques"].shift()).cumsum()
     for _, part in grid.groupby(run, sort=False):
         name = str(part["techniques"].iloc[0])
         first = part.index[0] == grid.index[grid["techniques"] == name][0]
-        ax.plot(part["profit_rate"], part["wage"], label=name if first else None,
+        ax.plot(part["profit_rate"], part["wage"], label=legend[name] if first else None,
                 **(_style(order.index(name)) | {"markersize": 2}))
     sw = frontier.switch_points
     if not sw.empty:

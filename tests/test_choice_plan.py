@@ -114,3 +114,19 @@ def test_a_phase_out_keeps_the_base_column_once():
                                                             last_start=2031)]))
     assert table.techniques == ["grain", "tools"]
     np.testing.assert_allclose(table.depreciation.to_numpy(), [0.1, 0.05])
+
+
+def test_the_frontier_legend_names_what_differs():
+    """The chart's legend names the sets by their choice for grain, the rest alike."""
+    pytest.importorskip("matplotlib")
+    import matplotlib.pyplot as plt
+
+    frontier = gp.wage_profit_frontier(gp.activity_table_from_plan(_plan([TECHNIQUES[0]])))
+    assert len(frontier.switch_points) == 1
+    ax = gp.plot_wage_profit(frontier)
+    try:
+        labels = [t.get_text() for t in ax.get_legend().get_texts()]
+        assert labels == ["grain: mechanised; others alike", "grain: base; others alike",
+                          "switch point"]
+    finally:
+        plt.close(ax.figure)
