@@ -507,19 +507,24 @@ def _techniques_section(result: PlanResult, charts: bool) -> str:
     table = result.techniques
     labels = table.groupby("sector", sort=False)["label"].nunique()
     choice = [str(s) for s, k in labels.items() if k > 1]
+    years = techniques_table(result)
+    n = result.plan.economy.n
+    if choice:  # the sectors with one technique only would bury the choice
+        years = years[years["sector"].isin(choice)]
+    rest = (f" The other {n - len(choice)} sectors have one technique each."
+            if choice and len(choice) < n else "")
     parts = ["<section><h2>Techniques</h2><p>"
-             + _e(f"{len(choice)} of {result.plan.economy.n} sectors can choose between "
-                  "techniques. The table gives the first year each technique is started "
-                  "and the last year it is used, with its output (a year, in the sector's "
-                  "unit) in the first and last plan year.") + "</p>",
-             _table(techniques_table(result),
-                    caption="Techniques and the years the plan uses them"),
+             + _e(f"{len(choice)} of {n} sectors can choose between techniques. The table "
+                  "gives the first year each of their techniques is started and the last "
+                  "year it is used, with its output (a year, in the sector's unit) in the "
+                  f"first and last plan year.{rest}") + "</p>",
+             _table(years, caption="Techniques and the years the plan uses them"),
              f"<p>{_e(PROFIT_WORDS)}</p>"]
     if not charts:
         parts.append('<p class="note">Charts are left out of this report.</p>')
     else:
         try:
-            import matplotlib  # noqa: F401
+            from matplotlib.figure import Figure  # noqa: F401
         except ImportError:
             choice = []
             parts.append('<p class="note">The technique-mix charts need matplotlib '

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import base64
 import shutil
+import sys
 from html.parser import HTMLParser
 
 import pandas as pd
@@ -93,6 +94,33 @@ def test_report_has_a_techniques_section(solved):
     # without charts the section keeps its table and says the chart is left out
     bare = _parse(render(solved, charts=False)).sections["Techniques"]
     assert not bare["img"] and "goods:saving" in bare["cells"]
+
+
+def test_report_techniques_without_matplotlib(solved, monkeypatch):
+    """Without matplotlib the section keeps its table and says what the charts need."""
+    monkeypatch.setitem(sys.modules, "matplotlib.figure", None)  # import raises ImportError
+    doc = render(solved, charts=True)
+    sec = _parse(doc).sections["Techniques"]
+    assert not sec["img"] and "goods:saving" in sec["cells"]
+    assert any("technique-mix charts need matplotlib" in t for t in sec["text"])
+
+
+def test_report_lists_the_sectors_with_a_choice():
+    """Of the demo's ten sectors only agriculture has two techniques: the table holds those."""
+    plan = gp.demo_plan()
+    plan = plan.model_copy(update={"techniques": [
+        gp.Technique(sector="agriculture", label="mechanised", labour=0.12, first_year=2029,
+                     capital={"machinery": 1.7, "construction": 0.8}, service_life=15)]})
+    result = plan.solve(progress=False)
+    sec = _parse(render(result, charts=False)).sections["Techniques"]
+    keys = {c for c in sec["cells"] if c in result.technique_years.index}
+    assert keys == {"agriculture", "agriculture:mechanised"}
+    assert any("1 of 10 sectors" in t and "other 9 sectors" in t for t in sec["text"])
+    # a base entry alone (restricting nothing) gives no choice: every technique is listed
+    only = plan.model_copy(update={"techniques": [
+        gp.Technique(sector="agriculture", label="base", first_year=2027)]}).solve(progress=False)
+    cells = _parse(render(only, charts=False)).sections["Techniques"]["cells"]
+    assert {c for c in cells if c in only.technique_years.index} == set(plan.economy.names)
 
 
 def test_report_without_techniques_has_no_section():
