@@ -54,11 +54,13 @@ if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
     from .economy import Economy
+    from .plan import Plan
 
 __all__ = [
     "ActivityTable",
     "activity_table",
     "activity_table_from_economy",
+    "activity_table_from_plan",
     "VonNeumannChoice",
     "von_neumann_choice",
     "CheapestTechniques",
@@ -347,6 +349,51 @@ def activity_table_from_economy(economy: Economy,
                           capital=np.hstack(cols_k), depreciation=np.array(dep),
                           produces=prod, techniques=labels, commodities=names,
                           labour_kinds=kinds)
+
+
+def activity_table_from_plan(plan: Plan) -> ActivityTable:
+    """The activity table of a plan: its economy's techniques plus the plan's ``Technique``s.
+
+    The same description the plan's LP runs on (:func:`growthplan.technique_arrays`),
+    seen as a steady state: each technique is a column labelled by its key
+    (the sector's name for a base technique, ``"sector:label"`` for an
+    alternative), its capital goods are per unit of capacity, its
+    depreciation is ``1 / mean service life`` of its own capital spec (the
+    replacement rate at zero growth, as in :func:`activity_table_from_economy`),
+    and its by-products are outputs. Availability years are a matter of the
+    plan's calendar and are left out: every technique is in the table. The
+    coefficients are the base year's (technical change is not applied).
+
+    Parameters
+    ----------
+    plan : Plan
+        A plan; with no techniques the table equals
+        ``activity_table_from_economy(plan.economy)``.
+
+    Returns
+    -------
+    ActivityTable
+
+    Examples
+    --------
+    >>> import growthplan as gp
+    >>> plan = gp.demo_plan().model_copy(update={"techniques": [
+    ...     gp.Technique(sector="agriculture", label="mechanised", labour=0.1)]})
+    >>> gp.activity_table_from_plan(plan).techniques[-1]
+    'agriculture:mechanised'
+    """
+    from .technique import technique_arrays
+
+    economy = plan.economy
+    ts = technique_arrays(economy, list(plan.techniques))
+    names = list(economy.names)
+    kinds = list(economy.labour_kinds or ["labour"])
+    labour = ts.labour if ts.labour.shape[0] else np.zeros((1, ts.m))
+    depreciation = np.array([1.0 / spec.mean_service_life for spec in ts.specs])
+    return activity_table(ts.inputs, ts.outputs, labour=labour, capital=ts.capital,
+                          depreciation=depreciation,
+                          produces=[names[j] for j in ts.sector], techniques=ts.keys,
+                          commodities=names, labour_kinds=kinds)
 
 
 # -- von Neumann ---------------------------------------------------------------
@@ -887,8 +934,33 @@ def wage_profit_frontier(table: ActivityTable, profit_rates: ArrayLike | None = 
         numeraire=pd.Series(u, index=table.inputs.index, name="numeraire"))
 
 
+def _legend_labels(sets: list[str]) -> dict[str, str]:
+    """Each set named by the choices in which the sets differ ("agriculture: mechanised").
+
+    A set's name lists ``commodity:technique`` for every commodity; choices
+    shared by all sets are left out (with "others alike"), and a technique
+    labelled by its commodity (an economy's own) reads "base".
+    """
+    split = [name.split(", ") for name in sets]
+    common = set.intersection(*map(set, split)) if len(split) > 1 else set()
+
+    def word(entry: str) -> str:
+        commodity, _, tech = entry.partition(":")
+        tech = tech[len(commodity) + 1:] if tech.startswith(f"{commodity}:") else tech
+        return f"{commodity}: {'base' if tech == commodity else tech}"
+
+    out = {}
+    for name, entries in zip(sets, split, strict=True):
+        own = [e for e in entries if e not in common]
+        out[name] = ", ".join(map(word, own)) + ("; others alike" if common else "") \
+            if own else name
+    return out
+
+
 def plot_wage_profit(frontier: WageProfitFrontier, *, ax: Axes | None = None) -> Axes:
     """Chart the wage–profit frontier: one line style per technique set, switch points marked.
+
+    The legend names each set by the choices in which the sets drawn differ.
 
     Parameters
     ----------
@@ -908,12 +980,13 @@ def plot_wage_profit(frontier: WageProfitFrontier, *, ax: Axes | None = None) ->
     ax = _axes(ax)
     grid = frontier.table[~frontier.table["switch"]]
     order = list(dict.fromkeys(grid["techniques"]))
+    legend = _legend_labels(order)
     # one line per contiguous range, so a set that comes back is drawn twice in its style
     run = (grid["techniques"] != grid["techniques"].shift()).cumsum()
     for _, part in grid.groupby(run, sort=False):
         name = str(part["techniques"].iloc[0])
         first = part.index[0] == grid.index[grid["techniques"] == name][0]
-        ax.plot(part["profit_rate"], part["wage"], label=name if first else None,
+        ax.plot(part["profit_rate"], part["wage"], label=legend[name] if first else None,
                 **(_style(order.index(name)) | {"markersize": 2}))
     sw = frontier.switch_points
     if not sw.empty:

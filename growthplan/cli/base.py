@@ -467,6 +467,11 @@ def _key_schedules(result: PlanResult) -> None:
     if not b.empty:
         click.echo(f"\nWhat binds first (value of one more unit, {first}):")
         click.echo(b.to_string(index=False))
+    if result.data is not None and result.data.tech is not None:
+        years = result.technique_years[["sector", "first_start", "last_used"]].rename(
+            columns={"first_start": "first started", "last_used": "last used"})
+        click.echo("\nTechniques (first year started, last year used):")
+        click.echo(years.to_string(na_rep="never"))
 
 
 def _next_steps(out: Path | None, excel: Path | None, report: Path | None,

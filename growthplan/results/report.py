@@ -475,6 +475,106 @@ def _charts_section(result: PlanResult, charts: bool) -> str:
     return f"<section><h2>Charts</h2>{note_html}{figs}</section>"
 
 
+PROFIT_WORDS = (
+    "The profit of a technique at shadow prices is what a start of new capacity would earn "
+    "over its life (the value of its products less its inputs and labour, all at the plan's "
+    "shadow prices) less the capital goods it takes, in the objective's own terms. It is zero "
+    "for a technique the plan starts and at most zero for one it leaves aside: a negative "
+    "profit is how far that technique falls short of paying at these prices, and a technique "
+    "takes over when the prices move, as labour or capital becomes scarcer, until its profit "
+    "reaches zero. The table of these profits is the result's technique_profits.")
+
+
+def _figure_uri(draw: Any) -> str | None:
+    """One chart drawn by ``draw(ax)`` as a PNG data URI (None when it cannot be drawn)."""
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=(9, 4.5), layout="constrained")
+    try:
+        draw(fig.add_subplot())
+        buf = io.BytesIO()
+        fig.savefig(buf, format="png", dpi=96, metadata={"Software": None})
+    except Exception:  # noqa: BLE001 - one chart that cannot be drawn leaves the rest
+        return None
+    return "data:image/png;base64," + base64.b64encode(buf.getvalue()).decode("ascii")
+
+
+def techniques_table(result: PlanResult) -> pd.DataFrame:
+    """Each technique's first start, last year of use and output in the first and last year.
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal plan with techniques.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Indexed by technique key: sector, technique, first started, last used
+        (years as text, "never" when not), unit, output in the first and last
+        plan year.
+    """
+    years = result.technique_years
+    table = result.techniques
+    first, last = int(table["year"].min()), int(table["year"].max())
+    out = table[table["year"] == first].set_index("technique")["output"]
+    end = table[table["year"] == last].set_index("technique")["output"]
+
+    def when(v: Any) -> str:
+        return "never" if pd.isna(v) else str(int(v))
+
+    frame = pd.DataFrame({
+        "sector": years["sector"], "technique": years["label"],
+        "first started": [when(v) for v in years["first_start"]],
+        "last used": [when(v) for v in years["last_used"]],
+        "unit": [_unit_of(result, str(s)) for s in years["sector"]],
+        f"output {first}": out.reindex(years.index).to_numpy(dtype=float),
+        f"output {last}": end.reindex(years.index).to_numpy(dtype=float)},
+        index=pd.Index(list(years.index), name="key"))
+    return frame
+
+
+def _techniques_section(result: PlanResult, charts: bool) -> str:
+    """The techniques' years of use, the mix of sectors with a choice, and profits in words."""
+    table = result.techniques
+    labels = table.groupby("sector", sort=False)["label"].nunique()
+    choice = [str(s) for s, k in labels.items() if k > 1]
+    years = techniques_table(result)
+    n = result.plan.economy.n
+    if choice:  # the sectors with one technique only would bury the choice
+        years = years[years["sector"].isin(choice)]
+    rest = (f" The other {n - len(choice)} sectors have one technique each."
+            if choice and len(choice) < n else "")
+    parts = ["<section><h2>Techniques</h2><p>"
+             + _e(f"{len(choice)} of {n} sectors can choose between techniques. The table "
+                  "gives the first year each of their techniques is started and the last "
+                  "year it is used, with its output (a year, in the sector's unit) in the "
+                  f"first and last plan year.{rest}") + "</p>",
+             _table(years, caption="Techniques and the years the plan uses them"),
+             f"<p>{_e(PROFIT_WORDS)}</p>"]
+    if not charts:
+        parts.append('<p class="note">Charts are left out of this report.</p>')
+    else:
+        try:
+            from matplotlib.figure import Figure  # noqa: F401
+        except ImportError:
+            choice = []
+            parts.append('<p class="note">The technique-mix charts need matplotlib '
+                         "(pip install 'growthplan[plot]').</p>")
+        from .. import plot
+
+        for sector in choice:
+            cap = f"Technique mix of {sector}: output by technique"
+            uri = _figure_uri(lambda ax, s=sector: plot.plot_techniques(result, s, ax=ax))
+            if uri is None:
+                parts.append(f'<p class="note">Could not draw: {_e(cap)}.</p>')
+            else:
+                parts.append(f'<figure><img src="{uri}" alt="{_e(cap)}">'
+                             f"<figcaption>{_e(cap)}</figcaption></figure>")
+    parts.append("</section>")
+    return "".join(parts)
+
+
 def _job(result: PlanResult) -> str:
     p = result.plan
     years = list(p.years)
@@ -551,6 +651,8 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
                          "raise the objective most.</p>" + _table(table)
                          + _end_effect(result, b, dec) + "</section>")
         parts.append(_charts_section(result, charts))
+        if result.data is not None and result.data.tech is not None:
+            parts.append(_techniques_section(result, charts))
         money = result.shadow_prices_money
         parts.append("<section><h2>Shadow prices in base-year money</h2>"
                      f'<p class="note">{_e(money.attrs.get("note", unit))}.</p>'

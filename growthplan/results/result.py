@@ -394,6 +394,10 @@ class PlanResult:
         fx = self._get("shadow_exchange_rate")
         if not fx.isna().all():
             out["shadow_exchange_rate"] = fx.to_frame()
+        if self.data is not None and self.data.tech is not None:
+            from .techniques import technique_export
+
+            out["techniques"] = technique_export(self)
         assert self.audit is not None
         out["audit"] = self.audit.checks.reset_index()
         return {k: v for k, v in out.items() if v is not None and not v.empty}

@@ -42,7 +42,8 @@ import pandas as pd
 if TYPE_CHECKING:
     from .result import PlanResult
 
-__all__ = ["technique_table", "technique_years", "technique_profits", "explain_technique"]
+__all__ = ["technique_table", "technique_years", "technique_profits", "explain_technique",
+           "technique_export"]
 
 TOL = 1e-9
 
@@ -234,3 +235,28 @@ def explain_technique(result: PlanResult, sector: str, year: int) -> str:
         lines.append(f"Most profitable start: {rows.loc[best.idxmax(), 'label']} "
                      "(a start whose profit is below 0 does not pay at these prices).")
     return "\n".join(lines)
+
+
+def technique_export(result: PlanResult) -> pd.DataFrame:
+    """The technique schedules as one tidy table for the CSV folder and the workbook.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Indexed by year; columns sector, technique (its own label), key (the
+        column label, ``"sector:label"``), unit (the sector's unit), output,
+        capacity (in service at the start of the year) and starts (new
+        capacity begun), each in the sector's unit a year.
+    """
+    table = technique_table(result)
+    d = result.data
+    assert d is not None
+    units = dict(zip(d.names, d.units, strict=True))
+    out = pd.DataFrame({
+        "sector": table["sector"], "technique": table["label"], "key": table["technique"],
+        "unit": [f"{units[s]} a year" if units[s] else "units a year"
+                 for s in table["sector"]],
+        "output": table["output"], "capacity": table["capacity"], "starts": table["starts"]})
+    out.index = pd.Index(table["year"].astype(int).to_numpy(), name="year")
+    # year by year, each year's sectors and techniques in the plan's order
+    return out.sort_index(kind="stable")

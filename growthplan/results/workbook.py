@@ -3,7 +3,9 @@
 Sheets, in order: ``summary`` (what the plan is, the summary lines and the
 caution), ``inputs`` (the plan's inputs and assumptions), ``sectors`` (units
 and base-year prices), ``glossary``, ``targets`` (required, reached, margin),
-then every table of an optimal plan, or for an impossible plan the
+then every table of an optimal plan (a plan with techniques adds
+``techniques``: one row per year and technique, the unit in its own column),
+or for an impossible plan the
 ``diagnosis`` (shortfalls in words and figures) and ``conflict`` (the
 infeasible subset in words).
 
