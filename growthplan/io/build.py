@@ -54,7 +54,6 @@ from __future__ import annotations
 import csv
 import io
 import os
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Literal
@@ -66,7 +65,7 @@ from pydantic import ConfigDict, Field
 
 from .._validation import Model
 from ..economy import Economy
-from ..errors import InvalidInput, invalid, show
+from ..errors import InvalidInput, invalid
 from ._files import read_regular_file
 from .atomic import atomic_folder
 from .capital_flows import (
@@ -219,34 +218,10 @@ class BuildReport:
 # -- reading the spec ---------------------------------------------------------------------
 
 def _read_spec(path: Path) -> tuple[dict[str, Any], Any]:
-    from .planfile import _Refused, _yaml_load
+    from .planfile import _read
 
-    suffix = path.suffix.lower()
-    if suffix not in (".yaml", ".yml", ".toml"):
-        raise invalid(f"{path}", "end in .yaml, .yml or .toml", suffix or "no suffix")
-    raw = read_regular_file(path, what="economy spec", limit=SPEC_MAX_BYTES)
-    try:
-        text = raw.decode("utf-8")
-    except UnicodeDecodeError as exc:
-        raise invalid(f"{path}", "be UTF-8 text", f"byte {exc.start}") from None
-    node = None
-    try:
-        if suffix == ".toml":
-            data = tomllib.loads(text)
-        else:
-            data, node = _yaml_load(text)
-    except _Refused as exc:
-        raise InvalidInput(f"{path}, line {exc.line}: {str(exc).replace('plan file', 'spec')}",
-                           field="economy spec") from None
-    except (yaml.YAMLError, tomllib.TOMLDecodeError, ValueError, RecursionError) as exc:
-        mark = getattr(exc, "problem_mark", None)
-        where = f" (line {mark.line + 1})" if mark is not None else ""
-        problem = getattr(exc, "problem", None) or str(exc).splitlines()[0]
-        raise InvalidInput(f"{path}{where}: not valid {'TOML' if suffix == '.toml' else 'YAML'}"
-                           f": {show(problem)[1:-1]}.", field="economy spec") from None
-    if not isinstance(data, dict):
-        raise invalid(f"{path}", "hold a mapping (an economy spec)", type(data).__name__)
-    return data, node
+    return _read(path, what="economy spec", limit=SPEC_MAX_BYTES,
+                 holds="a mapping (an economy spec)")
 
 
 def _spec(path: Path) -> EconomySpec:

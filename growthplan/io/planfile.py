@@ -447,11 +447,26 @@ def _parts(path: list[str]) -> list[tuple[str, bool]]:
     return out
 
 
-def _read(path: Path) -> tuple[dict[str, Any], Node | None]:
+def _read(path: Path, *, what: str = "plan file", limit: int = PLAN_FILE_MAX_BYTES,
+          holds: str = "a mapping with economy and plan sections",
+          ) -> tuple[dict[str, Any], Node | None]:
+    """A YAML or TOML file of ours as a mapping and its YAML node tree (for line
+    numbers), read through the guarded loader; every failure one located message.
+
+    Parameters
+    ----------
+    path : Path
+    what : str
+        What the file is, in messages ("plan file", "economy spec").
+    limit : int
+        Largest size read, in bytes.
+    holds : str
+        What the top level must be, in the message when it is not a mapping.
+    """
     suffix = path.suffix.lower()
     if suffix not in (".toml", ".yaml", ".yml"):
         raise invalid(f"{path}", "end in .yaml, .yml or .toml", suffix or "no suffix")
-    raw = read_regular_file(path, what="plan file", limit=PLAN_FILE_MAX_BYTES)
+    raw = read_regular_file(path, what=what, limit=limit)
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:
@@ -465,25 +480,25 @@ def _read(path: Path) -> tuple[dict[str, Any], Node | None]:
         else:
             data, node = _yaml_load(text)
     except _Refused as exc:
-        raise InvalidInput(f"{path}, line {exc.line}: {exc}", field="plan file") from None
+        raise InvalidInput(f"{path}, line {exc.line}: {str(exc).replace('plan file', what)}",
+                           field=what) from None
     except yaml.YAMLError as exc:
         mark = getattr(exc, "problem_mark", None)
         where = f" (line {mark.line + 1})" if mark is not None else ""
         problem = getattr(exc, "problem", None) or str(exc).splitlines()[0]
         raise InvalidInput(f"{path}{where}: not valid YAML: {show(problem)[1:-1]}.",
-                           field="plan file") from None
+                           field=what) from None
     except tomllib.TOMLDecodeError as exc:
         raise InvalidInput(f"{path}: not valid TOML: {show(str(exc))[1:-1]}.",
-                           field="plan file") from None
+                           field=what) from None
     except (ValueError, RecursionError, OverflowError, MemoryError) as exc:
         if isinstance(exc, InvalidInput):
             raise
         kind = "TOML" if suffix == ".toml" else "YAML"
         raise InvalidInput(f"{path}: not valid {kind}: {show(str(exc))[1:-1]}.",
-                           field="plan file") from None
+                           field=what) from None
     if not isinstance(data, dict):
-        raise invalid(f"{path}", "hold a mapping with economy and plan sections",
-                      type(data).__name__)
+        raise invalid(f"{path}", f"hold {holds}", type(data).__name__)
     return data, node
 
 
