@@ -230,13 +230,18 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
             _charts_replaceable(p)
         if opt == "--charts":
             _plot_extra(opt)
-        parent = full.parent
-        while not parent.exists() and parent != parent.parent:
-            parent = parent.parent
-        if not parent.is_dir():
-            raise invalid(opt, "lie inside a folder", str(p))
-        if not os.access(parent, os.W_OK | os.X_OK):
-            raise invalid(opt, "lie in a writable folder", str(p))
+        _writable(opt, p)
+
+
+def _writable(opt: str, p: Path) -> None:
+    """Refuse ``p`` when no folder it would be created in can be written."""
+    parent = _resolved(p).parent
+    while not parent.exists() and parent != parent.parent:
+        parent = parent.parent
+    if not parent.is_dir():
+        raise invalid(opt, "lie inside a folder", str(p))
+    if not os.access(parent, os.W_OK | os.X_OK):
+        raise invalid(opt, "lie in a writable folder", str(p))
 
 
 _SUFFIXES = {"--excel": (".xlsx",), "--report": (".html", ".htm")}

@@ -9,7 +9,6 @@ file is checked before anything is solved and written atomically.
 
 from __future__ import annotations
 
-import os
 from collections.abc import Iterator
 from concurrent.futures import Executor
 from contextlib import contextmanager
@@ -29,6 +28,7 @@ from .base import (
     _reading,
     _resolved,
     _solve,
+    _writable,
     _writing,
     main,
 )
@@ -58,13 +58,7 @@ def _check_files(named: dict[str, Path | None], overwrite: bool, inputs: tuple[P
             raise invalid(opt, "name a file (it is a folder)", str(p))
         if p.exists() and not overwrite:
             raise invalid(opt, "not exist yet (pass --overwrite to replace it)", str(p))
-        parent = full.parent
-        while not parent.exists() and parent != parent.parent:
-            parent = parent.parent
-        if not parent.is_dir():
-            raise invalid(opt, "lie inside a folder", str(p))
-        if not os.access(parent, os.W_OK | os.X_OK):
-            raise invalid(opt, "lie in a writable folder", str(p))
+        _writable(opt, p)
 
 
 _SUFFIXES: dict[str, tuple[str, ...]] = {"--out": (".csv",), "--excel": (".xlsx",)}
