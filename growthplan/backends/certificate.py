@@ -100,13 +100,18 @@ def optimality_gap(lp: LinearProgram, x: np.ndarray, y: np.ndarray, *,
         return float("inf")
     bound[up] = lp.col_upper[up]
     bound[lo] = lp.col_lower[lo]
-    # a reduced cost within the tolerance counts at the finite bound x sits on (a fixed
-    # column, or one held at a ceiling): dropping a tiny rc times a large bound (capacity
-    # starts held at another plan's) would open a false gap
-    for side in (lp.col_lower, lp.col_upper):
-        on = ~(up | lo) & np.isfinite(side) & (np.abs(x - side) <= 1e-9 * np.maximum(
-            1.0, np.abs(np.where(np.isfinite(side), side, 0.0))))
-        bound[on] = side[on]
+    # A reduced cost within the tolerance still counts at the finite bound its sign
+    # points at, so the dual bound stays a valid one (weak duality): a fixed column (starts
+    # held at another plan's) gives no false gap, and a column at a ceiling with a small
+    # reduced cost of the wrong sign keeps the gap it really opens. Only a small reduced
+    # cost pointing at an infinite bound is dropped (a perturbation of y).
+    small = ~(up | lo)
+    fixed = small & np.isfinite(lp.col_lower) & (lp.col_lower == lp.col_upper)
+    bound[fixed] = lp.col_lower[fixed]
+    to_up = small & ~fixed & (sigma * rc > 0) & np.isfinite(lp.col_upper)
+    to_lo = small & ~fixed & (sigma * rc < 0) & np.isfinite(lp.col_lower)
+    bound[to_up] = lp.col_upper[to_up]
+    bound[to_lo] = lp.col_lower[to_lo]
     dual = float(np.sum(np.where(np.isfinite(rhs), rhs, 0.0) * y) + np.sum(rc * bound))
     primal = float(lp.cost @ x)
     # relative to the objective's own size, never to a fixed 1: an objective in

@@ -89,3 +89,25 @@ def test_the_slow_method_warning_reaches_plan_solve(monkeypatch):
     monkeypatch.setattr(hb, "SLOW_METHOD_NONZEROS", lp.nnz - 1)
     with pytest.warns(gp.SlowMethodWarning, match="'simplex'"):
         assert plan.solve(method="simplex").ok
+
+
+def test_a_small_reduced_cost_at_the_wrong_bound_keeps_its_gap():
+    """Weak duality (any LP text, e.g. Chvátal 1983, ch. 5): b·y + Σ rc_j·(l_j or u_j, by
+    the sign of rc_j) bounds the optimum. min 0.5 x1 + 1e6 x2, 1e6 x2 >= 1e6,
+    0 <= x1 <= 1e6: y = 1 proves 1e6 optimal at x = (0, 1); the point (1e6, 1) costs
+    1.5e6 and must not be certified, though rc_1 = 0.5 is below the certificate's
+    tolerance. A fixed column (l = u) keeps no false gap."""
+    import numpy as np
+    from scipy import sparse
+
+    from growthplan.backends.certificate import optimality_gap
+    from growthplan.lp.program import LinearProgram
+
+    m = sparse.csc_array(np.array([[0.0, 1e6]]))
+    lp = LinearProgram(m, np.array([1e6]), np.array([np.inf]), np.array([0.0, 0.0]),
+                       np.array([1e6, np.inf]), np.array([0.5, 1e6]), "min", {}, {})
+    y = np.array([1.0])
+    assert optimality_gap(lp, np.array([0.0, 1.0]), y) == 0.0
+    assert optimality_gap(lp, np.array([1e6, 1.0]), y) == pytest.approx(1 / 3)
+    held = lp.replace(col_lower=np.array([1e6, 0.0]))  # x1 fixed at 1e6: optimal there
+    assert optimality_gap(held, np.array([1e6, 1.0]), y) == pytest.approx(0.0, abs=1e-15)
