@@ -116,3 +116,13 @@ def test_a_plan_file_without_uncertainty_and_an_impossible_plan(folder):
     (folder / "bad.yaml").write_text(yaml.safe_dump(d))
     r = cli("stress", folder / "bad.yaml", "--no-progress")
     assert r.returncode == 1 and "nothing to stress-test" in r.stdout
+
+
+def test_an_input_table_is_refused_as_output_before_any_solve(folder):
+    # flows.csv is a table the plan file reads: --overwrite must not let a result replace it
+    before = (folder / "flows.csv").read_bytes()
+    r = cli("stress", folder / "plan.yaml", "--no-progress", "--out", folder / "flows.csv",
+            "--overwrite")
+    assert r.returncode == 2 and r.stdout == ""  # nothing solved
+    assert r.stderr.startswith("error: --out must not be an input file")
+    assert (folder / "flows.csv").read_bytes() == before

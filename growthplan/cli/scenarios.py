@@ -64,6 +64,16 @@ def _check_files(named: dict[str, Path | None], overwrite: bool, inputs: tuple[P
 _SUFFIXES: dict[str, tuple[str, ...]] = {"--out": (".csv",), "--excel": (".xlsx",)}
 
 
+def _protected(plan_file: Path, *more: Path) -> tuple[Path, ...]:
+    """The plan file, the tables it names and ``more``: what no output may replace,
+    known before any solve."""
+    from ..io.planfile import plan_file_inputs
+
+    _input_file(plan_file, "plan file")
+    with _reading(plan_file):
+        return (*plan_file_inputs(plan_file), *more)
+
+
 def _write(out: Path | None, excel: Path | None, sheets: dict[str, pd.DataFrame],
            main_sheet: str, overwrite: bool, protect: tuple[Path, ...]) -> None:
     from ..io.atomic import atomic_file
@@ -139,7 +149,8 @@ def stress(plan_file: Path, draws: int | None, seed: int | None, workers: int,
     from ..io.planfile import plan_file_inputs
     from ..uncertainty import stress_test
 
-    _check_files({"--out": out, "--excel": excel}, overwrite, (plan_file,), _SUFFIXES)
+    _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file),
+                 _SUFFIXES)
     plan, opts, spec, n = _load(plan_file, draws, seed)
     nominal = _solve(plan, method=opts.method, time_limit=opts.time_limit,
                      threads=opts.threads, tolerance=opts.tolerance, progress=False)
@@ -183,7 +194,8 @@ def reoptimise(plan_file: Path, draws: int | None, seed: int | None, workers: in
     from ..io.planfile import plan_file_inputs
     from ..uncertainty import reoptimise as run
 
-    _check_files({"--out": out, "--excel": excel}, overwrite, (plan_file,), _SUFFIXES)
+    _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file),
+                 _SUFFIXES)
     plan, opts, spec, n = _load(plan_file, draws, seed)
     options = {"method": opts.method, "time_limit": opts.time_limit, "threads": opts.threads,
                "tolerance": opts.tolerance}
@@ -231,7 +243,8 @@ def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
     from ..revision import compare, read_actuals
     from ..revision import revise as revised_plan
 
-    _check_files({"--out": out, "--excel": excel}, overwrite, (plan_file, actuals), _SUFFIXES)
+    _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file, actuals),
+                 _SUFFIXES)
     _input_file(plan_file, "plan file")
     _input_file(actuals, "actuals")
     with _reading(plan_file):
