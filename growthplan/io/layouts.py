@@ -346,6 +346,10 @@ def _wide(grid: list[list[Any]], lay: TableLayout, loc: LocatedTable) -> Located
                       f"{len(grid)} row(s)")
     width = max((len(r) for r in grid), default=0)
     grid = [list(r) + [None] * (width - len(r)) for r in grid]
+    for name, number in (("code_column", lay.code_column), ("label_column", lay.label_column)):
+        if number is not None and number > width:
+            raise invalid(f"{loc.where()}: {name}", f"name one of its {width} column(s)",
+                          number)
     cc = lay.code_column - 1
     skip_cols = {cc} | ({lay.label_column - 1} if lay.label_column else set())
     label_r = None if lay.label_row is None else lay.label_row - 1

@@ -114,3 +114,11 @@ def test_skip_and_numeric_codes(tmp_path):
     text = "code,1,2,sub\n10,1,2,3\n20,3,4,7\n"
     t = read_table(TableLayout(file=str(_write(tmp_path, text)), skip=["sub"]))
     assert list(t.frame.columns) == ["1", "2"] and list(t.frame.index) == ["10", "20"]
+
+
+@pytest.mark.parametrize("field", ["code_column", "label_column"])
+def test_a_column_beyond_the_table_is_named(tmp_path, field):
+    layout = {**LAYOUT, field: 40}
+    with pytest.raises(gp.InvalidInput, match=rf"{field} must name one of its 5 column\(s\)\. "
+                                              r"Got 40\."):
+        read_table(TableLayout(file=str(_write(tmp_path, WIDE)), **layout), what="use")
