@@ -470,7 +470,7 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
         data.extra["vintage_factors"] = {
             "input": tc.factors(names, T, "input"), "labour": tc.factors(names, T, "labour"),
             "capital": tc.factors(names, T, "capital"), "base_inputs": first.inputs,
-            "base_labour": first.labour}
+            "base_labour": first.labour, "base_capital": first.capital}
     for arr_name in ("initial", "base", "surv", "pipe_deliveries", "demand", "supply"):
         arr = getattr(data, arr_name)
         if not np.all(np.isfinite(arr)):

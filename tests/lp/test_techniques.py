@@ -221,6 +221,26 @@ def test_embodied_vintages_carry_their_start_years_coefficients():
     assert rd.objective >= r.objective * (1 - 1e-9)  # disembodied change is free for old capacity
 
 
+def test_the_audit_rebuilds_each_vintages_capital_goods():
+    """Capital goods per unit of capacity of vintage τ are b_0 (1 + r_b)^τ; the audit
+    rebuilds them from the base coefficients, so an LP column that charged a vintage
+    the wrong capital (here the base year's) is caught, not certified."""
+    import dataclasses
+
+    from growthplan.results.audit import audit
+
+    tc = gp.TechnicalChange(capital_rate={"goods": -0.05}, embodied=True)
+    plan = gp.Plan(economy=one_sector(a=0.5, b=2.0), years=range(2030, 2036),
+                   technical_change=tc, labour=gp.LabourSupply(start=1e6))
+    r = assert_optimal(plan.solve())
+    assert "vintage capital" in r.audit.checks.index
+    d = r.data
+    wrong = dataclasses.replace(d, b=np.repeat(d.b[:, :1], d.b.shape[1], axis=1))
+    checks = audit(wrong, r._schedules).checks
+    assert checks.loc["vintage capital", "max_relative"] > 0.1  # 5 % a year, 5 years
+    assert r.audit.checks.loc["vintage capital", "max_relative"] < 1e-12
+
+
 # -- validation ----------------------------------------------------------------------------
 
 @pytest.mark.parametrize("bad, field", [

@@ -85,27 +85,35 @@ class Techniques(Condition):
                       np.array(groups))]
 
     def _vintages(self, d: PlanData, s: Schedules) -> list[Check]:
-        """Input and labour use recomputed vintage by vintage from the year-τ coefficients."""
+        """Input and labour use, and the capital goods that starts embody, recomputed
+        vintage by vintage from the base coefficients and the year-τ factors."""
         ts = d.tech
         factors = d.extra.get("vintage_factors")
         assert ts is not None
         if factors is None or not np.any(ts.vintage > 0):
             return []
-        a0, l0 = factors["base_inputs"], factors["base_labour"]
+        a0, l0, b0 = factors["base_inputs"], factors["base_labour"], factors["base_capital"]
         inputs = np.zeros((d.T, d.n))
         labour = np.zeros((d.T, l0.shape[0]))
+        embodied = np.zeros((d.T, d.n))
         for k in range(ts.m):
             tau, j, o = int(ts.vintage[k]), int(ts.sector[k]), int(ts.origin[k])
             fa = 1.0 if tau < 0 else factors["input"][tau, j]
             fl = 1.0 if tau < 0 else factors["labour"][tau, j]
+            fb = 1.0 if tau < 0 else factors["capital"][tau, j]
             inputs += np.outer(s.output[:, k], a0[:, o] * fa)
             labour += np.outer(s.output[:, k], l0[:, o] * fl)
+            embodied += np.outer(s.starts[:, k], b0[:, o] * fb)
+        needed = s.starts @ d.b.T  # the capital goods the LP's columns charge to the starts
         used = d.intermediate(s.output)
         lab = d.labour_used(s.output, every_kind=True)
         groups = np.tile(np.arange(d.n), d.T)
         out = [Check("vintage inputs", np.abs(used - inputs).ravel(),
                      (np.abs(used) + np.abs(inputs)).ravel(),
-                     [("vintage inputs", y, c) for y in d.years for c in d.names], groups)]
+                     [("vintage inputs", y, c) for y in d.years for c in d.names], groups),
+               Check("vintage capital", np.abs(needed - embodied).ravel(),
+                     (np.abs(needed) + np.abs(embodied)).ravel(),
+                     [("vintage capital", y, c) for y in d.years for c in d.names], groups)]
         if lab.shape[1]:
             out.append(Check("vintage labour", np.abs(lab - labour).ravel(),
                              (np.abs(lab) + np.abs(labour)).ravel(),
