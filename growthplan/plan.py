@@ -184,12 +184,16 @@ class Target(Model):
 class StartsCeiling(Model):
     """Largest capacity starts of a sector per year (absorptive capacity).
 
+    When the sector has alternative techniques (:class:`~growthplan.Technique`),
+    the ceiling bounds the starts of each technique on its own, not their sum:
+    name a ceiling per technique's capacity in mind when the sum matters.
+
     Parameters
     ----------
     sector : str
         The sector; may also be passed as the first positional argument.
     at_most : float
-        Largest capacity started in one year, >= 0.
+        Largest capacity started in one year (by each of its techniques), >= 0.
     years : list of int, optional
         Plan years the ceiling applies to (default: every plan year).
     """
