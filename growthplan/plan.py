@@ -185,8 +185,7 @@ class StartsCeiling(Model):
     """Largest capacity starts of a sector per year (absorptive capacity).
 
     When the sector has alternative techniques (:class:`~growthplan.Technique`),
-    the ceiling bounds the starts of each technique on its own, not their sum:
-    name a ceiling per technique's capacity in mind when the sum matters.
+    the ceiling bounds the starts of each technique on its own, not their sum.
 
     Parameters
     ----------
