@@ -335,6 +335,22 @@ class _Files:
         return out
 
 
+def _spec_inputs(spec_path: str | os.PathLike[str]) -> list[Path]:
+    """The spec and every table file it names, as written (for the command line to refuse
+    an output folder holding any of them before the build)."""
+    path = Path(spec_path)
+    spec, _ = _spec(path)
+    cap, agg = spec.capital, spec.aggregation
+    refs: list[Any] = [spec.supply, spec.use, spec.imports_use, cap.stocks, cap.flows,
+                       cap.investment, cap.composition, cap.capital_output_ratios]
+    if spec.employment is not None:
+        refs.append(spec.employment.table)
+    if agg is not None:
+        refs += [agg.products, agg.industries]
+    names = [r.file if isinstance(r, TableLayout) else r for r in refs]
+    return [path] + [path.parent / n for n in names if isinstance(n, str) and "\0" not in n]
+
+
 # -- the build ------------------------------------------------------------------------------
 
 def _split(supply: LocatedTable, use: LocatedTable, spec: EconomySpec

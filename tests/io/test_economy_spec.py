@@ -294,3 +294,25 @@ def test_several_problems_of_one_section_each_get_its_path(demo):
     assert head.endswith(": 2 problems:") and "capital.2" not in head
     assert items[0].startswith("capital.lead_time must be at least 0. Got -1.")
     assert items[1].startswith("capital.past_growth must be less than 1")
+
+
+@pytest.mark.parametrize("target", ["tables", "tables/sub"])
+def test_command_refuses_a_folder_holding_the_spec_or_a_table_before_the_build(demo, target):
+    from click.testing import CliRunner
+
+    from growthplan.cli import main
+
+    (demo / "sub").mkdir()
+    (demo / "use.csv").rename(demo / "sub" / "use.csv")
+    spec = yaml.safe_load((demo / "economy.yaml").read_text(encoding="utf-8"))
+    spec["use"]["file"] = "sub/use.csv"
+    (demo / "economy.yaml").write_text(yaml.safe_dump(spec), encoding="utf-8")
+    out = demo.parent / target
+    res = CliRunner().invoke(main, ["economy", "build", str(demo / "economy.yaml"), "--out",
+                                    str(out), "--overwrite"])
+    assert res.exit_code == 2
+    assert res.stderr.strip() == ("error: --out must not be a folder holding the economy spec "
+                                  f"or its tables. Got {str(out)!r}.")
+    assert "plan file" not in res.stderr
+    assert res.stdout == ""  # refused before the build: nothing built, nothing reported
+    assert sorted(p.name for p in (demo / "sub").iterdir()) == ["use.csv"]
