@@ -209,6 +209,10 @@ def translate(exc: ValidationError, model: str, data: Any = _MISSING,
             if whole and loc and not cause.field:  # about the whole nested model: its path
                 text = loc + text[whole.end(1):]  # replaces its class name
             elif loc:
+                head, *items = text.split("\n  ")
+                if items and re.fullmatch(r"\d+ problems:", head):  # each one gets the path
+                    messages.extend(f"{loc}.{i}" for i in items[:-1])
+                    text = items[-1]
                 text = f"{loc}.{text}"
         elif isinstance(cause, GrowthplanError) and not isinstance(cause, Rule):
             return cause  # a domain error with its own type (e.g. UnproductiveEconomy)

@@ -89,16 +89,28 @@ def read_actuals(path: Any) -> pd.DataFrame:
         Naming the file: missing columns, a year that is not whole, a start
         that is not a finite number >= 0, or a (year, sector) given twice.
     """
+    import codecs
     import io
+    import re
 
     from .io._files import read_regular_file
 
     raw = read_regular_file(path, what="actuals", limit=ACTUALS_MAX_BYTES)
+    bom = len(codecs.BOM_UTF8) if raw.startswith(codecs.BOM_UTF8) else 0
     try:
-        frame = pd.read_csv(io.BytesIO(raw), dtype=str, keep_default_na=False)
-    except (ValueError, UnicodeDecodeError, pd.errors.ParserError) as exc:
-        raise invalid(f"{path}", "be a CSV file with columns year, sector, starts",
-                      type(exc).__name__) from None
+        text = raw[bom:].decode("utf-8")
+    except UnicodeDecodeError as exc:  # the byte's place in the file, counted from 0
+        at = bom + exc.start
+        raise invalid(f"{path}", "be UTF-8 text", f"byte {at} (0x{raw[at]:02x}) is not "
+                      "UTF-8") from None
+    try:
+        frame = pd.read_csv(io.StringIO(text), dtype=str, keep_default_na=False)
+    except (ValueError, pd.errors.ParserError) as exc:  # the parser's reason, in its words
+        reason = str(exc).strip().splitlines()[0] if str(exc).strip() else "no table"
+        reason = re.sub(r"^Error tokenizing data\. C error: ", "", reason)
+        raise invalid(f"{path}", "be a CSV table with columns year, sector, starts",
+                      reason[0].lower() + reason[1:] if reason[1:2].islower() else reason
+                      ) from None
     frame.columns = [str(c).strip().lower() for c in frame.columns]
     if sorted(frame.columns) != ["sector", "starts", "year"]:
         raise invalid(f"{path}", "have the columns year, sector, starts", list(frame.columns))

@@ -115,6 +115,26 @@ def test_read_actuals_refuses_malformed_files(tmp_path, text, match):
         gp.read_actuals(tmp_path / "a.csv")
 
 
+@pytest.mark.parametrize("raw, match", [
+    # the place of the bad byte counted by hand: the header line is 19 bytes, "2027," 5 more
+    (b"year,sector,starts\n2027,\xff,1\n",
+     r"a.csv must be UTF-8 text\. Got 'byte 24 \(0xff\) is not UTF-8'\.$"),
+    (b"\xef\xbb\xbfyear,sector,starts\n2027,\xe9t\xe9,1\n",
+     r"a.csv must be UTF-8 text\. Got 'byte 27 \(0xe9\) is not UTF-8'\.$"),
+    (b'year,sector,starts\n"2027,s0,1\n',
+     r"a.csv must be a CSV table with columns year, sector, starts\. Got 'EOF inside string "
+     r"starting at row 1'\.$"),
+    (b"", r"a.csv must be a CSV table with columns year, sector, starts\. Got 'no columns to "
+     r"parse from file'\.$"),
+])
+def test_read_actuals_says_in_words_why_a_file_is_not_read(tmp_path, raw, match):
+    (tmp_path / "a.csv").write_bytes(raw)
+    with pytest.raises(gp.InvalidInput, match=match) as info:
+        gp.read_actuals(tmp_path / "a.csv")
+    assert str(tmp_path / "a.csv") in str(info.value)
+    assert "Error" not in str(info.value) and "\n" not in str(info.value)
+
+
 def test_read_actuals_gives_years_by_sectors_and_revise_takes_it(tmp_path):
     (tmp_path / "a.csv").write_text("year,sector,starts\n2031,s1,2.5\n2030,s0,1\n"
                                     "2031,s0,1.5\n2032,s0,0\n")

@@ -193,8 +193,9 @@ def _resolved(p: Path) -> Path:
 
 def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
                    overwrite: bool, inputs: tuple[Path, ...] = (),
-                   report: Path | None = None) -> None:
-    """Refuse outputs that cannot be written before any time goes into solving."""
+                   report: Path | None = None, input_name: str = "the plan file") -> None:
+    """Refuse outputs that cannot be written before any time goes into solving
+    (``input_name``: the inputs in words, for the messages)."""
     named = {"--out": out, "--excel": excel, "--charts": charts, "--report": report}
     seen: dict[Path, str] = {}
     for opt, p in named.items():
@@ -211,11 +212,11 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
             if full == cwd or full in cwd.parents:
                 raise invalid(opt, "not be the current folder or one holding it", str(p))
             if any(full in _resolved(i).parents for i in inputs):
-                raise invalid(opt, "not be a folder holding the plan file", str(p))
+                raise invalid(opt, f"not be a folder holding {input_name}", str(p))
             if p.exists() and not p.is_dir():
                 raise invalid(opt, "name a folder (it is a file)", str(p))
         if opt != "--out" and any(full == _resolved(i) for i in inputs):
-            raise invalid(opt, "not be the plan file", str(p))
+            raise invalid(opt, f"not be {input_name}", str(p))
         if opt in ("--excel", "--report") and p.is_dir():
             raise invalid(opt, "name a file (it is a folder)", str(p))
         if opt in _SUFFIXES and p.suffix.lower() not in _SUFFIXES[opt]:

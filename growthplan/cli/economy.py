@@ -22,11 +22,14 @@ def economy() -> None:
               help="Write the economy into this new folder.")
 @_overwrite
 def build(spec: Path, out: Path, overwrite: bool) -> None:
-    from ..io.build import build_economy, write_economy
+    from ..io.build import _spec_inputs, build_economy, write_economy
 
-    _check_outputs(out, None, None, overwrite, inputs=(spec,))
+    with _reading(spec):  # the folder is checked against the spec and its tables first
+        inputs = _spec_inputs(_input_file(spec, "economy spec"))
+    _check_outputs(out, None, None, overwrite, inputs=tuple(inputs),
+                   input_name="the economy spec or its tables")
     with _reading(spec):
-        econ, report = build_economy(_input_file(spec, "economy spec"))
+        econ, report = build_economy(spec)
     sym = report.symmetric
     click.echo(f"{spec}: {len(report.supply_use.products)} products, "
                f"{len(report.supply_use.industries)} industries → {econ.n} sectors "

@@ -56,12 +56,12 @@ import io
 import os
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Literal
+from typing import Annotated, Any, Literal
 
 import numpy as np
 import pandas as pd
 import yaml
-from pydantic import ConfigDict, Field
+from pydantic import ConfigDict, Discriminator, Field, Tag
 
 from .._validation import Model
 from ..economy import Economy
@@ -84,8 +84,37 @@ __all__ = ["EconomySpec", "BuildReport", "build_economy", "write_economy",
 SPEC_MAX_BYTES = 1 << 20
 """Largest economy spec read (1 MB)."""
 
-Table = str | TableLayout
-Values = dict[str, float] | TableLayout | str
+
+
+def _written_as(value: Any) -> str:
+    """Which member of a union the user wrote: a mapping or text (or a number).
+
+    Validating only that member reports only its errors, not every member's.
+    A mapping with a ``file`` key is a table layout, any other a mapping of values.
+    """
+    if isinstance(value, dict):
+        return "layout" if "file" in value else "values"
+    return "number" if isinstance(value, int | float) and not isinstance(value, bool) else "text"
+
+
+def _table_kind(value: Any) -> str:
+    return "layout" if isinstance(value, dict) else "text"
+
+
+# the tags are no keys of the user's data, so error paths leave them out
+Table = Annotated[Annotated[str, Tag("text")] | Annotated[TableLayout, Tag("layout")],
+                  Discriminator(_table_kind)]
+Values = Annotated[Annotated[dict[str, float], Tag("values")]
+                   | Annotated[TableLayout, Tag("layout")] | Annotated[str, Tag("text")],
+                   Discriminator(lambda v: "text" if _written_as(v) == "number"
+                                 else _written_as(v))]
+Concordance = Annotated[Annotated[dict[str, str], Tag("values")]
+                        | Annotated[str, Tag("text")],
+                        Discriminator(lambda v: "values" if isinstance(v, dict) else "text")]
+Years = Annotated[float, Field(ge=1)]
+ServiceLife = Annotated[Annotated[Years, Tag("number")]
+                        | Annotated[dict[str, Years], Tag("values")],
+                        Discriminator(lambda v: "values" if isinstance(v, dict) else "number")]
 
 
 class EmploymentSpec(Model):
@@ -109,7 +138,7 @@ class CapitalSection(Model):
     investment: Values | None = None
     composition: Values | None = None
     capital_output_ratios: Values | None = None
-    service_life: float | dict[str, float] = 20.0
+    service_life: ServiceLife = 20.0  # mean years, one for all or by industry
     retirement: str = "geometric"
     lead_time: int = Field(default=1, ge=0, le=100)
     max_utilisation: float = Field(default=1.0, gt=0, le=1)
@@ -121,8 +150,8 @@ class Aggregation(Model):
 
     model_config = ConfigDict(extra="forbid", frozen=True)
 
-    products: dict[str, str] | str | None = None
-    industries: dict[str, str] | str | None = None
+    products: Concordance | None = None
+    industries: Concordance | None = None
 
 
 class EconomySpec(Model):
@@ -224,7 +253,7 @@ def _read_spec(path: Path) -> tuple[dict[str, Any], Any]:
                  holds="a mapping (an economy spec)")
 
 
-def _spec(path: Path) -> EconomySpec:
+def _spec(path: Path) -> tuple[EconomySpec, Any]:
     from .planfile import _located
 
     data, node = _read_spec(path)
@@ -233,7 +262,7 @@ def _spec(path: Path) -> EconomySpec:
         raise _located(invalid("layout_version", f"be {LAYOUT_VERSION} (the layout this "
                                "version of growthplan reads)", version), path, node, [])
     try:
-        return EconomySpec.model_validate(data)
+        return EconomySpec.model_validate(data), node
     except InvalidInput as exc:
         raise _located(exc, path, node, []) from None
 
@@ -241,11 +270,18 @@ def _spec(path: Path) -> EconomySpec:
 class _Files:
     """Table files relative to the spec, confined to its folder unless allowed."""
 
-    def __init__(self, spec_path: Path, allow_outside: bool) -> None:
+    def __init__(self, spec_path: Path, allow_outside: bool, node: Any = None) -> None:
         self.base = spec_path.parent
         self.spec_path = spec_path
         self.allow_outside = allow_outside
+        self.node = node  # the spec's YAML nodes, for the line of a field
         self.read: list[Path] = [spec_path]
+
+    def located(self, exc: InvalidInput) -> InvalidInput:
+        """An error about a field of the spec, with the spec file and the field's line."""
+        from .planfile import _located
+
+        return _located(exc, self.spec_path, self.node, [])
 
     def path(self, name: str, what: str) -> Path:
         if "\0" in name:
@@ -297,6 +333,22 @@ class _Files:
                               "once", cells[0])
             out[cells[0]] = cells[1]
         return out
+
+
+def _spec_inputs(spec_path: str | os.PathLike[str]) -> list[Path]:
+    """The spec and every table file it names, as written (for the command line to refuse
+    an output folder holding any of them before the build)."""
+    path = Path(spec_path)
+    spec, _ = _spec(path)
+    cap, agg = spec.capital, spec.aggregation
+    refs: list[Any] = [spec.supply, spec.use, spec.imports_use, cap.stocks, cap.flows,
+                       cap.investment, cap.composition, cap.capital_output_ratios]
+    if spec.employment is not None:
+        refs.append(spec.employment.table)
+    if agg is not None:
+        refs += [agg.products, agg.industries]
+    names = [r.file if isinstance(r, TableLayout) else r for r in refs]
+    return [path] + [path.parent / n for n in names if isinstance(n, str) and "\0" not in n]
 
 
 # -- the build ------------------------------------------------------------------------------
@@ -419,27 +471,28 @@ def _capital_stocks(files: _Files, spec: EconomySpec, products: list[str],
     sources = [k for k in ("stocks", "flows", "investment", "capital_output_ratios")
                if getattr(cap, k) is not None]
     if len(sources) != 1:
-        raise invalid("capital", "give one of stocks, flows, investment (with composition) "
-                      "and capital_output_ratios (with composition)", sources or None)
+        raise files.located(invalid("capital", "give one of stocks, flows, investment (with "
+                                    "composition) and capital_output_ratios (with "
+                                    "composition)", sources or None))
     source = sources[0]
     if source in ("investment", "capital_output_ratios") and cap.composition is None:
-        raise invalid(f"capital.{source}", "come with capital.composition (the products "
-                      "investment is made of)", None)
+        raise files.located(invalid(f"capital.{source}", "come with capital.composition (the "
+                                    "products investment is made of)", None))
     if source in ("stocks", "flows") and cap.composition is not None:
-        raise invalid("capital.composition", f"not be given with capital.{source} (the table "
-                      "holds the composition)", "composition")
+        raise files.located(invalid("capital.composition", f"not be given with "
+                                    f"capital.{source} (the table holds the composition)",
+                                    "composition"))
     if isinstance(cap.service_life, dict):
         life = pd.Series(cap.service_life, dtype=float)
         missing = [i for i in industries if i not in life.index]
         unknown = [i for i in life.index if i not in industries]
         if missing or unknown:
-            raise invalid("capital.service_life", f"give the life of every industry (missing "
-                          f"{missing[:5]}; unknown {unknown[:5]})", sorted(life.index)[:5])
+            raise files.located(invalid(
+                "capital.service_life", f"give the life of every industry (missing "
+                f"{missing[:5]}; unknown {unknown[:5]})", sorted(life.index)[:5]))
         life = life.loc[industries]
     else:
         life = pd.Series(float(cap.service_life), index=industries)
-    if (life < 1).any():
-        raise invalid("capital.service_life", "be years >= 1", float(life.min()))
 
     def shares(comp: pd.Series | pd.DataFrame) -> pd.Series | pd.DataFrame:
         unknown = [str(r) for r in comp.index if str(r) not in products]
@@ -529,8 +582,8 @@ def build_economy(spec_path: str | os.PathLike[str], *, allow_outside: bool = Fa
         One line naming the spec or table file and the place in it.
     """
     path = Path(spec_path)
-    spec = _spec(path)
-    files = _Files(path, allow_outside)
+    spec, node = _spec(path)
+    files = _Files(path, allow_outside, node)
     assumptions: list[str] = [f"Values in {spec.value_unit}."]
     sut, emp, supply, use = _sut(files, spec, assumptions)
     products, industries = sut.products, sut.industries

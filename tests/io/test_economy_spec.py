@@ -218,3 +218,101 @@ def test_command_builds_a_folder_a_plan_loads(demo, tmp_path):
     assert bad.stderr.strip() == ("error: use (use.csv, row 4 'food', column D 'FOOD') must be "
                                   "a number (empty for zero). Got '..'.")
     assert not (tmp_path / "other").exists()
+
+
+def _edit_capital(folder, **changes):
+    spec = yaml.safe_load((folder / "economy.yaml").read_text(encoding="utf-8"))
+    spec["capital"].update(changes)
+    (folder / "economy.yaml").write_text(yaml.safe_dump(spec, sort_keys=False),
+                                         encoding="utf-8")
+    return folder / "economy.yaml"
+
+
+def _line(path, text):
+    """1-based line of the first line holding ``text`` (read with plain Python)."""
+    lines = path.read_text(encoding="utf-8").splitlines()
+    return next(i for i, line in enumerate(lines, start=1) if text in line)
+
+
+@pytest.mark.parametrize(("where", "key", "value", "message"), [
+    # a table written as a mapping: its field's error only, not "must be text"
+    ("supply", "header_row", -1, r"supply.header_row must be at least 1\. Got -1\.$"),
+    ("employment", "table", {"file": "employment.csv", "header_row": 0},
+     r"employment.table.header_row must be at least 1\. Got 0\.$"),
+    # values written as a mapping: the value's own path, not the layout's fields
+    ("capital", "investment", {"AGR": "x"}, r"capital.investment.AGR must be a number\. "
+     r"Got 'x'\.$"),
+    ("aggregation", "products", {"agri": 3}, r"aggregation.products.agri must be text\. "
+     r"Got 3\.$"),
+])
+def test_a_union_reports_the_branch_written(demo, where, key, value, message):
+    spec = yaml.safe_load((demo / "economy.yaml").read_text(encoding="utf-8"))
+    if where == "supply":
+        spec["supply"][key] = value
+    elif where == "capital":
+        spec["capital"] = {"investment": value, "composition": {"machinery": 1.0}}
+    elif where == "employment":
+        spec[where] = {**spec[where], key: value}
+    else:
+        spec[where] = {key: value}
+    (demo / "economy.yaml").write_text(yaml.safe_dump(spec, sort_keys=False), encoding="utf-8")
+    with pytest.raises(gp.InvalidInput, match=r"economy.yaml, line \d+: " + message) as info:
+        build_economy(demo / "economy.yaml")
+    assert "problems" not in str(info.value) and "\n" not in str(info.value)
+
+
+@pytest.mark.parametrize(("life", "message"), [
+    ({"AGR": "abc", "FOOD": 20, "MACH": 18, "CONS": 25, "SERV": 30},
+     r"capital.service_life.AGR must be a number\. Got 'abc'\.$"),
+    ({"AGR": 0, "FOOD": 20, "MACH": 18, "CONS": 25, "SERV": 30},
+     r"capital.service_life.AGR must be at least 1(\.0)?\. Got 0\.$"),
+    ({"FOOD": 20, "MACH": 18, "CONS": 25, "SERV": 30},
+     r"capital.service_life must give the life of every industry \(missing \['AGR'\]"),
+])
+def test_service_life_by_industry_named_with_file_and_line(demo, life, message):
+    path = _edit_capital(demo, service_life=life)
+    line = _line(path, "AGR:") if "AGR" in life else _line(path, "service_life:")
+    with pytest.raises(gp.InvalidInput, match=rf"economy.yaml, line {line}: {message}"):
+        build_economy(path)
+
+
+@pytest.mark.parametrize("life", [0, "abc", [20]])
+def test_one_service_life_for_all_named_with_file_and_line(demo, life):
+    path = _edit_capital(demo, service_life=life)
+    line = _line(path, "service_life:")
+    with pytest.raises(gp.InvalidInput, match=rf"economy.yaml, line {line}: "
+                       r"capital.service_life must be (at least 1|a number)") as info:
+        build_economy(path)
+    assert "\n" not in str(info.value)
+
+
+def test_several_problems_of_one_section_each_get_its_path(demo):
+    path = _edit_capital(demo, lead_time=-1, past_growth=5)
+    with pytest.raises(gp.InvalidInput) as info:
+        build_economy(path)
+    head, *items = str(info.value).split("\n  ")
+    assert head.endswith(": 2 problems:") and "capital.2" not in head
+    assert items[0].startswith("capital.lead_time must be at least 0. Got -1.")
+    assert items[1].startswith("capital.past_growth must be less than 1")
+
+
+@pytest.mark.parametrize("target", ["tables", "tables/sub"])
+def test_command_refuses_a_folder_holding_the_spec_or_a_table_before_the_build(demo, target):
+    from click.testing import CliRunner
+
+    from growthplan.cli import main
+
+    (demo / "sub").mkdir()
+    (demo / "use.csv").rename(demo / "sub" / "use.csv")
+    spec = yaml.safe_load((demo / "economy.yaml").read_text(encoding="utf-8"))
+    spec["use"]["file"] = "sub/use.csv"
+    (demo / "economy.yaml").write_text(yaml.safe_dump(spec), encoding="utf-8")
+    out = demo.parent / target
+    res = CliRunner().invoke(main, ["economy", "build", str(demo / "economy.yaml"), "--out",
+                                    str(out), "--overwrite"])
+    assert res.exit_code == 2
+    assert res.stderr.strip() == ("error: --out must not be a folder holding the economy spec "
+                                  f"or its tables. Got {str(out)!r}.")
+    assert "plan file" not in res.stderr
+    assert res.stdout == ""  # refused before the build: nothing built, nothing reported
+    assert sorted(p.name for p in (demo / "sub").iterdir()) == ["use.csv"]
