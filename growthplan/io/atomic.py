@@ -139,7 +139,8 @@ def _check_file_target(target: Path, overwrite: bool, protected: list[Path]) -> 
             raise invalid("path", "not exist yet (pass overwrite=True to replace it)",
                           str(target))
     if target.resolve() in protected:
-        raise invalid("path", "not be one of the plan's input files", str(target))
+        # the plan file and its tables, or an economy spec and its tables
+        raise invalid("path", "not be one of the input files it was made from", str(target))
 
 
 @contextlib.contextmanager
@@ -271,8 +272,8 @@ def _check_folder_target(target: Path, overwrite: bool, protected: list[Path],
                       "above it)", str(target))
     for p in protected:
         if p == resolved or resolved in p.parents:
-            raise invalid("folder", "not hold the plan's input files (choose a folder of "
-                          "its own)", str(target))
+            raise invalid("folder", "not hold the input files it was made from (choose a "
+                          "folder of its own)", str(target))
     st = _stat(target)
     if st is None:
         return
