@@ -106,3 +106,19 @@ def random_plan(seed: int, n: int, T: int, profile: str = "geometric",
                    labour=gp.LabourSupply(start=supply, growth=0.01),
                    consumption=gp.Consumption(floor=float(rng.uniform(1, 5))),
                    terminal=gp.TerminalGrowth(rate=0.02)), base
+
+
+def switch_plan() -> gp.Plan:
+    """One good made two ways: base (capital 0.4, labour 1) and a labour-saving
+    alternative (capital 0.45, labour 0.5); capital lasts one year and labour
+    grows 5 % a year, so the alternative is first started in 2032 (the closed
+    form is derived in tests/lp/test_techniques.py)."""
+    econ = gp.Economy(sectors=["goods"], input_coefficients=[[0.5]],
+                      capital_coefficients=[[0.4]], labour_coefficients=[[1.0]],
+                      capital={"goods": gp.CapitalSpec(initial_capacity=100,
+                                                       mean_service_life=1,
+                                                       retirement="sudden_exit")})
+    return gp.Plan(economy=econ, years=range(2030, 2038),
+                   labour=gp.LabourSupply(start=150, growth=0.05),
+                   techniques=[gp.Technique(sector="goods", label="saving", labour=0.5,
+                                            capital={"goods": 0.45})])

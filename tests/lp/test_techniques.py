@@ -7,7 +7,7 @@ import math
 import numpy as np
 import pytest
 from conftest import assert_optimal, one_sector, random_economy
-from helpers import economy, make_plan
+from helpers import economy, make_plan, switch_plan
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -115,15 +115,7 @@ def test_switch_year_follows_from_labour_growth():
     year t* − 1 = 2 (2032), never before. The final year's starts are all base
     (terminal capacity counts capacity, and base capacity is cheaper).
     """
-    econ = gp.Economy(sectors=["goods"], input_coefficients=[[0.5]],
-                      capital_coefficients=[[0.4]], labour_coefficients=[[1.0]],
-                      capital={"goods": gp.CapitalSpec(initial_capacity=100,
-                                                       mean_service_life=1,
-                                                       retirement="sudden_exit")})
-    plan = gp.Plan(economy=econ, years=range(2030, 2038),
-                   labour=gp.LabourSupply(start=150, growth=0.05),
-                   techniques=[gp.Technique(sector="goods", label="saving", labour=0.5,
-                                            capital={"goods": 0.45})])
+    plan = switch_plan()
     r = assert_optimal(plan.solve())
     t_star = math.floor(math.log(1.5) / math.log(1.25 / 1.05)) + 1
     assert t_star == 3

@@ -5,23 +5,15 @@ from __future__ import annotations
 import numpy as np
 import pytest
 from conftest import assert_optimal
+from helpers import switch_plan
 
-import growthplan as gp
 from growthplan.errors import InvalidInput
 
 
 @pytest.fixture(scope="module")
 def result():
     """The switch case of tests/lp/test_techniques.py: the labour-saving start comes in 2032."""
-    econ = gp.Economy(sectors=["goods"], input_coefficients=[[0.5]],
-                      capital_coefficients=[[0.4]], labour_coefficients=[[1.0]],
-                      capital={"goods": gp.CapitalSpec(initial_capacity=100,
-                                                       mean_service_life=1,
-                                                       retirement="sudden_exit")})
-    plan = gp.Plan(economy=econ, years=range(2030, 2038),
-                   labour=gp.LabourSupply(start=150, growth=0.05),
-                   techniques=[gp.Technique(sector="goods", label="saving", labour=0.5,
-                                            capital={"goods": 0.45})])
+    plan = switch_plan()
     return assert_optimal(plan.solve())
 
 
