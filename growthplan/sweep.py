@@ -17,6 +17,7 @@ again is reported by name and takes no other variant with it.
 
 from __future__ import annotations
 
+import contextlib
 import csv
 import difflib
 import itertools
@@ -308,34 +309,26 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
     lost: list[int] = []
     outcomes: list[Any] = [None] * len(variants)
     stream = _Stream(out, overwrite)
-    try:
-        with sweep_progress(progress, len(variants)) as bar, stream:
-            for i, got in in_order(pool, fn, args, window):  # in order: deterministic
-                if got is LOST:  # a worker died: solved again below
-                    lost.append(i)
-                    continue
-                if isinstance(got, BaseException):  # the executor itself failed
-                    got = ({"status": "error", "error": f"{type(got).__name__}: {got}"}, None)
-                outcomes[i] = got
-                stream.write({"scenario": variants[i][0], **variants[i][1], **got[0]})
+    with owned_pool(pool, own), sweep_progress(progress, len(variants)) as bar, stream:
+        for i, got in in_order(pool, fn, args, window):  # in order: deterministic
+            if got is LOST:  # a worker died: solved again below
+                lost.append(i)
+                continue
+            if isinstance(got, BaseException):  # the executor itself failed
+                got = ({"status": "error", "error": f"{type(got).__name__}: {got}"}, None)
+            outcomes[i] = got
+            stream.write({"scenario": variants[i][0], **variants[i][1], **got[0]})
+            bar.update(1)
+        if lost:
+            if not own:
+                workers = getattr(pool, "_max_workers", None) or workers
+            retried = _solve_alone([(plan, variants[i][1], options, keep_results)
+                                    for i in lost], [variants[i][0] for i in lost],
+                                   workers, getattr(pool, "_mp_context", None))
+            for i, outcome in zip(lost, retried, strict=True):
+                outcomes[i] = outcome
+                stream.write({"scenario": variants[i][0], **variants[i][1], **outcome[0]})
                 bar.update(1)
-            if lost:
-                if not own:
-                    workers = getattr(pool, "_max_workers", None) or workers
-                retried = _solve_alone([(plan, variants[i][1], options, keep_results)
-                                        for i in lost], [variants[i][0] for i in lost],
-                                       workers, getattr(pool, "_mp_context", None))
-                for i, outcome in zip(lost, retried, strict=True):
-                    outcomes[i] = outcome
-                    stream.write({"scenario": variants[i][0], **variants[i][1], **outcome[0]})
-                    bar.update(1)
-    except BaseException:
-        if own:  # an interrupt: our workers stop now, not after their queue
-            stop_pool(pool)
-        raise
-    finally:
-        if own:
-            pool.shutdown()
     rows = []
     for (name, params), (figures, _) in zip(variants, outcomes, strict=True):
         rows.append({"scenario": name, **params, **figures})
@@ -383,6 +376,21 @@ def _scattered(executor: Executor, base: Any) -> Any:
 def _run_based(task: tuple[Any, dict[str, Any]]) -> _Outcome:
     (plan, options, keep), params = task
     return _run_one((plan, params, options, keep))
+
+
+@contextlib.contextmanager
+def owned_pool(pool: Executor, own: bool) -> Iterator[Executor]:
+    """Use ``pool``; when the library made it (``own``), shut it down afterwards, and
+    on an interrupt stop its workers at once rather than after their queue."""
+    try:
+        yield pool
+    except BaseException:
+        if own:
+            stop_pool(pool)
+        raise
+    finally:
+        if own:
+            pool.shutdown()
 
 
 def stop_pool(pool: Executor) -> None:

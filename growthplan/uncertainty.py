@@ -661,7 +661,7 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
     At most ``in_flight`` chunks are out at a time (default four per worker).
     """
     from .progress import sweep_progress
-    from .sweep import LOST, _scattered, _token, _warm, in_order, stop_pool
+    from .sweep import LOST, _scattered, _token, _warm, in_order, owned_pool
 
     own = executor is None
     workers = max_workers or os.cpu_count() or 1
@@ -681,23 +681,15 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
         if ref is not None:  # a Dask cluster: the base sits on every worker once
             fn, args = _chunk_based, [(ref, g) for g in groups]
     parts: list[list[tuple[Any, ...]]] = [[] for _ in jobs]
-    try:
-        with sweep_progress(progress, draws) as bar:
-            for k, got in in_order(pool, fn, args, max(1, in_flight or 4 * workers)):
-                if got is LOST:  # a worker died: each draw again, alone
-                    parts[k] = _alone(jobs[k], getattr(pool, "_mp_context", None))
-                elif isinstance(got, BaseException):  # the executor failed on this chunk
-                    parts[k] = [r for i in groups[k] for r in _error_row(i, got)]
-                else:
-                    parts[k] = got
-                bar.update(len(groups[k]))
-    except BaseException:
-        if own:  # an interrupt: our workers stop now, not after their queue
-            stop_pool(pool)
-        raise
-    finally:
-        if own:
-            pool.shutdown()
+    with owned_pool(pool, own), sweep_progress(progress, draws) as bar:
+        for k, got in in_order(pool, fn, args, max(1, in_flight or 4 * workers)):
+            if got is LOST:  # a worker died: each draw again, alone
+                parts[k] = _alone(jobs[k], getattr(pool, "_mp_context", None))
+            elif isinstance(got, BaseException):  # the executor failed on this chunk
+                parts[k] = [r for i in groups[k] for r in _error_row(i, got)]
+            else:
+                parts[k] = got
+            bar.update(len(groups[k]))
     rows = [r for part in parts for r in part]
     table = pd.DataFrame(rows, columns=COLUMNS)
     table["year"] = table["year"].astype("Int64")
