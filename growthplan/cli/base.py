@@ -197,14 +197,7 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
     """Refuse outputs that cannot be written before any time goes into solving
     (``input_name``: the inputs in words, for the messages)."""
     named = {"--out": out, "--excel": excel, "--charts": charts, "--report": report}
-    seen: dict[Path, str] = {}
-    for opt, p in named.items():
-        if p is None:
-            continue
-        full = _resolved(p)
-        if full in seen:
-            raise invalid(opt, f"differ from {seen[full]}", str(p))
-        seen[full] = opt
+    for opt, p, full in _distinct(named):
         if p.exists() and not overwrite and opt != "--charts":
             raise invalid(opt, "not exist yet (pass --overwrite to replace it)", str(p))
         if opt == "--out":
@@ -232,6 +225,22 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
         if opt == "--charts":
             _plot_extra(opt)
         _writable(opt, p)
+
+
+def _distinct(named: dict[str, Path | None]) -> list[tuple[str, Path, Path]]:
+    """The outputs given, as (option, path, absolute path); two options naming one
+    path are refused."""
+    seen: dict[Path, str] = {}
+    out = []
+    for opt, p in named.items():
+        if p is None:
+            continue
+        full = _resolved(p)
+        if full in seen:
+            raise invalid(opt, f"differ from {seen[full]}", str(p))
+        seen[full] = opt
+        out.append((opt, p, full))
+    return out
 
 
 def _writable(opt: str, p: Path) -> None:

@@ -21,6 +21,7 @@ import pandas as pd
 from ..errors import invalid
 from .base import (
     EXIT_OK,
+    _distinct,
     _exit,
     _exit_code,
     _input_file,
@@ -42,14 +43,7 @@ _xlsx_out = click.option("--excel", type=click.Path(path_type=Path), default=Non
 def _check_files(named: dict[str, Path | None], overwrite: bool, inputs: tuple[Path, ...],
                  suffixes: dict[str, tuple[str, ...]]) -> None:
     """Refuse output files that cannot be written, before any time goes into solving."""
-    seen: dict[Path, str] = {}
-    for opt, p in named.items():
-        if p is None:
-            continue
-        full = _resolved(p)
-        if full in seen:
-            raise invalid(opt, f"differ from {seen[full]}", str(p))
-        seen[full] = opt
+    for opt, p, full in _distinct(named):
         if p.suffix.lower() not in suffixes[opt]:
             raise invalid(opt, f"end in {' or '.join(suffixes[opt])}", str(p))
         if any(full == _resolved(i) for i in inputs):
