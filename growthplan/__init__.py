@@ -6,10 +6,8 @@ from here.
 
 from importlib.metadata import PackageNotFoundError, version
 
-from . import backends, capital, objectives, plot
-from .backends import HighsBackend, PulpBackend, Status
-from .backends.highs import SlowMethodWarning
-from .choice import (
+from . import backends
+from .analysis.choice import (
     ActivityTable,
     CheapestTechniques,
     VonNeumannChoice,
@@ -22,8 +20,11 @@ from .choice import (
     von_neumann_choice,
     wage_profit_frontier,
 )
+from .analysis.expanding import ExpandingEconomy, expanding_economy
+from .analysis.steady import BalancedGrowth
+from .backends import HighsBackend, PulpBackend, Status
+from .backends.highs import SlowMethodWarning
 from .demo import DEMO_DIR, copy_demo, demo_economy, demo_plan
-from .economy import CapitalSpec, Economy, Sector
 from .errors import (
     EndEffectsWarning,
     GrowthplanError,
@@ -37,13 +38,11 @@ from .errors import (
     TinyCoefficientsWarning,
     UnproductiveEconomy,
 )
-from .expanding import ExpandingEconomy, expanding_economy
-from .io.build import BuildReport, build_economy, economy_spec_schema, write_economy
 from .io.planfile import load_plan_file, load_uncertainty, plan_file_schema, save_plan_file
-from .io.supply_use import SupplyUseTable, SymmetricTable
-from .io.tables import TransactionsTable, read_transactions
 from .lp.program import LinearProgram
-from .plan import (
+from .model import capital, objectives
+from .model.economy import CapitalSpec, Economy, Sector
+from .model.plan import (
     Consumption,
     LabourSupply,
     Plan,
@@ -53,12 +52,12 @@ from .plan import (
     TerminalGrowth,
     Trade,
 )
+from .model.technique import Technique, technique_arrays
 from .results import CAUTION, Audit, Diagnosis, PlanResult
-from .revision import compare, plot_compare, read_actuals, revise
-from .steady import BalancedGrowth
-from .sweep import SerialExecutor, Sweep, sweep, variant
-from .technique import Technique, technique_arrays
-from .uncertainty import (
+from .results import charts as plot
+from .scenarios.revision import compare, plot_compare, read_actuals, revise
+from .scenarios.sweep import SerialExecutor, Sweep, sweep, variant
+from .scenarios.uncertainty import (
     Empirical,
     LogNormal,
     Normal,
@@ -74,6 +73,9 @@ from .uncertainty import (
     robust_plan,
     stress_test,
 )
+from .statistics.build import BuildReport, build_economy, economy_spec_schema, write_economy
+from .statistics.supply_use import SupplyUseTable, SymmetricTable
+from .statistics.tables import TransactionsTable, read_transactions
 
 try:
     __version__ = version("growthplan")

@@ -13,9 +13,9 @@ from __future__ import annotations
 import shutil
 from pathlib import Path
 
-from .economy import Economy
 from .io.planfile import load_plan_file
-from .plan import Plan
+from .model.economy import Economy
+from .model.plan import Plan
 
 __all__ = ["DEMO_DIR", "PLAN_FILE", "DEMO_FILES", "SUPPLY_USE_FILES", "demo_economy", "demo_plan",
            "copy_demo"]

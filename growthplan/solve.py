@@ -4,7 +4,7 @@
 2. build the LP from the condition families (:func:`growthplan.lp.build.build`);
 3. optimise each objective stage on a back end, falling back to another
    method when a solve fails (:func:`optimise`); the horizon search of
-   :class:`~growthplan.objectives.Fastest` runs here too, above any back end;
+   :class:`~growthplan.model.objectives.Fastest` runs here too, above any back end;
 4. read the schedules from the solution and audit them independently;
 5. diagnose a plan that is impossible (an elastic re-solve, which always has
    a solution), and confirm every verdict of infeasibility by it.
@@ -36,7 +36,7 @@ from .results.result import PlanResult
 from .results.tables import schedules
 
 if TYPE_CHECKING:
-    from .plan import Plan
+    from .model.plan import Plan
 
 __all__ = ["solve", "solve_pulp", "program", "optimise", "write_program"]
 

@@ -26,7 +26,8 @@ def test_readme_tour_runs(tmp_path, monkeypatch):
     assert (tmp_path / "plan-out" / "output.csv").exists()
 
 
-@pytest.mark.parametrize("module", ["errors", "capital", "economy", "expanding", "plan",
+@pytest.mark.parametrize("module", ["errors", "model.capital", "model.economy",
+                                    "analysis.expanding", "model.plan",
                                     "io.atomic"])
 def test_docstring_examples(module):
     mod = importlib.import_module(f"growthplan.{module}")

@@ -29,10 +29,10 @@ def test_modules_import():
     for sub in ("growthplan.solve", "growthplan.lp.build", "growthplan.lp.conditions.balance",
                 "growthplan.backends.highs", "growthplan.backends.pulp",
                 "growthplan.results.audit", "growthplan.results.diagnosis",
-                "growthplan.io.tables", "growthplan.io.planfile", "growthplan.io.atomic"):
+                "growthplan.statistics.tables", "growthplan.io.planfile", "growthplan.io.atomic"):
         assert sub in mods
     for mod in mods:
-        if mod != "growthplan.plot":  # needs the optional matplotlib extra
+        if mod != "growthplan.results.charts":  # needs the optional matplotlib extra
             importlib.import_module(mod)
 
 

@@ -109,7 +109,7 @@ def test_second_signal_stops_at_once(monkeypatch):
 
 
 def test_interrupt_while_writing_charts_leaves_no_folder(tmp_path, monkeypatch):
-    import growthplan.plot as plot
+    import growthplan.results.charts as plot
 
     def interrupted(*args, **kwargs):
         raise KeyboardInterrupt

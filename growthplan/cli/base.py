@@ -36,7 +36,7 @@ import numpy as np
 from ..errors import GrowthplanError, invalid
 
 if TYPE_CHECKING:
-    from ..plan import Plan
+    from ..model.plan import Plan
     from ..results.result import PlanResult
 
 EXIT_OK, EXIT_INFEASIBLE, EXIT_INVALID, EXIT_SOLVER, EXIT_UNBOUNDED = 0, 1, 2, 3, 4
@@ -453,7 +453,7 @@ def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Pa
         import matplotlib
 
         matplotlib.use("Agg")
-        from ..plot import save_charts
+        from ..results.charts import save_charts
 
         with _writing(charts, "--charts"), _fresh_folder(charts, overwrite) as folder:
             written = save_charts(result, folder, overwrite=overwrite, protect=protect)

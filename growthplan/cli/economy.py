@@ -22,7 +22,7 @@ def economy() -> None:
               help="Write the economy into this new folder.")
 @_overwrite
 def build(spec: Path, out: Path, overwrite: bool) -> None:
-    from ..io.build import _spec_inputs, build_economy, write_economy
+    from ..statistics.build import _spec_inputs, build_economy, write_economy
 
     with _reading(spec):  # the folder is checked against the spec and its tables first
         inputs = _spec_inputs(_input_file(spec, "economy spec"))

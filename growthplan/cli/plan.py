@@ -35,7 +35,7 @@ from .base import (
 
 if TYPE_CHECKING:
     from ..io.planfile import SolveOptions
-    from ..plan import Plan
+    from ..model.plan import Plan
 
 
 def _method_help() -> str:

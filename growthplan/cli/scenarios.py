@@ -87,7 +87,7 @@ def _write(out: Path | None, excel: Path | None, sheets: dict[str, pd.DataFrame]
 @contextmanager
 def _executor(workers: int) -> Iterator[Executor | None]:
     """None (the analysis's own warm process pool) for several workers, else serial."""
-    from ..sweep import SerialExecutor
+    from ..scenarios.sweep import SerialExecutor
 
     if workers > 1:
         yield None
@@ -141,7 +141,7 @@ def _probabilities(result: Any) -> pd.DataFrame:
 def stress(plan_file: Path, draws: int | None, seed: int | None, workers: int,
            out: Path | None, excel: Path | None, overwrite: bool, progress: bool) -> None:
     from ..io.planfile import plan_file_inputs
-    from ..uncertainty import stress_test
+    from ..scenarios.uncertainty import stress_test
 
     _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file),
                  _SUFFIXES)
@@ -186,7 +186,7 @@ def stress(plan_file: Path, draws: int | None, seed: int | None, workers: int,
 def reoptimise(plan_file: Path, draws: int | None, seed: int | None, workers: int,
                out: Path | None, excel: Path | None, overwrite: bool, progress: bool) -> None:
     from ..io.planfile import plan_file_inputs
-    from ..uncertainty import reoptimise as run
+    from ..scenarios.uncertainty import reoptimise as run
 
     _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file),
                  _SUFFIXES)
@@ -234,8 +234,8 @@ def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
            excel: Path | None, overwrite: bool, progress: bool) -> None:
     from .. import load_plan_file
     from ..io.planfile import plan_file_inputs
-    from ..revision import compare, read_actuals
-    from ..revision import revise as revised_plan
+    from ..scenarios.revision import compare, read_actuals
+    from ..scenarios.revision import revise as revised_plan
 
     _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file, actuals),
                  _SUFFIXES)

@@ -4,7 +4,7 @@ The file points at its tables by paths relative to the file itself. Layout
 (YAML; TOML has the same keys)::
 
     economy:
-      flows: flows.csv                  # transactions table (see growthplan.io.tables)
+      flows: flows.csv                  # transactions table (see growthplan.statistics.tables)
       capital: capital.csv              # one row per sector
       capital_stocks: capital_stocks.csv  # or capital_coefficients: b.csv
       consumption_basket: {food: 0.5, services: 0.5}
@@ -19,7 +19,7 @@ The file points at its tables by paths relative to the file itself. Layout
       terminal: {rate: 0.04}
       objective: {kind: terminal_capacity}
     solve: {method: auto, time_limit: 600}
-    uncertainty:                        # optional: see growthplan.uncertainty
+    uncertainty:                        # optional: see growthplan.scenarios.uncertainty
       seed: 7
       draws: 200
       items:
@@ -55,14 +55,14 @@ from yaml.composer import Composer
 from yaml.events import AliasEvent
 from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 
-from .._validation import Model, Rule
-from ..economy import Economy, Sector
 from ..errors import InvalidInput, invalid, show, suggest
-from ..plan import Plan
-from ..uncertainty import UncertaintySpec
-from ._files import read_regular_file
+from ..model.economy import Economy, Sector
+from ..model.plan import Plan
+from ..model.validation import Model, Rule
+from ..scenarios.uncertainty import UncertaintySpec
+from ..statistics.tables import _coefficient_frames, _write_csv, economy_from_coefficients
 from .atomic import atomic_files
-from .tables import _coefficient_frames, _write_csv, economy_from_coefficients
+from .files import read_regular_file
 
 __all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "save_plan_file",
            "plan_file_schema", "plan_file_inputs", "PLAN_FILE_MAX_BYTES", "MAX_DEPTH",
@@ -269,9 +269,10 @@ def plan_file_schema() -> dict[str, Any]:
     defs["PlanSection"] = plan_schema
     schema["properties"]["plan"] = {"$ref": "#/$defs/PlanSection"}
     _as_loaded(plan_schema["properties"], defs)
-    from .. import objectives, technique, uncertainty
-    from .. import plan as plan_module
-    from ._schema import describe
+    from ..model import objectives, technique
+    from ..model import plan as plan_module
+    from ..scenarios import uncertainty
+    from .schema import describe
 
     classes: dict[str, type] = {name: c for module in (plan_module, objectives, technique,
                                                        uncertainty)
@@ -737,7 +738,7 @@ def _compact(value: Any) -> Any:
     """A model as a plan file writes it: defaults left out, the kind of an objective kept."""
     from pydantic import BaseModel
 
-    from ..objectives import Objective
+    from ..model.objectives import Objective
 
     if isinstance(value, BaseModel):
         out = {}

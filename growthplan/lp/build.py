@@ -26,7 +26,7 @@ from .data import PlanData
 from .program import Block, LinearProgram
 
 if TYPE_CHECKING:
-    from ..plan import Plan
+    from ..model.plan import Plan
 
 __all__ = ["build", "build_plan", "estimate_size", "columns", "capacity_operator",
            "deliveries_operator", "SIZE_LIMIT", "BYTES_PER_NONZERO", "peak_memory",

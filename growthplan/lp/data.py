@@ -14,13 +14,13 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
-from .. import objectives as obj
-from .._validation import Rule
-from ..series import series
+from ..model import objectives as obj
+from ..model.series import series
+from ..model.validation import Rule
 
 if TYPE_CHECKING:
-    from ..plan import Plan
-    from ..technique import TechniqueSet
+    from ..model.plan import Plan
+    from ..model.technique import TechniqueSet
 
 __all__ = ["PlanData", "TargetData", "TradeSide", "lower", "techniques", "basket",
            "consumption_floor",
@@ -325,9 +325,9 @@ def techniques(plan: Plan) -> TechniqueSet | None:
     """The plan's techniques as arrays, None when each sector has only its base technique.
 
     Embodied technical change splits each changing technique by vintage
-    (:func:`growthplan.technique.split_vintages`).
+    (:func:`growthplan.model.technique.split_vintages`).
     """
-    from ..technique import split_vintages, technique_arrays
+    from ..model.technique import split_vintages, technique_arrays
 
     tc = plan.technical_change
     embodied = tc is not None and tc.embodied and bool(tc.input_rate or tc.capital_rate
@@ -464,7 +464,7 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
         data.labour_year = data.labour[None, :, :] * fl[:, None, :]
         data.labour_all_year = data.labour_all[None, :, :] * fl[:, None, :]
     if tc is not None and tc.embodied and ts is not None and np.any(ts.vintage > 0):
-        from ..technique import technique_arrays
+        from ..model.technique import technique_arrays
 
         first = technique_arrays(econ, plan.techniques)  # before the split, for the audit
         data.extra["vintage_factors"] = {

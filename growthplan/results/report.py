@@ -419,7 +419,7 @@ def _charts(result: PlanResult) -> tuple[list[tuple[str, str, str]], str]:
     except ImportError:
         return [], ("Charts are left out: they need matplotlib "
                     "(pip install 'growthplan[plot]').")
-    from .. import plot
+    from . import charts as plot
 
     draw = [(name, caption, fn) for name, caption, fn in plot.chart_list(result)]
     out, failed = [], []
@@ -561,7 +561,7 @@ def _techniques_section(result: PlanResult, charts: bool) -> str:
             choice = []
             parts.append('<p class="note">The technique-mix charts need matplotlib '
                          "(pip install 'growthplan[plot]').</p>")
-        from .. import plot
+        from . import charts as plot
 
         for sector in choice:
             cap = f"Technique mix of {sector}: output by technique"

@@ -157,7 +157,7 @@ def test_charts_all_or_none(tmp_path, monkeypatch):
     from conftest import one_sector
     from matplotlib.figure import Figure
 
-    from growthplan.plot import save_charts
+    from growthplan.results.charts import save_charts
 
     result = gp.Plan(economy=one_sector(), years=range(2030, 2034),
                      terminal={"rate": 0.02}).solve(progress=False)

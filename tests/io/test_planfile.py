@@ -233,7 +233,7 @@ def test_tables_stay_in_the_plan_folder(folder, name):
 
 @pytest.mark.parametrize("kind", ["folder", "fifo", "device", "huge"])
 def test_special_table_files_are_not_read(folder, kind, monkeypatch):
-    from growthplan.io import tables
+    from growthplan.statistics import tables
 
     d = demo_data()
     target = folder / "special.csv"
@@ -422,8 +422,8 @@ PYDANTIC_WORDS = ("Input should", "input should", "input tag", "found using", "v
 
 
 def _class_names():
-    from growthplan import economy, objectives, plan
-    from growthplan._validation import Model
+    from growthplan.model import economy, objectives, plan
+    from growthplan.model.validation import Model
     from growthplan.io import planfile
 
     return {name for module in (plan, objectives, economy, planfile)

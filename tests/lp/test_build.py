@@ -9,8 +9,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import growthplan as gp
-from growthplan import capital as capital_module
-from growthplan.economy import Economy
+from growthplan.model import capital as capital_module
+from growthplan.model.economy import Economy
 
 
 def test_diagnosis_with_plan_years_that_are_not_calendar_years():

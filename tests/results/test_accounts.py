@@ -163,7 +163,7 @@ def test_ray_distance_and_stacked_starts_are_unit_free(f):
     import matplotlib
 
     matplotlib.use("Agg")
-    from growthplan.plot import plot_starts, ray_distance
+    from growthplan.results.charts import plot_starts, ray_distance
 
     base = assert_optimal(gp.demo_plan().solve(method="simplex"))
     other = assert_optimal(rescale(gp.demo_plan(), "energy", f).solve(method="simplex"))

@@ -62,7 +62,7 @@ def test_plot_techniques(result):
     import matplotlib
 
     matplotlib.use("Agg")
-    from growthplan.plot import plot_techniques
+    from growthplan.results.charts import plot_techniques
 
     ax = plot_techniques(result, "goods")
     heights = [p.get_height() for p in ax.patches]

@@ -3,7 +3,7 @@
 Availability is a bound on the starts columns (zero outside a technique's
 ``[first_year, last_start]``), by-products enter the balances through the
 output matrix ``Q``, and embodied change is written as vintage techniques
-(:mod:`growthplan.technique`); this family adds no rows. Its audit checks,
+(:mod:`growthplan.model.technique`); this family adds no rows. Its audit checks,
 from the schedules alone, that no technique was started outside its years,
 that the commodities made as by-products balance when their supply is summed
 technique by technique, and that each vintage used the coefficients of its

@@ -1,0 +1,100 @@
+"""From published statistical tables to an economy.
+
+:mod:`~growthplan.statistics.layouts` reads the tables offices publish (wide
+and long, located errors), :mod:`~growthplan.statistics.tables` transactions
+and coefficient tables (CSV or Excel) and their aggregation,
+:mod:`~growthplan.statistics.supply_use` turns supply and use tables into
+symmetric ones, :mod:`~growthplan.statistics.balancing` updates a matrix to
+new totals (RAS, GRAS), :mod:`~growthplan.statistics.capital_flows` estimates
+capital coefficients, :mod:`~growthplan.statistics.employment` labour by kind,
+and :mod:`~growthplan.statistics.build` the economy spec that turns them into
+an economy.
+
+The names below are loaded on first use.
+"""
+
+from __future__ import annotations
+
+import importlib
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from .balancing import Balanced, gras, ras
+    from .build import BuildReport, EconomySpec, build_economy, economy_spec_schema, write_economy
+    from .capital_flows import (
+        capital_coefficients_from_ratios,
+        investment_matrix,
+        stocks_from_investment,
+    )
+    from .employment import Employment, employment_table, labour_coefficients
+    from .layouts import LAYOUT_VERSION, LocatedTable, TableLayout, read_table
+    from .supply_use import MODELS, SupplyUseTable, SymmetricTable
+    from .tables import (
+        TransactionsTable,
+        capital_coefficients_from_stocks,
+        capital_table,
+        economy_from_coefficients,
+        read_frame,
+        read_transactions,
+        write_coefficient_tables,
+    )
+
+_LAZY = {
+    "TransactionsTable": "tables", "capital_coefficients_from_stocks": "tables",
+    "capital_table": "tables", "economy_from_coefficients": "tables", "read_frame": "tables",
+    "read_transactions": "tables", "write_coefficient_tables": "tables",
+    "Balanced": "balancing", "ras": "balancing", "gras": "balancing",
+    "capital_coefficients_from_ratios": "capital_flows", "investment_matrix": "capital_flows",
+    "stocks_from_investment": "capital_flows",
+    "MODELS": "supply_use", "SupplyUseTable": "supply_use", "SymmetricTable": "supply_use",
+    "BuildReport": "build", "EconomySpec": "build", "build_economy": "build",
+    "economy_spec_schema": "build", "write_economy": "build",
+    "Employment": "employment", "employment_table": "employment",
+    "labour_coefficients": "employment",
+    "LAYOUT_VERSION": "layouts", "LocatedTable": "layouts", "TableLayout": "layouts",
+    "read_table": "layouts",
+}
+
+__all__ = [
+    "Balanced",
+    "BuildReport",
+    "EconomySpec",
+    "Employment",
+    "LAYOUT_VERSION",
+    "LocatedTable",
+    "MODELS",
+    "SupplyUseTable",
+    "SymmetricTable",
+    "TableLayout",
+    "TransactionsTable",
+    "build_economy",
+    "capital_coefficients_from_ratios",
+    "capital_coefficients_from_stocks",
+    "capital_table",
+    "economy_from_coefficients",
+    "economy_spec_schema",
+    "employment_table",
+    "gras",
+    "investment_matrix",
+    "labour_coefficients",
+    "ras",
+    "read_frame",
+    "read_table",
+    "read_transactions",
+    "stocks_from_investment",
+    "write_coefficient_tables",
+    "write_economy",
+]
+
+
+def __getattr__(name: str) -> Any:
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    value = getattr(importlib.import_module(f"{__name__}.{module}"), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(__all__)
