@@ -31,6 +31,7 @@ from .certificate import (
     scaled,
     valid_ray,
 )
+from .methods import AUTO_IPM_NONZEROS, METHODS, SLOW_METHOD_NONZEROS, SLOW_METHODS
 
 __all__ = ["HighsBackend", "STATUS_TABLE", "METHODS", "choose_method", "highs_version",
            "AUTO_IPM_NONZEROS", "SLOW_METHOD_NONZEROS", "SlowMethodWarning"]
@@ -59,17 +60,7 @@ STATUS_TABLE: dict[object, Status] = {
 if hasattr(_MS, "kMemoryLimit"):
     STATUS_TABLE[_MS.kMemoryLimit] = Status.ERROR
 
-# method name -> HiGHS options
-METHODS: dict[str, dict[str, object]] = {
-    "simplex": {"solver": "simplex"},
-    "ipm": {"solver": "ipm", "run_crossover": "off"},
-    "ipm-crossover": {"solver": "ipm", "run_crossover": "on"},
-    "pdlp": {"solver": "pdlp"},
-    "highs-default": {"solver": "choose"},
-}
-AUTO_IPM_NONZEROS = 4_000
-SLOW_METHOD_NONZEROS = 200_000  # explicit simplex or crossover above this draws a warning
-_SLOW_METHODS = ("simplex", "ipm-crossover", "highs-default")
+_SLOW_METHODS = SLOW_METHODS
 
 
 class SlowMethodWarning(GrowthplanWarning):

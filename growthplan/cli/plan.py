@@ -10,7 +10,7 @@ from typing import TYPE_CHECKING, Any
 import click
 import numpy as np
 
-from ..backends.highs import METHODS
+from ..backends.methods import METHODS
 from ..errors import InvalidInput, invalid
 from .base import (
     _charts,

@@ -13,10 +13,12 @@ from collections.abc import Iterator
 from concurrent.futures import Executor
 from contextlib import contextmanager
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import click
-import pandas as pd
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 from ..errors import invalid
 from .base import (
@@ -70,6 +72,8 @@ def _protected(plan_file: Path, *more: Path) -> tuple[Path, ...]:
 
 def _write(out: Path | None, excel: Path | None, sheets: dict[str, pd.DataFrame],
            main_sheet: str, overwrite: bool, protect: tuple[Path, ...]) -> None:
+    import pandas as pd
+
     from ..io.atomic import atomic_file
 
     if out is not None:

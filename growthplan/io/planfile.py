@@ -210,7 +210,7 @@ class SolveOptions(Model):
     @field_validator("method")
     @classmethod
     def _method(cls, v: str) -> str:
-        from ..backends.highs import METHODS
+        from ..backends.methods import METHODS
 
         if v != "auto" and v not in METHODS:
             raise Rule(f"be 'auto' or one of {', '.join(METHODS)}", v,
@@ -298,7 +298,7 @@ def _as_loaded(plan: dict[str, Any], defs: dict[str, Any]) -> None:
                         "last": {**year, "description": "The last plan year."}}}]}
     supply = {"$ref": "#/$defs/LabourSupply"}
     plan["labour"] = {"anyOf": [supply, {"type": "array", "items": supply}]}
-    from ..backends.highs import METHODS
+    from ..backends.methods import METHODS
 
     defs["SolveOptions"]["properties"]["method"]["enum"] = ["auto", *METHODS]
     for definition in defs.values():  # an objective's kind picks it: never implied

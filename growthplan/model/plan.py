@@ -24,7 +24,6 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from pydantic import Field, PrivateAttr, field_validator, model_validator
 
-from ..lp import data as lowering
 from . import objectives as obj
 from .economy import Economy
 from .series import series as _series
@@ -434,6 +433,9 @@ class Plan(Model):
 
     @model_validator(mode="after")
     def _check(self) -> Plan:
+        # the series the LP will use are checked where they are computed, once
+        from ..lp import data as lowering
+
         econ = self.economy
         names = econ.names
         if econ.capital is None:
@@ -604,6 +606,8 @@ class Plan(Model):
             The arrays the LP is built from.
         """
         if self._lowered is None:
+            from ..lp import data as lowering
+
             self._lowered = lowering.lower(self)
         return self._lowered
 
