@@ -162,7 +162,7 @@ def _fixed(plan: Plan, backend: Any, tol: float, progress: bool, stop: Any,
     with solve_progress(progress, f"{d.n} sectors × {d.T} years") as cb:
         final_lp, outcome = optimise(lp, backend, stop=stop, callback=cb)
     timings = {"validate": plan.validation_seconds(), "compile": t1 - t0}
-    return _finish(plan, lp, final_lp, outcome, backend, tol, timings, stop)
+    return _finish(plan, lp, final_lp, outcome, backend, tol, timings, stop, progress)
 
 
 def _audited(final_lp: LinearProgram, outcome: SolverOutcome, tol: float,
@@ -197,7 +197,8 @@ def _another_method(final_lp: LinearProgram, backend: Any, stop: Any, tol: float
 
 
 def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: SolverOutcome,
-            backend: Any, tol: float, timings: dict[str, float], stop: Any) -> PlanResult:
+            backend: Any, tol: float, timings: dict[str, float], stop: Any,
+            progress: bool = False) -> PlanResult:
     t0 = time.perf_counter()
     status = outcome.status
     notes: list[str] = []
@@ -226,7 +227,9 @@ def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: Sol
     stopped = stop is not None and (stop.is_set() if hasattr(stop, "is_set") else stop())
     if status in (FAILED - {Status.NOT_VERIFIED}) | {Status.INFEASIBLE} and not stopped:
         t2 = time.perf_counter()
-        diagnosis = diagnose(lp, backend=backend)
+        diagnosis = diagnose(lp, backend=backend, plan_seconds=outcome.seconds,
+                             progress=progress, stop=stop,
+                             threads=getattr(backend, "threads", None))
         timings["diagnose"] = time.perf_counter() - t2
         if diagnosis.confirmed:
             if status is not Status.INFEASIBLE:
@@ -292,7 +295,7 @@ def _fastest(plan: Plan, backend: Any, max_years: int, tol: float, progress: boo
             return True
         if out.status in (Status.INTERRUPTED, Status.TIME_LIMIT):
             raise _Stopped(out)
-        verdict = diagnose(probe, subset=False)
+        verdict = diagnose(probe, subset=False, polish=0, other_view=False)
         ok = verdict.status is Status.OPTIMAL and not verdict.confirmed
         tried[years] = Status.OPTIMAL.value if ok else Status.INFEASIBLE.value
         return ok

@@ -33,7 +33,7 @@ from .certificate import (
 )
 from .methods import AUTO_IPM_NONZEROS, METHODS, SLOW_METHOD_NONZEROS, SLOW_METHODS
 
-__all__ = ["HighsBackend", "STATUS_TABLE", "METHODS", "choose_method", "highs_version",
+__all__ = ["HighsBackend", "HighsSession", "STATUS_TABLE", "METHODS", "choose_method", "highs_version",
            "AUTO_IPM_NONZEROS", "SLOW_METHOD_NONZEROS", "SlowMethodWarning"]
 
 _MS = highspy.HighsModelStatus
@@ -489,3 +489,82 @@ class HighsBackend:
             return None
         out = np.asarray(ray, dtype=float)
         return out * c if c is not None else out
+
+
+class HighsSession:
+    """One HiGHS model kept loaded while its bounds and costs change between solves.
+
+    HiGHS keeps the simplex basis of the last solve when only bounds or costs
+    change, so each further solve starts from it (a warm start): the
+    diagnosis's polishing and its deletion filter make many small changes to
+    one problem.
+
+    Parameters
+    ----------
+    lp : LinearProgram
+        The problem, loaded once (minimised or maximised as its ``sense`` says).
+    method : str, default "simplex"
+        A name of :data:`METHODS`.
+    tolerance : float, optional
+        Primal and dual feasibility tolerance.
+    threads : int, optional
+        HiGHS threads.
+    """
+
+    def __init__(self, lp: LinearProgram, *, method: str = "simplex",
+                 tolerance: float | None = None, threads: int | None = None) -> None:
+        backend = HighsBackend(method, tolerance=tolerance, threads=threads)
+        self.h, _ = backend._highs(method, None, None)
+        # equilibrated as the back end does it when the entries span a wide range
+        self.r, self.c = equilibrate(lp) if entry_range(lp) > SCALE_RANGE else \
+            (np.ones(lp.shape[0]), np.ones(lp.shape[1]))
+        load(self.h, scaled(lp, self.r, self.c))
+        self.method = method
+        self.ncol = lp.shape[1]
+
+    def row_bounds(self, rows: np.ndarray, lower: np.ndarray, upper: np.ndarray) -> None:
+        """Change the bounds of some rows (``±inf`` for none)."""
+        inf = highspy.kHighsInf
+        rows = np.asarray(rows, dtype=np.int32)
+        r = self.r[rows]
+        self.h.changeRowsBounds(int(rows.size), rows,
+                                _bounds(np.asarray(lower, float) * r, -inf),
+                                _bounds(np.asarray(upper, float) * r, inf))
+
+    def col_bounds(self, cols: np.ndarray, lower: np.ndarray, upper: np.ndarray) -> None:
+        """Change the bounds of some columns (``±inf`` for none)."""
+        inf = highspy.kHighsInf
+        cols = np.asarray(cols, dtype=np.int32)
+        c = self.c[cols]
+        self.h.changeColsBounds(int(cols.size), cols,
+                                _bounds(np.asarray(lower, float) / c, -inf),
+                                _bounds(np.asarray(upper, float) / c, inf))
+
+    def costs(self, cost: np.ndarray) -> None:
+        """Replace the whole cost vector."""
+        idx = np.arange(self.ncol, dtype=np.int32)
+        self.h.changeColsCost(int(self.ncol), idx,
+                              np.ascontiguousarray(np.asarray(cost, float) * self.c))
+
+    def run(self, time_limit: float | None = None) -> tuple[Status, np.ndarray | None, float]:
+        """Solve from the last basis.
+
+        Parameters
+        ----------
+        time_limit : float, optional
+            Seconds for this solve.
+
+        Returns
+        -------
+        (Status, numpy.ndarray or None, float)
+            The status, the column values (None without a solution) and the
+            seconds taken.
+        """
+        _set(self.h, "time_limit", float(time_limit) if time_limit is not None else math.inf)
+        t0 = time.perf_counter()
+        self.h.run()
+        seconds = time.perf_counter() - t0
+        status = STATUS_TABLE.get(self.h.getModelStatus(), Status.UNKNOWN)
+        sol = self.h.getSolution()
+        x = np.array(sol.col_value) * self.c if sol.value_valid else None
+        return status, x, seconds

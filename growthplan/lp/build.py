@@ -28,7 +28,7 @@ from .program import Block, LinearProgram
 if TYPE_CHECKING:
     from ..model.plan import Plan
 
-__all__ = ["build", "build_plan", "estimate_size", "columns", "capacity_operator",
+__all__ = ["NUMBER_LIMIT", "build", "build_plan", "estimate_size", "columns", "capacity_operator",
            "deliveries_operator", "SIZE_LIMIT", "BYTES_PER_NONZERO", "peak_memory",
            "solve_seconds"]
 
@@ -184,6 +184,40 @@ def guard_size(plan: Plan, size_limit: int | None) -> None:
             "size_limit=None (or a larger number) to build it anyway.", field="size_limit")
 
 
+# HiGHS reads a bound of 1e20 or more as infinite: such a number would silently drop a
+# condition (or, as a lower bound, make HiGHS refuse the model)
+NUMBER_LIMIT = 1e20
+# the plan field that sets the bounds of each row family and column block
+_FIELDS = {"targets": "targets", "consumption_floor": "consumption.floor",
+           "labour": "labour", "foreign_exchange": "trade.inflow", "balance": "final_demand",
+           "terminal": "terminal", "capacity": "capital.initial_capacity",
+           "terminal_level": "capital.initial_capacity", "starts": "starts_ceilings",
+           "imports": "trade", "exports": "trade"}
+
+
+def _guard_numbers(d: PlanData, rows: dict[str, Block], cols: dict[str, Block],
+                   row_lower: np.ndarray, row_upper: np.ndarray,
+                   col_upper: np.ndarray) -> None:
+    """Refuse a bound that HiGHS would read as infinite, naming the plan field it came from."""
+    for blocks, values in ((rows, (row_lower, row_upper)), (cols, (col_upper,))):
+        for v in values:
+            big = np.flatnonzero(np.isfinite(v) & (np.abs(v) >= NUMBER_LIMIT))
+            if big.size == 0:
+                continue
+            i = int(big[0])
+            block = next(b for b in blocks.values() if b.start <= i < b.stop)
+            where = _FIELDS.get(block.name, block.name)
+            label = block.label(i - block.start)
+            if block.name == "targets":
+                quantity = label[1][2]
+                where = f"targets[{i - block.start}].{quantity}_at_least"
+            parts = [str(p) for p in label[1:] if not isinstance(p, tuple)]
+            raise InvalidInput(
+                f"{where} must be below {NUMBER_LIMIT:.0e} in the plan's units, the largest "
+                "number the solver takes as finite" + (f" ({' '.join(parts)})" if parts else "")
+                + f". Got {float(v[i]):.6g}. Measure the sector in a larger unit.", field=where)
+
+
 def build(d: PlanData, *, objective: Any = None) -> LinearProgram:
     """Build the LP of a lowered plan.
 
@@ -227,6 +261,8 @@ def build(d: PlanData, *, objective: Any = None) -> LinearProgram:
     for name, side in (("imports", d.imports), ("exports", d.exports)):
         if name in cols and side is not None:
             col_upper[cols[name].start:cols[name].stop] = side.ceilings.ravel()
+    row_lower, row_upper = np.concatenate(lowers), np.concatenate(uppers)
+    _guard_numbers(d, rows, cols, row_lower, row_upper, col_upper)
     o = d.objective if objective is None else objective
     if o is False:
         from .program import Stage
@@ -235,7 +271,7 @@ def build(d: PlanData, *, objective: Any = None) -> LinearProgram:
     else:
         stages = o.stages(d, cols, ncol)
     return LinearProgram(
-        matrix=matrix, row_lower=np.concatenate(lowers), row_upper=np.concatenate(uppers),
+        matrix=matrix, row_lower=row_lower, row_upper=row_upper,
         col_lower=col_lower, col_upper=col_upper, cost=stages[0].cost, sense=stages[0].sense,
         rows=rows, cols=cols, stages=stages, data=d,
         operators={"capacity": ctx.capacity, "deliveries": ctx.deliveries})

@@ -10,7 +10,7 @@ import numpy as np
 if TYPE_CHECKING:
     from .result import PlanResult
 
-__all__ = ["CAUTION", "CALIBRATION_WARNING", "Summary", "key_figures"]
+__all__ = ["CAUTION", "CALIBRATION_WARNING", "Summary", "key_figures", "status_text"]
 
 CALIBRATION_WARNING = 0.25  # a first year this far from the base year is remarked on
 
@@ -63,6 +63,24 @@ def labour_label(kind: str, unit: str) -> str:
     return f"labour ({unit})" if kind == "labour" else f"labour {kind} ({unit})"
 
 
+def status_text(result: PlanResult) -> str:
+    """The status in words; only a verified optimum is ever called optimal.
+
+    An impossible plan names its worst missed condition and its reachable
+    maximum; any other failed solve gives its status without the solver's own
+    text when that says "optimal" (an optimum the audit or the duals did not
+    verify is not one).
+    """
+    if result.ok:
+        return result.status.value
+    diag = result.diagnosis
+    if result.status.value == "infeasible" and diag is not None:
+        return diag.status_words()
+    word = result.status.value.replace("_", " ")
+    msg = str(result.message or "")
+    return word if not msg or "optimal" in msg.lower() else f"{word} ({msg})"
+
+
 class Summary:
     """Printable and notebook-renderable summary of a :class:`PlanResult`."""
 
@@ -72,12 +90,13 @@ class Summary:
     def _lines(self) -> list[tuple[str, str]]:
         r = self.result
         p = r.plan
-        rows = [("status", r.status.value + ("" if r.ok else f" ({r.message})")),
+        rows = [("status", status_text(r)),
                 ("years", f"{p.years[0]}–{p.years[-1]} ({p.horizon})"),
-                ("sectors", str(p.economy.n)),
-                ("objective", f"{type(p.objective).__name__} = {r.objective:.6g}"
-                 + (f" (terminal proportions: {r.data.proportions_source})"
-                    if r.data is not None and r.data.proportions_source else ""))]
+                ("sectors", str(p.economy.n))]
+        if r.ok:  # a plan that is not optimal has no objective worth showing
+            rows.append(("objective", f"{type(p.objective).__name__} = {r.objective:.6g}"
+                         + (f" (terminal proportions: {r.data.proportions_source})"
+                            if r.data is not None and r.data.proportions_source else "")))
         if r.ok:
             assert r.data is not None
             d = r.data
@@ -144,8 +163,12 @@ class Summary:
             rows.append(("note", w))
         if r.diagnosis is not None:
             rows.append(("diagnosis", r.diagnosis.headline()))
-            if r.diagnosis.conflict():
-                rows.append(("conflict", r.diagnosis.conflict()))
+            if r.diagnosis.views():
+                rows.append(("other view", r.diagnosis.views()))
+            rows.append(("conflict", r.diagnosis.conflict() or r.diagnosis.subset_source
+                         or "not computed"))
+            for note in r.diagnosis.notes:
+                rows.append(("note", note))
         return rows
 
     def __str__(self) -> str:

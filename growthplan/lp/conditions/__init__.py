@@ -96,6 +96,7 @@ class Condition:
     name: str = ""
     elastic: bool = False
     words: str = ""
+    role: str = ""  # of an elastic family: "aim" (negotiable) or "fact" (data)
     extra: dict[str, Any] = field(default_factory=dict)
 
     def applies(self, d: PlanData) -> bool:
@@ -126,6 +127,10 @@ class Condition:
     def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         """(condition, sector or kind, year) of one row, for the shortfall table."""
         return (self.words or self.name, str(label[2]) if len(label) > 2 else "", label[1])
+
+    def unit(self, d: PlanData, label: tuple[Any, ...]) -> str:
+        """Unit of what the row asks for, for the diagnosis's words ("" when none)."""
+        return ""
 
     def describe(self, label: tuple[Any, ...]) -> str:
         """The row in the trade's words, e.g. "labour in 2031"."""

@@ -19,7 +19,8 @@ if TYPE_CHECKING:
 
 class ConsumptionFloor(Condition):
     def __init__(self) -> None:
-        super().__init__(name="consumption_floor", elastic=True, words="consumption floor")
+        super().__init__(name="consumption_floor", elastic=True, words="consumption floor",
+                         role="aim")
 
     def applies(self, d: PlanData) -> bool:
         return d.has_consumption
@@ -41,13 +42,17 @@ class ConsumptionFloor(Condition):
     def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         return ("consumption floor", "", label[1])
 
+    def unit(self, d: PlanData, label: tuple[Any, ...]) -> str:
+        return "units of the consumption level"
+
     def describe(self, label: tuple[Any, ...]) -> str:
         return f"the consumption floor in {label[1]}"
 
 
 class ConsumptionFall(Condition):
     def __init__(self) -> None:
-        super().__init__(name="consumption_fall", elastic=True, words="consumption fall")
+        super().__init__(name="consumption_fall", elastic=True, words="consumption fall",
+                         role="aim")
 
     def applies(self, d: PlanData) -> bool:
         return d.has_consumption and d.max_fall is not None and d.T > 1
@@ -80,6 +85,9 @@ class ConsumptionFall(Condition):
 
     def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         return ("consumption fall", "", label[1])
+
+    def unit(self, d: PlanData, label: tuple[Any, ...]) -> str:
+        return "units of the consumption level"
 
     def describe(self, label: tuple[Any, ...]) -> str:
         return f"the limit on the fall of consumption in {label[1]}"

@@ -15,7 +15,7 @@ if TYPE_CHECKING:
 
 class Labour(Condition):
     def __init__(self) -> None:
-        super().__init__(name="labour", elastic=True, words="labour")
+        super().__init__(name="labour", elastic=True, words="labour", role="fact")
 
     def applies(self, d: PlanData) -> bool:
         return d.labour.shape[0] > 0
@@ -51,6 +51,10 @@ class Labour(Condition):
 
     def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         return ("labour", str(label[2]), label[1])
+
+    def unit(self, d: PlanData, label: tuple[Any, ...]) -> str:
+        kinds = list(d.labour_kinds)
+        return d.labour_units[kinds.index(label[2])] if label[2] in kinds else ""
 
     def describe(self, label: tuple[Any, ...]) -> str:
         kind = "" if label[2] == "labour" else f" of kind {label[2]}"

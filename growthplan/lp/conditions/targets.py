@@ -19,7 +19,7 @@ if TYPE_CHECKING:
 
 class Targets(Condition):
     def __init__(self) -> None:
-        super().__init__(name="targets", elastic=True, words="target")
+        super().__init__(name="targets", elastic=True, words="target", role="aim")
 
     def applies(self, d: PlanData) -> bool:
         return bool(d.targets)
@@ -93,6 +93,12 @@ class Targets(Condition):
     def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         year, sector, quantity = label[1]
         return (f"{quantity} target", sector, year)
+
+    def unit(self, d: PlanData, label: tuple[Any, ...]) -> str:
+        year, sector, quantity = label[1]
+        if not sector:
+            return "units of the consumption level"
+        return f"{d.units[d.names.index(sector)]} a year"
 
     def describe(self, label: tuple[Any, ...]) -> str:
         year, sector, quantity = label[1]

@@ -34,7 +34,7 @@ def window(d: PlanData) -> list[tuple[int, int]]:
 
 class Terminal(Condition):
     def __init__(self) -> None:
-        super().__init__(name="terminal", elastic=True, words="terminal growth")
+        super().__init__(name="terminal", elastic=True, words="terminal growth", role="aim")
 
     def applies(self, d: PlanData) -> bool:
         return d.psi is not None
@@ -106,6 +106,10 @@ class Terminal(Condition):
     def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         year, sector = label[1]
         return ("terminal growth", sector, year)
+
+    def unit(self, d: PlanData, label: tuple[Any, ...]) -> str:
+        year, sector = label[1]
+        return f"{d.units[d.names.index(sector)]} of capacity started a year"
 
     def describe(self, label: tuple[Any, ...]) -> str:
         year, sector = label[1]

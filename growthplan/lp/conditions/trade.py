@@ -19,7 +19,8 @@ if TYPE_CHECKING:
 
 class ForeignExchange(Condition):
     def __init__(self) -> None:
-        super().__init__(name="foreign_exchange", elastic=True, words="foreign exchange")
+        super().__init__(name="foreign_exchange", elastic=True, words="foreign exchange",
+                         role="fact")
 
     def applies(self, d: PlanData) -> bool:
         return d.trades
@@ -58,6 +59,9 @@ class ForeignExchange(Condition):
 
     def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         return ("foreign exchange", "", label[1])
+
+    def unit(self, d: PlanData, label: tuple[Any, ...]) -> str:
+        return f"{d.value_unit} a year"
 
     def describe(self, label: tuple[Any, ...]) -> str:
         return f"the foreign-exchange limit in {label[1]}"
