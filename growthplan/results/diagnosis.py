@@ -94,7 +94,7 @@ class Step:
 
 def _what(condition: str, sector: str) -> str:
     """ "output target energy", "labour" (a kind called "labour" is not said twice)."""
-    return " ".join(str(p) for p in (condition, sector) if p != "" and p != condition)
+    return condition if sector in ("", condition) else f"{condition} {sector}"
 
 
 def _words(table: pd.DataFrame, limit: int = 3) -> list[str]:

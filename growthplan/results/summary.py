@@ -75,7 +75,7 @@ def status_text(result: PlanResult) -> str:
         return result.status.value
     diag = result.diagnosis
     if result.status.value == "infeasible" and diag is not None:
-        return diag.status_words()
+        return f"{diag.status_words()} (status infeasible)"
     word = result.status.value.replace("_", " ")
     msg = str(result.message or "")
     return word if not msg or "optimal" in msg.lower() else f"{word} ({msg})"

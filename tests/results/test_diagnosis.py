@@ -50,12 +50,18 @@ def test_labour_shortfall():
     # 10 more of 40 person-years (25 %)
     assert len(d) == 1 and d.iloc[0].condition == "output target"
     assert d.iloc[0].shortfall == pytest.approx(20.0)
-    # weighting the target heavily moves the shortfall to labour
+    # labour is a fact: weights act within a level and never put it before the aim
     from growthplan.results.diagnosis import diagnose
 
-    d2 = diagnose(r.lp, weights={"targets": 100.0}).shortfalls
+    d1 = diagnose(r.lp, weights={"targets": 100.0}).shortfalls
+    assert list(d1.condition) == ["output target"]
+    # asked for, facts come first: 10 more person-years meet the target
+    d2 = diagnose(r.lp, relax="facts").shortfalls
     assert list(d2.condition) == ["labour"]
     assert d2.iloc[0].shortfall == pytest.approx(10.0)
+    assert r.diagnosis.other_view is not None
+    assert list(r.diagnosis.other_view.condition) == ["labour"]
+    assert "50 person-years instead of 40" in r.diagnosis.views()
 
 
 def test_infeasible_subset_names_the_conflict():

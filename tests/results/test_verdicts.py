@@ -384,4 +384,5 @@ def test_an_impossible_plan_exports_its_diagnosis(tmp_path):
     assert short.iloc[0]["shortfall"] == pytest.approx(500 - 100 * 1.15 ** 10, rel=1e-6)
     assert "capacity target of goods in 2040" in (folder / "conflict.csv").read_text(
         encoding="utf-8")
-    assert "infeasible" in (folder / "summary.txt").read_text(encoding="utf-8")
+    assert "impossible: the capacity target goods in 2040 cannot be met" in (
+        folder / "summary.txt").read_text(encoding="utf-8")
