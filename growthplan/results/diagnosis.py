@@ -148,6 +148,12 @@ class Diagnosis:
         The HiGHS method of the elastic re-solve.
     steps : list of Step
         Every step with its time and outcome.
+    budget : float
+        Seconds the diagnosis was given.
+    audit_ok : bool or None
+        Whether the elastic solution's schedules keep every hard condition
+        (balances, capacity, signs, ceilings) in the independent audit; None
+        when there was no elastic solution.
     """
 
     shortfalls: pd.DataFrame
@@ -161,6 +167,7 @@ class Diagnosis:
     method: str = ""
     steps: list[Step] = field(default_factory=list)
     budget: float = float("nan")
+    audit_ok: bool | None = None
 
     @property
     def confirmed(self) -> bool:
@@ -415,6 +422,7 @@ class _View:
     duals: np.ndarray | None = None     # row duals of the first feasible level
     seconds: float = 0.0                # of the first feasible level's solve
     method: str = ""
+    x: np.ndarray | None = None         # the elastic solution (last level)
 
 
 def _solve_view(elastic: LinearProgram, info: list[dict[str, Any]], groups: list[list[str]],
@@ -458,6 +466,7 @@ def _solve_view(elastic: LinearProgram, info: list[dict[str, Any]], groups: list
                 break
             out = again
         view.s = np.maximum(b.take(out.x), 0.0)
+        view.x = out.x
         view.penalty = float(elastic.cost @ out.x)
         view.final = lp
         return view
@@ -546,6 +555,29 @@ def _table(view: _View, info: list[dict[str, Any]], d: Any) -> pd.DataFrame:
         ["share", "shortfall"], ascending=False, kind="stable").reset_index(drop=True)
 
 
+def _audit(lp: LinearProgram, view: _View) -> tuple[bool, str]:
+    """Audit the elastic solution's schedules: every hard condition must hold.
+
+    The relaxed families (aims and facts) are not judged here: they fall short
+    by the shortfalls reported.
+    """
+    from .audit import audit
+    from .tables import schedules
+
+    d = lp.data
+    assert d is not None and view.x is not None
+    base = _base(lp)
+    sched = schedules(d, base, view.x[:base.shape[1]])
+    rep = audit(d, sched)  # fills in the independent recomputation the families read
+    soft = {c.kind for cond in CONDITIONS if cond.elastic and cond.applies(d)
+            for c in cond.audit(d, sched)}
+    hard = rep.checks.drop(index=[k for k in rep.checks.index if k in soft])
+    worst = float(hard["max_relative"].max()) if not hard.empty else 0.0
+    ok = bool(np.isfinite(worst) and worst <= rep.tolerance)
+    where = str(hard["max_relative"].idxmax()) if not hard.empty else ""
+    return ok, f"largest violation of a hard condition {worst:.2g} (relative, {where})"
+
+
 # -- the conflict -------------------------------------------------------------------------
 
 def _describe(lp: LinearProgram, rows: list[int], cols: list[int]) -> pd.DataFrame:
@@ -580,14 +612,6 @@ def _year_name(label: tuple[Any, ...]) -> tuple[Any, str]:
     year = parts[0] if parts else ""
     name = str(parts[1]) if len(parts) > 1 else ""
     return year, name
-
-
-def _restricted(lp: LinearProgram, keep: np.ndarray) -> LinearProgram:
-    m = sparse.csr_array(lp.matrix)[keep]
-    return lp.replace(matrix=sparse.csc_array(m), row_lower=lp.row_lower[keep],
-                      row_upper=lp.row_upper[keep], cost=np.zeros(lp.shape[1]), sense="min",
-                      stages=[], rows={"conflict": Block("conflict", 0, (keep.size,),
-                                                         (tuple(range(keep.size)),))})
 
 
 def deletion_filter(lp: LinearProgram, candidates: np.ndarray, *,
@@ -811,6 +835,13 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
     if view.status is Status.OPTIMAL:
         _polish(view, clock, solver, polish, notes, name, stop)
         diag.shortfalls = _table(view, info, lp.data)
+        if lp.data is not None and view.x is not None:
+            t0 = time.perf_counter()
+            diag.audit_ok, text = _audit(lp, view)
+            clock.log("audit of the elastic solution", t0,
+                      ("passed: " if diag.audit_ok else "failed: ") + text)
+            if not diag.audit_ok:
+                notes.append(f"The audit of the elastic solution failed: {text}.")
     if view.status is Status.INFEASIBLE or (view.status is Status.OPTIMAL
                                             and not diag.shortfalls.empty):
         iis_backend = backend if backend is not None else HighsBackend()
