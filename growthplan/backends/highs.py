@@ -33,7 +33,8 @@ from .certificate import (
 )
 from .methods import AUTO_IPM_NONZEROS, METHODS, SLOW_METHOD_NONZEROS, SLOW_METHODS
 
-__all__ = ["HighsBackend", "HighsSession", "STATUS_TABLE", "METHODS", "choose_method", "highs_version",
+__all__ = ["HighsBackend", "HighsSession",
+           "STATUS_TABLE", "METHODS", "choose_method", "highs_version",
            "AUTO_IPM_NONZEROS", "SLOW_METHOD_NONZEROS", "SlowMethodWarning"]
 
 _MS = highspy.HighsModelStatus
@@ -516,8 +517,10 @@ class HighsSession:
         backend = HighsBackend(method, tolerance=tolerance, threads=threads)
         self.h, _ = backend._highs(method, None, None)
         # equilibrated as the back end does it when the entries span a wide range
-        self.r, self.c = equilibrate(lp) if entry_range(lp) > SCALE_RANGE else \
-            (np.ones(lp.shape[0]), np.ones(lp.shape[1]))
+        self.r: np.ndarray = np.ones(lp.shape[0])
+        self.c: np.ndarray = np.ones(lp.shape[1])
+        if entry_range(lp) > SCALE_RANGE:
+            self.r, self.c = equilibrate(lp)
         load(self.h, scaled(lp, self.r, self.c))
         self.method = method
         self.ncol = lp.shape[1]
@@ -527,7 +530,7 @@ class HighsSession:
         inf = highspy.kHighsInf
         rows = np.asarray(rows, dtype=np.int32)
         r = self.r[rows]
-        self.h.changeRowsBounds(int(rows.size), rows,
+        self.h.changeRowsBounds(int(rows.size), rows,  # type: ignore[attr-defined]
                                 _bounds(np.asarray(lower, float) * r, -inf),
                                 _bounds(np.asarray(upper, float) * r, inf))
 

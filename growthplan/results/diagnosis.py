@@ -58,11 +58,11 @@ import pandas as pd
 from scipy import sparse
 
 from ..backends.base import FAILED, Feature, Status
-from ..backends.methods import METHODS
 from ..backends.highs import HighsBackend, HighsSession, choose_method
+from ..backends.methods import METHODS
 from ..errors import SolverFailure, invalid
 from ..lp.conditions import CONDITIONS
-from ..lp.program import Block, LinearProgram
+from ..lp.program import LinearProgram
 
 __all__ = ["Diagnosis", "Step", "diagnose", "elastic_program", "deletion_filter",
            "POSITIVE_SHARE", "IIS_ROW_LIMIT", "POLISH_LIMIT", "BUDGET_FACTOR", "BUDGET_FLOOR",

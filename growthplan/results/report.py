@@ -752,15 +752,17 @@ def _years_table(t: pd.DataFrame, caption: str, *, ratio: bool) -> str:
 def _impossible(result: PlanResult) -> str:
     diag = result.diagnosis
     out = ['<section><h2>Why the plan is impossible</h2><div class="verdict">']
-    out.append(f"<p>No plan meets every condition (status {_e(result.status.value)}: "
-               f"{_e(result.message)}).</p>")
+    from .summary import status_text
+
+    out.append(f"<p>No plan meets every condition: {_e(status_text(result))}.</p>")
     if diag is None:
         out.append("<p>No diagnosis was made for this result.</p></div></section>")
         return "".join(out)
     out.append(f"<p><strong>{_e(diag.headline())}</strong></p>")
+    if diag.views():
+        out.append(f"<p>{_e(diag.views())}</p>")
     conflict = diag.conflict()
-    if conflict:
-        out.append(f"<p>{_e(conflict)}</p>")
+    out.append(f"<p>{_e(conflict or 'Conflict ' + diag.subset_source + '.')}</p>")
     out.append("</div>")
     if not diag.shortfalls.empty:
         words = []

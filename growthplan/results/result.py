@@ -107,6 +107,9 @@ class PlanResult:
         self.status = status
         self.objective = outcome.objective
         self.message = outcome.message
+        if status is not Status.OPTIMAL and "optimal" in self.message.lower():
+            # only a verified optimum is ever called optimal, in any case or form
+            self.message = "the solver's answer was not verified"
         self.audit = audit
         self.timings = timings
         self.warnings = list(notes or [])
@@ -161,7 +164,7 @@ class PlanResult:
         if self.status is Status.UNBOUNDED:
             cols = f" Runaway columns: {', '.join(self.runaway)}." if self.runaway else ""
             raise PlanUnbounded(f"The plan's objective is unbounded ({self.message}).{cols}")
-        raise SolverFailure(f"No verified optimal plan: status {self.status.value} "
+        raise SolverFailure(f"No verified plan: status {self.status.value} "
                             f"({self.message}). {' '.join(self.warnings)}".strip())
 
     @property

@@ -179,8 +179,10 @@ def _diagnosis(result: PlanResult) -> dict[str, pd.DataFrame]:
         words.append(("diagnosis", "no diagnosis was made for this result"))
         return {"diagnosis": _text_sheet(words, ("item", "value"))}
     words.append(("diagnosis", diag.headline()))
-    if diag.conflict():
-        words.append(("conflict", diag.conflict()))
+    if diag.views():
+        words.append(("other view", diag.views()))
+    words.append(("conflict", diag.conflict() or diag.subset_source or "not computed"))
+    words.extend(("step", str(step)) for step in diag.steps)
     out = {"diagnosis": _text_sheet(words, ("item", "value"))}
     if not diag.shortfalls.empty:
         short = diag.shortfalls.copy()
