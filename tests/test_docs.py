@@ -44,6 +44,20 @@ def test_readme_supply_use_example_runs(tmp_path, monkeypatch):
     exec(compile(block, "README.md", "exec"), namespace)  # noqa: S102 - our own README
     assert (tmp_path / "arvenna-economy" / "assumptions.md").exists()
     assert namespace["econ"].n == 5
+def test_readme_impossible_plan_example_runs():
+    """The example under "When the plan is impossible": the aim is blamed before labour."""
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    block = re.search(r"\*\*When the plan is impossible\*\*.*?```python\n(.*?)```", text,
+                      re.S).group(1)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        namespace: dict = {}
+        exec(compile(block, "README.md", "exec"), namespace)  # noqa: S102 - our own README
+    diag = namespace["result"].diagnosis
+    assert list(diag.shortfalls.kind) == ["aim"]
+    assert "labour" in diag.views() and diag.conflict()
+
+
 def test_readme_techniques_example_runs():
     """The "Choosing techniques" example; its switch year is the closed form it states."""
     text = (ROOT / "README.md").read_text(encoding="utf-8")
