@@ -38,7 +38,9 @@ def key_figures(result: PlanResult) -> dict[str, Any]:
         supply used). Every total is at base-year prices, so none changes with
         the unit of a sector.
     """
-    out: dict[str, Any] = {"status": result.status.value, "objective": result.objective,
+    # a plan that is not a verified optimum has no objective value worth reporting
+    out: dict[str, Any] = {"status": result.status.value,
+                           "objective": result.objective if result.ok else float("nan"),
                            "solve_seconds": result.timings.get("solve", np.nan)}
     if result.ok:
         assert result.data is not None
