@@ -45,9 +45,10 @@ def base_plan(seed: int, kind: str, value: float, year_index: int, sector: int
         targets.append(gp.Target(year=year, consumption_at_least=value))
     else:
         targets.append(gp.Target(name, year=year, **{f"{kind}_at_least": value}))
+    # no other aim (terminal growth, floors in other years) the re-solve could trade
+    # against the raised one: its gap to the maximum is then the least shortfall
     return gp.Plan(economy=econ, years=years, labour=gp.LabourSupply(start=supply),
-                   consumption=gp.Consumption(floor=floor), targets=targets,
-                   terminal=gp.TerminalGrowth(rate=0.01))
+                   consumption=gp.Consumption(floor=floor), targets=targets)
 
 
 def aim_row(lp, kind: str, year_index: int) -> int:
@@ -115,7 +116,7 @@ def test_missed_aim_is_short_by_its_gap(seed, kind, year_index, sector, factor):
 
 @pytest.mark.slow
 @pytest.mark.parametrize(("seed", "kind", "year_index", "sector", "factor"),
-                         cases(SLOW)[FAST:])
+                         cases(SLOW))
 def test_missed_aim_is_short_by_its_gap_sweep(seed, kind, year_index, sector, factor):
     check_aim(seed, kind, year_index, sector, factor)
 
@@ -130,10 +131,12 @@ def fact_plan(seed: int, kind: str) -> gp.Plan:
     lab = np.asarray(econ.labour_coefficients)[0]
     years = range(2030, 2030 + T)
     if kind == "labour":
-        demand = {s: float(0.3 * c) for s, c in zip(econ.names, cap, strict=True)}
-        # gross output for that demand (Leontief inverse) needs more labour than there is
-        x = np.linalg.solve(np.eye(n) - a, 0.3 * cap)
-        supply = float(lab @ x * rng.uniform(0.3, 0.8))
+        # demand whose gross output (Leontief inverse) fills half of the tightest
+        # capacity: the capacity allows it, the labour supply does not
+        x = np.linalg.solve(np.eye(n) - a, np.ones(n))
+        scale = 0.5 * float(np.min(cap / x))
+        demand = {s: scale for s in econ.names}
+        supply = float(lab @ (scale * x) * rng.uniform(0.3, 0.8))
         return gp.Plan(economy=econ, years=years, labour=gp.LabourSupply(start=supply),
                        final_demand=demand)
     # foreign exchange: demand for good 0 beyond what the first year's capacity can make
