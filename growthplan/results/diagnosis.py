@@ -36,7 +36,9 @@ Method and budget
     :func:`~growthplan.lp.build.solve_seconds`, whichever is larger, and at
     least ``BUDGET_FLOOR`` seconds). Polishing (at most ``POLISH_LIMIT``
     solves), the conflict and the other view are skipped, each with its
-    reason, when the budget would run out; the re-solve itself always runs.
+    reason, when the budget would run out; under the default budget the
+    re-solve itself always runs to the end, while a ``budget`` given by the
+    caller binds it too (an unfinished diagnosis then says what it tried).
 
 The conflict
     A set of conditions that cannot hold together: HiGHS's irreducible
@@ -368,8 +370,9 @@ def _priority(relax: Any, info: list[dict[str, Any]]) -> tuple[str, list[list[st
 # -- solving ------------------------------------------------------------------------------
 
 class _Clock:
-    def __init__(self, budget: float) -> None:
+    def __init__(self, budget: float, hard: bool = False) -> None:
         self.budget = budget
+        self.hard = hard  # a budget the caller gave binds the re-solve itself too
         self.t0 = time.perf_counter()
         self.steps: list[Step] = []
 
@@ -391,17 +394,21 @@ def _solver(elastic: LinearProgram, method: str, threads: int | None,
 
 
 def _run(lp: LinearProgram, solver: HighsBackend, clock: _Clock, name: str,
-         callback: Any = None, stop: Any = None) -> Any:
-    """One solve with the budget left as its time limit; alternatives when it fails."""
+         callback: Any = None, stop: Any = None, essential: bool = False) -> Any:
+    """One solve with the budget left as its time limit; alternatives when it fails.
+
+    An ``essential`` solve (the re-solve itself) has no time limit under the default
+    budget: a diagnosis is never given up for a budget the caller did not set.
+    """
     t0 = time.perf_counter()
-    limit = max(clock.left(), 1e-3)
+    limit = max(clock.left(), 1e-3) if clock.hard or not essential else None
     s = HighsBackend(solver.method, tolerance=solver.tolerance, threads=solver.threads,
                      options=solver.options, time_limit=limit)
     s._warn_slow = False
     out = s.solve(lp, stop=stop, callback=callback)
     if out.status in FAILED:
         for alt in s.alternatives():
-            if clock.left() <= 0:
+            if clock.left() <= 0 and (clock.hard or not essential):
                 break
             again = alt.solve(lp, stop=stop)
             if again.status not in FAILED:
@@ -427,7 +434,7 @@ class _View:
 
 def _solve_view(elastic: LinearProgram, info: list[dict[str, Any]], groups: list[list[str]],
                 solver: HighsBackend, clock: _Clock, tag: str, callback: Any = None,
-                stop: Any = None) -> _View:
+                stop: Any = None, essential: bool = False) -> _View:
     """The lexicographic elastic re-solve over ``groups`` (relaxed in that order)."""
     b = elastic.cols["shortfall"]
     k = b.size
@@ -443,7 +450,7 @@ def _solve_view(elastic: LinearProgram, info: list[dict[str, Any]], groups: list
         cost[b.start:b.stop] = np.where(group == g, weight, 0.0)
         lp = elastic.replace(col_upper=up, cost=cost)
         where = " + ".join(", ".join(x) for x in groups[:g + 1])
-        out = _run(lp, solver, clock, f"{tag}: relax {where}", callback, stop)
+        out = _run(lp, solver, clock, f"{tag}: relax {where}", callback, stop, essential)
         last = out.status
         if out.status is Status.INFEASIBLE:
             continue
@@ -461,7 +468,7 @@ def _solve_view(elastic: LinearProgram, info: list[dict[str, Any]], groups: list
             cost[b.start:b.stop] = np.where(group == h, weight, 0.0)
             lp = lp.replace(cost=cost)
             again = _run(lp, solver, clock, f"{tag}: hold {', '.join(groups[h + 1])}, "
-                         f"relax {', '.join(groups[h])}", callback, stop)
+                         f"relax {', '.join(groups[h])}", callback, stop, essential)
             if again.status is not Status.OPTIMAL:
                 break
             out = again
@@ -793,7 +800,8 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
         The order of relaxation (see the module notes); a list names
         condition families (or lists of them) in the order they are relaxed.
     budget : float, optional
-        Seconds for the whole diagnosis (default :func:`default_budget`).
+        Seconds for the whole diagnosis, the re-solve included (default
+        :func:`default_budget`, which never stops the re-solve itself).
     method : str, default "auto"
         HiGHS method of the elastic re-solve; ``"auto"`` follows the plan's rule.
     polish : int, default POLISH_LIMIT
@@ -819,7 +827,8 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
     if budget is not None and (isinstance(budget, bool) or not isinstance(budget, int | float)
                                or not budget > 0):
         raise invalid("budget", "be a number of seconds > 0", budget)
-    clock = _Clock(float(budget) if budget is not None else default_budget(lp, plan_seconds))
+    clock = _Clock(float(budget) if budget is not None else default_budget(lp, plan_seconds),
+                   hard=budget is not None)
     elastic, info = elastic_program(lp, weights=weights)
     name, groups = _priority(relax, info)
     solver = _solver(elastic, method, threads, None)
@@ -828,7 +837,8 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
     if lp.data is not None:
         label = f"diagnosis, {lp.data.n} sectors × {lp.data.T} years"
     with solve_progress(progress, label) as cb:
-        view = _solve_view(elastic, info, groups, solver, clock, name, cb, stop)
+        view = _solve_view(elastic, info, groups, solver, clock, name, cb, stop,
+                           essential=True)
     diag = Diagnosis(pd.DataFrame(columns=COLUMNS), view.status, view.penalty, notes=notes,
                      relaxed=name, method=view.method or solver.method, steps=clock.steps,
                      budget=clock.budget)
