@@ -522,6 +522,8 @@ def _polish(view: _View, clock: _Clock, solver: HighsBackend, limit: int,
             session = HighsSession(final, method=view.method if view.method in METHODS
                                    else solver.method, tolerance=TOLERANCE,
                                    threads=solver.threads)
+            if session.method.startswith("ipm"):
+                session.h.setOptionValue("ipm_optimality_tolerance", IPM_OPTIMALITY)
         cost = np.zeros(final.shape[1])
         cost[b.start + k] = 1.0
         session.costs(cost)
