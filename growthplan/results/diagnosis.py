@@ -247,7 +247,7 @@ class Diagnosis:
         if self.shortfalls.empty:
             return "The elastic re-solve found no shortfall: the plan is feasible."
         parts = [f"{_what(r.condition, r.sector)} {r.year}"
-                 + f" short by {r.shortfall:.6g}{' ' + r.unit if r.unit else ''}"
+                 + f" short by {r.shortfall:,.6g}{' ' + r.unit if r.unit else ''}"
                  f" ({100 * r.share:.1f} %)" for r in self.shortfalls.head(3).itertuples()]
         text = "Cannot be met: " + "; ".join(parts) + "."
         if self.relaxed == "aims" and (self.shortfalls["kind"] == "fact").any():
