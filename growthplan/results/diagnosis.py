@@ -859,9 +859,7 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
         iis_backend = backend if backend is not None else HighsBackend()
         diag.infeasible_subset, diag.subset_source = _conflict(
             lp, view if view.status is Status.OPTIMAL else None, iis_backend, subset, clock)
-        if not diag.conflict():
-            notes.append(f"Conflict {diag.subset_source}.")
-        elif "deletion filter" in diag.subset_source:
+        if diag.conflict() and "deletion filter" in diag.subset_source:
             notes.append(f"The conflict was found by {diag.subset_source}.")
     if view.status is Status.OPTIMAL and not diag.shortfalls.empty and name in ("aims", "facts"):
         has_other = any(i["role"] != ("aim" if name == "aims" else "fact") for i in info)
