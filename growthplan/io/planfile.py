@@ -112,6 +112,9 @@ class EconomyTables(Model):
         The unit values are measured in (e.g. million arvens at 2026 prices).
     labour_units : list of str, optional
         The unit of each labour kind, in the order of the labour rows.
+    labour_kinds : list of str, optional
+        The labour kinds the tables hold, in the order of their labour rows
+        (checked against the tables).
     units : dict of str to str, optional
         Physical unit of each sector's output, by sector.
     prices : dict of str to float, optional
@@ -142,6 +145,7 @@ class EconomyTables(Model):
     wage_basket: dict[str, float] | None = None
     value_unit: str | None = None
     labour_units: list[str] | None = None
+    labour_kinds: list[str] | None = None
     units: dict[str, str] | None = None
     prices: dict[str, float] | None = None
     base_output: dict[str, float] | None = None
@@ -161,6 +165,10 @@ def with_units(econ: Economy, tables: EconomyTables) -> Economy:
     -------
     Economy
     """
+    if tables.labour_kinds is not None and list(tables.labour_kinds) != [
+            str(k) for k in econ.labour_kinds or []]:
+        raise invalid("economy.labour_kinds", "name the labour rows of the tables, in their "
+                      f"order {econ.labour_kinds or []}", tables.labour_kinds)
     if not (tables.value_unit or tables.labour_units or tables.units or tables.prices
             or tables.base_output):
         return econ

@@ -408,7 +408,7 @@ class PublishedEconomy:
     ----------
     tables : PublishedTables
     valuation : Valuation
-    negatives : NegativeUses
+    negative_uses : NegativeUses
     supply_use : SupplyUseTable
         At basic prices, every special cell treated.
     symmetric : SymmetricTable
@@ -425,7 +425,7 @@ class PublishedEconomy:
 
     tables: PublishedTables
     valuation: Valuation
-    negatives: NegativeUses
+    negative_uses: NegativeUses
     supply_use: SupplyUseTable
     symmetric: SymmetricTable
     value_added: pd.Series
@@ -433,6 +433,44 @@ class PublishedEconomy:
     assumptions: list[str]
     checks: dict[str, float]
     figures: dict[str, tuple[float, float]]
+    spec: Any = None
+    inputs: list[Path] = field(default_factory=list)
+    """The economy spec (when built from one) and the files read."""
+
+    def other_demand(self) -> pd.Series:
+        """Final demand other than households', fixed investment and inventories, by sector."""
+        f = self.symmetric.final_demand
+        skip = set(self.tables.column("consumption")) | set(self.tables.column("investment"))
+        cols = [c for c in f.columns if c not in skip and "inventor" not in c.lower()
+                and c != "F030"]
+        return f[cols].sum(axis=1)
+
+    def base_consumption(self) -> float:
+        """Household consumption of domestic products in the base year."""
+        cols = [c for c in self.tables.column("consumption")
+                if c in self.symmetric.final_demand.columns]
+        return float(self.symmetric.final_demand[cols].clip(lower=0.0).to_numpy().sum())
+
+    def to_markdown(self, title: str = "Assumptions") -> str:
+        """The assumptions, the published figures and the checks as a Markdown document."""
+        lines = [f"# {title}", ""]
+        if self.spec is not None and getattr(self.spec, "description", None):
+            lines += [self.spec.description, ""]
+        lines += [f"- {a}" for a in self.assumptions]
+        lines += ["", "## The tables' totals and the economy's", "",
+                  "| figure | published | built | gap |", "|---|---:|---:|---:|"]
+        lines += [f"| {k} | {a:,.0f} | {b:,.0f} | {100 * (b - a) / a:+.4f} % |"
+                  for k, (a, b) in self.figures.items()]
+        lines += ["", "## Largest valuation adjustments", "",
+                  "| product | uses | supply | taken off its uses |", "|---|---:|---:|---:|"]
+        adj = self.valuation.adjustments
+        for p in adj["adjustment"].abs().sort_values(ascending=False).index[:10]:
+            r = adj.loc[p]
+            lines.append(f"| {p} | {r['uses']:,.0f} | {r['supply']:,.0f} | "
+                         f"{r['adjustment']:,.0f} |")
+        lines += ["", "## Checks", ""]
+        lines += [f"- {k}: largest relative gap {v:.3g}" for k, v in self.checks.items()]
+        return "\n".join(lines) + "\n"
 
 
 def _fold_imports(t: PublishedTables, assumptions: list[str]) -> pd.Series:
@@ -574,8 +612,8 @@ def published_economy(tables: PublishedTables, *, value_unit: str,
                           wage)
         persons = comp / wage
         assumptions.append(f"Labour: compensation of employees divided by an average wage of "
-                           f"{wage:g} {value_unit.split(' at ')[0]} per {labour_unit.split()[-1]}"
-                           f" gives {labour_kind} in {labour_unit} by industry.")
+                           f"{wage:g} ({value_unit} per one of {labour_unit}) gives "
+                           f"{labour_kind} in {labour_unit} by industry.")
     else:
         assert employment is not None
         persons = employment.reindex(industries)
@@ -662,7 +700,7 @@ def published_economy(tables: PublishedTables, *, value_unit: str,
                                                         - published["value added at basic "
                                                                     "prices"])
               / abs(published["value added at basic prices"])}
-    report = PublishedEconomy(tables=tables, valuation=val, negatives=neg, supply_use=sut,
+    report = PublishedEconomy(tables=tables, valuation=val, negative_uses=neg, supply_use=sut,
                               symmetric=sym, value_added=pd.Series(np.asarray(va_s),
                                                                    index=sym.names),
                               capital_stocks=k, assumptions=assumptions, checks=checks,
