@@ -28,7 +28,8 @@ DEMO_FILES = ("plan.yaml", "flows.csv", "capital.csv", "capital_stocks.csv", "RE
 
 # the same country's supply and use tables and the spec that builds an economy from them
 SUPPLY_USE_FILES = tuple(f"supply_use/{name}" for name in (
-    "supply.csv", "use.csv", "employment.csv", "capital_flows.csv", "economy.yaml"))
+    "supply.csv", "use.csv", "employment.csv", "capital_flows.csv", "economy.yaml",
+    "published_supply.csv", "published_use.csv", "published.yaml"))
 
 
 def demo_plan(folder: str | Path | None = None) -> Plan:

@@ -44,6 +44,18 @@ def test_readme_supply_use_example_runs(tmp_path, monkeypatch):
     exec(compile(block, "README.md", "exec"), namespace)  # noqa: S102 - our own README
     assert (tmp_path / "arvenna-economy" / "assumptions.md").exists()
     assert namespace["econ"].n == 5
+def test_readme_published_example_runs():
+    """The "Published tables" example on the invented tables; 247 is the use table's total."""
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    block = re.search(r"## Published tables as the office prints them.*?```python\n(.*?)```",
+                      text, re.S).group(1)
+    namespace: dict = {}
+    exec(compile(block, "README.md", "exec"), namespace)  # noqa: S102 - our own README
+    printed, built = namespace["report"].figures["value added at basic prices"]
+    assert printed == 247.0 and abs(built - 247.0) < 1e-9
+    assert namespace["skeleton"].floor > 0
+
+
 def test_readme_techniques_example_runs():
     """The "Choosing techniques" example; its switch year is the closed form it states."""
     text = (ROOT / "README.md").read_text(encoding="utf-8")
