@@ -259,11 +259,17 @@ class PublishedSpec(Model):
 def economy_spec_schema() -> dict[str, Any]:
     """The JSON Schema of economy spec files (layout version 1).
 
+    A spec is one of two kinds: tables in the library's layouts
+    (``supply``, ``use``, ...) or tables as an office publishes them
+    (``published``).
+
     Returns
     -------
     dict
     """
-    schema = EconomySpec.model_json_schema()
+    from pydantic import TypeAdapter
+
+    schema = TypeAdapter(EconomySpec | PublishedSpec).json_schema()
     schema["title"] = "growthplan economy spec"
     schema["$comment"] = f"layout_version {LAYOUT_VERSION}"
     return schema
