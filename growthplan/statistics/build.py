@@ -608,9 +608,10 @@ def _capital_stocks(files: _Files, spec: EconomySpec, products: list[str],
         return t.frame.reindex(index=products, columns=industries).fillna(0.0)
 
     g = cap.past_growth
-    steady = (f"stocks estimated from one year's investment by the steady-state perpetual "
-              f"inventory K = I (1 + g) / (g + 1/L), with investment grown at g = {g:g} a "
-              f"year and geometric retirement over the mean service life L")
+    steady = ("stocks estimated from one year's investment as the capital still in service "
+              f"if investment had grown {100 * g:g} % a year before the base year and capital "
+              "retired geometrically over its mean service life (the steady-state perpetual "
+              "inventory)")
     if source == "stocks":
         stocks = matrix(files.table(cap.stocks, "capital.stocks"))  # type: ignore[arg-type]
         assumptions.append("Capital: the capital stock matrix as published (products × "
@@ -792,10 +793,14 @@ def build_economy(spec_path: str | os.PathLike[str], *, allow_outside: bool = Fa
                          "retirement": cap.retirement, "lead_time": cap.lead_time,
                          "max_utilisation": cap.max_utilisation,
                          "past_growth": cap.past_growth}
-    assumptions.append(f"Capital of each sector: capacity = base-year output / "
-                       f"{cap.max_utilisation:g} (maximum utilisation); {cap.retirement} "
-                       f"retirement; lead time {cap.lead_time} year(s); service life the "
-                       "capital-weighted mean of its industries'.")
+    full = ("its base-year output, capacity being fully used in the base year"
+            if cap.max_utilisation == 1 else
+            f"its base-year output divided by {100 * cap.max_utilisation:g} %, the largest "
+            "share of capacity that can be used")
+    assumptions.append(f"Capital of each sector: its capacity is {full}; capital retires "
+                       f"by the {cap.retirement.replace('_', ' ')} profile, new capacity "
+                       f"takes {cap.lead_time} year(s) to build, and the service life is the "
+                       "mean of its industries' lives weighted by their capital.")
     kwargs: dict[str, Any] = {"value_unit": spec.value_unit}
     if emp is not None:
         kwargs["labour_units"] = [emp.unit] * len(emp.kinds)

@@ -169,3 +169,32 @@ def test_a_71_sector_30_year_plan_of_bea_solves_optimal_and_audited():
     plan = bea_plan(71, 30)
     assert plan.economy.n == 71 and len(plan.years) == 30
     assert_optimal(plan.solve())
+
+
+def test_economy_build_on_the_demo_writes_labour_kinds_and_a_plan(tmp_path):
+    out = tmp_path / "arvenna"
+    r = _cli("economy", "build", str(gp.DEMO_DIR / "supply_use" / "economy.yaml"), "--out",
+             str(out), "--plan", "--years", "12")
+    assert r.exit_code == 0, r.output
+    economy_yaml = (out / "economy.yaml").read_text(encoding="utf-8")
+    assert "labour_kinds:\n  - skilled\n  - unskilled" in economy_yaml
+    text = (out / "assumptions.md").read_text(encoding="utf-8")
+    assert "capacity = " not in text and "K = I" not in text  # prose, not formulas
+    assert "its capacity is its base-year output" in text
+    plan, _ = gp.load_plan_file(out / "plan.yaml")
+    assert plan.economy.labour_kinds == ["skilled", "unskilled"]
+    assert [lab.kind for lab in plan.labour] == ["skilled", "unskilled"]
+    result = assert_optimal(plan.solve())
+    # the floor the skeleton computed holds in every year
+    floor = plan.consumption.floor if plan.consumption else None
+    assert floor is not None
+    assert (result.consumption["level"] >= float(floor) * (1 - 1e-6)).all()
+    # a spec without base_year cannot give a plan's years
+    spec = tmp_path / "nobase" / "economy.yaml"
+    spec.parent.mkdir()
+    for f in (gp.DEMO_DIR / "supply_use").iterdir():
+        (spec.parent / f.name).write_bytes(f.read_bytes())
+    spec.write_text("\n".join(line for line in spec.read_text().splitlines()
+                              if not line.startswith("base_year")), encoding="utf-8")
+    r = _cli("economy", "build", str(spec), "--out", str(tmp_path / "x"), "--plan")
+    assert r.exit_code != 0 and "base_year must be given" in r.output
