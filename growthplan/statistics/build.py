@@ -75,7 +75,7 @@ from .capital_flows import (
 )
 from .employment import Employment, employment_table
 from .layouts import LAYOUT_VERSION, LocatedTable, TableLayout, read_table
-from .published import PublishedEconomy, PublishedTables, published_economy
+from .published import PublishedEconomy, PublishedTables, published_economy, read_published
 from .skeleton import PlanSkeleton, plan_skeleton
 from .supply_use import MODELS, SupplyUseTable, SymmetricTable
 from .tables import write_coefficient_tables
@@ -237,7 +237,13 @@ class PublishedLabour(Model):
 
 
 class PublishedSpec(Model):
-    """An economy spec for published tables (layout version 1, see the module notes)."""
+    """An economy spec for published tables (layout version 1, see the module notes).
+
+    ``valuation`` is ``proportional`` (the default: proportional margins) or
+    ``exact``, which needs ``margins`` (a margin table, laid out like the use
+    table, for each margin product: ``{product: file}``) and may give
+    ``taxes`` (taxes less subsidies on products, laid out likewise).
+    """
 
     model_config = ConfigDict(extra="forbid", frozen=True)
 
@@ -246,7 +252,9 @@ class PublishedSpec(Model):
     value_unit: str = Field(min_length=1)
     base_year: int | None = Field(default=None, ge=1000, le=9999)
     published: PublishedFiles
-    valuation: Literal["proportional"] = "proportional"
+    valuation: Literal["proportional", "exact"] = "proportional"
+    margins: dict[str, str] | None = None
+    taxes: str | None = None
     negatives: Literal["byproduct", "net"] = "byproduct"
     model: Literal["product_technology", "industry_technology", "fixed_industry_sales",
                    "fixed_product_sales"] = "fixed_product_sales"
@@ -428,7 +436,7 @@ def _spec_inputs(spec_path: str | os.PathLike[str]) -> list[Path]:
     spec, _ = _spec(path)
     if isinstance(spec, PublishedSpec):
         pub = [spec.published.supply, spec.published.use, spec.capital.stocks,
-               spec.labour.employment]
+               spec.labour.employment, spec.taxes, *(spec.margins or {}).values()]
         pnames = [r.file if isinstance(r, TableLayout) else r for r in pub]
         return [path] + [path.parent / n for n in pnames
                          if isinstance(n, str) and "\0" not in n]
@@ -655,6 +663,22 @@ def _build_published(spec: PublishedSpec, files: _Files) -> tuple[Economy, Publi
     tables = PublishedTables.read(files.path(spec.published.supply, "published.supply"),
                                   files.path(spec.published.use, "published.use"),
                                   tolerance=spec.tolerance)
+    margins = taxes = None
+    if spec.valuation == "exact":
+        if not spec.margins:
+            raise files.located(invalid("margins", "be given for valuation: exact ({margin "
+                                        "product: margin table file})", spec.margins))
+        rename = {code: name for name, code in tables.codes.items()}
+
+        def layer(name: str, what: str) -> pd.DataFrame:
+            frame = read_published(files.path(name, what), what=what).frame.fillna(0.0)
+            return frame.rename(columns=rename)
+
+        margins = {p: layer(f, f"margins.{p}") for p, f in spec.margins.items()}
+        taxes = None if spec.taxes is None else layer(spec.taxes, "taxes")
+    elif spec.margins is not None or spec.taxes is not None:
+        raise files.located(invalid("valuation", "be exact when margin or tax tables are "
+                                    "given", spec.valuation))
     stocks = employment = None
     if spec.capital.stocks is not None:
         stocks = files.values(spec.capital.stocks, "capital.stocks")
@@ -665,6 +689,7 @@ def _build_published(spec: PublishedSpec, files: _Files) -> tuple[Economy, Publi
             raise invalid(what, "be one figure per industry", f"{value.shape[1]} columns")
     econ, report = published_economy(
         tables, value_unit=spec.value_unit, model=spec.model, valuation=spec.valuation,
+        margins=margins, taxes=taxes,
         negatives=spec.negatives, capital_output_ratio=spec.capital.capital_output_ratio,
         capital_stocks=stocks, service_life=float(spec.capital.service_life),
         past_growth=spec.capital.past_growth, employment=employment,

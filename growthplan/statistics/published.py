@@ -572,11 +572,14 @@ def published_economy(tables: PublishedTables, *, value_unit: str,
     imports = _fold_imports(tables, assumptions)
     imports_total = float(imports.sum())
     q = tables.supply.sum(axis=1)
+    if valuation not in ("exact", "proportional"):
+        raise invalid("valuation", "be 'exact' or 'proportional'", valuation)
+    if valuation == "exact" and not margins:
+        raise invalid("margins", "be given for the exact valuation (a margin table for each "
+                      "margin product)", margins)
     val = to_basic_prices(tables.use, fd, q + imports, margins=margins, taxes=taxes,
                           tolerance=tolerance) if valuation == "exact" else \
         to_basic_prices(tables.use, fd, q + imports)
-    if valuation not in ("exact", "proportional"):
-        raise invalid("valuation", "be 'exact' or 'proportional'", valuation)
     assumptions.append(val.assumption())
     supply0, use0, said = negative_supply(tables.supply, val.use)
     assumptions.append(said)

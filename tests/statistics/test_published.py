@@ -198,3 +198,47 @@ def test_economy_build_on_the_demo_writes_labour_kinds_and_a_plan(tmp_path):
                               if not line.startswith("base_year")), encoding="utf-8")
     r = _cli("economy", "build", str(spec), "--out", str(tmp_path / "x"), "--plan")
     assert r.exit_code != 0 and "base_year must be given" in r.output
+
+
+# margins and taxes of the invented pair, laid out like its use table (codes as headers):
+# food's uses exceed its supply by 10 (margins 8, taxes 2), goods' by 27 (24, 3), and
+# trade's supply exceeds its uses by the 32 of margins
+MARGINS = (",A01,C00,G00,F010,F02S,F040\n"
+           "\"Food, raw\",1,3,,4,,\n"
+           "Goods,,4,,10,10,\n")
+TAXES = (",A01,C00,G00,F010,F02S,F040\n"
+         "\"Food, raw\",,,,2,,\n"
+         "Goods,1,,,2,,\n")
+
+
+def test_exact_valuation_from_the_spec(tmp_path):
+    folder = tmp_path / "arvenna"
+    folder.mkdir()
+    for name, text in (("supply.csv", SUPPLY), ("use.csv", USE), ("trade.csv", MARGINS),
+                       ("taxes.csv", TAXES)):
+        (folder / name).write_text(text, encoding="utf-8")
+    spec = folder / "economy.yaml"
+    spec.write_text("layout_version: 1\nvalue_unit: million arvens\n"
+                    "published: {supply: supply.csv, use: use.csv}\n"
+                    "valuation: exact\nmargins: {Trade: trade.csv}\ntaxes: taxes.csv\n"
+                    "capital: {capital_output_ratio: 2}\nlabour: {wage: 10}\n",
+                    encoding="utf-8")
+    econ, rep = gp.build_economy(spec)
+    v = rep.valuation
+    assert v.method == "exact"
+    # basic prices by hand: food for A01 10 − 1, households 60 − 4 − 2; goods for A01 20 − 1
+    assert v.use.loc["Food, raw", "Farming, fishing"] == pytest.approx(9.0)
+    assert v.final_demand.loc["Food, raw", "F010"] == pytest.approx(54.0)
+    assert v.use.loc["Goods", "Farming, fishing"] == pytest.approx(19.0)
+    # margins delivered by trade: its column totals (A01 1, C00 7, households 14, F02S 10)
+    assert v.use.loc["Trade", "Industry"] == pytest.approx(2 + 7)
+    assert v.final_demand.loc["Trade", "F010"] == pytest.approx(25 + 14)
+    assert v.taxes.sum() == pytest.approx(5.0)
+    va = rep.figures["value added at basic prices"]
+    assert va[1] == pytest.approx(va[0], rel=1e-12)
+    assert any("exactly" in a for a in rep.assumptions)
+    # the exact route without margin tables is refused
+    spec.write_text(spec.read_text().replace("margins: {Trade: trade.csv}\n", ""),
+                    encoding="utf-8")
+    with pytest.raises(InvalidInput, match="margins must be given"):
+        gp.build_economy(spec)
