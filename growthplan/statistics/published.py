@@ -461,10 +461,10 @@ class PublishedEconomy:
                   "| figure | published | built | gap |", "|---|---:|---:|---:|"]
         lines += [f"| {k} | {a:,.0f} | {b:,.0f} | {100 * (b - a) / a:+.4f} % |"
                   for k, (a, b) in self.figures.items()]
-        lines += ["", "## Largest valuation adjustments", "",
+        lines += ["", "## Valuation adjustment of each product, largest first", "",
                   "| product | uses | supply | taken off its uses |", "|---|---:|---:|---:|"]
         adj = self.valuation.adjustments
-        for p in adj["adjustment"].abs().sort_values(ascending=False).index[:10]:
+        for p in adj["adjustment"].abs().sort_values(ascending=False).index:
             r = adj.loc[p]
             lines.append(f"| {p} | {r['uses']:,.0f} | {r['supply']:,.0f} | "
                          f"{r['adjustment']:,.0f} |")

@@ -242,3 +242,19 @@ def test_exact_valuation_from_the_spec(tmp_path):
                     encoding="utf-8")
     with pytest.raises(InvalidInput, match="margins must be given"):
         gp.build_economy(spec)
+
+
+def test_the_schema_takes_the_published_spec_and_refuses_a_misspelt_key():
+    import jsonschema
+    import yaml
+
+    from growthplan.statistics.build import economy_spec_schema
+
+    schema = economy_spec_schema()
+    spec = yaml.safe_load((gp.DEMO_DIR / "supply_use" / "published.yaml").read_text(
+        encoding="utf-8"))
+    jsonschema.validate(spec, schema)  # jsonschema, independent of pydantic
+    for bad in ({**spec, "valuation": "guess"}, {**spec, "capitol": {}},
+                {k: v for k, v in spec.items() if k != "labour"}):
+        with pytest.raises(jsonschema.ValidationError):
+            jsonschema.validate(bad, schema)
