@@ -608,6 +608,20 @@ def published_economy(tables: PublishedTables, *, value_unit: str,
     va_sut = g - neg.use.sum(axis=0)
     va_basic = va_sut - val.taxes.reindex(industries).fillna(0.0)
     comp = tables.row("compensation")
+    va_name = _find(list(tables.rows.index), "value added", "basic")
+    assumptions.append(
+        "Value added: "
+        + (f"the use table's row '{va_name}' (compensation of employees, taxes less "
+           "subsidies on production and operating surplus) by industry"
+           if va_name is not None else "industry output less intermediate use")
+        + "; the taxes less subsidies on products paid on an industry's inputs are a "
+        "primary input beside it, so the economy's inputs are valued at basic prices.")
+    gov = [i for i in industries if "government" in i.lower()]
+    if gov:
+        assumptions.append(f"Government industries ({len(gov)}: {', '.join(gov)}) are kept "
+                           "as industries: their output, bought mostly by government final "
+                           "consumption, is planned like any other, with its own inputs, "
+                           "capital and labour.")
     labour = None
     if wage is not None:
         if comp is None:
