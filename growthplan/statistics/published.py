@@ -616,7 +616,8 @@ def published_economy(tables: PublishedTables, *, value_unit: str,
            if va_name is not None else "industry output less intermediate use")
         + "; the taxes less subsidies on products paid on an industry's inputs are a "
         "primary input beside it, so the economy's inputs are valued at basic prices.")
-    gov = [i for i in industries if "government" in i.lower()]
+    gov = [i for i in industries if "government" in i.lower()
+           and "except government" not in i.lower()]
     if gov:
         assumptions.append(f"Government industries ({len(gov)}: {', '.join(gov)}) are kept "
                            "as industries: their output, bought mostly by government final "
@@ -629,8 +630,8 @@ def published_economy(tables: PublishedTables, *, value_unit: str,
                           wage)
         persons = comp / wage
         assumptions.append(f"Labour: compensation of employees divided by an average wage of "
-                           f"{wage:g} ({value_unit} per one of {labour_unit}) gives "
-                           f"{labour_kind} in {labour_unit} by industry.")
+                           f"{wage:g} {value_unit} per {labour_unit} gives {labour_kind} "
+                           f"in {labour_unit} by industry.")
     else:
         assert employment is not None
         persons = employment.reindex(industries)
@@ -672,8 +673,8 @@ def published_economy(tables: PublishedTables, *, value_unit: str,
         assumptions.append("Capital: stocks by industry as given.")
     assumptions.append(f"Capital goods: every stock is made of products in the proportions of "
                        f"fixed investment (columns {', '.join(inv_cols)}); mean service life "
-                       f"{service_life:g} years, geometric retirement, investment grown at "
-                       f"{past_growth:g} a year before the base year.")
+                       f"{service_life:g} years, geometric retirement, investment having "
+                       f"grown {100 * past_growth:g} % a year before the base year.")
     stocks = pd.DataFrame(np.outer(comp_inv.to_numpy(), k_ind.to_numpy()), index=products,
                           columns=industries)
     t = sut.transformation(model).to_numpy()  # type: ignore[arg-type]
@@ -699,7 +700,7 @@ def published_economy(tables: PublishedTables, *, value_unit: str,
         kwargs["consumption_basket"] = (basket / basket.sum()).to_numpy()
         assumptions.append(f"Consumption basket: the domestic part of household consumption "
                            f"(column {cons}) as shares; one unit of the plan's consumption "
-                           f"level is a basket worth one of {value_unit}.")
+                           f"level is a basket worth 1 {value_unit}.")
     econ = sym.to_economy(capital=capital, capital_coefficients=b, **kwargs)
     va_s = sym.value_added - (val.taxes.reindex(industries).fillna(0.0).to_numpy() @ (
         t if model in ("product_technology", "industry_technology") else np.eye(len(t))))

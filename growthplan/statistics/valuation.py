@@ -374,6 +374,10 @@ class Filled:
         """The rule applied, in a sentence."""
         if not self.suppressed:
             return f"Suppressed cells of the {what}: none."
+        if not self.filled:
+            return (f"Suppressed cells of the {what}: {self.suppressed} cell(s) printed as "
+                    "suppressed were read as missing; every row already met its published "
+                    "total within rounding, so they are zero.")
         return (f"Suppressed cells of the {what}: {self.suppressed} cell(s) printed as "
                 "suppressed were read as missing and filled so that each row meets its "
                 "published total, spread in proportion to the totals of their columns; "
