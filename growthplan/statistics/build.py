@@ -189,6 +189,7 @@ class PublishedFiles(Model):
 
     supply: str = Field(min_length=1)
     use: str = Field(min_length=1)
+    labels: str | None = Field(default=None, min_length=1)  # code, label: for code-only tables
 
 
 class PublishedCapital(Model):
@@ -435,7 +436,8 @@ def _spec_inputs(spec_path: str | os.PathLike[str]) -> list[Path]:
     path = Path(spec_path)
     spec, _ = _spec(path)
     if isinstance(spec, PublishedSpec):
-        pub = [spec.published.supply, spec.published.use, spec.capital.stocks,
+        pub = [spec.published.supply, spec.published.use, spec.published.labels,
+               spec.capital.stocks,
                spec.labour.employment, spec.taxes, *(spec.margins or {}).values()]
         pnames = [r.file if isinstance(r, TableLayout) else r for r in pub]
         return [path] + [path.parent / n for n in pnames
@@ -660,9 +662,11 @@ def _capital_stocks(files: _Files, spec: EconomySpec, products: list[str],
 
 def _build_published(spec: PublishedSpec, files: _Files) -> tuple[Economy, PublishedEconomy]:
     """The published-tables route of :func:`build_economy`."""
+    labels = None if spec.published.labels is None else files.path(spec.published.labels,
+                                                                   "published.labels")
     tables = PublishedTables.read(files.path(spec.published.supply, "published.supply"),
                                   files.path(spec.published.use, "published.use"),
-                                  tolerance=spec.tolerance)
+                                  labels=labels, tolerance=spec.tolerance)
     margins = taxes = None
     if spec.valuation == "exact":
         if not spec.margins:

@@ -9,7 +9,8 @@ total use; below the products the total intermediate row, the value-added
 block and total output). :func:`read_published` reads either: labels with
 commas and quotes, a byte-order mark, blank padding rows, a first header cell
 left empty, suppressed cells (:data:`~growthplan.statistics.valuation.SUPPRESSED`)
-read as missing and counted, a total row without a label.
+read as missing and counted, a total row without a label; tables printed with
+codes only take their labels from a separate list.
 
 :class:`PublishedTables` finds the blocks without a layout description:
 
@@ -182,6 +183,27 @@ def read_published(path: str | os.PathLike[str], *, what: str = "table") -> Publ
     return PublishedTable(frame, p.name, int(frame.isna().to_numpy().sum()))
 
 
+def _label_list(path: str | os.PathLike[str]) -> dict[str, str]:
+    """``{code: label}`` from a two-column CSV file (a header row first)."""
+    p = Path(path)
+    raw = read_regular_file(p, what="labels", limit=TABLE_MAX_BYTES)
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise invalid(f"labels ({p.name})", "be UTF-8 text", f"byte {exc.start}") from None
+    out: dict[str, str] = {}
+    for i, row in enumerate(csv.reader(io.StringIO(text, newline="")), start=1):
+        cells = [_label(c) for c in row]
+        if i == 1 or not any(cells):
+            continue
+        if len(cells) < 2 or not cells[0] or not cells[1]:
+            raise invalid(f"labels ({p.name}, row {i})", "hold a code and a label", row)
+        if cells[0] in out:
+            raise invalid(f"labels ({p.name}, row {i})", "give each code once", cells[0])
+        out[cells[0]] = cells[1]
+    return out
+
+
 def _is_total(name: str) -> bool:
     return "total" in name.lower() or bool(_TOTAL_CODE.fullmatch(name))
 
@@ -241,12 +263,17 @@ class PublishedTables:
 
     @classmethod
     def read(cls, supply: str | os.PathLike[str], use: str | os.PathLike[str], *,
+             labels: str | os.PathLike[str] | None = None,
              tolerance: float = 0.005) -> PublishedTables:
         """Read a published supply table and use table (see the module notes).
 
         Parameters
         ----------
         supply, use : path
+        labels : path, optional
+            A separate list of labels for tables printed with codes only: a
+            CSV file of two columns, code and label, after a header row.
+            Every code of either table found in it is read as its label.
         tolerance : float, default 0.005
             Largest gap between the two tables' industry output, as a share.
 
@@ -257,6 +284,16 @@ class PublishedTables:
         s = read_published(supply, what="supply")
         u = read_published(use, what="use")
         sf, uf = s.frame, u.frame
+        if labels is not None:
+            names = _label_list(labels)
+            sf = sf.rename(index=names, columns=names)
+            uf = uf.rename(index=names, columns=names)
+            for what, f, file in (("supply", sf, s.file), ("use", uf, u.file)):
+                for axis in (list(f.index), list(f.columns)):
+                    dup = sorted({x for x in axis if axis.count(x) > 1})
+                    if dup:
+                        raise invalid(f"labels ({Path(labels).name})", f"give each code of "
+                                      f"the {what} table ({file}) its own label", dup[:3])
         s_cols = list(sf.columns)
         imp = [c for c in s_cols if "import" in c.lower() and not _is_total(c)
                and "cif" not in c.lower()]

@@ -258,3 +258,25 @@ def test_the_schema_takes_the_published_spec_and_refuses_a_misspelt_key():
                 {k: v for k, v in spec.items() if k != "labour"}):
         with pytest.raises(jsonschema.ValidationError):
             jsonschema.validate(bad, schema)
+
+
+def test_tables_printed_with_codes_take_their_labels_from_a_list(tmp_path):
+    # both tables by code only, no output row to match by position: the list names them
+    supply = ("code,A01,C00,G00,IMP,TOTAL\n"
+              "P1,100,,,20,120\nP2,5,200,,48,253\nP3,,,60,,60\n")
+    use = USE.replace("\"Food, raw\"", "P1").replace("Goods", "P2").replace("Trade", "P3")
+    use = "\n".join(line for line in use.splitlines() if not line.startswith("Total industry"))
+    labels = ("code,label\nA01,\"Farming, fishing\"\nC00,Industry\nG00,Trade\n"
+              "P1,\"Food, raw\"\nP2,Goods\nP3,Trade services\nIMP,Imports\n")
+    for name, text in (("s.csv", supply), ("u.csv", use), ("labels.csv", labels)):
+        (tmp_path / name).write_text(text, encoding="utf-8")
+    t = PublishedTables.read(tmp_path / "s.csv", tmp_path / "u.csv",
+                             labels=tmp_path / "labels.csv")
+    assert t.industries == ["Farming, fishing", "Industry", "Trade"]
+    assert t.codes["Industry"] == "Industry"  # matched by name, not by position
+    assert t.products == ["Food, raw", "Goods", "Trade services"]
+    assert t.imports.to_dict() == {"Food, raw": 20.0, "Goods": 48.0, "Trade services": 0.0}
+    (tmp_path / "bad.csv").write_text("code,label\nA01,Same\nC00,Same\n", encoding="utf-8")
+    with pytest.raises(InvalidInput, match="its own label"):
+        PublishedTables.read(tmp_path / "s.csv", tmp_path / "u.csv",
+                             labels=tmp_path / "bad.csv")
