@@ -280,3 +280,13 @@ def test_tables_printed_with_codes_take_their_labels_from_a_list(tmp_path):
     with pytest.raises(InvalidInput, match="its own label"):
         PublishedTables.read(tmp_path / "s.csv", tmp_path / "u.csv",
                              labels=tmp_path / "bad.csv")
+
+
+@needs_bea
+def test_a_floor_above_the_skeleton_s_is_impossible_and_diagnosed():
+    # 1.5 times the skeleton's floor is 1.35 times the most a steady state within base-year
+    # capacity gives households; the first year's capacity cannot give it either
+    result = bea_plan(15, 10, floor_factor=1.5).solve()
+    assert result.status is gp.Status.INFEASIBLE and not result.ok
+    assert result.diagnosis is not None
+    assert "consumption floor in 2022" in result.diagnosis.conflict()
