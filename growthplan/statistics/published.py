@@ -23,8 +23,11 @@ codes only take their labels from a separate list.
   products"; its first columns are the supply table's industries, matched by
   name, or by position when the use table prints codes instead (the match is
   checked against the two tables' industry output);
-- every other use column is a final use (a name or code holding "export" or
-  ``F040`` is the exports column).
+- every other use column is a final use: a name or code holding "export" or
+  ``F04x`` is the exports column; "personal consumption expenditures",
+  "household" or ``F01x`` household consumption; "fixed investment", "fixed
+  capital formation" or a code ``F02``, ``F06``, ``F07`` or ``F10`` followed
+  by E, N, R or S fixed investment.
 
 The rules applied on the way, each written into the assumptions
 (:attr:`PublishedEconomy.assumptions`): suppressed cells filled against the
@@ -432,8 +435,9 @@ class PublishedTables:
             return [c for c in cols if "export" in c.lower() or _EXPORT_CODE.fullmatch(c)]
         if kind == "investment":
             return [c for c in cols if "fixed investment" in c.lower()
-                    or _INVESTMENT_CODE.fullmatch(c)]
-        return [c for c in cols if "consumption expenditures" in c.lower()
+                    or "fixed capital formation" in c.lower() or _INVESTMENT_CODE.fullmatch(c)]
+        return [c for c in cols if ("consumption expenditures" in c.lower()
+                                    or "household" in c.lower())
                 and "government" not in c.lower() or _CONSUMPTION_CODE.fullmatch(c)]
 
 
