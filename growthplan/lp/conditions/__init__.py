@@ -153,6 +153,7 @@ def _registry() -> list[Condition]:
     from .calibration import FirstYear
     from .capacity import Capacity
     from .consumption import ConsumptionFall, ConsumptionFloor
+    from .emissions import Emissions
     from .labour import Labour
     from .level import TerminalLevel
     from .targets import Targets
@@ -162,7 +163,7 @@ def _registry() -> list[Condition]:
 
     return [Balance(), Capacity(), Labour(), ForeignExchange(), ConsumptionFloor(),
             ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds(),
-            FirstYear(), Techniques()]
+            FirstYear(), Techniques(), Emissions()]
 
 
 CONDITIONS: list[Condition] = _registry()
