@@ -67,6 +67,7 @@ if TYPE_CHECKING:
         TerminalGrowth,
         Trade,
     )
+    from .model.satellite import Budget, Cap, Impact, IntensityCeiling, Satellite, Stressor
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
@@ -166,6 +167,12 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "Target": ("model.plan", "Target"),
     "TechnicalChange": ("model.plan", "TechnicalChange"),
     "Technique": ("model.technique", "Technique"),
+    "Satellite": ("model.satellite", "Satellite"),
+    "Stressor": ("model.satellite", "Stressor"),
+    "Impact": ("model.satellite", "Impact"),
+    "Cap": ("model.satellite", "Cap"),
+    "Budget": ("model.satellite", "Budget"),
+    "IntensityCeiling": ("model.satellite", "IntensityCeiling"),
     "technique_arrays": ("model.technique", "technique_arrays"),
     "TerminalGrowth": ("model.plan", "TerminalGrowth"),
     "TinyCoefficientsWarning": ("errors", "TinyCoefficientsWarning"),
@@ -259,6 +266,12 @@ __all__ = [
     "Target",
     "TechnicalChange",
     "Technique",
+    "Satellite",
+    "Stressor",
+    "Impact",
+    "Cap",
+    "Budget",
+    "IntensityCeiling",
     "technique_arrays",
     "TerminalGrowth",
     "TinyCoefficientsWarning",

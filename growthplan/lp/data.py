@@ -22,7 +22,8 @@ if TYPE_CHECKING:
     from ..model.plan import Plan
     from ..model.technique import TechniqueSet
 
-__all__ = ["PlanData", "TargetData", "SatelliteData", "LimitData", "satellite_data", "TradeSide", "lower", "techniques", "basket",
+__all__ = ["PlanData", "TargetData", "SatelliteData", "LimitData", "satellite_data",
+           "TradeSide", "lower", "techniques", "basket",
            "consumption_floor",
            "population",
            "labour_supply", "exogenous_demand", "trade_sides", "terminal_proportions"]
@@ -547,9 +548,9 @@ def satellite_data(plan: Plan, d: PlanData) -> SatelliteData | None:
         t = np.array(lim.window(d.years), dtype=int)
         where = f"limits.{i}"
         if lim.kind == "budget":
-            bound = np.array([lim.total])  # type: ignore[union-attr]
+            bound = np.array([lim.total])
         else:
-            bound = lim.path(d.years, where)  # type: ignore[union-attr]
+            bound = lim.path(d.years, where)
         limits.append(LimitData(i, lim.kind, lim.what, w, t, bound))
     resource = [s.resource for s in sat.stressors] + [i.resource for i in sat.impacts]
     return SatelliteData(names=sat.names, units=sat.units, stressors=len(sat.stressors),

@@ -141,7 +141,9 @@ class Satellite(Model):
     Parameters
     ----------
     stressors : list of Stressor
+        Each emission or resource with its unit and intensities, at least one.
     impacts : list of Impact, optional
+        Characterisation: each impact adds stressors with stated factors.
     """
 
     stressors: list[Stressor]

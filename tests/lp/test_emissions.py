@@ -136,7 +136,6 @@ def test_price_where_both_techniques_run_is_labour_saved_per_tonne():
 def test_households_and_impacts():
     """Households emit per unit of consumption; an impact adds stressors by its factors
     (e.g. 28 t CO2-eq per t CH4, a stated factor): recomputed by hand from the schedules."""
-    econ = one_sector()
     econ = gp.Economy(sectors=["goods"], input_coefficients=[[0.6]],
                       capital_coefficients=[[2.0]], consumption_basket=[1.0],
                       capital={"goods": gp.CapitalSpec(initial_capacity=100,
@@ -161,8 +160,11 @@ def test_households_and_impacts():
 
 def test_intensity_ceiling_per_gdp():
     """Emissions per unit of GDP (p·(1 − a) x at base-year prices) at most ι: with
-    e/(1 − a) = 0.5/0.4 = 1.25 t per unit of GDP a ceiling of 1.0 cannot hold with any
-    output, so the plan is impossible; 1.25 holds with equality in every year."""
+    e/(1 − a) = 0.5/0.4 = 1.25 t per unit of GDP a ceiling of 1.0 holds only with no
+    output at all; 1.25 holds with equality in every year."""
+    none = gp.Plan(economy=one_sector(), years=YEARS, satellite=satellite(),
+                   limits=[gp.IntensityCeiling(what="CO2", per_gdp=1.0)])
+    np.testing.assert_allclose(assert_optimal(none.solve()).output["goods"], 0.0, atol=1e-9)
     ok = gp.Plan(economy=one_sector(), years=YEARS, satellite=satellite(),
                  limits=[gp.IntensityCeiling(what="CO2", per_gdp=1.25)])
     r = assert_optimal(ok.solve())
@@ -201,7 +203,8 @@ def test_disembodied_intensity_changes_every_year():
 
 
 def test_count_matches_build_and_audit_catches_excess():
-    plan = gp.Plan(economy=one_sector(), years=YEARS, consumption=gp.Consumption(floor=1.0),
+    plan = gp.Plan(economy=one_sector(), years=YEARS,
+                   consumption=gp.Consumption(floor=1.0, basket={"goods": 1.0}),
                    satellite=gp.Satellite(stressors=[gp.Stressor(
                        name="CO2", unit="t", intensities={"goods": E}, households=0.1)]),
                    limits=[gp.Cap(what="CO2", at_most=60.0, years=[2031, 2033]),

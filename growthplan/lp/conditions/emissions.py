@@ -31,7 +31,10 @@ WHAT = {"cap": "cap", "budget": "budget", "intensity": "ceiling per unit of GDP"
 
 
 def gdp_coefficients(d: PlanData) -> np.ndarray:
-    """Value added at base-year prices per unit of output, years × techniques: ``p·(q_k − a_kt)``."""
+    """Value added at base-year prices per unit of output, ``p·(q_k − a_kt)``.
+
+    Returns years × techniques.
+    """
     q = d.q
     return np.array([d.prices @ (q - d.a_at(t)) for t in range(d.T)])
 
@@ -63,6 +66,10 @@ def _parts(d: PlanData, lim: LimitData, gdp: np.ndarray | None) -> tuple[
     cols = t[:, None] * m + np.arange(m)[None, :]
     keep = vals != 0
     return rows[keep], cols[keep], vals[keep], nrow, upper
+
+
+def _cat(parts: list[np.ndarray], dtype: type) -> np.ndarray:
+    return np.concatenate(parts) if parts else np.zeros(0, dtype)
 
 
 class Emissions(Condition):
@@ -120,9 +127,8 @@ class Emissions(Condition):
             (np.concatenate(out_v), (np.concatenate(out_r), np.concatenate(out_c))),
             shape=(start, d.T * d.m))}
         if "consumption" in ctx.cols:
-            cat = (lambda parts, dt: np.concatenate(parts) if parts else np.zeros(0, dt))
             coeffs["consumption"] = sparse.csr_array(
-                (cat(con_v, float), (cat(con_r, int), cat(con_c, int))), shape=(start, d.T))
+                (_cat(con_v, float), (_cat(con_r, int), _cat(con_c, int))), shape=(start, d.T))
         return RowBlock("emissions", (start,), (tuple(labels),), coeffs, -np.inf,
                         np.concatenate(upper))
 
