@@ -184,6 +184,16 @@ class Emissions(Condition):
             i += nrow
         return out
 
+    def excess_words(self, d: PlanData, label: tuple[Any, ...], excess: float) -> str | None:
+        """E.g. "emissions of CO2 in 2031–2035 exceed the budget by 12.4 Mt"."""
+        year, what, kind, _ = label[1]
+        sat = d.satellite
+        assert sat is not None
+        w = sat.names.index(what)
+        head = f"use of {what}" if sat.resource[w] else f"emissions of {what}"
+        verb = "exceeds" if sat.resource[w] else "exceed"
+        return f"{head} in {year} {verb} the {WHAT[kind]} by {excess:.4g} {sat.units[w]}"
+
     def shortfall_label(self, label: tuple[Any, ...]) -> tuple[str, str, Any]:
         year, what, kind, _ = label[1]
         return (f"emissions {WHAT[kind]}", str(what), year)
