@@ -67,7 +67,15 @@ if TYPE_CHECKING:
         TerminalGrowth,
         Trade,
     )
+    from .analysis.footprint import (
+        balanced_emissions,
+        direct_intensities,
+        emissions_by_sector,
+        footprints,
+        total_intensities,
+    )
     from .model.satellite import Budget, Cap, Impact, IntensityCeiling, Satellite, Stressor
+    from .statistics.satellite import read_satellite
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
@@ -173,6 +181,12 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "Cap": ("model.satellite", "Cap"),
     "Budget": ("model.satellite", "Budget"),
     "IntensityCeiling": ("model.satellite", "IntensityCeiling"),
+    "read_satellite": ("statistics.satellite", "read_satellite"),
+    "direct_intensities": ("analysis.footprint", "direct_intensities"),
+    "total_intensities": ("analysis.footprint", "total_intensities"),
+    "footprints": ("analysis.footprint", "footprints"),
+    "emissions_by_sector": ("analysis.footprint", "emissions_by_sector"),
+    "balanced_emissions": ("analysis.footprint", "balanced_emissions"),
     "technique_arrays": ("model.technique", "technique_arrays"),
     "TerminalGrowth": ("model.plan", "TerminalGrowth"),
     "TinyCoefficientsWarning": ("errors", "TinyCoefficientsWarning"),
@@ -272,6 +286,12 @@ __all__ = [
     "Cap",
     "Budget",
     "IntensityCeiling",
+    "read_satellite",
+    "direct_intensities",
+    "total_intensities",
+    "footprints",
+    "emissions_by_sector",
+    "balanced_emissions",
     "technique_arrays",
     "TerminalGrowth",
     "TinyCoefficientsWarning",
