@@ -36,6 +36,13 @@ if TYPE_CHECKING:
         wage_profit_frontier,
     )
     from .analysis.expanding import ExpandingEconomy, expanding_economy
+    from .analysis.footprint import (
+        balanced_emissions,
+        direct_intensities,
+        emissions_by_sector,
+        footprints,
+        total_intensities,
+    )
     from .analysis.steady import BalancedGrowth
     from .backends import HighsBackend, PulpBackend, Status
     from .backends.highs import SlowMethodWarning
@@ -67,15 +74,7 @@ if TYPE_CHECKING:
         TerminalGrowth,
         Trade,
     )
-    from .analysis.footprint import (
-        balanced_emissions,
-        direct_intensities,
-        emissions_by_sector,
-        footprints,
-        total_intensities,
-    )
     from .model.satellite import Budget, Cap, Impact, IntensityCeiling, Satellite, Stressor
-    from .statistics.satellite import read_satellite
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
@@ -98,6 +97,7 @@ if TYPE_CHECKING:
         stress_test,
     )
     from .statistics.build import BuildReport, build_economy, economy_spec_schema, write_economy
+    from .statistics.satellite import read_satellite
     from .statistics.supply_use import SupplyUseTable, SymmetricTable
     from .statistics.tables import TransactionsTable, read_transactions
 
