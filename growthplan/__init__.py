@@ -46,7 +46,7 @@ if TYPE_CHECKING:
     from .analysis.steady import BalancedGrowth
     from .backends import HighsBackend, PulpBackend, Status
     from .backends.highs import SlowMethodWarning
-    from .demo import DEMO_DIR, copy_demo, demo_economy, demo_plan
+    from .demo import DEMO_DIR, copy_demo, demo_climate_plan, demo_economy, demo_plan
     from .errors import (
         EndEffectsWarning,
         GrowthplanError,
@@ -78,6 +78,7 @@ if TYPE_CHECKING:
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
+    from .scenarios.abatement import abatement_curve
     from .scenarios.revision import compare, plot_compare, read_actuals, revise
     from .scenarios.sweep import SerialExecutor, Sweep, sweep, variant
     from .scenarios.uncertainty import (
@@ -182,6 +183,8 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "Budget": ("model.satellite", "Budget"),
     "IntensityCeiling": ("model.satellite", "IntensityCeiling"),
     "read_satellite": ("statistics.satellite", "read_satellite"),
+    "abatement_curve": ("scenarios.abatement", "abatement_curve"),
+    "demo_climate_plan": ("demo", "demo_climate_plan"),
     "direct_intensities": ("analysis.footprint", "direct_intensities"),
     "total_intensities": ("analysis.footprint", "total_intensities"),
     "footprints": ("analysis.footprint", "footprints"),
@@ -287,6 +290,8 @@ __all__ = [
     "Budget",
     "IntensityCeiling",
     "read_satellite",
+    "abatement_curve",
+    "demo_climate_plan",
     "direct_intensities",
     "total_intensities",
     "footprints",

@@ -52,9 +52,10 @@ def abatement_curve(plan: Plan, levels: Iterable[float], *, limit: int = 0,
     pandas.DataFrame
         One row per level, in increasing order: the solve's status, the
         objective, the loss against the loosest level that solved, the
-        limit's shadow value (objective per unit; for caps and ceilings the
-        sum over years of the values, the derivative with respect to a shift
-        of the whole path), the price in base-year money, the amount emitted
+        limit's shadow value (objective per unit of the level: for a path,
+        ``Σ_t value_t · bound_t / level``, the derivative with respect to
+        the level when the whole path scales with it), the same in base-year
+        money per unit, the amount emitted
         over the limit's years and the units. A level the plan cannot meet
         has status ``infeasible`` and NaN figures.
     """
@@ -83,8 +84,12 @@ def abatement_curve(plan: Plan, levels: Iterable[float], *, limit: int = 0,
         if r.ok:
             prices = r.emission_prices
             own = prices[prices["limit"] == limit]
-            rows.append([level, r.status.value, r.objective, np.nan, float(own["value"].sum()),
-                         float(own["price"].sum()), float(own["emitted"].sum()),
+            # a path scaled to `level`: each year's bound moves by bound_t / level per unit
+            w = np.ones(len(own)) if isinstance(lim, Budget) else \
+                own["bound"].to_numpy(dtype=float) / level if level > 0 else np.nan
+            rows.append([level, r.status.value, r.objective, np.nan,
+                         float(own["value"].to_numpy() @ w), float(own["price"].to_numpy() @ w),
+                         float(own["emitted"].sum()),
                          own["unit"].iloc[0], own["price_unit"].iloc[0]])
         else:
             rows.append([level, r.status.value, np.nan, np.nan, np.nan, np.nan, np.nan, "", ""])

@@ -45,8 +45,11 @@ def test_cap_path_is_scaled_and_impossible_levels_are_kept():
     plan = gp.Plan(economy=one_sector(), years=range(2030, 2034), satellite=sat,
                    final_demand={"goods": 30.0},
                    limits=[gp.Cap(what="CO2", at_most=60.0, rate=-0.05)])
-    curve = abatement_curve(plan, [30.0, 60.0])
-    assert list(curve["status"]) == ["infeasible", "optimal"]
+    curve = abatement_curve(plan, [30.0, 60.0, 62.0])
+    assert list(curve["status"]) == ["infeasible", "optimal", "optimal"]
+    v, price = curve["objective"].to_numpy()[1:], curve["value"].to_numpy()[1:]
+    slope = (v[1] - v[0]) / 2.0  # the path scaled with its first year: V' = Σ y_t E_t / E_0
+    assert price[1] - 1e-9 <= slope <= price[0] + 1e-9
     assert np.isnan(curve["objective"].iloc[0])
     with pytest.raises(gp.InvalidInput, match="limit"):
         abatement_curve(plan, [1.0], limit=3)
