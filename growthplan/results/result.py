@@ -410,6 +410,10 @@ class PlanResult:
             from .techniques import technique_export
 
             out["techniques"] = technique_export(self)
+        if self.data is not None and self.data.satellite is not None:
+            out["emissions"] = self._get("emissions")
+            out["emission_totals"] = _with_units(self._get("emission_totals"))
+            out["emission_prices"] = self._get("emission_prices")
         assert self.audit is not None
         out["audit"] = self.audit.checks.reset_index()
         return {k: v for k, v in out.items() if v is not None and not v.empty}
