@@ -1,4 +1,4 @@
-"""Emission intensities drawn like other coefficients in stress tests."""
+"""Emissions in scenarios: intensities drawn in stress tests, limits in revised plans."""
 
 from __future__ import annotations
 
@@ -57,3 +57,21 @@ def test_stress_test_runs_with_drawn_intensities():
     with pytest.raises(gp.InvalidInput, match="satellite"):
         gp.UncertaintySpec(items=[gp.Uncertain(what="intensities", distribution=gp.Uniform(
             low=1, high=1))]).draw(gp.Plan(economy=one_sector(), years=range(2030, 2032)), 0)
+
+
+def test_revision_keeps_the_remaining_limits():
+    """Revised from 2032: a cap keeps its remaining years and path, a budget over the whole
+    plan keeps what is left after the emissions already made (here 100 t)."""
+    sat = gp.Satellite(stressors=[gp.Stressor(name="CO2", unit="t", intensities={"goods": 0.5})])
+    p = gp.Plan(economy=one_sector(), years=range(2030, 2036), satellite=sat,
+                limits=[gp.Cap(what="CO2", at_most=60.0, rate=-0.1),
+                        gp.Budget(what="CO2", total=400.0)])
+    starts = p.solve().starts.loc[2030:2031]
+    with pytest.raises(gp.InvalidInput, match="budget_used"):
+        gp.revise(p, starts, 2032)
+    new = gp.revise(p, starts, 2032, budget_used={1: 100.0})
+    cap, budget = new.limits
+    assert cap.years == [2032, 2033, 2034, 2035]
+    np.testing.assert_allclose(cap.at_most, 60.0 * 0.9 ** np.arange(2, 6))
+    assert budget.total == 300.0 and budget.first == 2032
+    assert new.solve().ok
