@@ -301,7 +301,7 @@ def _remaining_limits(plan: Any, from_year: int, used: dict[int, float]) -> list
     from ..model.satellite import Budget, Cap
 
     years = list(plan.years)
-    out = []
+    out: list[Any] = []
     for i, lim in enumerate(plan.limits):
         window = [years[t] for t in lim.window(years)]
         left = [y for y in window if y >= from_year]
