@@ -26,7 +26,7 @@ from pydantic import Field, PrivateAttr, field_validator, model_validator
 
 from . import objectives as obj
 from .economy import Economy
-from .satellite import Budget, Cap, IntensityCeiling, Satellite
+from .satellite import Budget, Cap, IntensityCeiling, Satellite, limits_over
 from .series import series as _series
 from .technique import Technique, check_techniques
 from .validation import Model, Rule
@@ -862,5 +862,7 @@ class Plan(Model):
         fields = {k: getattr(self, k) for k in type(self).model_fields}
         search = self.objective.horizon_search()
         objective = search.then if search is not None else self.objective
-        fields.update(years=list(range(first, last + 1)), targets=targets, objective=objective)
+        new_years = list(range(first, last + 1))
+        fields.update(years=new_years, targets=targets, objective=objective,
+                      limits=limits_over(self.limits, self.years, new_years))
         return Plan(**fields)

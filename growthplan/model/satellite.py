@@ -35,7 +35,7 @@ if TYPE_CHECKING:
     from .technique import TechniqueSet
 
 __all__ = ["Stressor", "Impact", "Satellite", "Cap", "Budget", "IntensityCeiling", "Limit",
-           "MAX_AMOUNT"]
+           "MAX_AMOUNT", "limits_over"]
 
 MAX_AMOUNT = 1e15  # larger intensities, factors and limits are refused as absurd
 
@@ -349,3 +349,37 @@ class IntensityCeiling(_Limit):
 
 Limit = Cap | Budget | IntensityCeiling
 """One limit on a stressor or impact, chosen by ``kind`` in a mapping."""
+
+
+def limits_over(limits: list[Any], years: list[int], new_years: list[int]) -> list[Any]:
+    """The limits of a plan over ``years`` restated for a plan over ``new_years``.
+
+    A cap or ceiling given as a number and a rate over every year is kept as
+    it is; otherwise its path is written out for the new years that it
+    covered (a new year after the old last one holds the last year's
+    ceiling). A budget keeps its total and window, cut to the new years; a
+    limit that covers none of them is dropped.
+    """
+    out: list[Any] = []
+    for i, lim in enumerate(limits):
+        if isinstance(lim, Budget):
+            if lim.window(new_years):
+                out.append(lim)
+            continue
+        plain = isinstance(lim, IntensityCeiling) or lim.years is None
+        value = lim.per_gdp if isinstance(lim, IntensityCeiling) else lim.at_most
+        if plain and isinstance(value, int | float) and not isinstance(value, bool):
+            out.append(lim)
+            continue
+        covered = [years[t] for t in lim.window(years)]
+        path = dict(zip(covered, lim.path(years, f"limits.{i}").tolist(), strict=True))
+        keep = [y for y in new_years if y in path or (y > years[-1] and years[-1] in path)]
+        if not keep:
+            continue
+        values = [path.get(y, path[years[-1]]) for y in keep]
+        if isinstance(lim, IntensityCeiling):
+            if len(keep) == len(new_years):
+                out.append(lim.model_copy(update={"per_gdp": values, "rate": 0.0}))
+            continue
+        out.append(Cap(what=lim.what, at_most=values, years=keep))
+    return out

@@ -254,3 +254,19 @@ def test_hostile_inputs_name_the_field(field, make):
     with pytest.raises(gp.InvalidInput) as err:
         make()
     assert field in str(err.value)
+
+
+def test_fastest_horizon_keeps_the_limits():
+    """The horizon search restates limits for each horizon: a cap path given year by year is
+    cut to the shorter plans; the fastest plan to reach capacity 120 under a cap of 60 t is
+    the Harrod–Domar one (100 · 1.15^2 = 132.25 ≥ 120 after two years, 115 after one)."""
+    years = list(range(2030, 2034))
+    plan = gp.Plan(economy=one_sector(), years=years, satellite=satellite(),
+                   targets=[gp.Target("goods", year=2034, capacity_at_least=120.0)],
+                   limits=[gp.Cap(what="CO2", at_most={y: 60.0 for y in years}),
+                           gp.Budget(what="CO2", total=1000.0)],
+                   objective=gp.objectives.Fastest(max_years=6))
+    r = assert_optimal(plan.solve())
+    assert r.plan.horizon == 2
+    assert [type(lim).__name__ for lim in r.plan.limits] == ["Cap", "Budget"]
+    assert r.plan.limits[0].years == [2030, 2031]
