@@ -597,13 +597,14 @@ def emission_words(result: PlanResult) -> list[str]:
     out = []
     for row in result.emission_prices.itertuples():
         what = f"the {row.kind} on {row.what} in {row.year}"
-        if row.value > 1e-12:
+        if row.slack <= 1e-7 * max(abs(row.bound), 1.0):
             out.append(f"{what[0].upper()}{what[1:]} binds ({row.emitted:,.6g} of "
                        f"{row.bound:,.6g} {row.unit}): one more {row.unit} allowed would be "
                        f"worth {row.price:.4g} {row.price_unit}.")
         else:
             out.append(f"{what[0].upper()}{what[1:]} does not bind ({row.emitted:,.6g} of "
-                       f"{row.bound:,.6g} {row.unit}); its price is zero.")
+                       f"{row.bound:,.6g} {row.unit}); one more {row.unit} allowed is worth "
+                       "nothing.")
     return out
 
 
