@@ -181,7 +181,7 @@ def _emission_lines(r: Any) -> list[tuple[str, str]]:
         own = mine[mine["slack"] <= 1e-7 * mine["bound"].abs().clip(lower=1.0)]
         if not own.empty:
             top = own.loc[own["price"].idxmax()]
-            text += (f"; at its limit in {len(own)} of {len(mine)} limit rows, price up to {top['price']:.4g} {top['price_unit']} "
-                     f"({top['year']})")
+            text += (f"; at its limit in {len(own)} of {len(mine)} limit rows, price up to "
+                     f"{top['price']:.4g} {top['price_unit']} ({top['year']})")
         rows.append((f"emissions of {what}", text))
     return rows
