@@ -123,3 +123,19 @@ def test_reader_refuses_bad_cells(tmp_path):
         read_satellite(path, units={"CO2": "t"}, output={"farm": 5.0, "mill": 0.0})
     sat = read_satellite(path, units={"CO2": "t"}, output={"farm": 5.0, "mill": 2.0})
     assert sat.stressors[0].intensities == {"farm": 2.0, "mill": 2.0}
+
+
+def test_dynamic_balanced_emissions_one_sector():
+    """One sector, a = 0.6, b = 2, geometric life 20 (δ = 0.05): the dynamic ray grows at
+    (1 − a − b δ)/b = 0.15 (Harrod–Domar with replacement); emissions per unit of GDP are
+    e/(1 − a) = 0.5/0.4 = 1.25."""
+    econ = gp.Economy(sectors=["goods"], input_coefficients=[[0.6]],
+                      capital_coefficients=[[2.0]],
+                      capital={"goods": gp.CapitalSpec(initial_capacity=100,
+                                                       mean_service_life=20)})
+    sat = gp.Satellite(stressors=[gp.Stressor(name="CO2", unit="t",
+                                              intensities={"goods": 0.5})])
+    table = balanced_emissions(econ, sat, dynamic=True)
+    assert table.loc["CO2", "growth"] == pytest.approx(0.15, rel=1e-9)
+    assert table.loc["CO2", "per_gdp"] == pytest.approx(1.25, rel=1e-12)
+    assert table.loc["CO2", "per_output_value"] == pytest.approx(0.5, rel=1e-12)
