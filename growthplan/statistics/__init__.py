@@ -7,6 +7,7 @@ and coefficient tables (CSV or Excel) and their aggregation,
 symmetric ones, :mod:`~growthplan.statistics.balancing` updates a matrix to
 new totals (RAS, GRAS), :mod:`~growthplan.statistics.capital_flows` estimates
 capital coefficients, :mod:`~growthplan.statistics.employment` labour by kind,
+:mod:`~growthplan.statistics.satellite` emissions and resources by sector,
 and :mod:`~growthplan.statistics.build` the economy spec that turns them into
 an economy.
 
@@ -29,6 +30,7 @@ if TYPE_CHECKING:
     )
     from .employment import Employment, employment_table, labour_coefficients
     from .layouts import LAYOUT_VERSION, LocatedTable, TableLayout, read_table
+    from .satellite import read_satellite, satellite_from_frame
     from .supply_use import MODELS, SupplyUseTable, SymmetricTable
     from .tables import (
         TransactionsTable,
@@ -54,6 +56,7 @@ _LAZY = {
     "labour_coefficients": "employment",
     "LAYOUT_VERSION": "layouts", "LocatedTable": "layouts", "TableLayout": "layouts",
     "read_table": "layouts",
+    "read_satellite": "satellite", "satellite_from_frame": "satellite",
 }
 
 __all__ = [
@@ -78,6 +81,8 @@ __all__ = [
     "gras",
     "investment_matrix",
     "labour_coefficients",
+    "read_satellite",
+    "satellite_from_frame",
     "ras",
     "read_frame",
     "read_table",
