@@ -12,7 +12,7 @@ import pytest
 from conftest import assert_optimal, one_sector
 
 import growthplan as gp
-from growthplan.lp.build import build, estimate_size
+from growthplan.lp.build import _upper_bound, build, estimate_size
 from growthplan.lp.conditions import CONDITIONS
 from growthplan.results.tables import schedules
 
@@ -218,6 +218,7 @@ def test_count_matches_build_and_audit_catches_excess():
     assert rows == b.size == 2 + 1 + len(YEARS)
     assert nnz == lp.matrix[b.start:b.stop].nnz
     assert estimate_size(d)["rows"] == lp.shape[0]
+    assert _upper_bound(plan) >= lp.matrix.nnz  # the cheap size guard stays an upper bound
     r = assert_optimal(plan.solve())
     s = schedules(d, lp, r.outcome.x)
     s.output = s.output * 1.5  # more output than the cap allows
