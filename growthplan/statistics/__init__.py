@@ -10,7 +10,8 @@ capital coefficients, :mod:`~growthplan.statistics.employment` labour by kind,
 :mod:`~growthplan.statistics.valuation` the valuation layers and the rules for
 special cells, :mod:`~growthplan.statistics.published` tables as offices
 publish them, :mod:`~growthplan.statistics.skeleton` a first plan of a built
-economy, and :mod:`~growthplan.statistics.build` the economy spec that turns
+economy, :mod:`~growthplan.statistics.satellite` emissions and resources by
+sector, and :mod:`~growthplan.statistics.build` the economy spec that turns
 them into an economy.
 
 The names below are loaded on first use.
@@ -41,6 +42,7 @@ if TYPE_CHECKING:
     from .employment import Employment, employment_table, labour_coefficients
     from .layouts import LAYOUT_VERSION, LocatedTable, TableLayout, read_table
     from .published import PublishedEconomy, PublishedTables, published_economy, read_published
+    from .satellite import read_satellite, satellite_from_frame
     from .skeleton import PlanSkeleton, plan_skeleton
     from .supply_use import MODELS, SupplyUseTable, SymmetricTable
     from .tables import (
@@ -82,6 +84,7 @@ _LAZY = {
     "SUPPRESSED": "valuation", "Valuation": "valuation", "fill_suppressed": "valuation",
     "negative_supply": "valuation", "negative_uses": "valuation",
     "to_basic_prices": "valuation",
+    "read_satellite": "satellite", "satellite_from_frame": "satellite",
 }
 
 __all__ = [
@@ -120,6 +123,8 @@ __all__ = [
     "gras",
     "investment_matrix",
     "labour_coefficients",
+    "read_satellite",
+    "satellite_from_frame",
     "ras",
     "read_frame",
     "read_table",
