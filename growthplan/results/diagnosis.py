@@ -78,6 +78,7 @@ BUDGET_FLOOR = 10.0       # ... and at least this many seconds
 TOLERANCE = 1e-9          # primal and dual feasibility of the re-solve
 IPM_OPTIMALITY = 1e-10    # interior point's relative gap (HiGHS's default is 1e-8)
 RELAX = ("aims", "facts", "together")
+LIMITS = ("labour", "foreign_exchange", "emissions")  # "at most" rows: a shortfall is an excess
 COLUMNS = ["condition", "sector", "year", "required", "achievable", "shortfall", "share",
            "unit", "kind"]
 
@@ -102,6 +103,9 @@ def _what(condition: str, sector: str) -> str:
 def _words(table: pd.DataFrame, limit: int = 3) -> list[str]:
     out = []
     for r in table.head(limit).itertuples():
+        if isinstance(getattr(r, "words", None), str) and r.words:
+            out.append(r.words)  # a limit with a unit of its own says it best
+            continue
         what = _what(r.condition, r.sector)
         unit = f" {r.unit}" if r.unit else ""
         if r.kind == "fact":
@@ -246,7 +250,8 @@ class Diagnosis:
                     "on a small plan, or relax='together'.")
         if self.shortfalls.empty:
             return "The elastic re-solve found no shortfall: the plan is feasible."
-        parts = [f"{_what(r.condition, r.sector)} {r.year}"
+        parts = [r.words if isinstance(getattr(r, "words", None), str) and r.words else
+                 f"{_what(r.condition, r.sector)} {r.year}"
                  + f" short by {r.shortfall:,.6g}{' ' + r.unit if r.unit else ''}"
                  f" ({100 * r.share:.1f} %)" for r in self.shortfalls.head(3).itertuples()]
         text = "Cannot be met: " + "; ".join(parts) + "."
@@ -553,15 +558,19 @@ def _table(view: _View, info: list[dict[str, Any]], d: Any) -> pd.DataFrame:
         cond_name, sector, year = cond.shortfall_label(rec["label"])
         unit = cond.unit(d, rec["label"]) if d is not None else ""
         required = float(rec["required"])
-        if rec["family"] in ("labour", "foreign_exchange"):  # a limit exceeded: what is needed
+        words = cond.excess_words(d, rec["label"], short) if d is not None else None
+        if rec["family"] in LIMITS:  # a limit exceeded: what would be needed
             need = required + short
             recs.append((cond_name, sector, year, need, required, short,
-                         short / need if need else np.inf, unit, rec["role"]))
+                         short / need if need else np.inf, unit, rec["role"], words))
         else:
             recs.append((cond_name, sector, year, required, required - short, short,
-                         short / required if required else np.inf, unit, rec["role"]))
-    return pd.DataFrame(recs, columns=COLUMNS).sort_values(
-        ["share", "shortfall"], ascending=False, kind="stable").reset_index(drop=True)
+                         short / required if required else np.inf, unit, rec["role"], words))
+    table = pd.DataFrame(recs, columns=[*COLUMNS, "words"])
+    if table["words"].isna().all():
+        table = table.drop(columns="words")  # only limits with a unit of their own have words
+    return table.sort_values(["share", "shortfall"], ascending=False,
+                             kind="stable").reset_index(drop=True)
 
 
 def _audit(lp: LinearProgram, view: _View) -> tuple[bool, str]:

@@ -132,6 +132,10 @@ class Condition:
         """Unit of what the row asks for, for the diagnosis's words ("" when none)."""
         return ""
 
+    def excess_words(self, d: PlanData, label: tuple[Any, ...], excess: float) -> str | None:
+        """A limit exceeded by ``excess``, in words with its unit (None: the usual wording)."""
+        return None
+
     def describe(self, label: tuple[Any, ...]) -> str:
         """The row in the trade's words, e.g. "labour in 2031"."""
         cond, who, year = self.shortfall_label(label)
@@ -158,6 +162,7 @@ def _registry() -> list[Condition]:
     from .calibration import FirstYear
     from .capacity import Capacity
     from .consumption import ConsumptionFall, ConsumptionFloor
+    from .emissions import Emissions
     from .labour import Labour
     from .level import TerminalLevel
     from .targets import Targets
@@ -167,7 +172,7 @@ def _registry() -> list[Condition]:
 
     return [Balance(), Capacity(), Labour(), ForeignExchange(), ConsumptionFloor(),
             ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds(),
-            FirstYear(), Techniques()]
+            FirstYear(), Techniques(), Emissions()]
 
 
 CONDITIONS: list[Condition] = _registry()
