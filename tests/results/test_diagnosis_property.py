@@ -7,7 +7,8 @@ interface) maximises that quantity alone, the aim's own bound dropped and every 
 condition of the plan's programme kept. The diagnosis must report that aim alone, short
 by ``R − M`` to 1e-9 of ``R``, and no fact (labour, foreign exchange): relaxing the
 aim suffices. Plans made impossible by their facts (labour or foreign exchange against
-exogenous demand) report the fact. Every impossible plan names a conflict.
+exogenous demand) report the fact; plans over an emissions cap report the cap in its own
+unit. Every impossible plan names a conflict.
 """
 
 from __future__ import annotations
@@ -139,6 +140,17 @@ def fact_plan(seed: int, kind: str) -> gp.Plan:
         supply = float(lab @ (scale * x) * rng.uniform(0.3, 0.8))
         return gp.Plan(economy=econ, years=years, labour=gp.LabourSupply(start=supply),
                        final_demand=demand)
+    if kind == "emissions":
+        # the same demand, its emissions (output times intensity) above a yearly cap
+        x = np.linalg.solve(np.eye(n) - a, np.ones(n))
+        scale = 0.5 * float(np.min(cap / x))
+        intensity = rng.uniform(0.1, 1.0, n)
+        sat = gp.Satellite(stressors=[gp.Stressor(
+            name="CO2", unit="t", intensities=dict(zip(econ.names, intensity, strict=True)))])
+        need = float(intensity @ (scale * x))
+        return gp.Plan(economy=econ, years=years, final_demand={s: scale for s in econ.names},
+                       satellite=sat,
+                       limits=[gp.Cap(what="CO2", at_most=need * rng.uniform(0.3, 0.8))])
     # foreign exchange: demand for good 0 beyond what the first year's capacity can make
     demand = {econ.names[0]: float(cap[0] * rng.uniform(1.5, 3.0))}
     return gp.Plan(economy=econ, years=years, final_demand=demand,
@@ -152,6 +164,11 @@ def check_fact(seed: int, kind: str) -> None:
         r = fact_plan(seed, kind).solve()
     assert r.status is gp.Status.INFEASIBLE, (r.status, r.message)
     short = r.diagnosis.shortfalls
+    if kind == "emissions":  # a cap is a limit the analyst sets: relaxed like an aim
+        assert all(c.startswith("emissions") for c in short["condition"]), short
+        assert "exceed" in r.diagnosis.headline()
+        assert r.diagnosis.conflict(), r.diagnosis.subset_source
+        return
     word = "labour" if kind == "labour" else "foreign exchange"
     assert word in set(short["condition"]), short
     assert "fact" in set(short["kind"])
@@ -161,11 +178,12 @@ def check_fact(seed: int, kind: str) -> None:
 
 def conflict_cases(count: int) -> list:
     return [pytest.param(kind, 2000 + i, id=f"{kind}-{i}")
-            for kind in ("target", "floor", "labour", "foreign_exchange") for i in range(count)]
+            for kind in ("target", "floor", "labour", "foreign_exchange", "emissions")
+            for i in range(count)]
 
 
 def check_conflict(kind: str, seed: int) -> None:
-    if kind in ("labour", "foreign_exchange"):
+    if kind in ("labour", "foreign_exchange", "emissions"):
         check_fact(seed, kind)
         return
     rng = np.random.default_rng(seed)
