@@ -66,6 +66,7 @@ if TYPE_CHECKING:
         TerminalGrowth,
         Trade,
     )
+    from .model.regions import MultiRegionalEconomy
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
@@ -126,6 +127,7 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "InvalidInput": ("errors", "InvalidInput"),
     "LabourSupply": ("model.plan", "LabourSupply"),
     "LinearProgram": ("lp.program", "LinearProgram"),
+    "MultiRegionalEconomy": ("model.regions", "MultiRegionalEconomy"),
     "load_plan_file": ("io.planfile", "load_plan_file"),
     "load_uncertainty": ("io.planfile", "load_uncertainty"),
     "LogNormal": ("scenarios.uncertainty", "LogNormal"),
@@ -219,6 +221,7 @@ __all__ = [
     "InvalidInput",
     "LabourSupply",
     "LinearProgram",
+    "MultiRegionalEconomy",
     "load_plan_file",
     "load_uncertainty",
     "LogNormal",
