@@ -92,6 +92,9 @@ def columns(d: PlanData) -> list[tuple[str, tuple[int, ...], tuple[tuple[Any, ..
     for name, side in (("imports", d.imports), ("exports", d.exports)):
         if d.trades and side is not None and side.goods:
             out.append((name, (d.T, len(side.goods)), (years, tuple(side.goods))))
+    # several regions: one column per shipment (origin, destination, good) and year
+    if d.regions is not None and d.regions.K:
+        out.append(("shipments", (d.T, d.regions.K), (years, d.regions.labels)))
     return out
 
 

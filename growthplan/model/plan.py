@@ -26,6 +26,7 @@ from pydantic import Field, PrivateAttr, field_validator, model_validator
 
 from . import objectives as obj
 from .economy import Economy
+from .regions import Regions, check_regions
 from .series import series as _series
 from .technique import Technique, check_techniques
 from .validation import Model, Rule
@@ -389,6 +390,7 @@ class Plan(Model):
     trade: Trade | None = None
     technical_change: TechnicalChange | None = None
     techniques: list[Technique] = Field(default_factory=list)
+    regions: Regions | None = None
     allow_high_rates: bool = False
     first_year_within: float | None = Field(default=None, gt=0, lt=1, allow_inf_nan=False)
     objective: (obj.TerminalCapacity | obj.DiscountedConsumption | obj.LeastLabour
@@ -541,6 +543,8 @@ class Plan(Model):
                                loose, field=f"trade.{field}")
             lowering.trade_sides(self)
         lowering.exogenous_demand(self)
+        if self.regions is not None:
+            check_regions(self)
         return self
 
     # -- derived data and delegators ------------------------------------------------

@@ -24,10 +24,10 @@ Three ways to state the coefficients:
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, Literal
 
 import numpy as np
-from pydantic import field_validator, model_validator
+from pydantic import Field, field_validator, model_validator
 
 from ..errors import InvalidInput, invalid
 from .economy import Economy, Sector
@@ -36,7 +36,7 @@ from .validation import Model, Rule
 if TYPE_CHECKING:
     import pandas as pd
 
-__all__ = ["MultiRegionalEconomy", "pair_names", "SEPARATOR"]
+__all__ = ["MultiRegionalEconomy", "Corridor", "Regions", "pair_names", "SEPARATOR"]
 
 SEPARATOR = "/"
 
@@ -58,6 +58,14 @@ def _names(v: list[str], what: str) -> list[str]:
     dup = sorted({x for x in v if v.count(x) > 1})
     if dup:
         raise Rule("be unique", dup)
+    return v
+
+
+def _region_names(v: list[str]) -> list[str]:
+    _names(v, "region")
+    bad = [r for r in v if SEPARATOR in r]
+    if bad:
+        raise Rule(f"not hold '{SEPARATOR}' (it joins region and sector)", bad)
     return v
 
 
@@ -90,11 +98,7 @@ class MultiRegionalEconomy(Model):
     @field_validator("regions")
     @classmethod
     def _regions(cls, v: list[str]) -> list[str]:
-        _names(v, "region")
-        bad = [r for r in v if SEPARATOR in r]
-        if bad:
-            raise Rule(f"not hold '{SEPARATOR}' (it joins region and sector)", bad)
-        return v
+        return _region_names(v)
 
     @field_validator("sectors")
     @classmethod
@@ -252,6 +256,34 @@ class MultiRegionalEconomy(Model):
                    economy=Economy(sectors=[Sector(name=x) for x in names],
                                    input_coefficients=a, **kwargs))
 
+    # -- a plan over the regions -------------------------------------------------------------
+
+    def plan(self, years: Any, *, corridors: Any = (), transport_sector: str | None = None,
+             transport_paid_by: str = "origin", labour: dict[str, Any] | None = None,
+             labour_growth: float = 0.0, migration: dict[str, float] | None = None,
+             **fields: Any) -> Any:
+        """A :class:`~growthplan.Plan` over the region–sector pairs with its :class:`Regions`.
+
+        Parameters
+        ----------
+        years : range or list of int
+        corridors, transport_sector, transport_paid_by, labour, labour_growth, migration
+            The fields of :class:`Regions`.
+        **fields
+            Further fields of the plan (targets name pairs as ``"north/tools"``).
+
+        Returns
+        -------
+        Plan
+        """
+        from .plan import Plan
+
+        regions = Regions(regions=self.regions, sectors=self.sectors, corridors=list(corridors),
+                          transport_sector=transport_sector,
+                          transport_paid_by=transport_paid_by, labour=labour,
+                          labour_growth=labour_growth, migration=migration)
+        return Plan(economy=self.economy, years=years, regions=regions, **fields)
+
     # -- steady-state figures (analysis.regions) ---------------------------------------------
 
     def leontief_inverse(self) -> pd.DataFrame:
@@ -355,3 +387,190 @@ def _mix(a_reg: np.ndarray, c: np.ndarray, R: int, n: int) -> np.ndarray:  # noq
             out[r * n:(r + 1) * n, cols] = c[r, s][:, None] * tech
     return out
 
+
+
+# -- the plan over regions ---------------------------------------------------------------------
+
+
+class Corridor(Model):
+    """Shipments of goods from one region to another, chosen by the plan.
+
+    Parameters
+    ----------
+    origin, destination : str
+        Regions (different).
+    goods : list of str, optional
+        Commodities that may be shipped (default: every sector).
+    transport : float or dict of str to float, default 0.0
+        Units of the transport sector's product used per unit shipped (one
+        number for every good, or per good), >= 0.
+    ceiling : float or dict of str to float, optional
+        Most units of each good shipped per year (one number for every good,
+        or per good); none: no limit.
+    both_ways : bool, default False
+        Also ship from ``destination`` to ``origin`` on the same terms.
+    """
+
+    origin: str
+    destination: str
+    goods: list[str] | None = None
+    transport: float | dict[str, float] = 0.0
+    ceiling: float | dict[str, float] | None = None
+    both_ways: bool = False
+
+    @field_validator("transport", "ceiling")
+    @classmethod
+    def _amounts(cls, v: Any) -> Any:
+        values = [] if v is None else (list(v.values()) if isinstance(v, dict) else [v])
+        if any(isinstance(a, bool) or not (np.isfinite(a) and a >= 0) for a in values):
+            raise Rule("be finite amounts >= 0", v)
+        return v
+
+    @model_validator(mode="after")
+    def _ends(self) -> Corridor:
+        if self.origin == self.destination:
+            raise Rule("differ from origin (a corridor joins two regions)", self.destination,
+                       field="destination")
+        return self
+
+    def amount(self, value: float | dict[str, float] | None, good: str,
+               default: float) -> float:
+        """The corridor's number for one good."""
+        if value is None:
+            return default
+        if isinstance(value, dict):
+            return float(value.get(good, default))
+        return float(value)
+
+
+class Regions(Model):
+    """The regional side of a plan over region–sector pairs.
+
+    The plan's economy is a :class:`MultiRegionalEconomy`'s ``economy`` (its
+    sectors are the pairs). Each region has its own output, capacity, starts
+    and labour; shipments along the corridors move goods between regions (the
+    plan chooses who supplies whom), and each unit shipped uses ``transport``
+    units of the transport sector's product of the region named by
+    ``transport_paid_by``.
+
+    Parameters
+    ----------
+    regions : list of str
+        The regions, as in the economy.
+    sectors : list of str
+        The commodities, as in the economy.
+    corridors : list of Corridor
+        Where goods may be shipped (none: the regions are self-sufficient).
+    transport_sector : str, optional
+        The commodity that carries shipments (needed when a corridor has a
+        transport cost).
+    transport_paid_by : {"origin", "destination"}, default "origin"
+        Whose transport sector carries a shipment.
+    labour : dict of str to number, list, dict or Series, optional
+        Labour available in each region per year (person-years of the
+        economy's first labour kind): a number (grown at ``labour_growth``) or
+        a series; every region named once.
+    labour_growth : float, default 0.0
+        Yearly growth of the regional supplies given as numbers.
+    migration : dict of str to float, optional
+        Most person-years by which each region's labour may exceed its own
+        supply by people moving in from the others (a ceiling on net inflow
+        per year); when given, labour may move within these ceilings and the
+        whole country's supply bounds the total. Regions not named take none.
+    """
+
+    regions: list[str]
+    sectors: list[str]
+    corridors: list[Corridor] = Field(default_factory=list)
+    transport_sector: str | None = None
+    transport_paid_by: Literal["origin", "destination"] = "origin"
+    labour: dict[str, Any] | None = None
+    labour_growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
+    migration: dict[str, float] | None = None
+
+    @field_validator("regions")
+    @classmethod
+    def _regions(cls, v: list[str]) -> list[str]:
+        return _region_names(v)
+
+    @field_validator("sectors")
+    @classmethod
+    def _sectors(cls, v: list[str]) -> list[str]:
+        return _names(v, "sector")
+
+    @field_validator("migration")
+    @classmethod
+    def _migration(cls, v: dict[str, float] | None) -> dict[str, float] | None:
+        if v is not None and any(isinstance(a, bool) or not (np.isfinite(a) and a >= 0)
+                                 for a in v.values()):
+            raise Rule("hold finite ceilings >= 0", v)
+        return v
+
+    @model_validator(mode="after")
+    def _check(self) -> Regions:
+        known = self.regions
+        for k, c in enumerate(self.corridors):
+            for end in ("origin", "destination"):
+                if getattr(c, end) not in known:
+                    raise Rule(f"name a region of the plan ({', '.join(known)})",
+                               getattr(c, end), field=f"corridors.{k}.{end}")
+            for g in [*(c.goods or []), *(c.transport if isinstance(c.transport, dict)
+                                          else {}),
+                      *(c.ceiling if isinstance(c.ceiling, dict) else {})]:
+                if g not in self.sectors:
+                    raise Rule(f"name sectors ({', '.join(self.sectors)})", g,
+                               field=f"corridors.{k}.goods")
+            costly = (any(c.transport.values()) if isinstance(c.transport, dict)
+                      else c.transport > 0)
+            if costly and self.transport_sector is None:
+                raise Rule("be given when a corridor has a transport cost", None,
+                           field="transport_sector")
+        pairs = [(o, d) for o, d, _ in self.links()]
+        dup = sorted({p for p in pairs if pairs.count(p) > 1})
+        if dup:
+            raise Rule("join each (origin, destination) once", dup[0], field="corridors")
+        if self.transport_sector is not None and self.transport_sector not in self.sectors:
+            raise Rule(f"name a sector ({', '.join(self.sectors)})", self.transport_sector,
+                       field="transport_sector")
+        for key, given in (("labour", self.labour), ("migration", self.migration)):
+            unknown = [r for r in (given or {}) if r not in known]
+            if unknown:
+                raise Rule(f"name regions of the plan ({', '.join(known)})", unknown[0],
+                           field=key)
+        if self.labour is not None:
+            missing = [r for r in known if r not in self.labour]
+            if missing:
+                raise Rule("give every region a labour supply (a region without labour "
+                           "cannot produce)", f"none for {', '.join(missing)}",
+                           field="labour")
+        if self.migration is not None and self.labour is None:
+            raise Rule("come with regional labour supplies", self.migration,
+                       field="migration")
+        return self
+
+    def links(self) -> list[tuple[str, str, Corridor]]:
+        """Directed corridors ``(origin, destination, corridor)``, both ways expanded."""
+        out = []
+        for c in self.corridors:
+            out.append((c.origin, c.destination, c))
+            if c.both_ways:
+                out.append((c.destination, c.origin, c))
+        return out
+
+
+def check_regions(plan: Any) -> None:
+    """Checks of a plan's regions against its economy and years (inside Plan's validation)."""
+    from .series import series
+
+    reg: Regions = plan.regions
+    econ = plan.economy
+    want = pair_names(reg.regions, reg.sectors)
+    if econ.names != want:
+        raise Rule(f"match the economy's sectors, region by region ({', '.join(want[:3])}…)",
+                   econ.names[:3], field="regions.sectors")
+    if reg.labour is not None:
+        if econ.labour_coefficients is None:
+            raise Rule("come with labour coefficients in the economy", "regions.labour",
+                       field="regions.labour")
+        for r, v in reg.labour.items():
+            series(v, list(plan.years), f"regions.labour.{r}", reg.labour_growth)

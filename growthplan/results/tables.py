@@ -38,8 +38,10 @@ def schedules(d: PlanData, lp: LinearProgram, x: np.ndarray) -> Schedules:
     deliv = (w @ starts.ravel()).reshape(T, d.n) + d.pipe_deliveries
     imports = lp.cols["imports"].take(x) if "imports" in lp.cols else None
     exports = lp.cols["exports"].take(x) if "exports" in lp.cols else None
+    shipments = lp.cols["shipments"].take(x) if "shipments" in lp.cols else None
     return Schedules(output=output, starts=starts, consumption=kappa, level=level,
-                     imports=imports, exports=exports, capacity=cap, deliveries=deliv)
+                     imports=imports, exports=exports, capacity=cap, deliveries=deliv,
+                     shipments=shipments)
 
 
 def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,

@@ -66,6 +66,7 @@ class Schedules:
     exports: np.ndarray | None
     capacity: np.ndarray        # as reported: (T + 1) × sectors
     deliveries: np.ndarray      # as reported: years × commodities
+    shipments: np.ndarray | None = None  # years × shipments (several regions)
     # recomputed independently by the audit (vintage by vintage)
     capacity_check: np.ndarray | None = None
     deliveries_check: np.ndarray | None = None
@@ -158,11 +159,15 @@ def _registry() -> list[Condition]:
     from .targets import Targets
     from .techniques import Techniques
     from .terminal import Terminal
+    from .regional_labour import RegionalLabour
+    from .shipments import ShipmentCeilings
     from .trade import ForeignExchange, TradeBounds
 
     return [Balance(), Capacity(), Labour(), ForeignExchange(), ConsumptionFloor(),
             ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds(),
-            FirstYear(), Techniques()]
+            FirstYear(), Techniques(),
+            # several regions
+            RegionalLabour(), ShipmentCeilings()]
 
 
 CONDITIONS: list[Condition] = _registry()
