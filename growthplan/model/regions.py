@@ -259,7 +259,8 @@ class MultiRegionalEconomy(Model):
     # -- a plan over the regions -------------------------------------------------------------
 
     def plan(self, years: Any, *, corridors: Any = (), transport_sector: str | None = None,
-             transport_paid_by: str = "origin", labour: dict[str, Any] | None = None,
+             transport_paid_by: Literal["origin", "destination"] = "origin",
+             labour: dict[str, Any] | None = None,
              labour_growth: float = 0.0, migration: dict[str, float] | None = None,
              **fields: Any) -> Any:
         """A :class:`~growthplan.Plan` over the region–sector pairs with its :class:`Regions`.

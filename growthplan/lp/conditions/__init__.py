@@ -156,11 +156,11 @@ def _registry() -> list[Condition]:
     from .consumption import ConsumptionFall, ConsumptionFloor
     from .labour import Labour
     from .level import TerminalLevel
+    from .regional_labour import RegionalLabour
+    from .shipments import ShipmentCeilings
     from .targets import Targets
     from .techniques import Techniques
     from .terminal import Terminal
-    from .regional_labour import RegionalLabour
-    from .shipments import ShipmentCeilings
     from .trade import ForeignExchange, TradeBounds
 
     return [Balance(), Capacity(), Labour(), ForeignExchange(), ConsumptionFloor(),
