@@ -66,7 +66,7 @@ if TYPE_CHECKING:
         TerminalGrowth,
         Trade,
     )
-    from .model.regions import MultiRegionalEconomy
+    from .model.regions import Corridor, MultiRegionalEconomy, Regions
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
@@ -108,6 +108,7 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "CAUTION": ("results", "CAUTION"),
     "cheapest_techniques": ("analysis.choice", "cheapest_techniques"),
     "CheapestTechniques": ("analysis.choice", "CheapestTechniques"),
+    "Corridor": ("model.regions", "Corridor"),
     "compare": ("scenarios.revision", "compare"),
     "Consumption": ("model.plan", "Consumption"),
     "copy_demo": ("demo", "copy_demo"),
@@ -148,6 +149,7 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "PulpBackend": ("backends", "PulpBackend"),
     "read_actuals": ("scenarios.revision", "read_actuals"),
     "read_transactions": ("statistics.tables", "read_transactions"),
+    "Regions": ("model.regions", "Regions"),
     "reoptimise": ("scenarios.uncertainty", "reoptimise"),
     "revise": ("scenarios.revision", "revise"),
     "robust_plan": ("scenarios.uncertainty", "robust_plan"),
@@ -202,6 +204,7 @@ __all__ = [
     "CAUTION",
     "cheapest_techniques",
     "CheapestTechniques",
+    "Corridor",
     "compare",
     "Consumption",
     "copy_demo",
@@ -242,6 +245,7 @@ __all__ = [
     "PulpBackend",
     "read_actuals",
     "read_transactions",
+    "Regions",
     "reoptimise",
     "revise",
     "robust_plan",

@@ -6,7 +6,7 @@ import numpy as np
 
 import growthplan as gp
 
-__all__ = ["economy", "make_plan", "rescale", "two_sector", "random_plan"]
+__all__ = ["economy", "make_plan", "rescale", "two_sector", "random_plan", "regional_economy"]
 
 
 def economy(n: int, seed: int = 1) -> gp.Economy:
@@ -122,3 +122,25 @@ def switch_plan() -> gp.Plan:
                    labour=gp.LabourSupply(start=150, growth=0.05),
                    techniques=[gp.Technique(sector="goods", label="saving", labour=0.5,
                                             capital={"goods": 0.45})])
+
+
+def regional_economy(regions: list[str], n: int, seed: int = 1, *,
+                     identical: bool = False) -> gp.MultiRegionalEconomy:
+    """Dense random regions sharing ``n`` sectors (the last one, "haul", carries shipments).
+
+    With ``identical`` every region has the same coefficients and capital.
+    """
+    names = [f"s{i}" for i in range(n - 1)] + ["haul"]
+    econs = {}
+    for k, r in enumerate(regions):
+        rng = np.random.default_rng(seed if identical else seed + k)
+        a = rng.uniform(0, 1, (n, n))
+        a *= 0.5 / a.sum(axis=0).max()
+        b = rng.uniform(0, 1, (n, n))
+        b *= 2.0 / b.sum(axis=0).max()
+        cap = {s: gp.CapitalSpec(initial_capacity=float(rng.uniform(50, 150)),
+                                 mean_service_life=20.0) for s in names}
+        econs[r] = gp.Economy(sectors=names, input_coefficients=a, capital_coefficients=b,
+                              labour_coefficients=[rng.uniform(0.1, 1.0, n)], capital=cap,
+                              consumption_basket=rng.uniform(0.1, 1.0, n))
+    return gp.MultiRegionalEconomy.from_regions(econs)

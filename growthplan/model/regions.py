@@ -260,16 +260,19 @@ class MultiRegionalEconomy(Model):
 
     def plan(self, years: Any, *, corridors: Any = (), transport_sector: str | None = None,
              transport_paid_by: Literal["origin", "destination"] = "origin",
-             labour: dict[str, Any] | None = None,
-             labour_growth: float = 0.0, migration: dict[str, float] | None = None,
+             regional_labour: dict[str, Any] | None = None, labour_growth: float = 0.0,
+             migration: dict[str, float] | None = None,
              **fields: Any) -> Any:
         """A :class:`~growthplan.Plan` over the region–sector pairs with its :class:`Regions`.
 
         Parameters
         ----------
         years : range or list of int
-        corridors, transport_sector, transport_paid_by, labour, labour_growth, migration
+        corridors, transport_sector, transport_paid_by, labour_growth, migration
             The fields of :class:`Regions`.
+        regional_labour : dict, optional
+            :class:`Regions`' ``labour`` (each region's own supply); the plan's
+            ``labour`` stays a national condition alongside.
         **fields
             Further fields of the plan (targets name pairs as ``"north/tools"``).
 
@@ -281,7 +284,7 @@ class MultiRegionalEconomy(Model):
 
         regions = Regions(regions=self.regions, sectors=self.sectors, corridors=list(corridors),
                           transport_sector=transport_sector,
-                          transport_paid_by=transport_paid_by, labour=labour,
+                          transport_paid_by=transport_paid_by, labour=regional_labour,
                           labour_growth=labour_growth, migration=migration)
         return Plan(economy=self.economy, years=years, regions=regions, **fields)
 
