@@ -361,6 +361,11 @@ class Plan(Model):
     techniques : list of Technique, optional
         Alternative techniques of sectors (and phase-outs of their base
         techniques); see :mod:`growthplan.model.technique`.
+    regions : Regions, optional
+        Several regions in one plan: the economy's sectors are region–sector
+        pairs (a MultiRegionalEconomy's economy), with shipments between
+        regions, transport costs and regional labour; see
+        :mod:`growthplan.model.regions`.
     first_year_within : float, optional
         Hold the first plan year's output of every sector at least at
         ``(1 − share)`` times its base-year output (the economy's

@@ -401,8 +401,10 @@ class Corridor(Model):
 
     Parameters
     ----------
-    origin, destination : str
-        Regions (different).
+    origin : str
+        The region the goods leave.
+    destination : str
+        The region they arrive in (another region).
     goods : list of str, optional
         Commodities that may be shipped (default: every sector).
     transport : float or dict of str to float, default 0.0
@@ -412,7 +414,7 @@ class Corridor(Model):
         Most units of each good shipped per year (one number for every good,
         or per good); none: no limit.
     both_ways : bool, default False
-        Also ship from ``destination`` to ``origin`` on the same terms.
+        Also ship from the destination to the origin on the same terms.
     """
 
     origin: str
@@ -469,7 +471,8 @@ class Regions(Model):
         The commodity that carries shipments (needed when a corridor has a
         transport cost).
     transport_paid_by : {"origin", "destination"}, default "origin"
-        Whose transport sector carries a shipment.
+        Whose transport sector carries a shipment: the shipping region's or
+        the receiving region's.
     labour : dict of str to number, list, dict or Series, optional
         Labour available in each region per year (person-years of the
         economy's first labour kind): a number (grown at ``labour_growth``) or
