@@ -1,3 +1,4 @@
 """Steady-state analysis without a plan: balanced growth and the Leontief
 inverse (:mod:`.steady`), the von Neumann expanding economy (:mod:`.expanding`)
-and the choice of techniques (:mod:`.choice`)."""
+the choice of techniques (:mod:`.choice`) and the figures of several regions
+(:mod:`.regions`)."""

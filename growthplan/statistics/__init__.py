@@ -7,6 +7,7 @@ and coefficient tables (CSV or Excel) and their aggregation,
 symmetric ones, :mod:`~growthplan.statistics.balancing` updates a matrix to
 new totals (RAS, GRAS), :mod:`~growthplan.statistics.capital_flows` estimates
 capital coefficients, :mod:`~growthplan.statistics.employment` labour by kind,
+:mod:`~growthplan.statistics.regions` interregional tables and trade shares,
 and :mod:`~growthplan.statistics.build` the economy spec that turns them into
 an economy.
 
@@ -29,6 +30,7 @@ if TYPE_CHECKING:
     )
     from .employment import Employment, employment_table, labour_coefficients
     from .layouts import LAYOUT_VERSION, LocatedTable, TableLayout, read_table
+    from .regions import interregional_economy, read_interregional, read_trade_shares
     from .supply_use import MODELS, SupplyUseTable, SymmetricTable
     from .tables import (
         TransactionsTable,
@@ -54,6 +56,8 @@ _LAZY = {
     "labour_coefficients": "employment",
     "LAYOUT_VERSION": "layouts", "LocatedTable": "layouts", "TableLayout": "layouts",
     "read_table": "layouts",
+    "interregional_economy": "regions", "read_interregional": "regions",
+    "read_trade_shares": "regions",
 }
 
 __all__ = [
@@ -75,12 +79,15 @@ __all__ = [
     "economy_from_coefficients",
     "economy_spec_schema",
     "employment_table",
+    "interregional_economy",
     "gras",
     "investment_matrix",
     "labour_coefficients",
     "ras",
     "read_frame",
+    "read_interregional",
     "read_table",
+    "read_trade_shares",
     "read_transactions",
     "stocks_from_investment",
     "write_coefficient_tables",
