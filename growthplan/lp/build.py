@@ -95,6 +95,8 @@ def columns(d: PlanData) -> list[tuple[str, tuple[int, ...], tuple[tuple[Any, ..
     # several regions: one column per shipment (origin, destination, good) and year
     if d.regions is not None and d.regions.K:
         out.append(("shipments", (d.T, d.regions.K), (years, d.regions.labels)))
+    if d.regions is not None and d.regions.consumption_floor is not None and d.has_consumption:
+        out.append(("regional_consumption", (d.T, d.regions.R), (years, tuple(d.regions.regions))))
     return out
 
 

@@ -37,6 +37,9 @@ class RegionData:
     labour: np.ndarray | None   # R × years: each region's own supply (None: no regional rows)
     migration: np.ndarray | None  # R: ceiling on net inflow a year (None: no migration)
     paid_by: str = "origin"
+    consumption_floor: np.ndarray | None = None  # R × years; None: one national level
+    basket: np.ndarray | None = None   # pairs × R: each region's part of the basket
+    weight: np.ndarray | None = None   # R: each region's share of the basket's value
 
     @property
     def R(self) -> int:  # noqa: N802 - the trade's symbol
@@ -99,10 +102,29 @@ def lower_regions(plan: Plan) -> RegionData | None:
                                   reg.labour_growth) for r in regions])
         if reg.migration is not None:
             migration = np.array([float(reg.migration.get(r, 0.0)) for r in regions])
-    return RegionData(regions=regions, sectors=sectors, origin=origin,
-                      destination=destination, good=good, transport=tau, payer=payer,
-                      ceiling=ceiling, labour=labour, migration=migration,
-                      paid_by=reg.transport_paid_by)
+    out = RegionData(regions=regions, sectors=sectors, origin=origin,
+                     destination=destination, good=good, transport=tau, payer=payer,
+                     ceiling=ceiling, labour=labour, migration=migration,
+                     paid_by=reg.transport_paid_by)
+    if reg.consumption_floors is not None:
+        from .data import basket
+
+        h = basket(plan)
+        R = len(regions)
+        parts = np.zeros((R * n, R))
+        parts[np.arange(R * n), np.repeat(np.arange(R), n)] = h
+        value = plan.economy.prices @ parts
+        out.basket = parts
+        out.weight = value / value.sum()
+        out.consumption_floor = np.array([
+            series(reg.consumption_floors.get(r, 0.0), list(plan.years),
+                   f"regions.consumption_floors.{r}", reg.floor_growth) for r in regions])
+    return out
+
+
+def regional_use(d: Any, levels: np.ndarray) -> np.ndarray:
+    """Consumption by pair, years × pairs, from the regions' consumption levels (years × R)."""
+    return levels @ d.regions.basket.T
 
 
 def shipments_in_balance(d: Any, shipments: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -262,6 +262,7 @@ class MultiRegionalEconomy(Model):
              transport_paid_by: Literal["origin", "destination"] = "origin",
              regional_labour: dict[str, Any] | None = None, labour_growth: float = 0.0,
              migration: dict[str, float] | None = None,
+             consumption_floors: dict[str, Any] | None = None, floor_growth: float = 0.0,
              **fields: Any) -> Any:
         """A :class:`~growthplan.Plan` over the region–sector pairs with its :class:`Regions`.
 
@@ -269,6 +270,7 @@ class MultiRegionalEconomy(Model):
         ----------
         years : range or list of int
         corridors, transport_sector, transport_paid_by, labour_growth, migration
+        consumption_floors, floor_growth
             The fields of :class:`Regions`.
         regional_labour : dict, optional
             :class:`Regions`' ``labour`` (each region's own supply); the plan's
@@ -285,7 +287,8 @@ class MultiRegionalEconomy(Model):
         regions = Regions(regions=self.regions, sectors=self.sectors, corridors=list(corridors),
                           transport_sector=transport_sector,
                           transport_paid_by=transport_paid_by, labour=regional_labour,
-                          labour_growth=labour_growth, migration=migration)
+                          labour_growth=labour_growth, migration=migration,
+                          consumption_floors=consumption_floors, floor_growth=floor_growth)
         return Plan(economy=self.economy, years=years, regions=regions, **fields)
 
     # -- steady-state figures (analysis.regions) ---------------------------------------------
@@ -479,6 +482,15 @@ class Regions(Model):
         a series; every region named once.
     labour_growth : float, default 0.0
         Yearly growth of the regional supplies given as numbers.
+    consumption_floors : dict of str to number, list, dict or Series, optional
+        Least consumption level of each region per year (a number grown at
+        floor_growth, or a series), in units of the plan's consumption level.
+        When given, each region has its own consumption level (its part of the
+        basket times its level) and the plan's level is their average weighted
+        by each region's share of the basket's value; the plan needs a
+        consumption part. Regions not named have no floor.
+    floor_growth : float, default 0.0
+        Yearly growth of the regional floors given as numbers.
     migration : dict of str to float, optional
         Most person-years by which each region's labour may exceed its own
         supply by people moving in from the others (a ceiling on net inflow
@@ -494,6 +506,8 @@ class Regions(Model):
     labour: dict[str, Any] | None = None
     labour_growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
     migration: dict[str, float] | None = None
+    consumption_floors: dict[str, Any] | None = None
+    floor_growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
 
     @field_validator("regions")
     @classmethod
@@ -539,7 +553,8 @@ class Regions(Model):
         if self.transport_sector is not None and self.transport_sector not in self.sectors:
             raise Rule(f"name a sector ({', '.join(self.sectors)})", self.transport_sector,
                        field="transport_sector")
-        for key, given in (("labour", self.labour), ("migration", self.migration)):
+        for key, given in (("labour", self.labour), ("migration", self.migration),
+                           ("consumption_floors", self.consumption_floors)):
             unknown = [r for r in (given or {}) if r not in known]
             if unknown:
                 raise Rule(f"name regions of the plan ({', '.join(known)})", unknown[0],
@@ -581,3 +596,9 @@ def check_regions(plan: Any) -> None:
                        field="regions.labour")
         for r, v in reg.labour.items():
             series(v, list(plan.years), f"regions.labour.{r}", reg.labour_growth)
+    if reg.consumption_floors is not None:
+        if plan.consumption is None:
+            raise Rule("come with a consumption part in the plan", "regions.consumption_floors",
+                       field="regions.consumption_floors")
+        for r, v in reg.consumption_floors.items():
+            series(v, list(plan.years), f"regions.consumption_floors.{r}", reg.floor_growth)

@@ -39,9 +39,11 @@ def schedules(d: PlanData, lp: LinearProgram, x: np.ndarray) -> Schedules:
     imports = lp.cols["imports"].take(x) if "imports" in lp.cols else None
     exports = lp.cols["exports"].take(x) if "exports" in lp.cols else None
     shipments = lp.cols["shipments"].take(x) if "shipments" in lp.cols else None
+    own = lp.cols["regional_consumption"].take(x) if "regional_consumption" in lp.cols \
+        else None
     return Schedules(output=output, starts=starts, consumption=kappa, level=level,
                      imports=imports, exports=exports, capacity=cap, deliveries=deliv,
-                     shipments=shipments)
+                     shipments=shipments, regional_consumption=own)
 
 
 def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
@@ -93,7 +95,12 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     else:
         out["labour"] = pd.DataFrame(index=idx)
     if kappa is not None:
-        cons = pd.DataFrame(kappa[:, None] * d.basket[None, :], index=idx, columns=cols)
+        by_pair = kappa[:, None] * d.basket[None, :]
+        if s.regional_consumption is not None:  # each region at its own level
+            from ..lp.regional import regional_use
+
+            by_pair = regional_use(d, s.regional_consumption)
+        cons = pd.DataFrame(by_pair, index=idx, columns=cols)
         cons.insert(0, "level", kappa)
         out["consumption"] = cons
     else:

@@ -163,6 +163,30 @@ def test_independent_lp_of_two_regions_two_sectors() -> None:
     np.testing.assert_allclose(res.consumption["level"].to_numpy(), kappa, rtol=1e-6, atol=1e-6)
 
 
+def test_regional_consumption_floors() -> None:
+    free = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0},
+                 consumption_floors={})
+    base = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0})
+    # without floors each region's level is free: the plan can do at least as well as with
+    # one level for all (equal levels are one of its choices)
+    a, b = assert_optimal(free.solve()), assert_optimal(base.solve())
+    assert a.objective >= b.objective - 1e-9 * abs(b.objective)
+    own = a.lp.cols["regional_consumption"].take(a.raw_solution)
+    floor = float(own.min(axis=1).max()) * 1.5 + 1.0
+    lifted = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0},
+                   consumption_floors={"south": floor})
+    res = assert_optimal(lifted.solve())
+    levels = res.lp.cols["regional_consumption"].take(res.raw_solution)
+    assert np.all(levels[:, 1] >= floor * (1 - 1e-9))
+    weight = lifted.lowered().regions.weight
+    np.testing.assert_allclose(res.consumption["level"].to_numpy(), levels @ weight,
+                               rtol=1e-9)
+    assert res.objective <= a.objective * (1 + 1e-9)  # a floor can only cost
+    with pytest.raises(gp.InvalidInput, match="regions.consumption_floors"):
+        regional_economy(["north", "south"], 3, seed=7).plan(
+            YEARS, consumption_floors={"south": 1.0})
+
+
 def test_size_estimate_covers_regions() -> None:
     plan = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0},
                  migration={"north": 5.0})
@@ -173,7 +197,9 @@ def test_size_estimate_covers_regions() -> None:
                                       ceiling={"s1": 2.0})],
         transport_sector="haul", transport_paid_by="destination",
         regional_labour={"a": 100.0, "b": 100.0, "c": 80.0})
-    for p in (plan, ceiled):
+    floors = _pair(0.1, regional_labour={"north": 150.0, "south": 90.0},
+                   consumption_floors={"north": 2.0})
+    for p in (plan, ceiled, floors):
         est = p.estimate_size()
         lp = build(p.lowered())
         assert (est["rows"], est["columns"], est["nonzeros"]) == (*lp.shape, lp.nnz)

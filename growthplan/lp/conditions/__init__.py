@@ -67,6 +67,7 @@ class Schedules:
     capacity: np.ndarray        # as reported: (T + 1) × sectors
     deliveries: np.ndarray      # as reported: years × commodities
     shipments: np.ndarray | None = None  # years × shipments (several regions)
+    regional_consumption: np.ndarray | None = None  # years × regions (own levels)
     # recomputed independently by the audit (vintage by vintage)
     capacity_check: np.ndarray | None = None
     deliveries_check: np.ndarray | None = None
@@ -156,6 +157,7 @@ def _registry() -> list[Condition]:
     from .consumption import ConsumptionFall, ConsumptionFloor
     from .labour import Labour
     from .level import TerminalLevel
+    from .regional_consumption import RegionalConsumptionFloor, RegionalConsumptionLevel
     from .regional_labour import RegionalLabour
     from .shipments import ShipmentCeilings
     from .targets import Targets
@@ -167,7 +169,8 @@ def _registry() -> list[Condition]:
             ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds(),
             FirstYear(), Techniques(),
             # several regions
-            RegionalLabour(), ShipmentCeilings()]
+            RegionalLabour(), ShipmentCeilings(), RegionalConsumptionLevel(),
+            RegionalConsumptionFloor()]
 
 
 CONDITIONS: list[Condition] = _registry()

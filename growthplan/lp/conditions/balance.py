@@ -54,7 +54,10 @@ class Balance(Condition):
         else:
             out = sparse.kron(eye_t, sparse.csr_array(q - d.a), format="csr")
         coeffs: dict[str, sparse.sparray] = {"output": out, "starts": -ctx.deliveries}
-        if "consumption" in ctx.cols:
+        if "regional_consumption" in ctx.cols:  # each region's level and part of the basket
+            coeffs["regional_consumption"] = sparse.kron(
+                eye_t, sparse.csr_array(-d.regions.basket), format="csr")
+        elif "consumption" in ctx.cols:
             coeffs["consumption"] = sparse.kron(eye_t, sparse.csr_array(-d.basket[:, None]),
                                                 format="csr")
         for col, side, sign in (("imports", d.imports, 1.0), ("exports", d.exports, -1.0)):
@@ -74,6 +77,10 @@ class Balance(Condition):
         assert deliv is not None
         intermediate = d.intermediate(s.output)
         cons = kappa[:, None] * d.basket[None, :]
+        if s.regional_consumption is not None:
+            from ..regional import regional_use
+
+            cons = regional_use(d, s.regional_consumption)
         use = intermediate + deliv + cons + d.demand
         supply = d.supplied(s.output).copy()
         traded = np.zeros_like(supply)
