@@ -177,6 +177,10 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     else:
         out["shadow_exchange_rate"] = pd.Series(np.full(T, np.nan), index=idx,
                                                 name="shadow_exchange_rate")
+    # several regions: accounts, gap, flows and prices by region (empty for one region)
+    from .regions import regional_frames
+
+    out.update(regional_frames(d, s, prices))
     return out
 
 
