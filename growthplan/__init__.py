@@ -39,7 +39,14 @@ if TYPE_CHECKING:
     from .analysis.steady import BalancedGrowth
     from .backends import HighsBackend, PulpBackend, Status
     from .backends.highs import SlowMethodWarning
-    from .demo import DEMO_DIR, copy_demo, demo_economy, demo_plan
+    from .demo import (
+        DEMO_DIR,
+        copy_demo,
+        demo_economy,
+        demo_plan,
+        demo_regional_plan,
+        demo_regions,
+    )
     from .errors import (
         EndEffectsWarning,
         GrowthplanError,
@@ -116,6 +123,8 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "DEMO_DIR": ("demo", "DEMO_DIR"),
     "demo_economy": ("demo", "demo_economy"),
     "demo_plan": ("demo", "demo_plan"),
+    "demo_regional_plan": ("demo", "demo_regional_plan"),
+    "demo_regions": ("demo", "demo_regions"),
     "Diagnosis": ("results", "Diagnosis"),
     "Economy": ("model.economy", "Economy"),
     "economy_spec_schema": ("statistics.build", "economy_spec_schema"),
@@ -212,6 +221,8 @@ __all__ = [
     "DEMO_DIR",
     "demo_economy",
     "demo_plan",
+    "demo_regional_plan",
+    "demo_regions",
     "Diagnosis",
     "Economy",
     "economy_spec_schema",

@@ -54,3 +54,16 @@ def test_readme_techniques_example_runs():
         exec(compile(block, "README.md", "exec"), namespace)  # noqa: S102 - our own README
     assert namespace["result"].ok
     assert namespace["result"].technique_years.loc["goods:saving", "first_start"] == 2032
+
+
+def test_readme_regions_example_runs():
+    """The "Several regions" example: the demo's three regions solve and ship goods."""
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    block = re.search(r"## Several regions\s.*?```python\n(.*?)```", text, re.S).group(1)
+    namespace: dict = {}
+    exec(compile(block, "README.md", "exec"), namespace)  # noqa: S102 - our own README
+    result = namespace["result"]
+    assert result.ok
+    assert result.flows["amount"].sum() > 0
+    gap = result.regional_gap["highest_to_lowest"]
+    assert gap.iloc[-1] < gap.iloc[0]

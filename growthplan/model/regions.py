@@ -305,6 +305,12 @@ class MultiRegionalEconomy(Model):
 
         return an.output_multipliers(self)
 
+    def multipliers(self) -> pd.DataFrame:
+        """Per pair: output multiplier, its intraregional part and its spillover elsewhere."""
+        from ..analysis import regions as an
+
+        return an.multiplier_table(self)
+
     def spillovers(self) -> pd.DataFrame:
         """Output in each region (rows) per unit of final demand for each pair (columns)."""
         from ..analysis import regions as an
