@@ -127,6 +127,8 @@ def demo_regions() -> MultiRegionalEconomy:
     them. Grain is counted in thousand tonnes, machinery in million arvens
     at 2026 prices.
     """
+    import numpy as np
+
     from .model.economy import CapitalSpec, Sector
 
     units = {"grain": "thousand tonnes", "machinery": "million arvens",
@@ -146,9 +148,9 @@ def demo_regions() -> MultiRegionalEconomy:
     for name, (lab, cap, basket) in regions.items():
         econs[name] = Economy(
             sectors=[Sector(name=s, unit=units[s], price=prices[s]) for s in REGION_SECTORS],
-            input_coefficients=a, capital_coefficients=b, labour_coefficients=[lab],
-            labour_units=["thousand person-years"], value_unit="million arvens at 2026 prices",
-            consumption_basket=basket,
+            input_coefficients=np.array(a), capital_coefficients=np.array(b),
+            labour_coefficients=np.array([lab]), labour_units=["thousand person-years"],
+            value_unit="million arvens at 2026 prices", consumption_basket=np.array(basket),
             capital={s: CapitalSpec(initial_capacity=c, mean_service_life=life, lead_time=lead)
                      for s, c, life, lead in zip(REGION_SECTORS, cap, (25.0, 15.0, 30.0),
                                                  (1, 2, 2), strict=True)})
