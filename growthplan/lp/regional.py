@@ -34,6 +34,7 @@ class RegionData:
     transport: np.ndarray       # K: transport units per unit shipped
     payer: np.ndarray           # K: pair index of the transport sector paid (-1: none)
     ceiling: np.ndarray         # K: most units a year (inf: none)
+    share: np.ndarray           # K: fixed share of the destination's use (NaN: chosen)
     labour: np.ndarray | None   # R × years: each region's own supply (None: no regional rows)
     migration: np.ndarray | None  # R: ceiling on net inflow a year (None: no migration)
     paid_by: str = "origin"
@@ -80,15 +81,16 @@ def lower_regions(plan: Plan) -> RegionData | None:
         return None
     regions, sectors = list(reg.regions), list(reg.sectors)
     n = len(sectors)
-    ship: list[tuple[int, int, int, float, float]] = []
+    ship: list[tuple[int, int, int, float, float, float]] = []
     for o_name, d_name, c in reg.links():
         o, d = regions.index(o_name), regions.index(d_name)
         for g_name in (c.goods if c.goods is not None else sectors):
             ship.append((o, d, sectors.index(g_name), c.amount(c.transport, g_name, 0.0),
-                         c.amount(c.ceiling, g_name, np.inf)))
-    arr = np.array(ship, dtype=float).reshape(-1, 5)
+                         c.amount(c.ceiling, g_name, np.inf),
+                         c.amount(c.shares, g_name, np.nan)))
+    arr = np.array(ship, dtype=float).reshape(-1, 6)
     origin, destination, good = (arr[:, i].astype(int) for i in range(3))
-    tau, ceiling = arr[:, 3], arr[:, 4]
+    tau, ceiling, share = arr[:, 3], arr[:, 4], arr[:, 5]
     if reg.transport_sector is not None:
         t_idx = sectors.index(reg.transport_sector)
         paying = origin if reg.transport_paid_by == "origin" else destination
@@ -104,7 +106,7 @@ def lower_regions(plan: Plan) -> RegionData | None:
             migration = np.array([float(reg.migration.get(r, 0.0)) for r in regions])
     out = RegionData(regions=regions, sectors=sectors, origin=origin,
                      destination=destination, good=good, transport=tau, payer=payer,
-                     ceiling=ceiling, labour=labour, migration=migration,
+                     ceiling=ceiling, share=share, labour=labour, migration=migration,
                      paid_by=reg.transport_paid_by)
     if reg.consumption_floors is not None:
         from .data import basket
@@ -131,3 +133,20 @@ def shipments_in_balance(d: Any, shipments: np.ndarray) -> tuple[np.ndarray, np.
     """Net supply from shipments and its scale, years × pairs, from a shipment schedule."""
     s = d.regions.matrix()
     return shipments @ s.T, np.abs(shipments) @ np.abs(s).T
+
+
+def both_ways(coeffs: dict[str, Any], rhs: np.ndarray) -> tuple[dict[str, Any], np.ndarray]:
+    """An equality ``C v = rhs`` (rows ``(t, k)``) as two one-sided rows per ``(t, k)``.
+
+    Rows come out as ``(t, side, k)``: ``C v ≤ rhs`` then ``−C v ≤ −rhs``, so
+    every row has a finite upper bound only and a dual of one sign, as the
+    optimality certificate expects of every row.
+    """
+    from scipy import sparse
+
+    T, K = rhs.shape
+    old = (np.arange(2)[None, :, None] * T * K + np.arange(T)[:, None, None] * K
+           + np.arange(K)[None, None, :]).ravel()  # new row (t, side, k) ← old (side, t, k)
+    out = {name: sparse.csr_array(sparse.vstack([c, -c], format="csr")[old])
+           for name, c in coeffs.items()}
+    return out, np.stack([rhs, -rhs], axis=1).reshape(T, 2 * K)

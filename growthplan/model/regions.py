@@ -424,6 +424,11 @@ class Corridor(Model):
         or per good); none: no limit.
     both_ways : bool, default False
         Also ship from the destination to the origin on the same terms.
+    shares : float or dict of str to float, optional
+        Fixed trade shares (Chenery–Moses): the share of the destination's
+        use of each good (intermediate, capital goods, consumption and other
+        final demand) that comes along this corridor, in [0, 1], one number for
+        every good or per good; none: the plan chooses the amount.
     """
 
     origin: str
@@ -432,6 +437,7 @@ class Corridor(Model):
     transport: float | dict[str, float] = 0.0
     ceiling: float | dict[str, float] | None = None
     both_ways: bool = False
+    shares: float | dict[str, float] | None = None
 
     @field_validator("transport", "ceiling")
     @classmethod
@@ -439,6 +445,14 @@ class Corridor(Model):
         values = [] if v is None else (list(v.values()) if isinstance(v, dict) else [v])
         if any(isinstance(a, bool) or not (np.isfinite(a) and a >= 0) for a in values):
             raise Rule("be finite amounts >= 0", v)
+        return v
+
+    @field_validator("shares")
+    @classmethod
+    def _shares(cls, v: Any) -> Any:
+        values = [] if v is None else (list(v.values()) if isinstance(v, dict) else [v])
+        if any(isinstance(a, bool) or not (np.isfinite(a) and 0 <= a <= 1) for a in values):
+            raise Rule("be shares in [0, 1]", v)
         return v
 
     @model_validator(mode="after")
@@ -543,7 +557,8 @@ class Regions(Model):
                                getattr(c, end), field=f"corridors.{k}.{end}")
             for g in [*(c.goods or []), *(c.transport if isinstance(c.transport, dict)
                                           else {}),
-                      *(c.ceiling if isinstance(c.ceiling, dict) else {})]:
+                      *(c.ceiling if isinstance(c.ceiling, dict) else {}),
+                      *(c.shares if isinstance(c.shares, dict) else {})]:
                 if g not in self.sectors:
                     raise Rule(f"name sectors ({', '.join(self.sectors)})", g,
                                field=f"corridors.{k}.goods")
@@ -571,6 +586,16 @@ class Regions(Model):
                 raise Rule("give every region a labour supply (a region without labour "
                            "cannot produce)", f"none for {', '.join(missing)}",
                            field="labour")
+        into: dict[tuple[str, str], float] = {}
+        for _origin, dst, c in self.links():
+            for g in (c.goods if c.goods is not None else self.sectors):
+                share = c.amount(c.shares, g, 0.0)
+                into[(dst, g)] = into.get((dst, g), 0.0) + share
+        over = [k for k, v in into.items() if v > 1 + 1e-12]
+        if over:
+            raise Rule("give trade shares into each region that sum to at most 1 for each "
+                       f"good (into {over[0][0]}, {over[0][1]}: {into[over[0]]:g})",
+                       into[over[0]], field="corridors")
         if self.migration is not None and self.labour is None:
             raise Rule("come with regional labour supplies", self.migration,
                        field="migration")

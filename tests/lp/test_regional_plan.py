@@ -187,6 +187,35 @@ def test_regional_consumption_floors() -> None:
             YEARS, consumption_floors={"south": 1.0})
 
 
+def test_fixed_trade_shares_hold_in_the_plan() -> None:
+    mre = regional_economy(["north", "south"], 3, seed=7)
+    plan = mre.plan(YEARS, corridors=[
+        gp.Corridor(origin="north", destination="south", shares={"s0": 0.3, "s1": 0.2},
+                    transport=0.1),
+        gp.Corridor(origin="south", destination="north", goods=["s0"])],
+        transport_sector="haul", regional_labour={"north": 150.0, "south": 90.0},
+        consumption=gp.Consumption(floor=1.0), terminal=gp.TerminalGrowth(rate=0.02),
+        final_demand={"south/s0": 5.0}, objective=gp.objectives.DiscountedConsumption(rate=0.03))
+    res = assert_optimal(plan.solve())
+    d = plan.lowered()
+    y = res.lp.cols["shipments"].take(res.raw_solution)
+    # the south's use of s0, recomputed here from the published tables (Chenery–Moses:
+    # the share of a region's use of a good that comes from another region is fixed)
+    use = (res.output.to_numpy() @ d.a.T + res.capital_deliveries.to_numpy()
+           + res.consumption.drop(columns="level").to_numpy() + d.demand)
+    s0 = d.names.index("south/s0")
+    np.testing.assert_allclose(y[:, 0], 0.3 * use[:, s0], rtol=1e-7, atol=1e-7)
+    est, lp = plan.estimate_size(), build(d)
+    assert (est["rows"], est["columns"], est["nonzeros"]) == (*lp.shape, lp.nnz)
+    three = regional_economy(["a", "b", "c"], 3, seed=7)
+    with pytest.raises(gp.InvalidInput, match="sum to at most 1") as err:
+        three.plan(YEARS, corridors=[gp.Corridor(origin="a", destination="c", shares=0.7),
+                                     gp.Corridor(origin="b", destination="c", shares=0.5)])
+    assert err.value.field == "corridors"
+    with pytest.raises(gp.InvalidInput, match="shares"):
+        gp.Corridor(origin="a", destination="c", shares=1.5)
+
+
 def test_size_estimate_covers_regions() -> None:
     plan = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0},
                  migration={"north": 5.0})

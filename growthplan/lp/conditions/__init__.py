@@ -164,13 +164,14 @@ def _registry() -> list[Condition]:
     from .techniques import Techniques
     from .terminal import Terminal
     from .trade import ForeignExchange, TradeBounds
+    from .trade_shares import FixedTradeShares
 
     return [Balance(), Capacity(), Labour(), ForeignExchange(), ConsumptionFloor(),
             ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds(),
             FirstYear(), Techniques(),
             # several regions
             RegionalLabour(), ShipmentCeilings(), RegionalConsumptionLevel(),
-            RegionalConsumptionFloor()]
+            RegionalConsumptionFloor(), FixedTradeShares()]
 
 
 CONDITIONS: list[Condition] = _registry()

@@ -4,8 +4,8 @@ With regional consumption floors each region ``r`` consumes its part of the
 basket ``h^r`` times its own level ``κ^r_t``; the plan's level is
 ``κ_t = Σ_r w_r κ^r_t`` with ``w_r`` the region's share of the basket's value
 at base-year prices (equal levels everywhere give the plan's level). The
-link is an identity (hard in the diagnosis); the floors ``κ^r_t ≥ F^r_t``
-are elastic.
+link is an identity, written as two one-sided rows (hard in the diagnosis);
+the floors ``κ^r_t ≥ F^r_t`` are elastic.
 """
 
 from __future__ import annotations
@@ -35,15 +35,19 @@ class RegionalConsumptionLevel(Condition):
         return _regional(d)
 
     def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
-        return d.T, d.T * (1 + int(np.count_nonzero(d.regions.weight)))
+        return 2 * d.T, 2 * d.T * (1 + int(np.count_nonzero(d.regions.weight)))
 
     def build(self, ctx: Context) -> RowBlock:
         d = ctx.data
         eye = sparse.eye_array(d.T, format="csr")
         w = sparse.csr_array(-d.regions.weight[None, :])
-        return RowBlock(self.name, (d.T,), (tuple(d.years),),
-                        {"consumption": eye,
-                         "regional_consumption": sparse.kron(eye, w, format="csr")}, 0.0, 0.0)
+        from ..regional import both_ways
+
+        coeffs, upper = both_ways({"consumption": eye,
+                                   "regional_consumption": sparse.kron(eye, w, format="csr")},
+                                  np.zeros((d.T, 1)))
+        return RowBlock(self.name, (d.T, 2), (tuple(d.years), ("at most", "at least")),
+                        coeffs, -np.inf, upper)
 
     def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         assert s.consumption is not None and s.regional_consumption is not None
