@@ -74,7 +74,7 @@ if TYPE_CHECKING:
         TerminalGrowth,
         Trade,
     )
-    from .model.regions import Corridor, MultiRegionalEconomy, Regions
+    from .model.regions import Corridor, MultiRegionalEconomy, NationalTarget, Regions
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
@@ -139,6 +139,7 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "LabourSupply": ("model.plan", "LabourSupply"),
     "LinearProgram": ("lp.program", "LinearProgram"),
     "MultiRegionalEconomy": ("model.regions", "MultiRegionalEconomy"),
+    "NationalTarget": ("model.regions", "NationalTarget"),
     "load_plan_file": ("io.planfile", "load_plan_file"),
     "load_uncertainty": ("io.planfile", "load_uncertainty"),
     "LogNormal": ("scenarios.uncertainty", "LogNormal"),
@@ -237,6 +238,7 @@ __all__ = [
     "LabourSupply",
     "LinearProgram",
     "MultiRegionalEconomy",
+    "NationalTarget",
     "load_plan_file",
     "load_uncertainty",
     "LogNormal",

@@ -11,7 +11,7 @@ positive (complementary slackness of the shipment column).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -41,6 +41,8 @@ class RegionData:
     consumption_floor: np.ndarray | None = None  # R × years; None: one national level
     basket: np.ndarray | None = None   # pairs × R: each region's part of the basket
     weight: np.ndarray | None = None   # R: each region's share of the basket's value
+    # national targets: (quantity, good index, plan-year index, required, year, good)
+    national: list[tuple[str, int, int, float, int, str]] = field(default_factory=list)
 
     @property
     def R(self) -> int:  # noqa: N802 - the trade's symbol
@@ -108,6 +110,8 @@ def lower_regions(plan: Plan) -> RegionData | None:
                      destination=destination, good=good, transport=tau, payer=payer,
                      ceiling=ceiling, share=share, labour=labour, migration=migration,
                      paid_by=reg.transport_paid_by)
+    out.national = [(tg.quantity, sectors.index(tg.sector), tg.year - plan.years[0],
+                     tg.required, tg.year, tg.sector) for tg in reg.national_targets]
     if reg.consumption_floors is not None:
         from .data import basket
 

@@ -36,7 +36,8 @@ from .validation import Model, Rule
 if TYPE_CHECKING:
     import pandas as pd
 
-__all__ = ["MultiRegionalEconomy", "Corridor", "Regions", "pair_names", "SEPARATOR"]
+__all__ = ["MultiRegionalEconomy", "Corridor", "Regions", "NationalTarget", "pair_names",
+           "SEPARATOR"]
 
 SEPARATOR = "/"
 
@@ -263,14 +264,14 @@ class MultiRegionalEconomy(Model):
              regional_labour: dict[str, Any] | None = None, labour_growth: float = 0.0,
              migration: dict[str, float] | None = None,
              consumption_floors: dict[str, Any] | None = None, floor_growth: float = 0.0,
-             **fields: Any) -> Any:
+             national_targets: Any = (), **fields: Any) -> Any:
         """A :class:`~growthplan.Plan` over the region–sector pairs with its :class:`Regions`.
 
         Parameters
         ----------
         years : range or list of int
         corridors, transport_sector, transport_paid_by, labour_growth, migration
-        consumption_floors, floor_growth
+        consumption_floors, floor_growth, national_targets
             The fields of :class:`Regions`.
         regional_labour : dict, optional
             :class:`Regions`' ``labour`` (each region's own supply); the plan's
@@ -288,7 +289,8 @@ class MultiRegionalEconomy(Model):
                           transport_sector=transport_sector,
                           transport_paid_by=transport_paid_by, labour=regional_labour,
                           labour_growth=labour_growth, migration=migration,
-                          consumption_floors=consumption_floors, floor_growth=floor_growth)
+                          consumption_floors=consumption_floors, floor_growth=floor_growth,
+                          national_targets=list(national_targets))
         return Plan(economy=self.economy, years=years, regions=regions, **fields)
 
     # -- steady-state figures (analysis.regions) ---------------------------------------------
@@ -472,6 +474,45 @@ class Corridor(Model):
         return float(value)
 
 
+class NationalTarget(Model):
+    """An at-least condition on a good's output or capacity summed over every region.
+
+    Parameters
+    ----------
+    sector : str
+        The commodity (a sector of the regions, not a region–sector pair).
+    year : int
+        The calendar year (a capacity target may name the year after the plan).
+    output_at_least : float, optional
+        Least output of the good in all regions together that year.
+    capacity_at_least : float, optional
+        Least capacity in service in all regions together that year.
+    """
+
+    sector: str
+    year: int
+    output_at_least: float | None = Field(default=None, ge=0, allow_inf_nan=False)
+    capacity_at_least: float | None = Field(default=None, ge=0, allow_inf_nan=False)
+
+    @model_validator(mode="after")
+    def _one(self) -> NationalTarget:
+        if (self.output_at_least is None) == (self.capacity_at_least is None):
+            raise Rule("give output_at_least or capacity_at_least, exactly one", None,
+                       field="output_at_least")
+        return self
+
+    @property
+    def quantity(self) -> str:
+        """``"output"`` or ``"capacity"``."""
+        return "output" if self.output_at_least is not None else "capacity"
+
+    @property
+    def required(self) -> float:
+        """The least amount."""
+        v = self.output_at_least if self.output_at_least is not None else self.capacity_at_least
+        return float(v or 0.0)
+
+
 class Regions(Model):
     """The regional side of a plan over region–sector pairs.
 
@@ -511,6 +552,9 @@ class Regions(Model):
         consumption part. Regions not named have no floor.
     floor_growth : float, default 0.0
         Yearly growth of the regional floors given as numbers.
+    national_targets : list of NationalTarget, optional
+        Targets on a good's output or capacity summed over the regions (the
+        plan's own targets name one region's sector).
     migration : dict of str to float, optional
         Most person-years by which each region's labour may exceed its own
         supply by people moving in from the others (a ceiling on net inflow
@@ -528,6 +572,7 @@ class Regions(Model):
     migration: dict[str, float] | None = None
     consumption_floors: dict[str, Any] | None = None
     floor_growth: float = Field(default=0.0, gt=-1, allow_inf_nan=False)
+    national_targets: list[NationalTarget] = Field(default_factory=list)
 
     @field_validator("regions")
     @classmethod
@@ -596,6 +641,10 @@ class Regions(Model):
             raise Rule("give trade shares into each region that sum to at most 1 for each "
                        f"good (into {over[0][0]}, {over[0][1]}: {into[over[0]]:g})",
                        into[over[0]], field="corridors")
+        for k, tg in enumerate(self.national_targets):
+            if tg.sector not in self.sectors:
+                raise Rule(f"name a sector of the regions ({', '.join(self.sectors)})",
+                           tg.sector, field=f"national_targets.{k}.sector")
         if self.migration is not None and self.labour is None:
             raise Rule("come with regional labour supplies", self.migration,
                        field="migration")
@@ -627,6 +676,12 @@ def check_regions(plan: Any) -> None:
                        field="regions.labour")
         for r, v in reg.labour.items():
             series(v, list(plan.years), f"regions.labour.{r}", reg.labour_growth)
+    first, last = plan.years[0], plan.years[-1]
+    for k, tg in enumerate(reg.national_targets):
+        limit = last + 1 if tg.quantity == "capacity" else last
+        if not first <= tg.year <= limit:
+            raise Rule(f"be a plan year {first}..{limit}", tg.year,
+                       field=f"regions.national_targets.{k}.year")
     if reg.consumption_floors is not None:
         if plan.consumption is None:
             raise Rule("come with a consumption part in the plan", "regions.consumption_floors",

@@ -216,6 +216,36 @@ def test_fixed_trade_shares_hold_in_the_plan() -> None:
         gp.Corridor(origin="a", destination="c", shares=1.5)
 
 
+def test_national_targets_sum_over_regions() -> None:
+    free = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0})
+    base = assert_optimal(free.solve())
+    total = base.output[["north/s1", "south/s1"]].sum(axis=1)
+    want = float(total.loc[2033]) * 1.3
+    cap = float(base.capacity[["north/s1", "south/s1"]].sum(axis=1).loc[2036]) * 1.2
+    plan = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0},
+                 national_targets=[gp.NationalTarget(sector="s1", year=2033,
+                                                     output_at_least=want),
+                                   gp.NationalTarget(sector="s1", year=2036,
+                                                     capacity_at_least=cap)])
+    res = assert_optimal(plan.solve())
+    assert res.output[["north/s1", "south/s1"]].sum(axis=1).loc[2033] >= want * (1 - 1e-9)
+    assert res.capacity[["north/s1", "south/s1"]].sum(axis=1).loc[2036] >= cap * (1 - 1e-9)
+    est, lp = plan.estimate_size(), build(plan.lowered())
+    assert (est["rows"], est["columns"], est["nonzeros"]) == (*lp.shape, lp.nnz)
+    too_much = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0},
+                     national_targets=[gp.NationalTarget(sector="s1", year=2031,
+                                                         output_at_least=1e5)])
+    bad = too_much.solve()
+    assert bad.status == "infeasible"
+    assert "national output target" in set(bad.diagnosis.shortfalls["condition"])
+    with pytest.raises(gp.InvalidInput, match="national_targets.0.sector"):
+        _pair(0.0, national_targets=[gp.NationalTarget(sector="north/s1", year=2031,
+                                                       output_at_least=1.0)])
+    with pytest.raises(gp.InvalidInput, match="national_targets.0.year"):
+        _pair(0.0, national_targets=[gp.NationalTarget(sector="s1", year=2050,
+                                                       output_at_least=1.0)])
+
+
 def test_size_estimate_covers_regions() -> None:
     plan = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0},
                  migration={"north": 5.0})

@@ -157,6 +157,7 @@ def _registry() -> list[Condition]:
     from .consumption import ConsumptionFall, ConsumptionFloor
     from .labour import Labour
     from .level import TerminalLevel
+    from .national_targets import NationalTargets
     from .regional_consumption import RegionalConsumptionFloor, RegionalConsumptionLevel
     from .regional_labour import RegionalLabour
     from .shipments import ShipmentCeilings
@@ -171,7 +172,7 @@ def _registry() -> list[Condition]:
             FirstYear(), Techniques(),
             # several regions
             RegionalLabour(), ShipmentCeilings(), RegionalConsumptionLevel(),
-            RegionalConsumptionFloor(), FixedTradeShares()]
+            RegionalConsumptionFloor(), FixedTradeShares(), NationalTargets()]
 
 
 CONDITIONS: list[Condition] = _registry()
