@@ -171,6 +171,8 @@ def _upper_bound(plan: Plan) -> int:
     if plan.techniques or (plan.technical_change is not None
                            and plan.technical_change.embodied):
         return 2**62  # the exact count decides (techniques have their own lead times)
+    if plan.regions is not None:
+        return 2**62  # several regions: the exact count decides (shipments, regional rows)
     return (T * n * n * (1 + width) + T * n * (T + 9) + T * len(plan.labour) * n + 4 * T
             + len(plan.targets) * (T + 1) + n * width * (T + 1) + n + T * n * 2)
 
