@@ -10,7 +10,7 @@ from scipy.optimize import linprog
 
 import growthplan as gp
 from growthplan.backends.pulp import cbc_solver
-from growthplan.lp.build import build
+from growthplan.lp.build import build, build_plan
 
 YEARS = range(2030, 2036)
 
@@ -263,6 +263,8 @@ def test_size_estimate_covers_regions() -> None:
         lp = build(p.lowered())
         assert (est["rows"], est["columns"], est["nonzeros"]) == (*lp.shape, lp.nnz)
     assert_optimal(ceiled.solve())
+    with pytest.raises(gp.InvalidInput, match="too large"):  # the guard counts shipments too
+        build_plan(ceiled, size_limit=int(ceiled.estimate_size()["nonzeros"]) - 1)
 
 
 @pytest.mark.parametrize(("change", "field"), [
