@@ -174,7 +174,8 @@ def _upper_bound(plan: Plan) -> int:
     if plan.regions is not None:
         return 2**62  # several regions: the exact count decides (shipments, regional rows)
     return (T * n * n * (1 + width) + T * n * (T + 9) + T * len(plan.labour) * n + 4 * T
-            + len(plan.targets) * (T + 1) + n * width * (T + 1) + n + T * n * 2)
+            + len(plan.targets) * (T + 1) + n * width * (T + 1) + n + T * n * 2
+            + len(plan.limits) * T * (n + 1))  # emission limits: a row per year at most
 
 
 def guard_size(plan: Plan, size_limit: int | None) -> None:
