@@ -27,6 +27,12 @@ sectors over the sizes of one horizon. The wall clock left out of the
 library's ``result.timings`` is printed, and the peak-memory and solve-time
 estimates of ``plan.estimate_size()`` beside the measured figures.
 
+``--forms SIZES`` times the bare solve of each capacity formulation × method
+(expression and state form; IPX, and HiPO when the ``hipo`` extra is
+installed) in interleaved rounds, as ratios to the expression form by IPX, with
+HiPO's factorisation counts; the measurements behind ``auto``
+(``growthplan.backends.methods.MEASUREMENTS``).
+
 ``--crossover SIZES`` compares only simplex and interior point on small
 plans (where ``auto`` switches); ``--memory SIZES`` only measures the peak
 memory of a fresh process per size (``--stages``: after build, passModel and
@@ -61,9 +67,11 @@ from growthplan.backends.highs import AUTO_IPM_NONZEROS, METHODS, choose_method 
 DEFAULT_SIZES = "30x20,100x30,200x30"
 
 
-def _highs(method: str, time_limit: float | None) -> highspy.Highs:
+def _highs(method: str, time_limit: float | None,
+           extra: dict[str, Any] | None = None) -> highspy.Highs:
     h = highspy.Highs()
-    opts: dict[str, Any] = {"output_flag": False, "random_seed": 0, **METHODS[method]}
+    opts: dict[str, Any] = {"output_flag": False, "random_seed": 0, **METHODS[method],
+                            **(extra or {})}
     if time_limit is not None:
         opts["time_limit"] = float(time_limit)
     for k, v in opts.items():
@@ -109,9 +117,10 @@ def _highs_lp(lp: Any) -> highspy.HighsLp:
     return model
 
 
-def bare(lp: Any, method: str, time_limit: float | None = None) -> dict[str, Any]:
+def bare(lp: Any, method: str, time_limit: float | None = None,
+         extra: dict[str, Any] | None = None) -> dict[str, Any]:
     """passModel (numpy arrays) and run, timed apart."""
-    h = _highs(method, time_limit)
+    h = _highs(method, time_limit, extra)
     t0 = time.perf_counter()
     if h.passModel(*_arrays(lp)) == highspy.HighsStatus.kError:
         raise SystemExit("HiGHS refused the model")
@@ -122,7 +131,52 @@ def bare(lp: Any, method: str, time_limit: float | None = None) -> dict[str, Any
     info = h.getInfo()
     return {"transfer": t1 - t0, "run": t2 - t1, "cpu": time.process_time() - c1,
             "status": h.modelStatusToString(h.getModelStatus()),
-            "objective": float(info.objective_function_value)}
+            "objective": float(info.objective_function_value),
+            "iterations": int(info.ipm_iteration_count) + int(info.simplex_iteration_count)}
+
+
+def forms(sizes: str, rounds: int) -> None:
+    """Bare solve time of each formulation × method over expression form × IPX.
+
+    Each round runs every combination once, in an order rotated from round to
+    round; min and median of the ratios taken within a round. On the ``hipo``
+    install (highspy 1.15.1) IPX runs with presolve off too, as ``auto`` does.
+    """
+    from growthplan.backends.highs import hipo_available
+    from growthplan.backends.methods import choose
+
+    hipo = hipo_available()
+    combos = [("expression", "ipm"), ("state", "ipm")]
+    if hipo:
+        combos += [("state", "hipo")]
+    print(f"highspy {highspy.Highs().version()}; HiPO {'installed' if hipo else 'absent'}; "
+          f"{rounds} interleaved rounds; ratios to expression form × ipm (min / median)")
+    for size in sizes.split(","):
+        n, years = (int(v) for v in size.lower().split("x"))
+        plan = make_plan(economy(n), years)
+        lps = {f: plan.compile(formulation=f, size_limit=None) for f in ("expression", "state")}
+        times: dict[tuple[str, str], list[float]] = {c: [] for c in combos}
+        ratios: dict[tuple[str, str], list[float]] = {c: [] for c in combos}
+        last: dict[tuple[str, str], dict[str, Any]] = {}
+        for k in range(rounds):
+            order = combos[k % len(combos):] + combos[:k % len(combos)]
+            got = {}
+            for f, m in order:
+                extra = choose(lps[f].nnz, hipo=hipo, method=m).options
+                got[(f, m)] = last[(f, m)] = bare(lps[f], m, extra=extra)
+                times[(f, m)].append(got[(f, m)]["run"])
+            for c in combos:
+                ratios[c].append(got[c]["run"] / got[("expression", "ipm")]["run"])
+        ref = last[("expression", "ipm")]["objective"]
+        print(f"  {size}: expression {lps['expression'].nnz:,} nonzeros, state "
+              f"{lps['state'].nnz:,}", flush=True)
+        for c in combos:
+            r, t = ratios[c], times[c]
+            gap = abs(last[c]["objective"] - ref) / max(1.0, abs(ref))
+            print(f"    {c[0]:>10} × {c[1]:<5} run {min(t):8.3f} / {statistics.median(t):8.3f} s"
+                  f"  ratio {min(r):.2f} / {statistics.median(r):.2f}  "
+                  f"{last[c]['iterations']} iterations, {last[c]['status']}, "
+                  f"objective differs {gap:.1e}", flush=True)
 
 
 def transfer_field_by_field(lp: Any) -> float:
@@ -355,6 +409,8 @@ def main() -> None:
     ap.add_argument("--repeats", type=int, default=3)
     ap.add_argument("--cheap-nonzeros", type=int, default=1_000_000,
                     help="repeat only LPs with fewer nonzeros")
+    ap.add_argument("--forms", metavar="SIZES",
+                    help="only compare the capacity formulations × methods on these sizes")
     ap.add_argument("--crossover", metavar="SIZES",
                     help="only compare simplex and interior point on these small sizes "
                          "(e.g. 5x10,10x15,15x15,25x20), where auto switches")
@@ -375,6 +431,9 @@ def main() -> None:
         return
     if a.memory:
         memory(a.memory, a.stages)
+        return
+    if a.forms:
+        forms(a.forms, a.repeats)
         return
     if a.crossover:
         crossover(a.crossover, a.repeats)
