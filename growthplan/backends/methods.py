@@ -29,29 +29,40 @@ METHODS: dict[str, dict[str, object]] = {
 EXTRA_METHODS = {"hipo": "hipo"}  # method -> the optional extra that provides it
 HIPO_INSTALL = 'pip install "growthplan[hipo]"'
 AUTO_IPM_NONZEROS = 4_000
-# HiPO in the state form beats IPX in the expression form from here on (MEASUREMENTS)
-AUTO_HIPO_NONZEROS = 150_000
+# with the hipo extra, HiPO replaces IPX from here on (MEASUREMENTS: IPX in the state
+# form was as fast or faster up to 100 × 30, HiPO about twice as fast at 150 × 30)
+AUTO_HIPO_NONZEROS = 1_000_000
 SLOW_METHOD_NONZEROS = 200_000  # explicit simplex or crossover above this draws a warning
 SLOW_METHODS = ("simplex", "ipm-crossover", "highs-default")
 
-# Solve time of each formulation × method over expression form × IPX (interior point
-# without crossover) on the same dense random plans (tests/helpers.py: economy,
-# make_plan; tests/benchmarks/bench_scale.py --forms), one 2-core machine, ratios
-# from interleaved rounds of one run, min–max. HiPO with highspy 1.15.1 and
-# highspy-extras 1.15.1, presolve off; IPX with highspy 1.16.0.
-# (plan, nonzeros of the expression form, formulation, method, ratio low, ratio high)
-MEASUREMENTS: tuple[tuple[str, int, str, str, float, float], ...] = (
-    ("30x20", 47_580, "state", "ipm", 0.97, 1.06),
-    ("30x20", 47_580, "state", "hipo", 1.09, 1.37),
-    ("60x25", 202_560, "state", "ipm", 0.99, 1.04),
-    ("60x25", 202_560, "state", "hipo", 0.74, 0.80),
-    ("100x30", 650_900, "state", "ipm", 0.99, 1.05),
-    ("100x30", 650_900, "state", "hipo", 0.56, 0.60),
-    ("100x30", 650_900, "expression", "hipo", 3.4, 3.7),
-    ("150x30", 1_441_350, "state", "hipo", 0.43, 0.44),
-    ("200x30", 2_541_800, "state", "hipo", 0.36, 0.36),
-    ("400x30", 10_083_600, "state", "hipo", 0.26, 0.26),
+# Bare solve time (HiGHS's run) of a formulation × method over the expression form ×
+# IPX as auto runs it on the same install, on the dense random plans of tests/helpers.py
+# (economy, make_plan) by tests/benchmarks/bench_scale.py --forms: one 2-core machine
+# shared with other work (load average 10-12), interleaved rounds of one run, min and
+# median of the per-round ratios.
+# (highspy, plan, expression-form nonzeros, formulation, method, presolve, min, median)
+MEASUREMENTS: tuple[tuple[str, str, int, str, str, str, float, float], ...] = (
+    # the default install: the state form gains nothing with IPX, presolve on or off
+    ("1.16.0", "30x20", 43_530, "state", "ipm", "on", 0.92, 1.03),
+    ("1.16.0", "30x20", 43_530, "expression", "ipm", "off", 1.08, 1.18),
+    ("1.16.0", "30x20", 43_530, "state", "ipm", "off", 1.04, 1.05),
+    ("1.16.0", "60x25", 202_560, "state", "ipm", "on", 0.83, 1.48),
+    ("1.16.0", "60x25", 202_560, "expression", "ipm", "off", 0.67, 1.20),
+    ("1.16.0", "60x25", 202_560, "state", "ipm", "off", 0.94, 1.13),
+    # the hipo extra (1.15.1, presolve off: on, it leaves these plans "Unknown"): there
+    # the expression form is slow and the state form several times faster, by IPX or HiPO
+    ("1.15.1", "30x20", 43_530, "state", "ipm", "off", 0.36, 0.38),
+    ("1.15.1", "30x20", 43_530, "state", "hipo", "off", 0.41, 0.41),
+    ("1.15.1", "60x25", 202_560, "state", "ipm", "off", 0.23, 0.32),
+    ("1.15.1", "60x25", 202_560, "state", "hipo", "off", 0.22, 0.28),
+    ("1.15.1", "100x30", 652_600, "state", "ipm", "off", 0.13, 0.13),
+    ("1.15.1", "100x30", 652_600, "state", "hipo", "off", 0.16, 0.18),
 )
+# Across installs (separate processes, ratios to 1.16.0's expression form × IPX; the
+# state form × HiPO on 1.15.1): 0.56–0.60 at 100 × 30, 0.43–0.44 at 150 × 30 (where
+# HiPO took 18 s and IPX in the state form 34 s), 0.36 at 200 × 30, 0.26 at 400 × 30
+# (164 s against 637 s); at 30 × 20 and 60 × 25 the minima of the two runs above give
+# 0.34 and 0.75 for the state form × IPX on 1.15.1.
 
 
 @dataclass(frozen=True)
@@ -98,9 +109,11 @@ def choose(nonzeros: int, *, hipo: bool, method: str = "auto",
         A method asked for by name is kept; ``"auto"`` follows the measurements.
     formulation : {"auto", "expression", "state"}
         A formulation asked for is kept; ``"auto"`` goes with the method:
-        the state form for HiPO, which exploits its banded normal matrix, the
-        expression form otherwise (IPX and simplex gained nothing from the
-        state form, 0.97–1.06 of the time).
+        the state form for HiPO, which exploits its banded normal matrix, and
+        for IPX on the ``hipo`` install (highspy 1.15.1 with presolve off,
+        where it took 0.13–0.38 of the expression form's time); the
+        expression form otherwise (with highspy 1.16 IPX gained nothing from
+        the state form).
 
     Returns
     -------
@@ -112,7 +125,7 @@ def choose(nonzeros: int, *, hipo: bool, method: str = "auto",
                                          "simplex is fastest on the smallest plans")
         elif hipo and nonzeros >= AUTO_HIPO_NONZEROS and formulation != "expression":
             method, reason = "hipo", (f"{nonzeros:,} nonzeros ≥ {AUTO_HIPO_NONZEROS:,}: HiPO "
-                                      "in the state form took 0.26–0.80 of IPX's time")
+                                      "in the state form, about twice as fast as IPX there")
         else:
             method = "ipm"
             reason = (f"{nonzeros:,} nonzeros: interior point without crossover" +
@@ -120,8 +133,10 @@ def choose(nonzeros: int, *, hipo: bool, method: str = "auto",
                        f" (HiPO would be faster here: {HIPO_INSTALL})"))
     else:
         reason = "asked for"
+    interior = method in ("ipm", "ipm-crossover", "hipo")
     if formulation == "auto":
-        formulation = "state" if method == "hipo" else "expression"
+        # HiPO exploits the state form; on the hipo install IPX gains from it too
+        formulation = "state" if method == "hipo" or (hipo and interior) else "expression"
     options: dict[str, object] = {}
     if hipo and method in ("ipm", "ipm-crossover"):
         # the hipo extra pins highspy 1.15.1, whose presolve leaves these plans "Unknown"

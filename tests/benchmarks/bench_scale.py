@@ -136,7 +136,7 @@ def bare(lp: Any, method: str, time_limit: float | None = None,
 
 
 def forms(sizes: str, rounds: int) -> None:
-    """Bare solve time of each formulation × method over expression form × IPX.
+    """Bare solve time of each formulation × method over expression form × IPX (as auto).
 
     Each round runs every combination once, in an order rotated from round to
     round; min and median of the ratios taken within a round. On the ``hipo``
@@ -146,34 +146,43 @@ def forms(sizes: str, rounds: int) -> None:
     from growthplan.backends.methods import choose
 
     hipo = hipo_available()
-    combos = [("expression", "ipm"), ("state", "ipm")]
-    if hipo:
-        combos += [("state", "hipo")]
+    # (formulation, method, presolve); "rule" is what auto sets on this install
+    combos = [("expression", "ipm", "rule"), ("state", "ipm", "rule"),
+              ("expression", "ipm", "off"), ("state", "ipm", "off")]
+    if hipo:  # the hipo install's rule already turns presolve off
+        combos = [("expression", "ipm", "rule"), ("state", "ipm", "rule"),
+                  ("state", "hipo", "rule")]
     print(f"highspy {highspy.Highs().version()}; HiPO {'installed' if hipo else 'absent'}; "
           f"{rounds} interleaved rounds; ratios to expression form × ipm (min / median)")
     for size in sizes.split(","):
         n, years = (int(v) for v in size.lower().split("x"))
         plan = make_plan(economy(n), years)
         lps = {f: plan.compile(formulation=f, size_limit=None) for f in ("expression", "state")}
-        times: dict[tuple[str, str], list[float]] = {c: [] for c in combos}
-        ratios: dict[tuple[str, str], list[float]] = {c: [] for c in combos}
-        last: dict[tuple[str, str], dict[str, Any]] = {}
+        times: dict[tuple[str, str, str], list[float]] = {c: [] for c in combos}
+        ratios: dict[tuple[str, str, str], list[float]] = {c: [] for c in combos}
+        last: dict[tuple[str, str, str], dict[str, Any]] = {}
+        first = combos[0]
         for k in range(rounds):
             order = combos[k % len(combos):] + combos[:k % len(combos)]
             got = {}
-            for f, m in order:
-                extra = choose(lps[f].nnz, hipo=hipo, method=m).options
-                got[(f, m)] = last[(f, m)] = bare(lps[f], m, extra=extra)
-                times[(f, m)].append(got[(f, m)]["run"])
+            for c in order:
+                f, m, pre = c
+                extra = dict(choose(lps[f].nnz, hipo=hipo, method=m).options)
+                if pre != "rule":
+                    extra["presolve"] = pre
+                got[c] = last[c] = bare(lps[f], m, extra=extra)
+                times[c].append(got[c]["run"])
             for c in combos:
-                ratios[c].append(got[c]["run"] / got[("expression", "ipm")]["run"])
-        ref = last[("expression", "ipm")]["objective"]
+                ratios[c].append(got[c]["run"] / got[first]["run"])
+        ref = last[first]["objective"]
         print(f"  {size}: expression {lps['expression'].nnz:,} nonzeros, state "
               f"{lps['state'].nnz:,}", flush=True)
         for c in combos:
             r, t = ratios[c], times[c]
             gap = abs(last[c]["objective"] - ref) / max(1.0, abs(ref))
-            print(f"    {c[0]:>10} × {c[1]:<5} run {min(t):8.3f} / {statistics.median(t):8.3f} s"
+            pre = "" if c[2] == "rule" else f", presolve {c[2]}"
+            print(f"    {c[0]:>10} × {c[1]:<5}{pre:<14} run {min(t):8.3f} / "
+                  f"{statistics.median(t):8.3f} s"
                   f"  ratio {min(r):.2f} / {statistics.median(r):.2f}  "
                   f"{last[c]['iterations']} iterations, {last[c]['status']}, "
                   f"objective differs {gap:.1e}", flush=True)

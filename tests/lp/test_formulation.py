@@ -138,9 +138,10 @@ def test_auto_picks_by_measurement_and_keeps_what_is_asked():
     assert "hipo" in r.reason  # tells how to get the faster method
     r = choose(AUTO_HIPO_NONZEROS, hipo=True)
     assert (r.formulation, r.method, r.options) == ("state", "hipo", {})
-    assert choose(AUTO_HIPO_NONZEROS - 1, hipo=True).method == "ipm"
-    assert choose(10**6, hipo=True, formulation="expression").method == "ipm"
-    assert choose(10**6, hipo=True, method="ipm").options == {"presolve": "off"}
+    r = choose(AUTO_HIPO_NONZEROS - 1, hipo=True)
+    assert (r.formulation, r.method, r.options) == ("state", "ipm", {"presolve": "off"})
+    assert choose(AUTO_HIPO_NONZEROS, hipo=True, formulation="expression").method == "ipm"
+    assert choose(10**6, hipo=False, method="ipm").options == {}
     assert choose(10**6, hipo=False, method="simplex", formulation="state").formulation \
         == "state"
 
