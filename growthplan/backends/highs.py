@@ -279,6 +279,16 @@ class HighsBackend:
     def __repr__(self) -> str:
         return f"HighsBackend(method={self.method!r})"
 
+    @staticmethod
+    def hipo_available() -> bool:
+        """Whether HiPO is installed (:func:`hipo_available`).
+
+        Returns
+        -------
+        bool
+        """
+        return hipo_available()
+
     def rule(self, nonzeros: int, formulation: str = "auto") -> Rule:
         """The formulation, method and options this back end uses for an LP of this size.
 

@@ -34,6 +34,8 @@ BACKENDS = {
     "pulp-cbc-state": lambda: gp.PulpBackend(cbc_solver(), formulation="state"),
     "pulp-highs": lambda: gp.PulpBackend(pulp.HiGHS(msg=False)),
 }
+if gp.HighsBackend.hipo_available():  # the hipo extra: HiPO, in the state form auto gives it
+    BACKENDS["highs-hipo"] = lambda: gp.HighsBackend("hipo")
 PULP = ["pulp-cbc", "pulp-highs"]
 
 

@@ -216,11 +216,14 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
     econ = economy(n)
     plan = make_plan(econ, years)
     est = plan.estimate_size()
-    lp = plan.compile()
+    from growthplan.backends.highs import HighsBackend
+
+    rule = HighsBackend().rule(int(est["nonzeros"]))  # what auto solves: the same LP bare
+    lp = plan.compile(formulation=rule.formulation, size_limit=None)
     del plan
     out: dict[str, Any] = {"size": size, "rows": lp.shape[0], "cols": lp.shape[1],
                            "nonzeros": int(lp.nnz), "estimate_mb": est["peak_bytes"] / 2**20,
-                           "estimate_seconds": est["seconds"]}
+                           "estimate_seconds": est["seconds"], "rule": rule.describe()}
     reps = repeats if lp.nnz < cheap else 1
     e2e: list[dict[str, Any]] = []
     own: list[dict[str, Any]] = []
@@ -231,7 +234,7 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
         if i == 0:
             out["peak_rss_mb"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
             out["method"] = e2e[0]["method"]
-        own.append(bare(lp, out["method"]))
+        own.append(bare(lp, out["method"], extra=rule.options))
         if not first:
             e2e.append(end_to_end(econ, years))
     out["repeats"] = reps
@@ -256,7 +259,7 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
     out["others"] = {}
     for m in methods:
         if m != out["method"]:
-            out["others"][m] = bare(lp, m, time_limit)
+            out["others"][m] = bare(lp, m, time_limit, extra=rule.options)
     return out
 
 
@@ -385,6 +388,7 @@ def show(r: dict[str, Any]) -> None:
     tm = ", ".join(f"{k} {v:.3f}" for k, v in r["timings"].items())
     print(f"\n== {r['size']}: {r['rows']:,} rows, {r['cols']:,} columns, "
           f"{r['nonzeros']:,} nonzeros (median of {r['repeats']})")
+    print(f"  auto: {r['rule']}")
     print(f"  library end to end     {r['e2e']:8.2f} s  {r['e2e_all']}  "
           f"({r['e2e_status']}, {r['method']}, scaled={r['scaled']}, "
           f"objective {r['e2e_objective']:.10g})")
@@ -411,8 +415,11 @@ def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("sizes", nargs="?", default=DEFAULT_SIZES,
                     help="comma-separated SECTORSxYEARS (default %(default)s)")
-    ap.add_argument("--methods", default=",".join(METHODS),
-                    help="HiGHS methods for the bare solves (default: all)")
+    from growthplan.backends.highs import hipo_available
+
+    ap.add_argument("--methods", default=",".join(m for m in METHODS
+                                                  if m != "hipo" or hipo_available()),
+                    help="HiGHS methods for the bare solves (default: all installed)")
     ap.add_argument("--time-limit", type=float, default=60.0,
                     help="seconds for each method other than the library's")
     ap.add_argument("--repeats", type=int, default=3)
