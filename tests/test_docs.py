@@ -54,3 +54,19 @@ def test_readme_techniques_example_runs():
         exec(compile(block, "README.md", "exec"), namespace)  # noqa: S102 - our own README
     assert namespace["result"].ok
     assert namespace["result"].technique_years.loc["goods:saving", "first_start"] == 2032
+
+
+def test_readme_formulation_example_runs():
+    """The formulation example: the state form solves the demo to the audited optimum of
+    the expression form (the same LP written another way)."""
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    block = re.search(r"\*\*Capacity as an expression or as a state\.\*\*.*?```python\n(.*?)```",
+                      text, re.S).group(1)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        namespace: dict = {}
+        exec(compile(block, "README.md", "exec"), namespace)  # noqa: S102 - our own README
+        expression = namespace["plan"].solve(formulation="expression")
+    result = namespace["result"]
+    assert result.ok and result.lp.formulation == "state"
+    assert result.objective == pytest.approx(expression.objective, rel=1e-8)
