@@ -71,6 +71,9 @@ def test_solver_failure_exit_code(folder):
 def test_check_and_schema(folder):
     res = run("check", folder / "plan.yaml")
     assert res.exit_code == 0 and "valid" in res.output and "productive" in res.output
+    # the solver line states the rule auto follows: formulation, method and why
+    solver = [ln for ln in res.output.splitlines() if ln.strip().startswith("solver:")]
+    assert len(solver) == 1 and "form, " in solver[0] and "nonzeros" in solver[0], res.output
     res = run("schema")
     assert res.exit_code == 0 and '"economy"' in res.output
 
