@@ -325,10 +325,14 @@ def memory_child(size: str, stages: bool) -> dict[str, Any]:
         warnings.simplefilter("ignore")
         if not stages:
             t0 = time.perf_counter()
+            c0 = time.process_time()
             r = plan.solve()
             out.update(status=str(r.status), peak_mb=_peak_mb(), wall=time.perf_counter() - t0,
+                       cpu=time.process_time() - c0,
                        timings=dict(r.timings), estimate_seconds=est["seconds"],
-                       objective=float(r.objective))
+                       objective=float(r.objective), method=r.solver["method"],
+                       formulation=r.lp.formulation,
+                       iterations=r.outcome.iterations)
             return out
         lp = plan.compile()
     m = lp.matrix
@@ -373,9 +377,10 @@ def memory(sizes: str, stages: bool) -> None:
               f"{r['imports_mb']:.0f} MB; {r['status']}", flush=True)
         if not stages:
             tm = ", ".join(f"{k} {v:.3f}" for k, v in r["timings"].items())
-            print(f"          end to end {r['wall']:.1f} s (rough estimate of the solve "
-                  f"{r['estimate_seconds']:.1f} s); timings: {tm}; objective "
-                  f"{r['objective']:.10g}", flush=True)
+            print(f"          end to end {r['wall']:.1f} s, process CPU {r['cpu']:.1f} s "
+                  f"(rough estimate of the solve {r['estimate_seconds']:.1f} s); "
+                  f"{r['formulation']} form, {r['method']}, iterations {r['iterations']}; "
+                  f"timings: {tm}; objective {r['objective']:.10g}", flush=True)
         if stages:
             print(f"          the LP's own arrays {r['lp_mb']:.0f} MB; resident / peak after "
                   f"build {r['built'][0]:.0f} / {r['built'][1]:.0f} MB, after passModel "
