@@ -13,7 +13,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 from conftest import assert_optimal, random_economy
-from helpers import economy, make_plan
+from helpers import economy, make_plan, switch_plan
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -37,7 +37,7 @@ def _plan(seed: int, n: int, T: int, profile: str, lead: int, terminal: bool,
                    terminal=gp.TerminalGrowth(rate=0.02) if terminal else None)
 
 
-@settings(max_examples=20)
+@settings(max_examples=15)
 @given(st.integers(0, 10_000), st.integers(1, 4), st.integers(1, 8), st.sampled_from(PROFILES),
        st.integers(0, 3), st.booleans(), st.booleans())
 def test_every_formulation_gives_the_same_audited_optimum(seed, n, T, profile, lead,
@@ -58,6 +58,20 @@ def test_every_formulation_gives_the_same_audited_optimum(seed, n, T, profile, l
     assert s.objective == pytest.approx(e.objective, rel=1e-8, abs=1e-9)
     np.testing.assert_allclose(s.capacity.to_numpy(), e.capacity.to_numpy(), rtol=1e-6,
                                atol=1e-6 * float(np.abs(e.capacity.to_numpy()).max()))
+
+
+def test_alternative_techniques_in_the_state_form():
+    """A stock per technique: the labour-saving switch plan has the same optimum, audit
+    and size count in both forms."""
+    plan = switch_plan()
+    got = {}
+    for form in ("expression", "state"):
+        est = plan.estimate_size(form)
+        lp = plan.compile(formulation=form)
+        assert (est["rows"], est["columns"], est["nonzeros"]) == (*lp.shape, lp.nnz)
+        got[form] = assert_optimal(plan.solve(formulation=form))
+    assert got["state"].objective == pytest.approx(got["expression"].objective, rel=1e-8)
+    assert got["state"].lp.formulation == "state"
 
 
 @pytest.mark.parametrize("profile", PROFILES)
