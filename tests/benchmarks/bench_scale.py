@@ -139,8 +139,10 @@ def forms(sizes: str, rounds: int) -> None:
     """Bare solve time of each formulation × method over expression form × IPX (as auto).
 
     Each round runs every combination once, in an order rotated from round to
-    round; min and median of the ratios taken within a round. On the ``hipo``
-    install (highspy 1.15.1) IPX runs with presolve off too, as ``auto`` does.
+    round; min and median of the ratios taken within a round, and of each
+    solve's process CPU time (disturbed far less than the wall clock on a loaded
+    machine; HiGHS's own threads count in it). On the ``hipo`` install (highspy
+    1.15.1) IPX runs with presolve off too, as ``auto`` does.
     """
     from growthplan.backends.highs import hipo_available
     from growthplan.backends.methods import choose
@@ -159,6 +161,7 @@ def forms(sizes: str, rounds: int) -> None:
         plan = make_plan(economy(n), years)
         lps = {f: plan.compile(formulation=f, size_limit=None) for f in ("expression", "state")}
         times: dict[tuple[str, str, str], list[float]] = {c: [] for c in combos}
+        cpus: dict[tuple[str, str, str], list[float]] = {c: [] for c in combos}
         ratios: dict[tuple[str, str, str], list[float]] = {c: [] for c in combos}
         last: dict[tuple[str, str, str], dict[str, Any]] = {}
         first = combos[0]
@@ -172,6 +175,7 @@ def forms(sizes: str, rounds: int) -> None:
                     extra["presolve"] = pre
                 got[c] = last[c] = bare(lps[f], m, extra=extra)
                 times[c].append(got[c]["run"])
+                cpus[c].append(got[c]["cpu"])
             for c in combos:
                 ratios[c].append(got[c]["run"] / got[first]["run"])
         ref = last[first]["objective"]
@@ -183,7 +187,8 @@ def forms(sizes: str, rounds: int) -> None:
             pre = "" if c[2] == "rule" else f", presolve {c[2]}"
             print(f"    {c[0]:>10} × {c[1]:<5}{pre:<14} run {min(t):8.3f} / "
                   f"{statistics.median(t):8.3f} s"
-                  f"  ratio {min(r):.2f} / {statistics.median(r):.2f}  "
+                  f"  ratio {min(r):.2f} / {statistics.median(r):.2f}  CPU "
+                  f"{min(cpus[c]):.3f} / {statistics.median(cpus[c]):.3f} s  "
                   f"{last[c]['iterations']} iterations, {last[c]['status']}, "
                   f"objective differs {gap:.1e}", flush=True)
 
