@@ -35,34 +35,35 @@ AUTO_HIPO_NONZEROS = 1_000_000
 SLOW_METHOD_NONZEROS = 200_000  # explicit simplex or crossover above this draws a warning
 SLOW_METHODS = ("simplex", "ipm-crossover", "highs-default")
 
-# Bare solve time (HiGHS's run) of a formulation × method over the expression form ×
-# IPX as auto runs it on the same install, on the dense random plans of tests/helpers.py
+# Bare solve (HiGHS's run) of a formulation × method against the expression form × IPX
+# as auto runs it on the same install, on the dense random plans of tests/helpers.py
 # (economy, make_plan) by tests/benchmarks/bench_scale.py --forms: one 2-core machine
-# shared with other work (load average 10-12), interleaved rounds of one run, min and
-# median of the per-round ratios.
+# shared with other work (load average 9-14, so wall clocks were 3-10 times the CPU
+# times), 3 interleaved rounds in one process; ratios of the process CPU time, min and
+# median over the rounds. IPX is HiGHS's interior point without crossover.
 # (highspy, plan, expression-form nonzeros, formulation, method, presolve, min, median)
 MEASUREMENTS: tuple[tuple[str, str, int, str, str, str, float, float], ...] = (
     # the default install: the state form gains nothing with IPX, presolve on or off
-    ("1.16.0", "30x20", 43_530, "state", "ipm", "on", 0.92, 1.03),
-    ("1.16.0", "30x20", 43_530, "expression", "ipm", "off", 1.08, 1.18),
-    ("1.16.0", "30x20", 43_530, "state", "ipm", "off", 1.04, 1.05),
-    ("1.16.0", "60x25", 202_560, "state", "ipm", "on", 0.83, 1.48),
-    ("1.16.0", "60x25", 202_560, "expression", "ipm", "off", 0.67, 1.20),
-    ("1.16.0", "60x25", 202_560, "state", "ipm", "off", 0.94, 1.13),
+    ("1.16.0", "30x20", 43_530, "state", "ipm", "on", 1.01, 0.90),
+    ("1.16.0", "30x20", 43_530, "expression", "ipm", "off", 1.02, 0.98),
+    ("1.16.0", "30x20", 43_530, "state", "ipm", "off", 0.96, 0.99),
+    ("1.16.0", "60x25", 202_560, "state", "ipm", "on", 1.15, 1.10),
+    ("1.16.0", "60x25", 202_560, "expression", "ipm", "off", 0.97, 0.98),
+    ("1.16.0", "60x25", 202_560, "state", "ipm", "off", 0.98, 1.08),
     # the hipo extra (1.15.1, presolve off: on, it leaves these plans "Unknown"): there
     # the expression form is slow and the state form several times faster, by IPX or HiPO
-    ("1.15.1", "30x20", 43_530, "state", "ipm", "off", 0.36, 0.38),
-    ("1.15.1", "30x20", 43_530, "state", "hipo", "off", 0.41, 0.41),
-    ("1.15.1", "60x25", 202_560, "state", "ipm", "off", 0.23, 0.32),
-    ("1.15.1", "60x25", 202_560, "state", "hipo", "off", 0.22, 0.28),
-    ("1.15.1", "100x30", 652_600, "state", "ipm", "off", 0.13, 0.13),
-    ("1.15.1", "100x30", 652_600, "state", "hipo", "off", 0.16, 0.18),
+    ("1.15.1", "30x20", 43_530, "state", "ipm", "off", 0.40, 0.44),
+    ("1.15.1", "30x20", 43_530, "state", "hipo", "off", 0.44, 0.40),
+    ("1.15.1", "60x25", 202_560, "state", "ipm", "off", 0.26, 0.27),
+    ("1.15.1", "60x25", 202_560, "state", "hipo", "off", 0.25, 0.26),
 )
-# Across installs (separate processes, ratios to 1.16.0's expression form × IPX; the
-# state form × HiPO on 1.15.1): 0.56–0.60 at 100 × 30, 0.43–0.44 at 150 × 30 (where
-# HiPO took 18 s and IPX in the state form 34 s), 0.36 at 200 × 30, 0.26 at 400 × 30
-# (164 s against 637 s); at 30 × 20 and 60 × 25 the minima of the two runs above give
-# 0.34 and 0.75 for the state form × IPX on 1.15.1.
+# Across the two installs (process CPU time of the same bare solves; auto's choice on
+# each): the hipo install's state form × IPX took 1.04 of the default install's
+# expression form × IPX at 30 × 20, 0.96 at 60 × 25 and 0.59 at 100 × 30 (6.0 s
+# against 10.2 s, bench_scale.py); HiPO took 0.90 at 60 × 25. In wall clock on a
+# quieter machine, the state form × HiPO took 0.56–0.60 at 100 × 30, 0.43–0.44 at
+# 150 × 30 (HiPO 18 s, IPX on the state form 34 s), 0.36 at 200 × 30 and 164 s against
+# 637 s at 400 × 30, so auto moves from IPX to HiPO between 100 × 30 and 150 × 30.
 
 
 @dataclass(frozen=True)
