@@ -94,7 +94,7 @@ def hipo_available() -> bool:
 
 
 def choose_method(nonzeros: int) -> str:
-    """HiGHS method for a plan with this many nonzeros.
+    """HiGHS method for a plan with this many nonzeros (``choose``'s, on this install).
 
     Multi-year plans have dense input and capital blocks repeated over years;
     on them the interior point method without crossover was many times faster
@@ -213,8 +213,9 @@ class HighsBackend:
 
     Parameters
     ----------
-    method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "highs-default"}
-        ``"auto"`` picks by problem size (:func:`choose_method`).
+    method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "highs-default", "hipo"}
+        ``"auto"`` picks by problem size (:func:`~growthplan.backends.methods.choose`);
+        ``"hipo"`` needs the ``hipo`` extra (refused with the line to install it).
     time_limit : float, optional
         Seconds per solve.
     threads : int, optional

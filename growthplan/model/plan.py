@@ -673,8 +673,9 @@ class Plan(Model):
 
         Parameters
         ----------
-        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp"}
-            HiGHS method. ``"auto"`` picks by problem size (see the README).
+        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "hipo"}
+            HiGHS method. ``"auto"`` picks by problem size (see the README);
+            ``"hipo"`` needs the ``hipo`` extra.
             When a solve fails, the other method is tried before giving up.
         time_limit : float, optional
             Seconds; a solve that hits it returns status ``time_limit``.
