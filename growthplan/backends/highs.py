@@ -325,8 +325,10 @@ class HighsBackend:
         list of Backend
             Copies of this back end with the other method, scaling on.
         """
-        other = "simplex" if self.method in ("ipm", "ipm-crossover", "pdlp", "auto",
-                                             "hipo") else "ipm"
+        # HiPO's stand-in is the other interior point (simplex takes far longer on the
+        # large plans HiPO is chosen for); the others stand in for each other
+        other = "ipm" if self.method == "hipo" else \
+            "simplex" if self.method in ("ipm", "ipm-crossover", "pdlp", "auto") else "ipm"
         out: list[Backend] = [self._variant(method=other, scale=True)]
         if other != "simplex" or self.method == "auto":
             out.append(self._variant(method="simplex", scale=True, presolve=False))
