@@ -145,6 +145,10 @@ class Condition:
         """(condition, sector or kind, year) of one row, for the shortfall table."""
         return (self.words or self.name, str(label[2]) if len(label) > 2 else "", label[1])
 
+    def excess_words(self, d: PlanData, label: tuple[Any, ...], excess: float) -> str | None:
+        """A limit exceeded by ``excess``, in words with its unit (None: the usual wording)."""
+        return None
+
     def describe(self, label: tuple[Any, ...]) -> str:
         """The row in the trade's words, e.g. "labour in 2031"."""
         cond, who, year = self.shortfall_label(label)
@@ -176,6 +180,7 @@ def _registry() -> list[Condition]:
     from .calibration import FirstYear
     from .capacity import Capacity, CapacityStock
     from .consumption import ConsumptionFall, ConsumptionFloor
+    from .emissions import Emissions
     from .labour import Labour
     from .level import TerminalLevel
     from .targets import Targets
@@ -185,7 +190,7 @@ def _registry() -> list[Condition]:
 
     return [Balance(), Capacity(), Labour(), ForeignExchange(), ConsumptionFloor(),
             ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds(),
-            FirstYear(), Techniques(), CapacityStock()]
+            FirstYear(), Techniques(), Emissions(), CapacityStock()]
 
 
 CONDITIONS: list[Condition] = _registry()
