@@ -662,13 +662,17 @@ class Plan(Model):
             self._lowered = lowering.lower(self)
         return self._lowered
 
-    def compile(self, *, size_limit: int | None = 25_000_000) -> LinearProgram:
+    def compile(self, *, size_limit: int | None = 25_000_000,
+                formulation: str = "expression") -> LinearProgram:
         """The plan's :class:`~growthplan.lp.program.LinearProgram`.
 
         Parameters
         ----------
         size_limit : int or None, default 25,000,000
             Largest LP (in nonzeros) to build; None builds any size.
+        formulation : {"expression", "state"}
+            How capacity in service is written: an expression in past starts,
+            or stocks carried from year to year (:mod:`growthplan.lp.build`).
 
         Returns
         -------
@@ -676,10 +680,15 @@ class Plan(Model):
         """
         from ..solve import program
 
-        return program(self, size_limit=size_limit)
+        return program(self, size_limit=size_limit, formulation=formulation)
 
-    def estimate_size(self) -> dict[str, float]:
+    def estimate_size(self, formulation: str = "expression") -> dict[str, float]:
         """Size, memory and a rough solve time of this plan's LP, without building it.
+
+        Parameters
+        ----------
+        formulation : {"expression", "state"}
+            How capacity in service is written (see :meth:`compile`).
 
         Returns
         -------
@@ -692,13 +701,14 @@ class Plan(Model):
         """
         from ..lp.build import estimate_size
 
-        return estimate_size(self)
+        return estimate_size(self, formulation)
 
     def solve(self, *, method: str = "auto", time_limit: float | None = None,
               threads: int | None = None, tolerance: float | None = None,
               audit_tolerance: float = 1e-6, options: dict[str, Any] | None = None,
               progress: bool = False, stop: Any = None,
-              size_limit: int | None = 25_000_000, backend: Any = None) -> PlanResult:
+              size_limit: int | None = 25_000_000, backend: Any = None,
+              formulation: str = "auto") -> PlanResult:
         """Solve the plan (HiGHS by default) and audit the result.
 
         The LP, for years ``t = 0..T−1``::
@@ -714,8 +724,9 @@ class Plan(Model):
 
         Parameters
         ----------
-        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp"}
-            HiGHS method. ``"auto"`` picks by problem size (see the README).
+        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "hipo"}
+            HiGHS method. ``"auto"`` picks by problem size (see the README);
+            ``"hipo"`` needs the ``hipo`` extra.
             When a solve fails, the other method is tried before giving up.
         time_limit : float, optional
             Seconds; a solve that hits it returns status ``time_limit``.
@@ -739,6 +750,10 @@ class Plan(Model):
             Another back end (:class:`growthplan.backends.PulpBackend`, …);
             then ``method``, ``time_limit``, ``threads``, ``tolerance`` and
             ``options`` belong to it.
+        formulation : {"auto", "expression", "state"}
+            How capacity in service is written in the LP (the same optimum
+            either way); ``"auto"`` follows the measured rule of
+            :func:`growthplan.backends.methods.choose`.
 
         Returns
         -------
@@ -765,7 +780,8 @@ class Plan(Model):
 
         return solve(self, backend=backend, method=method, time_limit=time_limit,
                      threads=threads, tolerance=tolerance, audit_tolerance=audit_tolerance,
-                     options=options, progress=progress, stop=stop, size_limit=size_limit)
+                     options=options, progress=progress, stop=stop, size_limit=size_limit,
+                     formulation=formulation)
 
     def to_pulp(self, name: str = "growthplan") -> Any:
         """A ``pulp.LpProblem`` of this plan, built from the same LinearProgram as ``solve``.

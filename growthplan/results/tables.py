@@ -34,7 +34,10 @@ def schedules(d: PlanData, lp: LinearProgram, x: np.ndarray) -> Schedules:
     kappa = lp.cols["consumption"].take(x) if "consumption" in lp.cols else None
     level = float(x[lp.cols["level"].start]) if "level" in lp.cols else None
     g, w = lp.operators["capacity"], lp.operators["deliveries"]
-    cap = (d.base.ravel() + g @ starts.ravel()).reshape(T + 1, n)
+    # the state form carries the new capacity in columns of its own: read it from them,
+    # so that the audit's vintage-by-vintage recomputation checks the stock rows too
+    new = lp.cols["stock"].take(x).ravel() if "stock" in lp.cols else g @ starts.ravel()
+    cap = (d.base.ravel() + new).reshape(T + 1, n)
     deliv = (w @ starts.ravel()).reshape(T, d.n) + d.pipe_deliveries
     imports = lp.cols["imports"].take(x) if "imports" in lp.cols else None
     exports = lp.cols["exports"].take(x) if "exports" in lp.cols else None
