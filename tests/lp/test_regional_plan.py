@@ -10,7 +10,7 @@ from scipy.optimize import linprog
 
 import growthplan as gp
 from growthplan.backends.pulp import cbc_solver
-from growthplan.lp.build import build, build_plan
+from growthplan.lp.build import build, build_plan, estimate_size
 
 YEARS = range(2030, 2036)
 
@@ -315,3 +315,22 @@ def test_diagnosis_names_the_region_and_the_corridor() -> None:
     subset = list(res.diagnosis.infeasible_subset["description"])
     assert any(t.startswith("labour in south in") for t in subset)
     assert any(t.startswith("shipments of s0 from north to south in") for t in subset)
+
+
+def test_regional_plans_in_the_state_form_of_capacity() -> None:
+    """Every regional family, national capacity targets among them, gives the same optimum
+    and the same shadow prices when capacity is carried as a stock (the same LP written
+    another way), and the size estimate still equals the built matrix."""
+    free = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0})
+    base = assert_optimal(free.solve())
+    cap = float(base.capacity[["north/s1", "south/s1"]].sum(axis=1).loc[2036]) * 1.2
+    plan = _pair(0.1, identical=False, regional_labour={"north": 150.0, "south": 90.0},
+                 national_targets=[gp.NationalTarget(sector="s1", year=2036,
+                                                     capacity_at_least=cap)])
+    expression = assert_optimal(plan.solve(formulation="expression"))
+    state = assert_optimal(plan.solve(formulation="state"))
+    assert state.objective == pytest.approx(expression.objective, rel=1e-8)
+    assert state.capacity[["north/s1", "south/s1"]].sum(axis=1).loc[2036] >= cap * (1 - 1e-9)
+    est = estimate_size(plan, formulation="state")
+    lp = build(plan.lowered(), formulation="state")
+    assert (est["rows"], est["columns"], est["nonzeros"]) == (*lp.shape, lp.nnz)

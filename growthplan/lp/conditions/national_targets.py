@@ -35,32 +35,36 @@ class NationalTargets(Condition):
         nnz = 0
         for quantity, good, t, *_ in d.regions.national:
             ks = _makers(d, good)
-            nnz += int(g[t, ks].sum()) if quantity == "capacity" else ks.size
+            if quantity == "capacity" and "stock" not in cols:
+                nnz += int(g[t, ks].sum())
+            else:  # output, or capacity read off the stock columns of the state form
+                nnz += ks.size
         return len(d.regions.national), nnz
 
     def build(self, ctx: Context) -> RowBlock:
         d = ctx.data
         T, m = d.T, d.m
-        rows_x, rows_z, lower = [], [], []
+        rows_x, rows_w, lower = [], [], []
+        width = (T + 1) * m  # the rows (t, k) of the capacity operator G
         for quantity, good, t, required, _, _ in d.regions.national:
             ks = _makers(d, good)
             x = sparse.csr_array((1, T * m))
-            z = sparse.csr_array((1, ctx.width("starts")))
+            w = sparse.csr_array((1, width))
             if quantity == "output":
                 x = sparse.csr_array((np.ones(ks.size), (np.zeros(ks.size, int), t * m + ks)),
                                      shape=(1, T * m))
                 lower.append(required)
             else:
-                z = sparse.csr_array(ctx.capacity[t * m + ks].sum(axis=0)[None, :])
+                w = sparse.csr_array((np.ones(ks.size), (np.zeros(ks.size, int), t * m + ks)),
+                                     shape=(1, width))
                 lower.append(required - float(d.base[t, ks].sum()))
             rows_x.append(x)
-            rows_z.append(z)
+            rows_w.append(w)
         labels = tuple((year, good_name, quantity)
                        for quantity, _, _, _, year, good_name in d.regions.national)
-        return RowBlock(self.name, (len(labels),), (labels,),
-                        {"output": sparse.csr_array(sparse.vstack(rows_x)),
-                         "starts": sparse.csr_array(sparse.vstack(rows_z))},
-                        np.array(lower), np.inf)
+        coeffs = {"output": sparse.csr_array(sparse.vstack(rows_x))}
+        coeffs.update(ctx.new_capacity(sparse.csr_array(sparse.vstack(rows_w))))
+        return RowBlock(self.name, (len(labels),), (labels,), coeffs, np.array(lower), np.inf)
 
     def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         cap = s.capacity_check
