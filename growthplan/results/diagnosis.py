@@ -27,9 +27,10 @@ precision of one maximisation.
 
 Method and budget
     The re-solve chooses its method by the rule the plan's solve uses
-    (:func:`~growthplan.backends.highs.choose_method`: simplex on small
-    plans, interior point without crossover above it) at tolerance 1e-9 and
-    interior-point optimality tolerance 1e-10, the precision the duality-gap
+    (:meth:`~growthplan.backends.highs.HighsBackend.rule`: simplex on small
+    plans, interior point without crossover above it, HiPO where installed)
+    at tolerance 1e-9 and interior-point optimality tolerance 1e-10, the
+    precision the duality-gap
     certificate and the shortfalls need. The whole diagnosis has a time
     budget, by default ``BUDGET_FACTOR`` times the plan's own solve time (its
     measured time or the size estimate of
@@ -60,7 +61,7 @@ import pandas as pd
 from scipy import sparse
 
 from ..backends.base import FAILED, Feature, Status
-from ..backends.highs import HighsBackend, HighsSession, choose_method
+from ..backends.highs import HighsBackend, HighsSession
 from ..backends.methods import METHODS
 from ..errors import SolverFailure, invalid
 from ..lp.conditions import CONDITIONS
@@ -390,8 +391,12 @@ class _Clock:
 
 def _solver(elastic: LinearProgram, method: str, threads: int | None,
             time_limit: float | None) -> HighsBackend:
-    chosen = choose_method(elastic.nnz) if method == "auto" else method
-    opts = {"ipm_optimality_tolerance": IPM_OPTIMALITY} if chosen.startswith("ipm") else {}
+    # the plan's own measured rule (HiPO where this install has it), its options kept
+    rule = HighsBackend(method).rule(elastic.nnz, elastic.formulation)
+    chosen = rule.method
+    opts: dict[str, Any] = dict(rule.options)
+    if chosen.startswith("ipm"):
+        opts["ipm_optimality_tolerance"] = IPM_OPTIMALITY
     solver = HighsBackend(chosen, tolerance=TOLERANCE, threads=threads, options=opts,
                           time_limit=None if time_limit is None else max(time_limit, 1e-3))
     solver._warn_slow = False  # the rule chose it (or the caller did, knowingly)
@@ -504,7 +509,7 @@ def _polish(view: _View, clock: _Clock, solver: HighsBackend, limit: int,
     short = np.flatnonzero(s > POSITIVE_SHARE)
     if short.size == 0:
         return
-    if short.size == 1 and view.method.startswith("ipm"):
+    if short.size == 1 and view.method.startswith(("ipm", "hipo")):
         clock.steps.append(Step(f"{tag}: polish", 0.0, "one shortfall: the re-solve's own"))
         return
     order = short[np.argsort(-s[short], kind="stable")]
@@ -629,6 +634,8 @@ def _year_name(label: tuple[Any, ...]) -> tuple[Any, str]:
         parts = list(parts[0])
     year = parts[0] if parts else ""
     name = str(parts[1]) if len(parts) > 1 else ""
+    if len(parts) > 1 and isinstance(parts[1], tuple) and len(parts[1]) == 3:
+        name = "{2} from {0} to {1}".format(*parts[1])  # a shipment: origin, destination, good
     return year, name
 
 
