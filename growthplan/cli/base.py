@@ -34,6 +34,7 @@ import click
 import numpy as np
 
 from ..errors import GrowthplanError, invalid
+from ..limits import MAX_SECONDS
 
 if TYPE_CHECKING:
     from ..model.plan import Plan
@@ -295,7 +296,6 @@ def _finite(value: float | None) -> float | None:
     return value
 
 
-MAX_SECONDS = 1e9
 
 
 def _seconds(ctx: click.Context, param: click.Parameter, value: float | None) -> float | None:

@@ -21,6 +21,7 @@ if TYPE_CHECKING:
     import pandas as pd
 
 from ..errors import invalid
+from ..limits import MAX_DRAWS, MAX_WORKERS
 from .base import (
     EXIT_OK,
     _distinct,
@@ -116,11 +117,11 @@ def _load(plan_file: Path, draws: int | None, seed: int | None) -> tuple[Any, An
 
 def _analysis_options(f: Any) -> Any:
     for option in reversed([
-        click.option("--draws", type=click.IntRange(min=1, max=10_000_000), default=None,
+        click.option("--draws", type=click.IntRange(min=1, max=MAX_DRAWS), default=None,
                      help="Drawn economies (default: the plan file's uncertainty.draws)."),
         click.option("--seed", type=click.IntRange(min=0), default=None,
                      help="Seed of the draws (default: the plan file's uncertainty.seed)."),
-        click.option("--workers", type=click.IntRange(min=1, max=1024), default=1,
+        click.option("--workers", type=click.IntRange(min=1, max=MAX_WORKERS), default=1,
                      show_default=True,
                      help="Worker processes; 1 solves every draw in this process."),
         _csv_out, _xlsx_out, _overwrite,

@@ -56,6 +56,7 @@ from yaml.events import AliasEvent
 from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 
 from ..errors import InvalidInput, invalid, show, suggest
+from ..limits import MAX_YEARS, PLAN_FILE_MAX_BYTES
 from ..model.economy import Economy, Sector
 from ..model.plan import Plan
 from ..model.validation import Model, Rule
@@ -71,12 +72,8 @@ __all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "save_
 _TABLE_FIELDS = ("flows", "input_coefficients", "labour_coefficients", "capital",
                  "capital_stocks", "capital_coefficients")
 
-PLAN_FILE_MAX_BYTES = 5 << 20
-"""Largest plan file read (5 MB); real ones are a few kB."""
 MAX_DEPTH = 100
 """Deepest nesting of mappings and lists in a plan file."""
-MAX_YEARS = 1000
-"""Longest plan: ``last`` at most this many years after ``first``."""
 
 
 class EconomyTables(Model):

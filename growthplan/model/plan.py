@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from pydantic import Field, PrivateAttr, field_validator, model_validator
 
+from ..limits import MAX_YEARS
 from . import objectives as obj
 from .economy import Economy
 from .series import series as _series
@@ -35,7 +36,6 @@ if TYPE_CHECKING:
     from ..lp.program import LinearProgram
     from ..results.result import PlanResult
 
-MAX_YEARS = 1000  # longer plans are refused before anything is allocated
 
 __all__ = ["TechnicalChange", "LabourSupply", "Consumption", "Target", "StartsCeiling",
            "TerminalGrowth", "Trade", "Plan"]

@@ -36,6 +36,7 @@ from typing import Any, TypeVar
 import pandas as pd
 
 from ..errors import invalid
+from ..limits import MAX_WORKERS
 from ..model.plan import Plan
 
 __all__ = ["Sweep", "SerialExecutor", "check_parameters", "sweep", "variant"]
@@ -269,6 +270,7 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
     """
     from ..progress import sweep_progress
 
+    check_workers(max_workers)
     for name, params in (scenarios or {}).items():
         if not isinstance(params, dict):
             raise invalid(f"scenarios.{name}", "be a mapping of parameter paths to values",
@@ -287,7 +289,7 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
         raise invalid("grid", "or scenarios name at least one variant", None)
     options = dict(solve_options or {})
     own = executor is None
-    workers = max_workers or os.cpu_count() or 1
+    workers = check_workers(max_workers) or os.cpu_count() or 1
     key = _token()
     if own:  # the base plan goes to each worker once, when it starts, not with every task
         pool: Executor = ProcessPoolExecutor(max_workers=workers, initializer=_warm,
@@ -334,6 +336,17 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
         rows.append({"scenario": name, **params, **figures})
     table = pd.DataFrame(rows)
     return Sweep(table=table, results=[r for _, r in outcomes])
+
+
+def check_workers(workers: Any) -> int | None:
+    """``max_workers`` within :data:`~growthplan.limits.MAX_WORKERS` (None: the CPU count)."""
+    if workers is None:
+        return None
+    if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
+        raise invalid("max_workers", "be a whole number >= 1", workers)
+    if workers > MAX_WORKERS:
+        raise invalid("max_workers", f"be at most {MAX_WORKERS:,}", int(workers))
+    return int(workers)
 
 
 # -- running many tasks with few in flight --------------------------------------------------

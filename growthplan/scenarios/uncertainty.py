@@ -38,6 +38,7 @@ from pydantic import Field, field_validator, model_validator
 from scipy import sparse, stats
 
 from ..errors import invalid
+from ..limits import MAX_DRAWS, MAX_ROBUST_SCENARIOS
 from ..model.validation import Model, Rule
 
 __all__ = ["Normal", "LogNormal", "Uniform", "Triangular", "Empirical", "Uncertain",
@@ -330,7 +331,7 @@ class UncertaintySpec(Model):
     seed: int = Field(default=0, ge=0, description=(
         "Seed of the draws: draw i uses numpy.random.SeedSequence(seed).spawn(i + 1)[i], so "
         "a draw is the same whatever computes it and in whatever order."))
-    draws: int = Field(default=100, ge=1, le=10_000_000, description=(
+    draws: int = Field(default=100, ge=1, le=MAX_DRAWS, description=(
         "Number of drawn economies the analyses use when not told otherwise."))
 
     def check(self, plan: Any) -> None:
@@ -630,10 +631,14 @@ def _chunk(job: tuple[Any, ...]) -> list[tuple[Any, ...]]:
     return rows
 
 
-def _check_draws(draws: Any) -> int:
+def _check_draws(draws: Any, field: str = "draws", most: int = MAX_DRAWS) -> int:
+    """A count of draws within the library's limit, refused before anything is allocated."""
     if isinstance(draws, bool) or not isinstance(draws, int | np.integer) or draws < 1:
-        raise invalid("draws", "be a whole number >= 1", draws)
+        raise invalid(field, "be a whole number >= 1", draws)
+    if draws > most:
+        raise invalid(field, f"be at most {most:,}", int(draws))
     return int(draws)
+
 
 
 def _chunk_warm(task: tuple[str, list[int]]) -> list[tuple[Any, ...]]:
@@ -661,10 +666,12 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
     At most ``in_flight`` chunks are out at a time (default four per worker).
     """
     from ..progress import sweep_progress
-    from .sweep import LOST, _scattered, _token, _warm, in_order, owned_pool
+    from .sweep import LOST, _scattered, _token, _warm, check_workers, in_order, owned_pool
 
     own = executor is None
-    workers = max_workers or os.cpu_count() or 1
+    workers = check_workers(max_workers) or os.cpu_count() or 1
+    if chunk is not None:
+        chunk = _check_draws(chunk, "chunk")
     size = chunk or max(1, math.ceil(draws / (4 * workers)))
     groups = [list(range(s, min(s + size, draws))) for s in range(0, draws, size)]
     jobs = [(kind, plan, spec, g, extra) for g in groups]
@@ -898,7 +905,7 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
     from ..solve import run
 
     spec.check(plan)
-    n_s = _check_draws(scenarios)
+    n_s = _check_draws(scenarios, "scenarios", MAX_ROBUST_SCENARIOS)
     if criterion not in ("worst", "mean"):
         raise invalid("criterion", "be 'worst' or 'mean'", criterion)
     if plan.objective.horizon_search() is not None:

@@ -39,6 +39,7 @@ from numpy.typing import ArrayLike
 from ..errors import InvalidInput, invalid, show
 from ..io.atomic import atomic_files
 from ..io.files import read_regular_file
+from ..limits import TABLE_MAX_BYTES, TABLE_MAX_CELLS, TABLE_MAX_COLUMNS
 from ..model.economy import CapitalSpec, Economy, Sector
 from ..model.validation import Rule, align_labels, raise_plain
 
@@ -51,12 +52,10 @@ LIST_COLUMNS = ("spending_profile", "investment_history")
 CAPITAL_COLUMNS = set(CapitalSpec.model_fields)
 
 
-TABLE_MAX_BYTES = 64 << 20
-"""Largest table file read (64 MB): a 1,000-sector table at full precision is ~20 MB."""
+# Largest table file read (64 MB): a 1,000-sector table at full precision is ~20 MB.
 _FLOW_RULE = "be a finite flow >= 0 (a blank cell reads as 0)"
 
-TABLE_MAX_CELLS = 4_000_000
-"""Most cells read from one workbook sheet (a compressed workbook can expand a lot)."""
+# TABLE_MAX_CELLS: most cells read from one sheet (a compressed workbook expands a lot).
 
 
 def read_frame(source: Any, *, what: str = "table") -> pd.DataFrame:
