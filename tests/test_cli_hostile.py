@@ -350,3 +350,25 @@ def test_failed_writes_leave_nothing(os_runs):
         p.communicate(timeout=120)
     assert sorted(p.name for p in folder.iterdir() if p.name.startswith((".", "full"))) == []
     assert list((folder / "ro").iterdir()) == []
+
+
+# -- output paths the operating system refuses --------------------------------------------
+
+LONG = "a" * 300  # longer than any file system's 255-byte name
+
+
+@pytest.mark.parametrize("args, fragment", [
+    # reproducers: each gave "unexpected OSError", exit 3
+    (["check", f"{LONG}.yaml"], "plan file must be a path the system accepts"),
+    (["solve", "plan.yaml", "--excel", f"{LONG}.xlsx"], "--excel must be a path the system"),
+    (["solve", "plan.yaml", "--report", f"{LONG}.html"], "--report must be a path the system"),
+    (["solve", "plan.yaml", "--out", LONG], "--out must be a path the system accepts"),
+    (["solve", "plan.yaml", "--out", f"{LONG}/tables"], "--out must be a path the system"),
+    (["solve", "plan.yaml", "--charts", LONG], "--charts must be a path the system"),
+    (["demo", "--copy", LONG], "--copy must be a path the system accepts"),
+    (["stress", "plan.yaml", "--out", f"{LONG}.csv"], "--out must be a path the system"),
+    (["revise", "plan.yaml", "flows.csv", "--from-year", "2030", "--excel", f"{LONG}.xlsx"],
+     "--excel must be a path the system"),
+])
+def test_output_paths_the_system_refuses_are_invalid_input(bad, monkeypatch, args, fragment):
+    check_one_line(invoke(bad, monkeypatch, args), 2, fragment)

@@ -180,7 +180,9 @@ def _writing(path: Path, option: str = "") -> Iterator[None]:
 def _input_file(path: Path, what: str) -> Path:
     """``path`` if it is a regular file: folders, devices, pipes and sockets are
     refused before anything reads them (a pipe or /dev/zero would never end)."""
-    if not path.exists():
+    from ..io.atomic import _valid
+
+    if not _valid(path, what).exists():
         raise invalid(what, "name an existing file", str(path))
     if not path.is_file():
         kind = "a folder" if path.is_dir() else "a pipe, device or socket"
@@ -231,11 +233,14 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
 def _distinct(named: dict[str, Path | None]) -> list[tuple[str, Path, Path]]:
     """The outputs given, as (option, path, absolute path); two options naming one
     path are refused."""
+    from ..io.atomic import _valid
+
     seen: dict[Path, str] = {}
     out = []
     for opt, p in named.items():
         if p is None:
             continue
+        _valid(p, opt)  # a NUL byte or a name too long: refused before anything else
         full = _resolved(p)
         if full in seen:
             raise invalid(opt, f"differ from {seen[full]}", str(p))

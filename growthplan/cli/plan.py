@@ -15,6 +15,7 @@ from ..errors import InvalidInput, invalid
 from .base import (
     _charts,
     _check_outputs,
+    _distinct,
     _excel,
     _exit,
     _exit_code,
@@ -201,6 +202,7 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
     from ..results.report import targets_table
 
     if copy_to is not None:
+        _distinct({"--copy": copy_to})  # a path the system refuses: said in one line
         if copy_to.exists() and not overwrite and (not copy_to.is_dir()
                                                    or any(copy_to.iterdir())):
             raise invalid("--copy", "name a new or empty folder (pass --overwrite to replace "

@@ -112,8 +112,25 @@ def _stat(path: Path) -> os.stat_result | None:
         raise _os_error("path", "be a path you can reach", path, exc) from None
 
 
+def _valid(path: PathLike, field: str) -> Path:
+    """``path`` as a Path, refused in the message template when no system accepts it
+    (a NUL byte, a name longer than the file system takes)."""
+    try:
+        p = Path(path)
+        os.stat(p)
+    except (FileNotFoundError, NotADirectoryError):
+        pass
+    except ValueError:  # an embedded NUL byte
+        raise invalid(field, "be a valid path (no NUL character)", str(path)) from None
+    except TypeError:
+        raise invalid(field, "be a path", path) from None
+    except OSError as exc:
+        raise _os_error(field, "be a path the system accepts", Path(path), exc) from None
+    return p
+
+
 def _resolved(paths: Iterable[PathLike]) -> list[Path]:
-    return [Path(p).resolve() for p in paths]
+    return [_valid(p, "protect").resolve() for p in paths]
 
 
 def _make_parent(folder: Path) -> None:
@@ -169,7 +186,7 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
         A target that is a folder, a device, exists without ``overwrite``,
         is protected, or lies in a folder that cannot be written.
     """
-    targets = [Path(p) for p in paths]
+    targets = [_valid(p, "path") for p in paths]
     protected = _resolved(protect)
     if len({t.resolve() for t in targets}) != len(targets):
         raise invalid("path", "name each file once", [str(t) for t in targets])
@@ -331,7 +348,7 @@ def atomic_folder(path: PathLike, *, overwrite: bool = False,
         ``overwrite``, holds a file of a new file's name that the library did
         not write, or cannot be written.
     """
-    target = Path(path)
+    target = _valid(path, "folder")
     protected = _resolved(protect)
     _check_folder_target(target, overwrite, protected)
     existed = _stat(target) is not None

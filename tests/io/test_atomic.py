@@ -174,3 +174,17 @@ def test_charts_all_or_none(tmp_path, monkeypatch):
     with pytest.raises(KeyboardInterrupt):
         save_charts(result, tmp_path / "charts")
     assert len(calls) == 3 and list(tmp_path.iterdir()) == []
+
+
+@pytest.mark.parametrize("name, rule", [
+    ("a\0b.csv", "be a valid path (no NUL character)"),  # was a bare ValueError
+    ("a" * 300 + ".csv", "be a path the system accepts"),
+    ("a" * 300 + "/b.csv", "be a path the system accepts"),
+])
+def test_paths_the_system_refuses_are_invalid_input(tmp_path, name, rule):
+    for write in (lambda p: atomic_file(p), lambda p: atomic_files([p]),
+                  lambda p: atomic_folder(p)):
+        with pytest.raises(gp.InvalidInput, match=rf"must {rule}\. Got"):
+            with write(tmp_path / name):
+                pass
+    assert list(tmp_path.iterdir()) == []
