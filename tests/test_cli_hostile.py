@@ -372,3 +372,40 @@ LONG = "a" * 300  # longer than any file system's 255-byte name
 ])
 def test_output_paths_the_system_refuses_are_invalid_input(bad, monkeypatch, args, fragment):
     check_one_line(invoke(bad, monkeypatch, args), 2, fragment)
+
+
+# -- --overwrite replaces only files growthplan wrote -------------------------------------
+
+@pytest.mark.parametrize("args, name", [
+    # reproducers: each replaced the analyst's own file
+    (["demo", "--excel", "mine.xlsx", "--overwrite"], "mine.xlsx"),
+    (["demo", "--report", "mine.html", "--overwrite"], "mine.html"),
+    (["stress", "plan.yaml", "--out", "mine.csv", "--overwrite"], "mine.csv"),
+    (["reoptimise", "plan.yaml", "--excel", "mine.xlsx", "--overwrite"], "mine.xlsx"),
+])
+def test_overwrite_refuses_files_growthplan_did_not_write(bad, monkeypatch, args, name):
+    (bad / name).write_text("the analyst's own")
+    try:
+        res = invoke(bad, monkeypatch, args)
+        check_one_line(res, 2, f"be a file growthplan wrote to be replaced (it holds no "
+                               f"'written by growthplan' mark; pass --force")
+        assert (bad / name).read_text() == "the analyst's own"
+    finally:
+        (bad / name).unlink()
+
+
+def test_force_needs_overwrite(bad, monkeypatch):
+    check_one_line(invoke(bad, monkeypatch, ["demo", "--excel", "x.xlsx", "--force"]), 2,
+                   "--force must come with --overwrite")
+
+
+def test_force_replaces_and_then_the_file_is_ours(bad, monkeypatch, tmp_path):
+    mine = tmp_path / "mine.html"
+    mine.write_text("the analyst's own")
+    res = invoke(bad, monkeypatch, ["demo", "--no-progress", "--report", str(mine),
+                                    "--overwrite", "--force"])
+    assert res.exit_code == 0, res.stderr
+    assert "written by growthplan" in mine.read_text()
+    res = invoke(bad, monkeypatch, ["demo", "--no-progress", "--report", str(mine),
+                                    "--overwrite"])
+    assert res.exit_code == 0, res.stderr

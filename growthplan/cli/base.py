@@ -151,7 +151,8 @@ _PYTHON_ONLY = " (load_plan_file(..., allow_outside=True) reads others)"
 def _flags(message: str) -> str:
     """A library message in the command line's words: ``--overwrite``, not the keyword,
     and no advice that only the Python interface can follow."""
-    return message.replace(_PYTHON_ONLY, "").replace("overwrite=True", "--overwrite")
+    return message.replace(_PYTHON_ONLY, "").replace("overwrite=True", "--overwrite") \
+        .replace("force=True", "--force")
 
 
 @contextlib.contextmanager
@@ -227,6 +228,8 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
             _charts_replaceable(p)
         if opt == "--charts":
             _plot_extra(opt)
+        if opt in ("--excel", "--report"):
+            _replaceable(opt, p, overwrite)
         _writable(opt, p)
 
 
@@ -444,7 +447,9 @@ def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Pa
         click.echo(result.diagnosis.shortfalls.to_string(index=False))
     if report is not None:  # an impossible plan's report holds its diagnosis
         with _writing(report, "--report"):
-            click.echo(f"wrote {result.report(report, overwrite=overwrite, protect=protect)}")
+            written = result.report(report, overwrite=overwrite, protect=protect,
+                                    force=forced())
+            click.echo(f"wrote {written}")
     if not result.ok and result.diagnosis is None:
         return  # a stopped or unverified solve: nothing to hand on
     # an impossible plan's folder and workbook hold its diagnosis
@@ -453,7 +458,9 @@ def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Pa
             click.echo(f"wrote {result.to_csv(out, overwrite=overwrite, protect=protect)}")
     if excel is not None:
         with _writing(excel, "--excel"):
-            click.echo(f"wrote {result.to_excel(excel, overwrite=overwrite, protect=protect)}")
+            written = result.to_excel(excel, overwrite=overwrite, protect=protect,
+                                      force=forced())
+            click.echo(f"wrote {written}")
     if charts is not None:  # an impossible plan's charts show its targets and shortfalls
         import matplotlib
 
@@ -594,8 +601,46 @@ _report_opt = click.option("--report", type=click.Path(path_type=Path), default=
                                 "to this new file; an impossible plan's report explains why.")
 _charts = click.option("--charts", type=click.Path(path_type=Path), default=None,
                        help="Save the standard charts as PNG files into this folder.")
-_overwrite = click.option("--overwrite", is_flag=True,
-                          help="Replace existing output files and folders.")
+_FORCE = "growthplan.force"
+
+
+def _remember_force(ctx: click.Context, param: click.Parameter, value: bool) -> bool:
+    if value:
+        ctx.meta[_FORCE] = True
+    return value
+
+
+def forced() -> bool:
+    """Whether this command was given ``--force`` (replace files growthplan did not write)."""
+    ctx = click.get_current_context(silent=True)
+    return bool(ctx is not None and ctx.meta.get(_FORCE))
+
+
+def _overwrite(f: Any) -> Any:
+    """``--overwrite`` and ``--force``: the second is read through :func:`forced`, so the
+    commands keep one ``overwrite`` argument."""
+    f = click.option("--force", is_flag=True, expose_value=False, callback=_remember_force,
+                     help="With --overwrite, replace output files growthplan did not write "
+                          "too (without it such a file is refused).")(f)
+    return click.option("--overwrite", is_flag=True,
+                        help="Replace existing output files and folders growthplan "
+                             "wrote.")(f)
+
+
+def _replaceable(opt: str, p: Path, overwrite: bool) -> None:
+    """Refuse, before any solve, an existing output file that ``--overwrite`` may not
+    replace: without the flag, or without growthplan's mark and without ``--force``."""
+    from ..io.marks import MARK, ours
+
+    if forced() and not overwrite:
+        raise invalid("--force", "come with --overwrite", True)
+    if not p.is_file():
+        return
+    if not overwrite:
+        raise invalid(opt, "not exist yet (pass --overwrite to replace it)", str(p))
+    if not forced() and not ours(p):
+        raise invalid(opt, f"be a file growthplan wrote to be replaced (it holds no '{MARK}' "
+                      "mark; pass --force to replace it anyway)", str(p))
 
 
 @click.group(cls=_Main, help="Multi-year growth planning of multi-sector economies. Exit "

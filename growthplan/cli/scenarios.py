@@ -30,10 +30,12 @@ from .base import (
     _input_file,
     _overwrite,
     _reading,
+    _replaceable,
     _resolved,
     _solve,
     _writable,
     _writing,
+    forced,
     main,
 )
 
@@ -55,6 +57,7 @@ def _check_files(named: dict[str, Path | None], overwrite: bool, inputs: tuple[P
             raise invalid(opt, "name a file (it is a folder)", str(p))
         if p.exists() and not overwrite:
             raise invalid(opt, "not exist yet (pass --overwrite to replace it)", str(p))
+        _replaceable(opt, p, overwrite)
         _writable(opt, p)
 
 
@@ -76,16 +79,21 @@ def _write(out: Path | None, excel: Path | None, sheets: dict[str, pd.DataFrame]
     import pandas as pd
 
     from ..io.atomic import atomic_file
+    from ..io.workbooks import finish_workbook
 
+    force = forced()
     if out is not None:
-        with _writing(out), atomic_file(out, overwrite=overwrite, protect=protect) as tmp:
+        with _writing(out), atomic_file(out, overwrite=overwrite, protect=protect,
+                                        force=force) as tmp:
             sheets[main_sheet].to_csv(tmp, index=False)
         click.echo(f"wrote {out}")
     if excel is not None:
-        with _writing(excel), atomic_file(excel, overwrite=overwrite, protect=protect) as tmp, \
+        with _writing(excel), atomic_file(excel, overwrite=overwrite, protect=protect,
+                                          force=force) as tmp, \
                 pd.ExcelWriter(tmp, engine="openpyxl") as book:
             for name, frame in sheets.items():
                 frame.to_excel(book, sheet_name=name, index=False)
+            finish_workbook(book.book)  # names stay text; the mark for --overwrite
         click.echo(f"wrote {excel}")
 
 

@@ -41,6 +41,7 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import InvalidInput, invalid
+from .marks import MARK, ours, record
 
 __all__ = ["atomic_file", "atomic_files", "atomic_folder", "MANIFEST"]
 
@@ -143,7 +144,8 @@ def _make_parent(folder: Path) -> None:
         raise _os_error("path", "be in a folder you can create", folder, exc) from None
 
 
-def _check_file_target(target: Path, overwrite: bool, protected: list[Path]) -> None:
+def _check_file_target(target: Path, overwrite: bool, protected: list[Path],
+                       force: bool = False) -> None:
     if target.name in ("", ".", ".."):
         raise invalid("path", "name a file", str(target))
     st = _stat(target)
@@ -158,11 +160,14 @@ def _check_file_target(target: Path, overwrite: bool, protected: list[Path]) -> 
     if target.resolve() in protected:
         # the plan file and its tables, or an economy spec and its tables
         raise invalid("path", "not be one of the input files it was made from", str(target))
+    if st is not None and not force and not ours(target):
+        raise invalid("path", "be a file growthplan wrote to be replaced (it holds no "
+                      f"'{MARK}' mark; pass force=True to replace it anyway)", str(target))
 
 
 @contextlib.contextmanager
 def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
-                 protect: Iterable[PathLike] = ()) -> Iterator[list[Path]]:
+                 protect: Iterable[PathLike] = (), force: bool = False) -> Iterator[list[Path]]:
     """Write several files that appear together or not at all.
 
     Parameters
@@ -170,9 +175,12 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
     paths : iterable of path
         The files to write.
     overwrite : bool, default False
-        Replace existing files; without it an existing target is an error.
+        Replace existing files the library wrote (they carry its mark, see
+        :mod:`growthplan.io.marks`); without it an existing target is an error.
     protect : iterable of path
         Files that must never be written (the inputs the output came from).
+    force : bool, default False
+        With ``overwrite``, replace existing files that lack the library's mark too.
 
     Yields
     ------
@@ -191,7 +199,7 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
     if len({t.resolve() for t in targets}) != len(targets):
         raise invalid("path", "name each file once", [str(t) for t in targets])
     for t in targets:
-        _check_file_target(t, overwrite, protected)
+        _check_file_target(t, overwrite, protected, force)
     temps: list[Path] = []
     try:
         for t in targets:
@@ -206,12 +214,13 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
             temps.append(Path(name))
         yield list(temps)
         for t in targets:  # the targets may have appeared while the files were written
-            _check_file_target(t, overwrite, protected)
+            _check_file_target(t, overwrite, protected, force)
         mode = _file_mode()
         with _interrupt_deferred():
             for tmp, t in zip(temps, targets, strict=True):
                 os.chmod(tmp, mode)
                 os.replace(tmp, t)
+        record(targets)  # CSV files have no room for the mark: a record beside them
     finally:
         for tmp in temps:
             with contextlib.suppress(OSError):
@@ -220,7 +229,7 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
 
 @contextlib.contextmanager
 def atomic_file(path: PathLike, *, overwrite: bool = False,
-                protect: Iterable[PathLike] = ()) -> Iterator[Path]:
+                protect: Iterable[PathLike] = (), force: bool = False) -> Iterator[Path]:
     """Write one file atomically: yield a temporary path, rename it into place on success.
 
     Parameters
@@ -228,9 +237,12 @@ def atomic_file(path: PathLike, *, overwrite: bool = False,
     path : path
         The file to write. Missing parent folders are created.
     overwrite : bool, default False
-        Replace an existing file; without it an existing file is an error.
+        Replace an existing file the library wrote (it carries the library's
+        mark); without it an existing file is an error.
     protect : iterable of path
         Files that must never be written (the inputs the output came from).
+    force : bool, default False
+        With ``overwrite``, replace an existing file without the mark too.
 
     Yields
     ------
@@ -243,9 +255,10 @@ def atomic_file(path: PathLike, *, overwrite: bool = False,
     ------
     InvalidInput
         Naming the path: it is an existing folder, exists without
-        ``overwrite``, is protected, or its folder cannot be written.
+        ``overwrite``, exists without the library's mark and without
+        ``force``, is protected, or its folder cannot be written.
     """
-    with atomic_files([path], overwrite=overwrite, protect=protect) as (tmp,):
+    with atomic_files([path], overwrite=overwrite, protect=protect, force=force) as (tmp,):
         yield tmp
 
 

@@ -760,7 +760,8 @@ class Plan(Model):
 
         return solve_pulp(self, solver, problem=problem, audit_tolerance=audit_tolerance)
 
-    def write_mps(self, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
+    def write_mps(self, path: str | os.PathLike[str], *, overwrite: bool = False,
+                  force: bool = False) -> Path:
         """Write the plan's LP as an MPS file (the objective sense included).
 
         Parameters
@@ -768,7 +769,11 @@ class Plan(Model):
         path : str or path-like
             The file to write (whole or not at all).
         overwrite : bool, default False
-            Replace an existing file.
+            Replace an existing file the library wrote (its first line is the mark).
+        force : bool, default False
+            With ``overwrite``, replace a file the library did not write (one
+            without its mark, see :mod:`growthplan.io.marks`); without it such
+            a file is refused, naming it.
 
         Returns
         -------
@@ -777,9 +782,10 @@ class Plan(Model):
         """
         from ..solve import write_program
 
-        return write_program(self, path, overwrite=overwrite, kind="mps")
+        return write_program(self, path, overwrite=overwrite, kind="mps", force=force)
 
-    def write_lp(self, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
+    def write_lp(self, path: str | os.PathLike[str], *, overwrite: bool = False,
+                 force: bool = False) -> Path:
         """Write the plan's LP in the LP file format.
 
         Parameters
@@ -787,7 +793,11 @@ class Plan(Model):
         path : str or path-like
             The file to write (whole or not at all).
         overwrite : bool, default False
-            Replace an existing file.
+            Replace an existing file the library wrote (its first line is the mark).
+        force : bool, default False
+            With ``overwrite``, replace a file the library did not write (one
+            without its mark, see :mod:`growthplan.io.marks`); without it such
+            a file is refused, naming it.
 
         Returns
         -------
@@ -796,7 +806,7 @@ class Plan(Model):
         """
         from ..solve import write_program
 
-        return write_program(self, path, overwrite=overwrite, kind="lp")
+        return write_program(self, path, overwrite=overwrite, kind="lp", force=force)
 
     def with_horizon(self, years: int) -> Plan:
         """This plan over its first ``years`` years, targets moved to the end (see Fastest).

@@ -39,7 +39,7 @@ from numpy.typing import ArrayLike
 from ..errors import InvalidInput, invalid, show
 from ..io.atomic import atomic_files
 from ..io.files import read_regular_file
-from ..limits import TABLE_MAX_BYTES, TABLE_MAX_CELLS, TABLE_MAX_COLUMNS
+from ..limits import TABLE_MAX_BYTES, TABLE_MAX_CELLS
 from ..model.economy import CapitalSpec, Economy, Sector
 from ..model.validation import Rule, align_labels, raise_plain
 

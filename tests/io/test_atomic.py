@@ -40,7 +40,7 @@ def test_file_appears_on_success_with_umask_permissions(tmp_path, umask_022):
 def test_file_left_untouched_on_any_error(tmp_path, error):
     target = tmp_path / "out.csv"
     target.write_text("old")
-    with pytest.raises(error), atomic_file(target, overwrite=True) as tmp:
+    with pytest.raises(error), atomic_file(target, overwrite=True, force=True) as tmp:
         tmp.write_text("half")
         raise error
     assert target.read_text() == "old"
@@ -71,7 +71,10 @@ def test_files_appear_together(tmp_path):
         ta.write_text("1")
         tb.write_text("2")
     assert not a.exists() and b.read_text() == "old"
-    with atomic_files([a, b], overwrite=True) as (ta, tb):
+    with pytest.raises(gp.InvalidInput, match="force=True"), \
+            atomic_files([a, b], overwrite=True) as (ta, tb):
+        pass  # b.csv was not written by the library
+    with atomic_files([a, b], overwrite=True, force=True) as (ta, tb):
         ta.write_text("1")
         tb.write_text("2")
     assert a.read_text() == "1" and b.read_text() == "2"
