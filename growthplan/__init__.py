@@ -16,8 +16,12 @@ Examples
 
 from __future__ import annotations
 
-import importlib
-from typing import TYPE_CHECKING, Any
+from .startup import command_signals
+
+command_signals()  # first: a signal while the command starts ends it in one line
+
+import importlib  # noqa: E402
+from typing import TYPE_CHECKING, Any  # noqa: E402
 
 if TYPE_CHECKING:
     from . import backends

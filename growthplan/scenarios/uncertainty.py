@@ -27,7 +27,7 @@ from __future__ import annotations
 import math
 import os
 import warnings
-from concurrent.futures import Executor, ProcessPoolExecutor
+from concurrent.futures import Executor
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass, field
 from typing import Annotated, Any, Literal
@@ -666,7 +666,16 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
     At most ``in_flight`` chunks are out at a time (default four per worker).
     """
     from ..progress import sweep_progress
-    from .sweep import LOST, _scattered, _token, _warm, check_workers, in_order, owned_pool
+    from .sweep import (
+        LOST,
+        _scattered,
+        _token,
+        _warm,
+        check_workers,
+        in_order,
+        owned_pool,
+        worker_pool,
+    )
 
     own = executor is None
     workers = check_workers(max_workers) or os.cpu_count() or 1
@@ -677,8 +686,7 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
     jobs = [(kind, plan, spec, g, extra) for g in groups]
     key = _token()
     if own:
-        pool: Executor = ProcessPoolExecutor(max_workers=workers, initializer=_warm,
-                                             initargs=(key, (kind, plan, spec, extra)))
+        pool: Executor = worker_pool(workers, _warm, (key, (kind, plan, spec, extra)))
         fn: Any = _chunk_warm
         args: list[Any] = [(key, g) for g in groups]
     else:
@@ -705,10 +713,12 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
 
 def _alone(job: tuple[Any, ...], mp_context: Any) -> list[tuple[Any, ...]]:
     """Draws of a chunk whose pool broke, each in a fresh one-worker pool."""
+    from .sweep import worker_pool
+
     kind, plan, spec, draws, extra = job
     rows: list[tuple[Any, ...]] = []
     for i in draws:
-        with ProcessPoolExecutor(max_workers=1, mp_context=mp_context) as pool:
+        with worker_pool(1, mp_context=mp_context) as pool:
             try:
                 rows.extend(pool.submit(_chunk, (kind, plan, spec, [i], extra)).result())
             except BrokenProcessPool:
