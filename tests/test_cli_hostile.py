@@ -387,8 +387,8 @@ def test_overwrite_refuses_files_growthplan_did_not_write(bad, monkeypatch, args
     (bad / name).write_text("the analyst's own")
     try:
         res = invoke(bad, monkeypatch, args)
-        check_one_line(res, 2, f"be a file growthplan wrote to be replaced (it holds no "
-                               f"'written by growthplan' mark; pass --force")
+        check_one_line(res, 2, "be a file growthplan wrote to be replaced (it holds no "
+                               "'written by growthplan' mark; pass --force")
         assert (bad / name).read_text() == "the analyst's own"
     finally:
         (bad / name).unlink()
@@ -409,3 +409,18 @@ def test_force_replaces_and_then_the_file_is_ours(bad, monkeypatch, tmp_path):
     res = invoke(bad, monkeypatch, ["demo", "--no-progress", "--report", str(mine),
                                     "--overwrite"])
     assert res.exit_code == 0, res.stderr
+
+
+def test_outputs_appear_together_or_not_at_all(bad, monkeypatch, tmp_path):
+    # reproducer: the workbook failed after the report and the CSV folder were written
+    import growthplan.results.workbook as workbook
+
+    def failing(*args, **kwargs):
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(workbook, "write_workbook", failing)
+    out, excel, report = tmp_path / "tables", tmp_path / "plan.xlsx", tmp_path / "plan.html"
+    res = invoke(bad, monkeypatch, ["demo", "--no-progress", "--out", str(out),
+                                    "--report", str(report), "--excel", str(excel)])
+    check_one_line(res, 2, "No space left on device")
+    assert sorted(tmp_path.iterdir()) == []  # no report, no folder, no temporary files

@@ -18,10 +18,8 @@ import contextlib
 import gc
 import importlib.util
 import os
-import shutil
 import signal
 import sys
-import tempfile
 import threading
 import traceback
 import warnings
@@ -421,23 +419,6 @@ def _solve(plan: Plan, **options: Any) -> PlanResult:
     return box["result"]
 
 
-@contextlib.contextmanager
-def _fresh_folder(target: Path, overwrite: bool) -> Iterator[Path]:
-    """A folder beside ``target`` that becomes ``target`` only when the block
-    ends normally (a new folder only; an existing one is written in place)."""
-    if target.exists():
-        yield target
-        return
-    target.parent.mkdir(parents=True, exist_ok=True)
-    tmp = Path(tempfile.mkdtemp(prefix=f".{target.name}.", dir=target.parent))
-    try:
-        yield tmp
-        tmp.rename(target)
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise
-
-
 def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Path | None,
             overwrite: bool, protect: tuple[Path, ...] = (),
             report: Path | None = None) -> None:
@@ -445,32 +426,35 @@ def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Pa
     if result.diagnosis is not None and not result.diagnosis.shortfalls.empty:
         click.echo("\nShortfalls (elastic re-solve):")
         click.echo(result.diagnosis.shortfalls.to_string(index=False))
-    if report is not None:  # an impossible plan's report holds its diagnosis
-        with _writing(report, "--report"):
-            written = result.report(report, overwrite=overwrite, protect=protect,
-                                    force=forced())
-            click.echo(f"wrote {written}")
-    if not result.ok and result.diagnosis is None:
-        return  # a stopped or unverified solve: nothing to hand on
-    # an impossible plan's folder and workbook hold its diagnosis
-    if out is not None:
-        with _writing(out, "--out"):
-            click.echo(f"wrote {result.to_csv(out, overwrite=overwrite, protect=protect)}")
-    if excel is not None:
-        with _writing(excel, "--excel"):
-            written = result.to_excel(excel, overwrite=overwrite, protect=protect,
-                                      force=forced())
-            click.echo(f"wrote {written}")
-    if charts is not None:  # an impossible plan's charts show its targets and shortfalls
-        import matplotlib
+    from ..io.atomic import together
 
-        matplotlib.use("Agg")
-        from ..results.charts import save_charts
+    wrote: list[Path] = []
+    # every output is written and checked first; they appear together or none does
+    with together():
+        if report is not None:  # an impossible plan's report holds its diagnosis
+            with _writing(report, "--report"):
+                wrote.append(result.report(report, overwrite=overwrite, protect=protect,
+                                           force=forced()))
+        if result.ok or result.diagnosis is not None:  # else nothing to hand on
+            # an impossible plan's folder and workbook hold its diagnosis
+            if out is not None:
+                with _writing(out, "--out"):
+                    wrote.append(result.to_csv(out, overwrite=overwrite, protect=protect))
+            if excel is not None:
+                with _writing(excel, "--excel"):
+                    wrote.append(result.to_excel(excel, overwrite=overwrite, protect=protect,
+                                                 force=forced()))
+            if charts is not None:  # an impossible plan's charts show its shortfalls
+                import matplotlib
 
-        with _writing(charts, "--charts"), _fresh_folder(charts, overwrite) as folder:
-            written = save_charts(result, folder, overwrite=overwrite, protect=protect)
-        for p in written:
-            click.echo(f"wrote {charts / p.name}")
+                matplotlib.use("Agg")
+                from ..results.charts import save_charts
+
+                with _writing(charts, "--charts"):
+                    wrote.extend(save_charts(result, charts, overwrite=overwrite,
+                                             protect=protect))
+    for p in wrote:
+        click.echo(f"wrote {p}")
 
 
 def _plural(n: int, word: str, many: str | None = None) -> str:

@@ -9,7 +9,7 @@ file is checked before anything is solved and written atomically.
 
 from __future__ import annotations
 
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 from concurrent.futures import Executor
 from contextlib import contextmanager
 from pathlib import Path
@@ -76,17 +76,29 @@ def _protected(plan_file: Path, *more: Path) -> tuple[Path, ...]:
 
 def _write(out: Path | None, excel: Path | None, sheets: dict[str, pd.DataFrame],
            main_sheet: str, overwrite: bool, protect: tuple[Path, ...]) -> None:
+
+    from ..io.atomic import together
+
+    force = forced()
+    with together():  # both files appear, or neither
+        _write_files(out, excel, sheets, main_sheet, overwrite, protect, force)
+    for p in (out, excel):
+        if p is not None:
+            click.echo(f"wrote {p}")
+
+
+def _write_files(out: Path | None, excel: Path | None, sheets: dict[str, pd.DataFrame],
+                 main_sheet: str, overwrite: bool, protect: tuple[Path, ...],
+                 force: bool) -> None:
     import pandas as pd
 
     from ..io.atomic import atomic_file
     from ..io.workbooks import finish_workbook
 
-    force = forced()
     if out is not None:
         with _writing(out), atomic_file(out, overwrite=overwrite, protect=protect,
                                         force=force) as tmp:
             sheets[main_sheet].to_csv(tmp, index=False)
-        click.echo(f"wrote {out}")
     if excel is not None:
         with _writing(excel), atomic_file(excel, overwrite=overwrite, protect=protect,
                                           force=force) as tmp, \
@@ -94,7 +106,6 @@ def _write(out: Path | None, excel: Path | None, sheets: dict[str, pd.DataFrame]
             for name, frame in sheets.items():
                 frame.to_excel(book, sheet_name=name, index=False)
             finish_workbook(book.book)  # names stay text; the mark for --overwrite
-        click.echo(f"wrote {excel}")
 
 
 @contextmanager
@@ -124,7 +135,7 @@ def _load(plan_file: Path, draws: int | None, seed: int | None) -> tuple[Any, An
 
 
 def _analysis_options(f: Any) -> Any:
-    for option in reversed([
+    options: list[Callable[[Any], Any]] = [
         click.option("--draws", type=click.IntRange(min=1, max=MAX_DRAWS), default=None,
                      help="Drawn economies (default: the plan file's uncertainty.draws)."),
         click.option("--seed", type=click.IntRange(min=0), default=None,
@@ -135,7 +146,8 @@ def _analysis_options(f: Any) -> Any:
         _csv_out, _xlsx_out, _overwrite,
         click.option("--progress/--no-progress", default=True, show_default=True,
                      help="A progress bar over the draws."),
-    ]):
+    ]
+    for option in reversed(options):
         f = option(f)
     return f
 

@@ -36,14 +36,14 @@ import signal
 import stat
 import tempfile
 import threading
-from collections.abc import Iterable, Iterator
+from collections.abc import Callable, Iterable, Iterator
 from pathlib import Path
 from typing import Any
 
 from ..errors import InvalidInput, invalid
 from .marks import MARK, ours, record
 
-__all__ = ["atomic_file", "atomic_files", "atomic_folder", "MANIFEST"]
+__all__ = ["atomic_file", "atomic_files", "atomic_folder", "together", "MANIFEST"]
 
 MANIFEST = ".growthplan-manifest"
 _MANIFEST_MAX_BYTES = 1 << 20
@@ -201,6 +201,7 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
     for t in targets:
         _check_file_target(t, overwrite, protected, force)
     temps: list[Path] = []
+    deferred = False
     try:
         for t in targets:
             _make_parent(t.parent)
@@ -215,14 +216,27 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
         yield list(temps)
         for t in targets:  # the targets may have appeared while the files were written
             _check_file_target(t, overwrite, protected, force)
-        mode = _file_mode()
-        with _interrupt_deferred():
-            for tmp, t in zip(temps, targets, strict=True):
-                os.chmod(tmp, mode)
-                os.replace(tmp, t)
-        record(targets)  # CSV files have no room for the mark: a record beside them
+
+        def commit() -> None:
+            for t in targets:
+                _check_file_target(t, overwrite, protected, force)
+            mode = _file_mode()
+            with _interrupt_deferred():
+                for tmp, t in zip(temps, targets, strict=True):
+                    os.chmod(tmp, mode)
+                    os.replace(tmp, t)
+            record(targets)  # CSV files have no room for the mark: a record beside them
+
+        def discard() -> None:
+            for tmp in temps:
+                with contextlib.suppress(OSError):
+                    tmp.unlink(missing_ok=True)
+
+        deferred = _defer(commit, discard)
+        if not deferred:
+            commit()
     finally:
-        for tmp in temps:
+        for tmp in temps if not deferred else ():
             with contextlib.suppress(OSError):
                 tmp.unlink(missing_ok=True)
 
@@ -260,6 +274,60 @@ def atomic_file(path: PathLike, *, overwrite: bool = False,
     """
     with atomic_files([path], overwrite=overwrite, protect=protect, force=force) as (tmp,):
         yield tmp
+
+
+# -- outputs that appear together -----------------------------------------
+
+_BATCH: list[list[tuple[Callable[[], None], Callable[[], None]]]] = []
+
+
+def _defer(commit: Callable[[], None], discard: Callable[[], None]) -> bool:
+    """Hand a checked, written output to the open :func:`together` block (False: none)."""
+    if not _BATCH or threading.current_thread() is not threading.main_thread():
+        return False
+    _BATCH[-1].append((commit, discard))
+    return True
+
+
+@contextlib.contextmanager
+def together() -> Iterator[None]:
+    """Outputs written in the block appear together at its end, or none of them.
+
+    Every :func:`atomic_file`, :func:`atomic_files` and :func:`atomic_folder`
+    inside the block writes and checks its files as usual, but the renames
+    into place wait for the end of the block; an error or an interrupt in the
+    block removes every output written so far (a command's workbook, report
+    and folder of tables are all written or none is).
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     try:
+    ...         with together():
+    ...             with atomic_file(Path(folder) / "a.txt") as tmp:
+    ...                 _ = tmp.write_text("first")
+    ...             raise RuntimeError("the second output failed")
+    ...     except RuntimeError:
+    ...         pass
+    ...     print(sorted(p.name for p in Path(folder).iterdir()))
+    []
+    """
+    pending: list[tuple[Callable[[], None], Callable[[], None]]] = []
+    _BATCH.append(pending)
+    done = 0
+    try:
+        yield
+        _BATCH.pop()
+        with _interrupt_deferred():
+            for commit, _ in pending:
+                commit()
+                done += 1
+    finally:
+        if _BATCH and _BATCH[-1] is pending:
+            _BATCH.pop()
+        for _, discard in pending[done:]:
+            discard()
 
 
 # -- folders ---------------------------------------------------------------
@@ -374,6 +442,39 @@ def atomic_folder(path: PathLike, *, overwrite: bool = False,
     moved = False
     try:
         yield tmp
+        _precheck_folder(tmp, target, overwrite, protected)
+        if _defer(lambda: _commit_folder(tmp, target, overwrite, protected, kind, existed),
+                  lambda: shutil.rmtree(tmp, ignore_errors=True)):
+            moved = True  # at the end of the batch, or removed then
+            return
+        _commit_folder(tmp, target, overwrite, protected, kind, existed)
+        moved = True
+    finally:
+        if not moved:
+            shutil.rmtree(tmp, ignore_errors=True)
+
+
+def _precheck_folder(tmp: Path, target: Path, overwrite: bool,
+                     protected: list[Path]) -> None:
+    """What :func:`_commit_folder` would refuse, refused before anything moves."""
+    with os.scandir(tmp) as listing:
+        names = [e.name for e in listing if e.name != MANIFEST]
+    _check_folder_target(target, overwrite, protected, ignore=tmp.name)
+    if _stat(target) is None:
+        return
+    ours = {n for v in _read_manifest(target).values() for n in v}
+    for name in sorted(names):
+        if os.path.lexists(target / name) and name not in ours:
+            raise invalid("folder", "not hold files growthplan did not write under the "
+                          "names it writes (move them, or choose another folder)",
+                          str(target / name))
+
+
+def _commit_folder(tmp: Path, target: Path, overwrite: bool, protected: list[Path],
+                   kind: str, existed: bool) -> None:
+    """Move the files of ``tmp`` into ``target`` (see :func:`atomic_folder`)."""
+    moved = False
+    try:
         with os.scandir(tmp) as listing:
             entries = sorted(listing, key=lambda e: e.name)
         for e in entries:
