@@ -101,7 +101,7 @@ def test_second_signal_stops_at_once(monkeypatch):
     threading.Thread(target=two_interrupts, daemon=True).start()
     try:
         with pytest.raises(KeyboardInterrupt):
-            cli._solve(Stubborn())
+            cli.solve_stoppable(Stubborn())
     finally:
         release.set()
     assert stops[0].is_set()  # the first signal asked the solve to stop

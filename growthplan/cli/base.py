@@ -64,7 +64,7 @@ def _say(message: str) -> None:
         click.echo(_one_line(message), err=True)
 
 
-def _exit(code: int) -> NoReturn:
+def exit_with(code: int) -> NoReturn:
     sys.exit(code)
 
 
@@ -114,7 +114,7 @@ def _culprit(exc: BaseException, default: Path) -> str:
 
 
 @contextlib.contextmanager
-def _reading(path: Path) -> Iterator[None]:
+def reading_input(path: Path) -> Iterator[None]:
     """Turn any failure while reading input into exit 2, naming the file."""
     try:
         yield
@@ -154,7 +154,7 @@ def _flags(message: str) -> str:
 
 
 @contextlib.contextmanager
-def _writing(path: Path, option: str = "") -> Iterator[None]:
+def writing_output(path: Path, option: str = "") -> Iterator[None]:
     """Turn an operating-system failure while writing into exit 2, naming the path;
     a library refusal is worded for the command line (its option, ``--overwrite``)."""
     message = None
@@ -176,12 +176,12 @@ def _writing(path: Path, option: str = "") -> Iterator[None]:
         raise Failure(message, EXIT_INVALID)
 
 
-def _input_file(path: Path, what: str) -> Path:
+def input_file(path: Path, what: str) -> Path:
     """``path`` if it is a regular file: folders, devices, pipes and sockets are
     refused before anything reads them (a pipe or /dev/zero would never end)."""
-    from ..io.atomic import _valid
+    from ..io.atomic import valid_path
 
-    if not _valid(path, what).exists():
+    if not valid_path(path, what).exists():
         raise invalid(what, "name an existing file", str(path))
     if not path.is_file():
         kind = "a folder" if path.is_dir() else "a pipe, device or socket"
@@ -189,28 +189,28 @@ def _input_file(path: Path, what: str) -> Path:
     return path
 
 
-def _resolved(p: Path) -> Path:
+def absolute_path(p: Path) -> Path:
     return Path(os.path.abspath(p))
 
 
-def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
+def check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
                    overwrite: bool, inputs: tuple[Path, ...] = (),
                    report: Path | None = None, input_name: str = "the plan file") -> None:
     """Refuse outputs that cannot be written before any time goes into solving
     (``input_name``: the inputs in words, for the messages)."""
     named = {"--out": out, "--excel": excel, "--charts": charts, "--report": report}
-    for opt, p, full in _distinct(named):
+    for opt, p, full in distinct_outputs(named):
         if p.exists() and not overwrite and opt != "--charts":
             raise invalid(opt, "not exist yet (pass --overwrite to replace it)", str(p))
         if opt == "--out":
-            cwd = _resolved(Path.cwd())
+            cwd = absolute_path(Path.cwd())
             if full == cwd or full in cwd.parents:
                 raise invalid(opt, "not be the current folder or one holding it", str(p))
-            if any(full in _resolved(i).parents for i in inputs):
+            if any(full in absolute_path(i).parents for i in inputs):
                 raise invalid(opt, f"not be a folder holding {input_name}", str(p))
             if p.exists() and not p.is_dir():
                 raise invalid(opt, "name a folder (it is a file)", str(p))
-        if opt != "--out" and any(full == _resolved(i) for i in inputs):
+        if opt != "--out" and any(full == absolute_path(i) for i in inputs):
             raise invalid(opt, f"not be {input_name}", str(p))
         if opt in ("--excel", "--report") and p.is_dir():
             raise invalid(opt, "name a file (it is a folder)", str(p))
@@ -227,22 +227,22 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
         if opt == "--charts":
             _plot_extra(opt)
         if opt in ("--excel", "--report"):
-            _replaceable(opt, p, overwrite)
-        _writable(opt, p)
+            replaceable(opt, p, overwrite)
+        writable(opt, p)
 
 
-def _distinct(named: dict[str, Path | None]) -> list[tuple[str, Path, Path]]:
+def distinct_outputs(named: dict[str, Path | None]) -> list[tuple[str, Path, Path]]:
     """The outputs given, as (option, path, absolute path); two options naming one
     path are refused."""
-    from ..io.atomic import _valid
+    from ..io.atomic import valid_path
 
     seen: dict[Path, str] = {}
     out = []
     for opt, p in named.items():
         if p is None:
             continue
-        _valid(p, opt)  # a NUL byte or a name too long: refused before anything else
-        full = _resolved(p)
+        valid_path(p, opt)  # a NUL byte or a name too long: refused before anything else
+        full = absolute_path(p)
         if full in seen:
             raise invalid(opt, f"differ from {seen[full]}", str(p))
         seen[full] = opt
@@ -250,9 +250,9 @@ def _distinct(named: dict[str, Path | None]) -> list[tuple[str, Path, Path]]:
     return out
 
 
-def _writable(opt: str, p: Path) -> None:
+def writable(opt: str, p: Path) -> None:
     """Refuse ``p`` when no folder it would be created in can be written."""
-    parent = _resolved(p).parent
+    parent = absolute_path(p).parent
     while not parent.exists() and parent != parent.parent:
         parent = parent.parent
     if not parent.is_dir():
@@ -262,17 +262,17 @@ def _writable(opt: str, p: Path) -> None:
 
 
 _SUFFIXES = {"--excel": (".xlsx",), "--report": (".html", ".htm")}
-_CHART_NAMES = ("output", "capacity", "starts", "labour", "shadow_prices", "ray_distance",
+CHART_NAMES = ("output", "capacity", "starts", "labour", "shadow_prices", "ray_distance",
                 "consumption", "targets", "utilisation", "diagnosis")
 
 
 def _charts_replaceable(folder: Path) -> None:
     """Refuse before the solve a chart folder the chart writer would refuse after it:
     one holding a file under a chart's name that growthplan did not write there."""
-    from ..io.atomic import _read_manifest
+    from ..io.atomic import read_manifest
 
-    ours = {name for names in _read_manifest(folder).values() for name in names}
-    for name in _CHART_NAMES:
+    ours = {name for names in read_manifest(folder).values() for name in names}
+    for name in CHART_NAMES:
         if (folder / f"{name}.png").exists() and f"{name}.png" not in ours:
             raise invalid("--charts", "not hold files growthplan did not write under the "
                           "names it writes (move them, or choose another folder)",
@@ -304,7 +304,8 @@ def _finite(value: float | None) -> float | None:
 
 
 
-def _seconds(ctx: click.Context, param: click.Parameter, value: float | None) -> float | None:
+def positive_seconds(ctx: click.Context, param: click.Parameter,
+                     value: float | None) -> float | None:
     """A time limit: a finite number of seconds above 0 (0 would stop before starting)."""
     if value is None:
         return None
@@ -314,7 +315,7 @@ def _seconds(ctx: click.Context, param: click.Parameter, value: float | None) ->
     return value
 
 
-def _exit_code(result: PlanResult) -> int:
+def result_exit_code(result: PlanResult) -> int:
     from .. import Status
 
     return {Status.OPTIMAL: EXIT_OK, Status.INFEASIBLE: EXIT_INFEASIBLE,
@@ -372,7 +373,7 @@ def _raise_interrupt(signum: int, frame: FrameType | None) -> None:
 _SOLVES: set[threading.Thread] = set()  # solve threads not yet finished
 
 
-def _solve(plan: Plan, **options: Any) -> PlanResult:
+def solve_stoppable(plan: Plan, **options: Any) -> PlanResult:
     """``plan.solve`` that a first SIGINT/SIGTERM stops through ``stop=``.
 
     The solve runs in a worker thread so the main thread is always free to
@@ -419,7 +420,7 @@ def _solve(plan: Plan, **options: Any) -> PlanResult:
     return box["result"]
 
 
-def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Path | None,
+def report_result(result: PlanResult, out: Path | None, excel: Path | None, charts: Path | None,
             overwrite: bool, protect: tuple[Path, ...] = (),
             report: Path | None = None) -> None:
     click.echo(str(result.summary()))
@@ -432,16 +433,16 @@ def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Pa
     # every output is written and checked first; they appear together or none does
     with together():
         if report is not None:  # an impossible plan's report holds its diagnosis
-            with _writing(report, "--report"):
+            with writing_output(report, "--report"):
                 wrote.append(result.report(report, overwrite=overwrite, protect=protect,
                                            force=forced()))
         if result.ok or result.diagnosis is not None:  # else nothing to hand on
             # an impossible plan's folder and workbook hold its diagnosis
             if out is not None:
-                with _writing(out, "--out"):
+                with writing_output(out, "--out"):
                     wrote.append(result.to_csv(out, overwrite=overwrite, protect=protect))
             if excel is not None:
-                with _writing(excel, "--excel"):
+                with writing_output(excel, "--excel"):
                     wrote.append(result.to_excel(excel, overwrite=overwrite, protect=protect,
                                                  force=forced()))
             if charts is not None:  # an impossible plan's charts show its shortfalls
@@ -450,19 +451,19 @@ def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Pa
                 matplotlib.use("Agg")
                 from ..results.charts import save_charts
 
-                with _writing(charts, "--charts"):
+                with writing_output(charts, "--charts"):
                     wrote.extend(save_charts(result, charts, overwrite=overwrite,
                                              protect=protect))
     for p in wrote:
         click.echo(f"wrote {p}")
 
 
-def _plural(n: int, word: str, many: str | None = None) -> str:
+def plural(n: int, word: str, many: str | None = None) -> str:
     """``1 target``, ``2 targets``: a count with its noun in the right number."""
     return f"{n} {word if n == 1 else (many or word + 's')}"
 
 
-def _key_schedules(result: PlanResult) -> None:
+def key_schedules(result: PlanResult) -> None:
     """Output by sector in the first, middle and last plan year, and what binds first."""
     if not result.ok:
         return
@@ -485,7 +486,7 @@ def _key_schedules(result: PlanResult) -> None:
         click.echo(years.to_string(na_rep="never"))
 
 
-def _next_steps(out: Path | None, excel: Path | None, report: Path | None,
+def next_steps(out: Path | None, excel: Path | None, report: Path | None,
                 charts: Path | None) -> None:
     """The exports this run did not write, as the options that write them."""
     steps = [(out, "--out FOLDER", "every schedule as CSV"),
@@ -573,17 +574,17 @@ class _Main(click.Group):
                 SystemExit):
             raise
         except BaseException as exc:  # noqa: BLE001 - every failure is one line
-            _exit(_report_failure(exc))
+            exit_with(_report_failure(exc))
 
 
-_out = click.option("--out", type=click.Path(path_type=Path), default=None,
+out_option = click.option("--out", type=click.Path(path_type=Path), default=None,
                     help="Write every schedule as CSV into this new folder.")
-_excel = click.option("--excel", type=click.Path(path_type=Path), default=None,
+excel_option = click.option("--excel", type=click.Path(path_type=Path), default=None,
                       help="Write every schedule as a sheet of this new workbook.")
-_report_opt = click.option("--report", type=click.Path(path_type=Path), default=None,
+report_option = click.option("--report", type=click.Path(path_type=Path), default=None,
                            help="Write a self-contained HTML report (charts need matplotlib) "
                                 "to this new file; an impossible plan's report explains why.")
-_charts = click.option("--charts", type=click.Path(path_type=Path), default=None,
+charts_option = click.option("--charts", type=click.Path(path_type=Path), default=None,
                        help="Save the standard charts as PNG files into this folder.")
 _FORCE = "growthplan.force"
 
@@ -600,7 +601,7 @@ def forced() -> bool:
     return bool(ctx is not None and ctx.meta.get(_FORCE))
 
 
-def _overwrite(f: Any) -> Any:
+def overwrite_options(f: Any) -> Any:
     """``--overwrite`` and ``--force``: the second is read through :func:`forced`, so the
     commands keep one ``overwrite`` argument."""
     f = click.option("--force", is_flag=True, expose_value=False, callback=_remember_force,
@@ -611,7 +612,7 @@ def _overwrite(f: Any) -> Any:
                              "wrote.")(f)
 
 
-def _replaceable(opt: str, p: Path, overwrite: bool) -> None:
+def replaceable(opt: str, p: Path, overwrite: bool) -> None:
     """Refuse, before any solve, an existing output file that ``--overwrite`` may not
     replace: without the flag, or without growthplan's mark and without ``--force``."""
     from ..io.marks import MARK, ours

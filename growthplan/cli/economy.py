@@ -6,7 +6,7 @@ from pathlib import Path
 
 import click
 
-from .base import _check_outputs, _input_file, _overwrite, _reading, _writing, main
+from .base import check_outputs, input_file, main, overwrite_options, reading_input, writing_output
 
 
 @main.group(help="Economies from the statistical office's tables.")
@@ -20,15 +20,15 @@ def economy() -> None:
 @click.argument("spec", type=click.Path(path_type=Path))
 @click.option("--out", type=click.Path(path_type=Path), required=True,
               help="Write the economy into this new folder.")
-@_overwrite
+@overwrite_options
 def build(spec: Path, out: Path, overwrite: bool) -> None:
     from ..statistics.build import _spec_inputs, build_economy, write_economy
 
-    with _reading(spec):  # the folder is checked against the spec and its tables first
-        inputs = _spec_inputs(_input_file(spec, "economy spec"))
-    _check_outputs(out, None, None, overwrite, inputs=tuple(inputs),
+    with reading_input(spec):  # the folder is checked against the spec and its tables first
+        inputs = _spec_inputs(input_file(spec, "economy spec"))
+    check_outputs(out, None, None, overwrite, inputs=tuple(inputs),
                    input_name="the economy spec or its tables")
-    with _reading(spec):
+    with reading_input(spec):
         econ, report = build_economy(spec)
     sym = report.symmetric
     click.echo(f"{spec}: {len(report.supply_use.products)} products, "
@@ -37,7 +37,7 @@ def build(spec: Path, out: Path, overwrite: bool) -> None:
     click.echo(f"  spectral radius of the input coefficients {econ.spectral_radius():.6f}")
     if len(sym.negatives):
         click.echo(f"  {len(sym.negatives)} negative flow(s) remedied ({sym.remedy})")
-    with _writing(out):
+    with writing_output(out):
         written = write_economy(econ, report, out, overwrite=overwrite)
     for p in written:
         click.echo(f"wrote {p}")

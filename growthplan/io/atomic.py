@@ -113,7 +113,7 @@ def _stat(path: Path) -> os.stat_result | None:
         raise _os_error("path", "be a path you can reach", path, exc) from None
 
 
-def _valid(path: PathLike, field: str) -> Path:
+def valid_path(path: PathLike, field: str) -> Path:
     """``path`` as a Path, refused in the message template when no system accepts it
     (a NUL byte, a name longer than the file system takes)."""
     try:
@@ -131,7 +131,7 @@ def _valid(path: PathLike, field: str) -> Path:
 
 
 def _resolved(paths: Iterable[PathLike]) -> list[Path]:
-    return [_valid(p, "protect").resolve() for p in paths]
+    return [valid_path(p, "protect").resolve() for p in paths]
 
 
 def _make_parent(folder: Path) -> None:
@@ -194,7 +194,7 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
         A target that is a folder, a device, exists without ``overwrite``,
         is protected, or lies in a folder that cannot be written.
     """
-    targets = [_valid(p, "path") for p in paths]
+    targets = [valid_path(p, "path") for p in paths]
     protected = _resolved(protect)
     if len({t.resolve() for t in targets}) != len(targets):
         raise invalid("path", "name each file once", [str(t) for t in targets])
@@ -332,7 +332,7 @@ def together() -> Iterator[None]:
 
 # -- folders ---------------------------------------------------------------
 
-def _read_manifest(folder: Path) -> dict[str, list[str]]:
+def read_manifest(folder: Path) -> dict[str, list[str]]:
     """The files the library wrote in ``folder``, by export kind (unsafe names dropped)."""
     try:
         fd = os.open(folder / MANIFEST, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0))
@@ -429,7 +429,7 @@ def atomic_folder(path: PathLike, *, overwrite: bool = False,
         ``overwrite``, holds a file of a new file's name that the library did
         not write, or cannot be written.
     """
-    target = _valid(path, "folder")
+    target = valid_path(path, "folder")
     protected = _resolved(protect)
     _check_folder_target(target, overwrite, protected)
     existed = _stat(target) is not None
@@ -462,7 +462,7 @@ def _precheck_folder(tmp: Path, target: Path, overwrite: bool,
     _check_folder_target(target, overwrite, protected, ignore=tmp.name)
     if _stat(target) is None:
         return
-    ours = {n for v in _read_manifest(target).values() for n in v}
+    ours = {n for v in read_manifest(target).values() for n in v}
     for name in sorted(names):
         if os.path.lexists(target / name) and name not in ours:
             raise invalid("folder", "not hold files growthplan did not write under the "
@@ -493,7 +493,7 @@ def _commit_folder(tmp: Path, target: Path, overwrite: bool, protected: list[Pat
                 os.rename(tmp, target)
             moved = True
             return
-        kinds = _read_manifest(target)
+        kinds = read_manifest(target)
         ours = {n for v in kinds.values() for n in v}
         for name in names:
             if os.path.lexists(target / name) and name not in ours:
