@@ -270,6 +270,11 @@ def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
         plan, opts = load_plan_file(plan_file)
     with reading_input(actuals):
         done = read_actuals(actuals)
+    absent = [n for n in plan.economy.names if n not in done.columns]
+    if absent:  # a forgotten or misspelt sector would silently start nothing
+        raise invalid(f"actuals ({actuals.name})", "name every sector of the plan at least "
+                      "once (write 0 for a sector that started nothing)",
+                      f"missing {absent[:5]}")
     new_plan = revised_plan(plan, done, from_year)  # checked before anything is solved
     options = {"method": opts.method, "time_limit": opts.time_limit, "threads": opts.threads,
                "tolerance": opts.tolerance, "progress": progress}

@@ -466,8 +466,8 @@ def _read(path: Path, *, what: str = "plan file", limit: int = PLAN_FILE_MAX_BYT
     if suffix not in (".toml", ".yaml", ".yml"):
         raise invalid(f"{path}", "end in .yaml, .yml or .toml", suffix or "no suffix")
     raw = read_regular_file(path, what=what, limit=limit)
-    try:
-        text = raw.decode("utf-8")
+    try:  # a byte-order mark (some editors write one) is not part of the text
+        text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
         raise invalid(f"{path}", "be UTF-8 text", f"byte {exc.start}") from None
     node = None
