@@ -7,20 +7,33 @@ and coefficient tables (CSV or Excel) and their aggregation,
 symmetric ones, :mod:`~growthplan.statistics.balancing` updates a matrix to
 new totals (RAS, GRAS), :mod:`~growthplan.statistics.capital_flows` estimates
 capital coefficients, :mod:`~growthplan.statistics.employment` labour by kind,
-and :mod:`~growthplan.statistics.build` the economy spec that turns them into
-an economy.
+:mod:`~growthplan.statistics.valuation` the valuation layers and the rules for
+special cells, :mod:`~growthplan.statistics.published` tables as offices
+publish them, :mod:`~growthplan.statistics.skeleton` a first plan of a built
+economy, :mod:`~growthplan.statistics.satellite` emissions and resources by
+sector, and :mod:`~growthplan.statistics.build` the economy spec that turns
+them into an economy.
 
 The names below are loaded on first use.
 """
 
 from __future__ import annotations
 
-import importlib
 from typing import TYPE_CHECKING, Any
+
+from ..lazy import attribute
 
 if TYPE_CHECKING:
     from .balancing import Balanced, gras, ras
-    from .build import BuildReport, EconomySpec, build_economy, economy_spec_schema, write_economy
+    from .build import (
+        BuildReport,
+        EconomySpec,
+        PublishedSpec,
+        build_economy,
+        economy_spec_schema,
+        plan_skeleton_of,
+        write_economy,
+    )
     from .capital_flows import (
         capital_coefficients_from_ratios,
         investment_matrix,
@@ -28,6 +41,9 @@ if TYPE_CHECKING:
     )
     from .employment import Employment, employment_table, labour_coefficients
     from .layouts import LAYOUT_VERSION, LocatedTable, TableLayout, read_table
+    from .published import PublishedEconomy, PublishedTables, published_economy, read_published
+    from .satellite import read_satellite, satellite_from_frame
+    from .skeleton import PlanSkeleton, plan_skeleton
     from .supply_use import MODELS, SupplyUseTable, SymmetricTable
     from .tables import (
         TransactionsTable,
@@ -37,6 +53,14 @@ if TYPE_CHECKING:
         read_frame,
         read_transactions,
         write_coefficient_tables,
+    )
+    from .valuation import (
+        SUPPRESSED,
+        Valuation,
+        fill_suppressed,
+        negative_supply,
+        negative_uses,
+        to_basic_prices,
     )
 
 _LAZY = {
@@ -53,10 +77,32 @@ _LAZY = {
     "labour_coefficients": "employment",
     "LAYOUT_VERSION": "layouts", "LocatedTable": "layouts", "TableLayout": "layouts",
     "read_table": "layouts",
+    "PublishedSpec": "build", "plan_skeleton_of": "build",
+    "PublishedEconomy": "published", "PublishedTables": "published",
+    "published_economy": "published", "read_published": "published",
+    "PlanSkeleton": "skeleton", "plan_skeleton": "skeleton",
+    "SUPPRESSED": "valuation", "Valuation": "valuation", "fill_suppressed": "valuation",
+    "negative_supply": "valuation", "negative_uses": "valuation",
+    "to_basic_prices": "valuation",
+    "read_satellite": "satellite", "satellite_from_frame": "satellite",
 }
 
 __all__ = [
     "Balanced",
+    "PlanSkeleton",
+    "PublishedEconomy",
+    "PublishedSpec",
+    "PublishedTables",
+    "SUPPRESSED",
+    "Valuation",
+    "fill_suppressed",
+    "negative_supply",
+    "negative_uses",
+    "plan_skeleton",
+    "plan_skeleton_of",
+    "published_economy",
+    "read_published",
+    "to_basic_prices",
     "BuildReport",
     "EconomySpec",
     "Employment",
@@ -77,6 +123,8 @@ __all__ = [
     "gras",
     "investment_matrix",
     "labour_coefficients",
+    "read_satellite",
+    "satellite_from_frame",
     "ras",
     "read_frame",
     "read_table",
@@ -88,12 +136,7 @@ __all__ = [
 
 
 def __getattr__(name: str) -> Any:
-    module = _LAZY.get(name)
-    if module is None:
-        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-    value = getattr(importlib.import_module(f"{__name__}.{module}"), name)
-    globals()[name] = value
-    return value
+    return attribute(__name__, name, _LAZY, globals())
 
 
 def __dir__() -> list[str]:

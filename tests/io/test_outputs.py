@@ -13,6 +13,7 @@ import pytest
 
 import growthplan as gp
 from growthplan.io.marks import MARK, RECORD
+from growthplan.model.satellite import Satellite, Stressor
 
 
 def _economy(names, **extra):
@@ -152,3 +153,15 @@ def test_a_csv_table_changed_by_hand_is_no_longer_the_librarys(injected, tmp_pat
         gp.save_plan_file(plan, path, overwrite=True)
     gp.save_plan_file(plan, path, overwrite=True, force=True)
     gp.save_plan_file(plan, path, overwrite=True)
+
+
+@pytest.mark.parametrize("make, rule", [
+    (lambda: Stressor(name="CO2\x00", unit="t"), "hold no control characters"),
+    (lambda: Stressor(name="CO2", unit="t\n"), "hold no control characters"),
+    (lambda: Satellite(stressors=[Stressor(name="CO2", unit="t"),
+                                  Stressor(name="co2", unit="t")]),
+     "differ by more than case or Unicode normal form"),
+])
+def test_stressor_names_unsafe_for_files_are_refused(make, rule):
+    with pytest.raises(gp.InvalidInput, match=rule):
+        make()
