@@ -16,9 +16,13 @@ Examples
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Any
+from .startup import command_signals
 
-from .lazy import attribute
+command_signals()  # first: a signal while the command starts ends it in one line
+
+from typing import TYPE_CHECKING, Any  # noqa: E402
+
+from .lazy import attribute  # noqa: E402
 
 if TYPE_CHECKING:
     from . import backends

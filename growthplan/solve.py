@@ -369,14 +369,19 @@ class _Stopped(Exception):
         self.outcome = outcome
 
 
-def write_program(plan: Plan, path: Any, *, overwrite: bool, kind: str) -> Path:
-    """Write the plan's LP as an MPS (``kind="mps"``, objective sense included) or LP file."""
+def write_program(plan: Plan, path: Any, *, overwrite: bool, kind: str,
+                  force: bool = False) -> Path:
+    """Write the plan's LP as an MPS (``kind="mps"``, objective sense included) or LP file,
+    its first line a comment with the library's mark."""
     from .io.atomic import atomic_file
+    from .io.marks import comment_line
 
     prob = to_pulp(program(plan))[0]
-    with atomic_file(path, overwrite=overwrite) as tmp:
+    with atomic_file(path, overwrite=overwrite, force=force) as tmp:
         if kind == "mps":
             prob.writeMPS(str(tmp), with_objsense=True)
         else:
             prob.writeLP(str(tmp))
+        body = tmp.read_bytes()
+        tmp.write_bytes(comment_line(f".{kind}").encode() + body)
     return Path(path)

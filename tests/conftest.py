@@ -89,6 +89,11 @@ def pytest_terminal_summary(terminalreporter):
             outcomes[outcome] = outcomes.get(outcome, 0) + n
         counts.append(("hostile file inputs", sum(outcomes.values()),
                        ", ".join(f"{k} {v}" for k, v in sorted(outcomes.items()))))
+        families: dict[str, int] = {}
+        for (family, _), n in OUTCOMES.items():
+            families[family] = families.get(family, 0) + n
+        terminalreporter.write_line("hostile file inputs by family: " + ", ".join(
+            f"{k} {v}" for k, v in sorted(families.items())))
     for label, total, parts in counts:
         terminalreporter.write_line(f"{label}: {total} ({parts})")
     if counts:

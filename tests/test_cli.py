@@ -261,7 +261,7 @@ def test_a_library_refusal_names_the_flag_not_the_keyword(folder, monkeypatch):
     # the output appears between the check and the write (another program made it)
     import growthplan.cli.plan as commands
 
-    monkeypatch.setattr(commands, "_check_outputs", lambda *a, **k: None)
+    monkeypatch.setattr(commands, "check_outputs", lambda *a, **k: None)
     (folder / "out").mkdir()
     (folder / "out" / "mine.txt").write_text("the user's")
     monkeypatch.chdir(folder)

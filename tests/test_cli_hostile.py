@@ -350,3 +350,77 @@ def test_failed_writes_leave_nothing(os_runs):
         p.communicate(timeout=120)
     assert sorted(p.name for p in folder.iterdir() if p.name.startswith((".", "full"))) == []
     assert list((folder / "ro").iterdir()) == []
+
+
+# -- output paths the operating system refuses --------------------------------------------
+
+LONG = "a" * 300  # longer than any file system's 255-byte name
+
+
+@pytest.mark.parametrize("args, fragment", [
+    # reproducers: each gave "unexpected OSError", exit 3
+    (["check", f"{LONG}.yaml"], "plan file must be a path the system accepts"),
+    (["solve", "plan.yaml", "--excel", f"{LONG}.xlsx"], "--excel must be a path the system"),
+    (["solve", "plan.yaml", "--report", f"{LONG}.html"], "--report must be a path the system"),
+    (["solve", "plan.yaml", "--out", LONG], "--out must be a path the system accepts"),
+    (["solve", "plan.yaml", "--out", f"{LONG}/tables"], "--out must be a path the system"),
+    (["solve", "plan.yaml", "--charts", LONG], "--charts must be a path the system"),
+    (["demo", "--copy", LONG], "--copy must be a path the system accepts"),
+    (["stress", "plan.yaml", "--out", f"{LONG}.csv"], "--out must be a path the system"),
+    (["revise", "plan.yaml", "flows.csv", "--from-year", "2030", "--excel", f"{LONG}.xlsx"],
+     "--excel must be a path the system"),
+])
+def test_output_paths_the_system_refuses_are_invalid_input(bad, monkeypatch, args, fragment):
+    check_one_line(invoke(bad, monkeypatch, args), 2, fragment)
+
+
+# -- --overwrite replaces only files growthplan wrote -------------------------------------
+
+@pytest.mark.parametrize("args, name", [
+    # reproducers: each replaced the analyst's own file
+    (["demo", "--excel", "mine.xlsx", "--overwrite"], "mine.xlsx"),
+    (["demo", "--report", "mine.html", "--overwrite"], "mine.html"),
+    (["stress", "plan.yaml", "--out", "mine.csv", "--overwrite"], "mine.csv"),
+    (["reoptimise", "plan.yaml", "--excel", "mine.xlsx", "--overwrite"], "mine.xlsx"),
+])
+def test_overwrite_refuses_files_growthplan_did_not_write(bad, monkeypatch, args, name):
+    (bad / name).write_text("the analyst's own")
+    try:
+        res = invoke(bad, monkeypatch, args)
+        check_one_line(res, 2, "be a file growthplan wrote to be replaced (it holds no "
+                               "'written by growthplan' mark; pass --force")
+        assert (bad / name).read_text() == "the analyst's own"
+    finally:
+        (bad / name).unlink()
+
+
+def test_force_needs_overwrite(bad, monkeypatch):
+    check_one_line(invoke(bad, monkeypatch, ["demo", "--excel", "x.xlsx", "--force"]), 2,
+                   "--force must come with --overwrite")
+
+
+def test_force_replaces_and_then_the_file_is_ours(bad, monkeypatch, tmp_path):
+    mine = tmp_path / "mine.html"
+    mine.write_text("the analyst's own")
+    res = invoke(bad, monkeypatch, ["demo", "--no-progress", "--report", str(mine),
+                                    "--overwrite", "--force"])
+    assert res.exit_code == 0, res.stderr
+    assert "written by growthplan" in mine.read_text()
+    res = invoke(bad, monkeypatch, ["demo", "--no-progress", "--report", str(mine),
+                                    "--overwrite"])
+    assert res.exit_code == 0, res.stderr
+
+
+def test_outputs_appear_together_or_not_at_all(bad, monkeypatch, tmp_path):
+    # reproducer: the workbook failed after the report and the CSV folder were written
+    import growthplan.results.workbook as workbook
+
+    def failing(*args, **kwargs):
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(workbook, "write_workbook", failing)
+    out, excel, report = tmp_path / "tables", tmp_path / "plan.xlsx", tmp_path / "plan.html"
+    res = invoke(bad, monkeypatch, ["demo", "--no-progress", "--out", str(out),
+                                    "--report", str(report), "--excel", str(excel)])
+    check_one_line(res, 2, "No space left on device")
+    assert sorted(tmp_path.iterdir()) == []  # no report, no folder, no temporary files

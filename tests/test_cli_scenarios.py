@@ -15,6 +15,8 @@ import yaml
 import growthplan as gp
 from growthplan.demo import DEMO_DIR
 
+SECTORS = ("agriculture", "mining", "energy", "food", "textiles", "chemicals", "metals",
+           "machinery", "construction", "services")  # the demo's, as in its flows.csv
 SECTION = {"seed": 5, "draws": 3, "items": [
     {"what": "capital_coefficients", "correlation": "independent",
      "distribution": {"kind": "uniform", "low": 0.95, "high": 1.05}},
@@ -79,6 +81,7 @@ def test_reoptimise_on_two_workers_matches_the_library(folder):
 
 def test_revise_prints_the_comparison_and_writes_it(folder):
     rows = [f"{y},energy,60\n{y},services,300\n" for y in (2027, 2028, 2029)]
+    rows += [f"2027,{s},0\n" for s in SECTORS if s not in ("energy", "services")]
     (folder / "actuals.csv").write_text("year,sector,starts\n" + "".join(rows))
     out = folder / "cmp.csv"
     r = cli("revise", folder / "plan.yaml", folder / "actuals.csv", "--from-year", "2030",
@@ -95,6 +98,9 @@ def test_revise_prints_the_comparison_and_writes_it(folder):
 @pytest.mark.parametrize("actuals, args, match", [
     ("year,sector,starts\n2027,energy,-1\n", ["--from-year", "2028"], "starts must hold finite"),
     ("year,sector,starts\n2027,energy,1\n", [], "Missing option '--from-year'"),
+    # reproducer: actuals without most sectors were taken as "nothing started" silently
+    ("year,sector,starts\n2027,energy,1\n", ["--from-year", "2028"],
+     "actuals (a.csv) must name every sector of the plan at least once"),
 ])
 def test_revise_refuses_bad_actuals_in_one_line(folder, actuals, args, match):
     (folder / "a.csv").write_text(actuals)

@@ -26,6 +26,13 @@ def test_readme_tour_runs(tmp_path, monkeypatch):
     assert (tmp_path / "plan-out" / "output.csv").exists()
 
 
+def test_readme_safe_outputs_example_runs(capsys):
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    block = re.search(r"```python\n(import tempfile, warnings.*?)```", text, re.S).group(1)
+    exec(compile(block, "README.md", "exec"), {})  # noqa: S102 - our own README
+    assert capsys.readouterr().out == "path must be a file growthplan wrote to be r\n"
+
+
 @pytest.mark.parametrize("module", ["errors", "model.capital", "model.economy",
                                     "analysis.expanding", "model.plan",
                                     "io.atomic"])

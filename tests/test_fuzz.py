@@ -302,3 +302,23 @@ def test_malformed_tables(tmp_path, cells):
     except gp.InvalidInput:
         return
     assert np.all(np.isfinite(econ.input_coefficients))
+
+
+@given(st.lists(st.text(min_size=1, max_size=12), min_size=2, max_size=2))
+@settings(max_examples=100)
+def test_random_sector_names_are_safe_for_every_file(names):
+    """Any text as sector names: refused in the message template, or accepted and then
+    free of control characters, distinct beyond case and normal form."""
+    import unicodedata
+
+    from growthplan.model.validation import name_key
+
+    CASES["names"] += 1
+    try:
+        econ = gp.Economy(sectors=names, input_coefficients=[[0.1, 0.1], [0.1, 0.1]])
+    except gp.InvalidInput as exc:
+        assert " must " in str(exc) and ". Got " in str(exc)
+        return
+    for name in econ.names:
+        assert not any(unicodedata.category(c) in ("Cc", "Cs") for c in name)
+    assert len({name_key(n) for n in econ.names}) == 2

@@ -101,7 +101,7 @@ def test_second_signal_stops_at_once(monkeypatch):
     threading.Thread(target=two_interrupts, daemon=True).start()
     try:
         with pytest.raises(KeyboardInterrupt):
-            cli._solve(Stubborn())
+            cli.solve_stoppable(Stubborn())
     finally:
         release.set()
     assert stops[0].is_set()  # the first signal asked the solve to stop
@@ -130,3 +130,103 @@ def test_interrupt_while_reading_exits_3(monkeypatch):
     res = CliRunner().invoke(main, ["check", str(DEMO_DIR / "plan.yaml")])
     assert res.exit_code == 3 and res.stderr.strip() == "interrupted"
     assert res.exception is None or isinstance(res.exception, SystemExit)
+
+
+def _catches(pid: int, sig: int) -> bool:
+    """Whether process ``pid`` has a handler for ``sig`` (its SigCgt mask, Linux)."""
+    try:
+        with open(f"/proc/{pid}/status") as status:
+            mask = next(ln for ln in status if ln.startswith("SigCgt:")).split()[1]
+    except (OSError, StopIteration):
+        return False
+    return bool(int(mask, 16) >> (sig - 1) & 1)
+
+
+@pytest.mark.skipif(not os.path.exists("/proc/self/status"), reason="reads /proc")
+@pytest.mark.parametrize("sig", [signal.SIGINT, signal.SIGTERM], ids=["SIGINT", "SIGTERM"])
+def test_signal_while_the_command_starts_exits_3(sig, tmp_path):
+    # reproducer: SIGINT while importing printed a KeyboardInterrupt traceback and
+    # exited 130; SIGTERM exited 143 without a word
+    proc = subprocess.Popen([sys.executable, "-m", "growthplan.cli", "check",
+                             str(DEMO_DIR / "plan.yaml")], stdout=subprocess.PIPE,
+                            stderr=subprocess.PIPE, preexec_fn=_foreground)
+    deadline = time.monotonic() + 30
+    # the signal goes as soon as a handler is in place or numpy starts loading,
+    # whichever comes first: either way, while the command is still importing
+    while not (_catches(proc.pid, signal.SIGTERM) or _maps(proc.pid, b"numpy")) \
+            and time.monotonic() < deadline:
+        time.sleep(0.001)
+    proc.send_signal(sig)
+    out, err = proc.communicate(timeout=60)
+    assert proc.returncode == 3, (out, err)
+    assert err.decode().strip() == "interrupted"
+    assert b"valid" not in out  # stopped before the check ran
+
+
+def _maps(pid: int, name: bytes) -> bool:
+    """Whether process ``pid`` has a file whose path holds ``name`` mapped."""
+    try:
+        with open(f"/proc/{pid}/maps", "rb") as maps:
+            return name in maps.read()
+    except OSError:
+        return False
+
+
+def _children(pid: int) -> list[int]:
+    found = []
+    for entry in os.listdir("/proc"):
+        if entry.isdigit():
+            try:
+                with open(f"/proc/{entry}/stat") as f:
+                    fields = f.read().rsplit(")", 1)[1].split()
+            except OSError:
+                continue
+            if int(fields[1]) == pid and fields[0] != "Z":
+                found.append(int(entry))
+    return found
+
+
+def _alive(pid: int) -> bool:
+    try:
+        with open(f"/proc/{pid}/stat") as f:
+            return f.read().rsplit(")", 1)[1].split()[0] != "Z"
+    except OSError:
+        return False
+
+
+@pytest.mark.skipif(not os.path.exists("/proc/self/status"), reason="reads /proc")
+@pytest.mark.parametrize("sig", [signal.SIGTERM, signal.SIGKILL], ids=["SIGTERM", "SIGKILL"])
+def test_pool_workers_die_with_the_command(sig, tmp_path):
+    # reproducer: after SIGTERM to the command both workers lived on with parent 1
+    import shutil
+
+    import yaml
+
+    for f in ("flows.csv", "capital.csv", "capital_stocks.csv"):
+        shutil.copy(DEMO_DIR / f, tmp_path / f)
+    d = yaml.safe_load((DEMO_DIR / "plan.yaml").read_text())
+    d["uncertainty"] = {"seed": 5, "draws": 2000, "items": [
+        {"what": "capital_coefficients", "correlation": "independent",
+         "distribution": {"kind": "uniform", "low": 0.95, "high": 1.05}}]}
+    (tmp_path / "plan.yaml").write_text(yaml.safe_dump(d))
+    proc = subprocess.Popen([sys.executable, "-m", "growthplan.cli", "stress", "plan.yaml",
+                             "--workers", "2", "--no-progress"], cwd=tmp_path,
+                            stdout=subprocess.DEVNULL, stderr=subprocess.PIPE,
+                            preexec_fn=_foreground)
+    deadline = time.monotonic() + 120
+    workers: list[int] = []
+    while len(workers) < 2 and time.monotonic() < deadline and proc.poll() is None:
+        time.sleep(0.1)
+        workers = _children(proc.pid)
+    assert len(workers) == 2, workers
+    time.sleep(0.5)  # the workers are solving draws
+    proc.send_signal(sig)
+    proc.wait(timeout=30)
+    time.sleep(1.0)
+    alive = [w for w in workers if _alive(w)]
+    for w in alive:  # do not leave them to the next test
+        os.kill(w, signal.SIGKILL)
+    assert alive == []
+    err = proc.stderr.read().decode()  # returns: no worker holds the pipe open
+    if sig == signal.SIGTERM:
+        assert proc.returncode == 3 and err.strip() == "interrupted", err

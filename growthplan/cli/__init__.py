@@ -6,6 +6,9 @@ their commands on :func:`main` when imported here.
 
 Exit codes: 0 optimal plan (or success), 1 infeasible plan, 2 invalid input,
 3 solver failure or interrupt, 4 unbounded plan.
+
+A signal while the command starts, before its handlers are in place, is
+taken by :mod:`growthplan.startup` (exit 3, ``interrupted``).
 """
 
 from . import economy as _economy  # noqa: F401 - registers the economy commands

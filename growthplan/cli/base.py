@@ -18,10 +18,8 @@ import contextlib
 import gc
 import importlib.util
 import os
-import shutil
 import signal
 import sys
-import tempfile
 import threading
 import traceback
 import warnings
@@ -34,6 +32,7 @@ import click
 import numpy as np
 
 from ..errors import GrowthplanError, invalid
+from ..limits import MAX_SECONDS
 
 if TYPE_CHECKING:
     from ..model.plan import Plan
@@ -65,7 +64,7 @@ def _say(message: str) -> None:
         click.echo(_one_line(message), err=True)
 
 
-def _exit(code: int) -> NoReturn:
+def exit_with(code: int) -> NoReturn:
     sys.exit(code)
 
 
@@ -115,7 +114,7 @@ def _culprit(exc: BaseException, default: Path) -> str:
 
 
 @contextlib.contextmanager
-def _reading(path: Path) -> Iterator[None]:
+def reading_input(path: Path) -> Iterator[None]:
     """Turn any failure while reading input into exit 2, naming the file."""
     try:
         yield
@@ -150,11 +149,12 @@ _PYTHON_ONLY = " (load_plan_file(..., allow_outside=True) reads others)"
 def _flags(message: str) -> str:
     """A library message in the command line's words: ``--overwrite``, not the keyword,
     and no advice that only the Python interface can follow."""
-    return message.replace(_PYTHON_ONLY, "").replace("overwrite=True", "--overwrite")
+    return message.replace(_PYTHON_ONLY, "").replace("overwrite=True", "--overwrite") \
+        .replace("force=True", "--force")
 
 
 @contextlib.contextmanager
-def _writing(path: Path, option: str = "") -> Iterator[None]:
+def writing_output(path: Path, option: str = "") -> Iterator[None]:
     """Turn an operating-system failure while writing into exit 2, naming the path;
     a library refusal is worded for the command line (its option, ``--overwrite``)."""
     message = None
@@ -176,10 +176,12 @@ def _writing(path: Path, option: str = "") -> Iterator[None]:
         raise Failure(message, EXIT_INVALID)
 
 
-def _input_file(path: Path, what: str) -> Path:
+def input_file(path: Path, what: str) -> Path:
     """``path`` if it is a regular file: folders, devices, pipes and sockets are
     refused before anything reads them (a pipe or /dev/zero would never end)."""
-    if not path.exists():
+    from ..io.atomic import valid_path
+
+    if not valid_path(path, what).exists():
         raise invalid(what, "name an existing file", str(path))
     if not path.is_file():
         kind = "a folder" if path.is_dir() else "a pipe, device or socket"
@@ -187,28 +189,28 @@ def _input_file(path: Path, what: str) -> Path:
     return path
 
 
-def _resolved(p: Path) -> Path:
+def absolute_path(p: Path) -> Path:
     return Path(os.path.abspath(p))
 
 
-def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
+def check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
                    overwrite: bool, inputs: tuple[Path, ...] = (),
                    report: Path | None = None, input_name: str = "the plan file") -> None:
     """Refuse outputs that cannot be written before any time goes into solving
     (``input_name``: the inputs in words, for the messages)."""
     named = {"--out": out, "--excel": excel, "--charts": charts, "--report": report}
-    for opt, p, full in _distinct(named):
+    for opt, p, full in distinct_outputs(named):
         if p.exists() and not overwrite and opt != "--charts":
             raise invalid(opt, "not exist yet (pass --overwrite to replace it)", str(p))
         if opt == "--out":
-            cwd = _resolved(Path.cwd())
+            cwd = absolute_path(Path.cwd())
             if full == cwd or full in cwd.parents:
                 raise invalid(opt, "not be the current folder or one holding it", str(p))
-            if any(full in _resolved(i).parents for i in inputs):
+            if any(full in absolute_path(i).parents for i in inputs):
                 raise invalid(opt, f"not be a folder holding {input_name}", str(p))
             if p.exists() and not p.is_dir():
                 raise invalid(opt, "name a folder (it is a file)", str(p))
-        if opt != "--out" and any(full == _resolved(i) for i in inputs):
+        if opt != "--out" and any(full == absolute_path(i) for i in inputs):
             raise invalid(opt, f"not be {input_name}", str(p))
         if opt in ("--excel", "--report") and p.is_dir():
             raise invalid(opt, "name a file (it is a folder)", str(p))
@@ -224,18 +226,23 @@ def _check_outputs(out: Path | None, excel: Path | None, charts: Path | None,
             _charts_replaceable(p)
         if opt == "--charts":
             _plot_extra(opt)
-        _writable(opt, p)
+        if opt in ("--excel", "--report"):
+            replaceable(opt, p, overwrite)
+        writable(opt, p)
 
 
-def _distinct(named: dict[str, Path | None]) -> list[tuple[str, Path, Path]]:
+def distinct_outputs(named: dict[str, Path | None]) -> list[tuple[str, Path, Path]]:
     """The outputs given, as (option, path, absolute path); two options naming one
     path are refused."""
+    from ..io.atomic import valid_path
+
     seen: dict[Path, str] = {}
     out = []
     for opt, p in named.items():
         if p is None:
             continue
-        full = _resolved(p)
+        valid_path(p, opt)  # a NUL byte or a name too long: refused before anything else
+        full = absolute_path(p)
         if full in seen:
             raise invalid(opt, f"differ from {seen[full]}", str(p))
         seen[full] = opt
@@ -243,9 +250,9 @@ def _distinct(named: dict[str, Path | None]) -> list[tuple[str, Path, Path]]:
     return out
 
 
-def _writable(opt: str, p: Path) -> None:
+def writable(opt: str, p: Path) -> None:
     """Refuse ``p`` when no folder it would be created in can be written."""
-    parent = _resolved(p).parent
+    parent = absolute_path(p).parent
     while not parent.exists() and parent != parent.parent:
         parent = parent.parent
     if not parent.is_dir():
@@ -255,17 +262,17 @@ def _writable(opt: str, p: Path) -> None:
 
 
 _SUFFIXES = {"--excel": (".xlsx",), "--report": (".html", ".htm")}
-_CHART_NAMES = ("output", "capacity", "starts", "labour", "shadow_prices", "ray_distance",
+CHART_NAMES = ("output", "capacity", "starts", "labour", "shadow_prices", "ray_distance",
                 "consumption", "targets", "utilisation", "diagnosis")
 
 
 def _charts_replaceable(folder: Path) -> None:
     """Refuse before the solve a chart folder the chart writer would refuse after it:
     one holding a file under a chart's name that growthplan did not write there."""
-    from ..io.atomic import _read_manifest
+    from ..io.atomic import read_manifest
 
-    ours = {name for names in _read_manifest(folder).values() for name in names}
-    for name in _CHART_NAMES:
+    ours = {name for names in read_manifest(folder).values() for name in names}
+    for name in CHART_NAMES:
         if (folder / f"{name}.png").exists() and f"{name}.png" not in ours:
             raise invalid("--charts", "not hold files growthplan did not write under the "
                           "names it writes (move them, or choose another folder)",
@@ -295,10 +302,10 @@ def _finite(value: float | None) -> float | None:
     return value
 
 
-MAX_SECONDS = 1e9
 
 
-def _seconds(ctx: click.Context, param: click.Parameter, value: float | None) -> float | None:
+def positive_seconds(ctx: click.Context, param: click.Parameter,
+                     value: float | None) -> float | None:
     """A time limit: a finite number of seconds above 0 (0 would stop before starting)."""
     if value is None:
         return None
@@ -308,7 +315,7 @@ def _seconds(ctx: click.Context, param: click.Parameter, value: float | None) ->
     return value
 
 
-def _exit_code(result: PlanResult) -> int:
+def result_exit_code(result: PlanResult) -> int:
     from .. import Status
 
     return {Status.OPTIMAL: EXIT_OK, Status.INFEASIBLE: EXIT_INFEASIBLE,
@@ -366,7 +373,7 @@ def _raise_interrupt(signum: int, frame: FrameType | None) -> None:
 _SOLVES: set[threading.Thread] = set()  # solve threads not yet finished
 
 
-def _solve(plan: Plan, **options: Any) -> PlanResult:
+def solve_stoppable(plan: Plan, **options: Any) -> PlanResult:
     """``plan.solve`` that a first SIGINT/SIGTERM stops through ``stop=``.
 
     The solve runs in a worker thread so the main thread is always free to
@@ -413,60 +420,50 @@ def _solve(plan: Plan, **options: Any) -> PlanResult:
     return box["result"]
 
 
-@contextlib.contextmanager
-def _fresh_folder(target: Path, overwrite: bool) -> Iterator[Path]:
-    """A folder beside ``target`` that becomes ``target`` only when the block
-    ends normally (a new folder only; an existing one is written in place)."""
-    if target.exists():
-        yield target
-        return
-    target.parent.mkdir(parents=True, exist_ok=True)
-    tmp = Path(tempfile.mkdtemp(prefix=f".{target.name}.", dir=target.parent))
-    try:
-        yield tmp
-        tmp.rename(target)
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise
-
-
-def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Path | None,
+def report_result(result: PlanResult, out: Path | None, excel: Path | None, charts: Path | None,
             overwrite: bool, protect: tuple[Path, ...] = (),
             report: Path | None = None) -> None:
     click.echo(str(result.summary()))
     if result.diagnosis is not None and not result.diagnosis.shortfalls.empty:
         click.echo("\nShortfalls (elastic re-solve):")
         click.echo(result.diagnosis.shortfalls.to_string(index=False))
-    if report is not None:  # an impossible plan's report holds its diagnosis
-        with _writing(report, "--report"):
-            click.echo(f"wrote {result.report(report, overwrite=overwrite, protect=protect)}")
-    if not result.ok and result.diagnosis is None:
-        return  # a stopped or unverified solve: nothing to hand on
-    # an impossible plan's folder and workbook hold its diagnosis
-    if out is not None:
-        with _writing(out, "--out"):
-            click.echo(f"wrote {result.to_csv(out, overwrite=overwrite, protect=protect)}")
-    if excel is not None:
-        with _writing(excel, "--excel"):
-            click.echo(f"wrote {result.to_excel(excel, overwrite=overwrite, protect=protect)}")
-    if charts is not None:  # an impossible plan's charts show its targets and shortfalls
-        import matplotlib
+    from ..io.atomic import together
 
-        matplotlib.use("Agg")
-        from ..results.charts import save_charts
+    wrote: list[Path] = []
+    # every output is written and checked first; they appear together or none does
+    with together():
+        if report is not None:  # an impossible plan's report holds its diagnosis
+            with writing_output(report, "--report"):
+                wrote.append(result.report(report, overwrite=overwrite, protect=protect,
+                                           force=forced()))
+        if result.ok or result.diagnosis is not None:  # else nothing to hand on
+            # an impossible plan's folder and workbook hold its diagnosis
+            if out is not None:
+                with writing_output(out, "--out"):
+                    wrote.append(result.to_csv(out, overwrite=overwrite, protect=protect))
+            if excel is not None:
+                with writing_output(excel, "--excel"):
+                    wrote.append(result.to_excel(excel, overwrite=overwrite, protect=protect,
+                                                 force=forced()))
+            if charts is not None:  # an impossible plan's charts show its shortfalls
+                import matplotlib
 
-        with _writing(charts, "--charts"), _fresh_folder(charts, overwrite) as folder:
-            written = save_charts(result, folder, overwrite=overwrite, protect=protect)
-        for p in written:
-            click.echo(f"wrote {charts / p.name}")
+                matplotlib.use("Agg")
+                from ..results.charts import save_charts
+
+                with writing_output(charts, "--charts"):
+                    wrote.extend(save_charts(result, charts, overwrite=overwrite,
+                                             protect=protect))
+    for p in wrote:
+        click.echo(f"wrote {p}")
 
 
-def _plural(n: int, word: str, many: str | None = None) -> str:
+def plural(n: int, word: str, many: str | None = None) -> str:
     """``1 target``, ``2 targets``: a count with its noun in the right number."""
     return f"{n} {word if n == 1 else (many or word + 's')}"
 
 
-def _key_schedules(result: PlanResult) -> None:
+def key_schedules(result: PlanResult) -> None:
     """Output by sector in the first, middle and last plan year, and what binds first."""
     if not result.ok:
         return
@@ -489,7 +486,7 @@ def _key_schedules(result: PlanResult) -> None:
         click.echo(years.to_string(na_rep="never"))
 
 
-def _next_steps(out: Path | None, excel: Path | None, report: Path | None,
+def next_steps(out: Path | None, excel: Path | None, report: Path | None,
                 charts: Path | None) -> None:
     """The exports this run did not write, as the options that write them."""
     steps = [(out, "--out FOLDER", "every schedule as CSV"),
@@ -577,20 +574,58 @@ class _Main(click.Group):
                 SystemExit):
             raise
         except BaseException as exc:  # noqa: BLE001 - every failure is one line
-            _exit(_report_failure(exc))
+            exit_with(_report_failure(exc))
 
 
-_out = click.option("--out", type=click.Path(path_type=Path), default=None,
+out_option = click.option("--out", type=click.Path(path_type=Path), default=None,
                     help="Write every schedule as CSV into this new folder.")
-_excel = click.option("--excel", type=click.Path(path_type=Path), default=None,
+excel_option = click.option("--excel", type=click.Path(path_type=Path), default=None,
                       help="Write every schedule as a sheet of this new workbook.")
-_report_opt = click.option("--report", type=click.Path(path_type=Path), default=None,
+report_option = click.option("--report", type=click.Path(path_type=Path), default=None,
                            help="Write a self-contained HTML report (charts need matplotlib) "
                                 "to this new file; an impossible plan's report explains why.")
-_charts = click.option("--charts", type=click.Path(path_type=Path), default=None,
+charts_option = click.option("--charts", type=click.Path(path_type=Path), default=None,
                        help="Save the standard charts as PNG files into this folder.")
-_overwrite = click.option("--overwrite", is_flag=True,
-                          help="Replace existing output files and folders.")
+_FORCE = "growthplan.force"
+
+
+def _remember_force(ctx: click.Context, param: click.Parameter, value: bool) -> bool:
+    if value:
+        ctx.meta[_FORCE] = True
+    return value
+
+
+def forced() -> bool:
+    """Whether this command was given ``--force`` (replace files growthplan did not write)."""
+    ctx = click.get_current_context(silent=True)
+    return bool(ctx is not None and ctx.meta.get(_FORCE))
+
+
+def overwrite_options(f: Any) -> Any:
+    """``--overwrite`` and ``--force``: the second is read through :func:`forced`, so the
+    commands keep one ``overwrite`` argument."""
+    f = click.option("--force", is_flag=True, expose_value=False, callback=_remember_force,
+                     help="With --overwrite, replace output files growthplan did not write "
+                          "too (without it such a file is refused).")(f)
+    return click.option("--overwrite", is_flag=True,
+                        help="Replace existing output files and folders growthplan "
+                             "wrote.")(f)
+
+
+def replaceable(opt: str, p: Path, overwrite: bool) -> None:
+    """Refuse, before any solve, an existing output file that ``--overwrite`` may not
+    replace: without the flag, or without growthplan's mark and without ``--force``."""
+    from ..io.marks import MARK, ours
+
+    if forced() and not overwrite:
+        raise invalid("--force", "come with --overwrite", True)
+    if not p.is_file():
+        return
+    if not overwrite:
+        raise invalid(opt, "not exist yet (pass --overwrite to replace it)", str(p))
+    if not forced() and not ours(p):
+        raise invalid(opt, f"be a file growthplan wrote to be replaced (it holds no '{MARK}' "
+                      "mark; pass --force to replace it anyway)", str(p))
 
 
 @click.group(cls=_Main, help="Multi-year growth planning of multi-sector economies. Exit "

@@ -6,7 +6,7 @@ from pathlib import Path
 
 import click
 
-from .base import _check_outputs, _input_file, _overwrite, _reading, _writing, main
+from .base import check_outputs, input_file, main, overwrite_options, reading_input, writing_output
 
 
 @main.group(help="Economies from the statistical office's tables.")
@@ -26,15 +26,15 @@ def economy() -> None:
                    "can keep up, and the years after the spec's base_year.")
 @click.option("--years", type=click.IntRange(1, 200), default=30, show_default=True,
               help="Years of the plan written by --plan.")
-@_overwrite
+@overwrite_options
 def build(spec: Path, out: Path, with_plan: bool, years: int, overwrite: bool) -> None:
     from ..statistics.build import _spec_inputs, build_economy, write_economy
 
-    with _reading(spec):  # the folder is checked against the spec and its tables first
-        inputs = _spec_inputs(_input_file(spec, "economy spec"))
-    _check_outputs(out, None, None, overwrite, inputs=tuple(inputs),
+    with reading_input(spec):  # the folder is checked against the spec and its tables first
+        inputs = _spec_inputs(input_file(spec, "economy spec"))
+    check_outputs(out, None, None, overwrite, inputs=tuple(inputs),
                    input_name="the economy spec or its tables")
-    with _reading(spec):
+    with reading_input(spec):
         econ, report = build_economy(spec)
         skeleton = None
         if with_plan:
@@ -54,7 +54,7 @@ def build(spec: Path, out: Path, with_plan: bool, years: int, overwrite: bool) -
     if skeleton is not None:
         click.echo(f"  consumption floor {skeleton.floor:,.0f} ({econ.value_unit} a year, "
                    f"{skeleton.section['years']['first']}–{skeleton.section['years']['last']})")
-    with _writing(out):
+    with writing_output(out):
         written = write_economy(econ, report, out, overwrite=overwrite, skeleton=skeleton)
     for p in written:
         click.echo(f"wrote {p}")

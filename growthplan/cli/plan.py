@@ -13,24 +13,25 @@ import numpy as np
 from ..backends.methods import METHODS
 from ..errors import InvalidInput, invalid
 from .base import (
-    _charts,
-    _check_outputs,
-    _excel,
-    _exit,
-    _exit_code,
-    _input_file,
-    _key_schedules,
-    _next_steps,
-    _out,
-    _overwrite,
-    _plural,
-    _reading,
-    _report,
-    _report_opt,
-    _seconds,
-    _solve,
-    _writing,
+    charts_option,
+    check_outputs,
+    distinct_outputs,
+    excel_option,
+    exit_with,
+    input_file,
+    key_schedules,
     main,
+    next_steps,
+    out_option,
+    overwrite_options,
+    plural,
+    positive_seconds,
+    reading_input,
+    report_option,
+    report_result,
+    result_exit_code,
+    solve_stoppable,
+    writing_output,
 )
 
 if TYPE_CHECKING:
@@ -72,35 +73,35 @@ def _needs_capital(plan: Plan) -> None:
 @main.command(help="Solve a plan file (YAML or TOML) and print a summary, the output by "
               "sector and what binds.")
 @click.argument("plan_file", type=click.Path(path_type=Path))
-@_out
-@_excel
-@_report_opt
-@_charts
-@_overwrite
+@out_option
+@excel_option
+@report_option
+@charts_option
+@overwrite_options
 @click.option("--progress/--no-progress", default=True, show_default=True,
               help="Show the solver's progress.")
 @click.option("--method", type=click.Choice(["auto", *METHODS]), default=None, metavar="METHOD",
               help=_method_help())
-@click.option("--time-limit", type=float, default=None, callback=_seconds,
+@click.option("--time-limit", type=float, default=None, callback=positive_seconds,
               help="Seconds for the solver, more than 0 (default: the plan file's, or none).")
 def solve(plan_file: Path, out: Path | None, excel: Path | None, report: Path | None,
           charts: Path | None, overwrite: bool, progress: bool, method: str | None,
           time_limit: float | None) -> None:
     from .. import load_plan_file
 
-    _check_outputs(out, excel, charts, overwrite, inputs=(plan_file,), report=report)
-    with _reading(plan_file):
-        plan, opts = load_plan_file(_input_file(plan_file, "plan file"))
+    check_outputs(out, excel, charts, overwrite, inputs=(plan_file,), report=report)
+    with reading_input(plan_file):
+        plan, opts = load_plan_file(input_file(plan_file, "plan file"))
     chosen = _solver_options(opts, method, time_limit)
-    result = _solve(plan, **chosen, progress=progress)
+    result = solve_stoppable(plan, **chosen, progress=progress)
     from ..io.planfile import plan_file_inputs
 
-    _report(result, out, excel, charts, overwrite, protect=tuple(plan_file_inputs(plan_file)),
+    report_result(result, out, excel, charts, overwrite, protect=tuple(plan_file_inputs(plan_file)),
             report=report)
-    _key_schedules(result)
+    key_schedules(result)
     if result.ok:
-        _next_steps(out, excel, report, charts)
-    _exit(_exit_code(result))
+        next_steps(out, excel, report, charts)
+    exit_with(result_exit_code(result))
 
 
 @main.command(help="Check a plan file without solving: the validation and settings the "
@@ -109,8 +110,8 @@ def solve(plan_file: Path, out: Path | None, excel: Path | None, report: Path | 
 def check(plan_file: Path) -> None:
     from .. import load_plan_file
 
-    with _reading(plan_file):
-        plan, opts = load_plan_file(_input_file(plan_file, "plan file"))
+    with reading_input(plan_file):
+        plan, opts = load_plan_file(input_file(plan_file, "plan file"))
     chosen = _solver_options(opts, None, None)
     _needs_capital(plan)
     econ = plan.economy
@@ -122,13 +123,13 @@ def check(plan_file: Path) -> None:
         tolerance=chosen["tolerance"]))
     lp = plan.compile(formulation=form)  # the size guard and the build the solve runs first
     click.echo(f"{plan_file}: valid")
-    click.echo(f"  {_plural(econ.n, 'sector')}, years {plan.years[0]}–{plan.years[-1]}, "
-               f"{_plural(len(plan.targets), 'target')}, objective "
+    click.echo(f"  {plural(econ.n, 'sector')}, years {plan.years[0]}–{plan.years[-1]}, "
+               f"{plural(len(plan.targets), 'target')}, objective "
                f"{plan.objective.kind}, method {chosen['method']}")
     click.echo(f"  spectral radius of the input coefficients {econ.spectral_radius():.6f} "
                "(productive)")
-    click.echo(f"  LP: {_plural(lp.shape[0], 'row')}, {_plural(lp.shape[1], 'column')}, "
-               f"{_plural(lp.nnz, 'nonzero')}")
+    click.echo(f"  LP: {plural(lp.shape[0], 'row')}, {plural(lp.shape[1], 'column')}, "
+               f"{plural(lp.nnz, 'nonzero')}")
     click.echo(f"  solver: {rule}")
 
 
@@ -146,12 +147,12 @@ def steady(flows: Path, capital: Path | None, capital_stocks: Path | None,
            capital_coefficients: Path | None) -> None:
     from .. import Economy
 
-    _input_file(flows, "flows")
+    input_file(flows, "flows")
     given = (("--capital", capital), ("--capital-stocks", capital_stocks),
              ("--capital-coefficients", capital_coefficients))
     for what, p in given:
         if p is not None:
-            _input_file(p, what)
+            input_file(p, what)
     if capital_stocks is not None and capital_coefficients is not None:
         raise invalid("--capital-stocks", "not come with --capital-coefficients (give one)",
                       str(capital_stocks))
@@ -161,10 +162,10 @@ def steady(flows: Path, capital: Path | None, capital_stocks: Path | None,
     if capital is not None and capital_stocks is None and capital_coefficients is None:
         raise invalid("--capital", "come with --capital-stocks or --capital-coefficients "
                       "(the dynamic balanced growth needs capital coefficients)", str(capital))
-    with _reading(flows):
+    with reading_input(flows):
         econ = Economy.from_tables(flows, capital=capital, capital_stocks=capital_stocks,
                                    capital_coefficients=capital_coefficients)
-    click.echo(f"{_plural(econ.n, 'sector')}; spectral radius {econ.spectral_radius():.6f}")
+    click.echo(f"{plural(econ.n, 'sector')}; spectral radius {econ.spectral_radius():.6f}")
     table = econ.output_multipliers().to_frame()
     if econ.labour_coefficients is not None:
         table = table.join(econ.labour_content().T.add_prefix("labour_content_"))
@@ -192,11 +193,11 @@ def schema() -> None:
 
 
 @main.command(help="Solve the demo plan of the invented Republic of Arvenna and explain it.")
-@_out
-@_excel
-@_report_opt
-@_charts
-@_overwrite
+@out_option
+@excel_option
+@report_option
+@charts_option
+@overwrite_options
 @click.option("--progress/--no-progress", default=True, show_default=True)
 @click.option("--copy", "copy_to", type=click.Path(path_type=Path), default=None,
               help="Write the demo's plan file and tables into this folder, to edit and "
@@ -208,21 +209,22 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
     from ..results.report import targets_table
 
     if copy_to is not None:
+        distinct_outputs({"--copy": copy_to})  # a path the system refuses: said in one line
         if copy_to.exists() and not overwrite and (not copy_to.is_dir()
                                                    or any(copy_to.iterdir())):
             raise invalid("--copy", "name a new or empty folder (pass --overwrite to replace "
                           "the demo files written there before)", str(copy_to))
-        with _writing(copy_to):
+        with writing_output(copy_to):
             written = copy_demo(copy_to, overwrite=overwrite)
         click.echo(f"wrote {', '.join(str(p) for p in written)}")
         click.echo(f"Edit {written[0]}, then: growthplan solve {written[0]}")
         return
-    _check_outputs(out, excel, charts, overwrite, report=report)
+    check_outputs(out, excel, charts, overwrite, report=report)
     has_plot = importlib.util.find_spec("matplotlib") is not None
     if charts is not None and not has_plot:  # said before the solve, not after it
         raise invalid("--charts", "be used with matplotlib installed (pip install "
                       "'growthplan[plot]')", str(charts))
-    with _reading(DEMO_DIR / PLAN_FILE):
+    with reading_input(DEMO_DIR / PLAN_FILE):
         plan, _ = load_plan_file(DEMO_DIR / PLAN_FILE)
     econ = plan.economy
     bg = econ.dynamic_balanced_growth()
@@ -246,8 +248,8 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
                  "labour supply (+1.2 % a year) and maximises capacity at the end, in "
                  "balanced proportions, growing on at 4 % after the plan.")
     click.echo()
-    result = _solve(plan, progress=progress)
-    _report(result, out, excel, charts, overwrite, report=report)
+    result = solve_stoppable(plan, progress=progress)
+    report_result(result, out, excel, charts, overwrite, report=report)
     if result.ok:
         shown = [0, plan.horizon // 2, plan.horizon - 1]
         click.echo(f"\nOutput by sector ({money} a year) in the first, middle and last "
@@ -294,7 +296,7 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
                    "  growthplan solve my-plan/plan.yaml      then solve your version"
                    + ("" if has_plot else "\n(charts need matplotlib: "
                       "pip install 'growthplan[plot]')"))
-    _exit(_exit_code(result))
+    exit_with(result_exit_code(result))
 
 
 def _basket(plan: Any) -> np.ndarray:

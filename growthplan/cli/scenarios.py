@@ -9,7 +9,7 @@ file is checked before anything is solved and written atomically.
 
 from __future__ import annotations
 
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 from concurrent.futures import Executor
 from contextlib import contextmanager
 from pathlib import Path
@@ -21,19 +21,22 @@ if TYPE_CHECKING:
     import pandas as pd
 
 from ..errors import invalid
+from ..limits import MAX_DRAWS, MAX_WORKERS
 from .base import (
     EXIT_OK,
-    _distinct,
-    _exit,
-    _exit_code,
-    _input_file,
-    _overwrite,
-    _reading,
-    _resolved,
-    _solve,
-    _writable,
-    _writing,
+    absolute_path,
+    distinct_outputs,
+    exit_with,
+    forced,
+    input_file,
     main,
+    overwrite_options,
+    reading_input,
+    replaceable,
+    result_exit_code,
+    solve_stoppable,
+    writable,
+    writing_output,
 )
 
 _csv_out = click.option("--out", type=click.Path(path_type=Path), default=None,
@@ -45,16 +48,17 @@ _xlsx_out = click.option("--excel", type=click.Path(path_type=Path), default=Non
 def _check_files(named: dict[str, Path | None], overwrite: bool, inputs: tuple[Path, ...],
                  suffixes: dict[str, tuple[str, ...]]) -> None:
     """Refuse output files that cannot be written, before any time goes into solving."""
-    for opt, p, full in _distinct(named):
+    for opt, p, full in distinct_outputs(named):
         if p.suffix.lower() not in suffixes[opt]:
             raise invalid(opt, f"end in {' or '.join(suffixes[opt])}", str(p))
-        if any(full == _resolved(i) for i in inputs):
+        if any(full == absolute_path(i) for i in inputs):
             raise invalid(opt, "not be an input file", str(p))
         if p.is_dir():
             raise invalid(opt, "name a file (it is a folder)", str(p))
         if p.exists() and not overwrite:
             raise invalid(opt, "not exist yet (pass --overwrite to replace it)", str(p))
-        _writable(opt, p)
+        replaceable(opt, p, overwrite)
+        writable(opt, p)
 
 
 _SUFFIXES: dict[str, tuple[str, ...]] = {"--out": (".csv",), "--excel": (".xlsx",)}
@@ -65,27 +69,43 @@ def _protected(plan_file: Path, *more: Path) -> tuple[Path, ...]:
     known before any solve."""
     from ..io.planfile import plan_file_inputs
 
-    _input_file(plan_file, "plan file")
-    with _reading(plan_file):
+    input_file(plan_file, "plan file")
+    with reading_input(plan_file):
         return (*plan_file_inputs(plan_file), *more)
 
 
 def _write(out: Path | None, excel: Path | None, sheets: dict[str, pd.DataFrame],
            main_sheet: str, overwrite: bool, protect: tuple[Path, ...]) -> None:
+
+    from ..io.atomic import together
+
+    force = forced()
+    with together():  # both files appear, or neither
+        _write_files(out, excel, sheets, main_sheet, overwrite, protect, force)
+    for p in (out, excel):
+        if p is not None:
+            click.echo(f"wrote {p}")
+
+
+def _write_files(out: Path | None, excel: Path | None, sheets: dict[str, pd.DataFrame],
+                 main_sheet: str, overwrite: bool, protect: tuple[Path, ...],
+                 force: bool) -> None:
     import pandas as pd
 
     from ..io.atomic import atomic_file
+    from ..io.workbooks import finish_workbook
 
     if out is not None:
-        with _writing(out), atomic_file(out, overwrite=overwrite, protect=protect) as tmp:
+        with writing_output(out), atomic_file(out, overwrite=overwrite, protect=protect,
+                                        force=force) as tmp:
             sheets[main_sheet].to_csv(tmp, index=False)
-        click.echo(f"wrote {out}")
     if excel is not None:
-        with _writing(excel), atomic_file(excel, overwrite=overwrite, protect=protect) as tmp, \
+        with writing_output(excel), atomic_file(excel, overwrite=overwrite, protect=protect,
+                                          force=force) as tmp, \
                 pd.ExcelWriter(tmp, engine="openpyxl") as book:
             for name, frame in sheets.items():
                 frame.to_excel(book, sheet_name=name, index=False)
-        click.echo(f"wrote {excel}")
+            finish_workbook(book.book)  # names stay text; the mark for --overwrite
 
 
 @contextmanager
@@ -102,8 +122,8 @@ def _executor(workers: int) -> Iterator[Executor | None]:
 def _load(plan_file: Path, draws: int | None, seed: int | None) -> tuple[Any, Any, Any, int]:
     from .. import load_plan_file, load_uncertainty
 
-    _input_file(plan_file, "plan file")
-    with _reading(plan_file):
+    input_file(plan_file, "plan file")
+    with reading_input(plan_file):
         plan, opts = load_plan_file(plan_file)
         spec = load_uncertainty(plan_file)
     if spec is None:
@@ -115,18 +135,19 @@ def _load(plan_file: Path, draws: int | None, seed: int | None) -> tuple[Any, An
 
 
 def _analysis_options(f: Any) -> Any:
-    for option in reversed([
-        click.option("--draws", type=click.IntRange(min=1, max=10_000_000), default=None,
+    options: list[Callable[[Any], Any]] = [
+        click.option("--draws", type=click.IntRange(min=1, max=MAX_DRAWS), default=None,
                      help="Drawn economies (default: the plan file's uncertainty.draws)."),
         click.option("--seed", type=click.IntRange(min=0), default=None,
                      help="Seed of the draws (default: the plan file's uncertainty.seed)."),
-        click.option("--workers", type=click.IntRange(min=1, max=1024), default=1,
+        click.option("--workers", type=click.IntRange(min=1, max=MAX_WORKERS), default=1,
                      show_default=True,
                      help="Worker processes; 1 solves every draw in this process."),
-        _csv_out, _xlsx_out, _overwrite,
+        _csv_out, _xlsx_out, overwrite_options,
         click.option("--progress/--no-progress", default=True, show_default=True,
                      help="A progress bar over the draws."),
-    ]):
+    ]
+    for option in reversed(options):
         f = option(f)
     return f
 
@@ -150,12 +171,12 @@ def stress(plan_file: Path, draws: int | None, seed: int | None, workers: int,
     _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file),
                  _SUFFIXES)
     plan, opts, spec, n = _load(plan_file, draws, seed)
-    nominal = _solve(plan, method=opts.method, time_limit=opts.time_limit,
+    nominal = solve_stoppable(plan, method=opts.method, time_limit=opts.time_limit,
                      threads=opts.threads, tolerance=opts.tolerance, progress=False)
     if not nominal.ok:
         click.echo(str(nominal.summary()))
         click.echo("The nominal plan has no optimum: nothing to stress-test.")
-        _exit(_exit_code(nominal))
+        exit_with(result_exit_code(nominal))
     with _executor(workers) as ex:
         result = stress_test(plan, spec, n, nominal=nominal, executor=ex, max_workers=workers,
                              progress=progress)
@@ -179,7 +200,7 @@ def stress(plan_file: Path, draws: int | None, seed: int | None, workers: int,
     _write(out, excel, {"draws": result.table, "probability": prob,
                         "figures": result.figures().reset_index()}, "draws", overwrite,
            tuple(plan_file_inputs(plan_file)))
-    _exit(EXIT_OK)
+    exit_with(EXIT_OK)
 
 
 @main.command(help="Solve a plan file again in every drawn economy (the uncertainty section "
@@ -219,7 +240,7 @@ def reoptimise(plan_file: Path, draws: int | None, seed: int | None, workers: in
                         "figures": figures.reset_index(),
                         "quantiles": quant.reset_index()}, "draws", overwrite,
            tuple(plan_file_inputs(plan_file)))
-    _exit(EXIT_OK)
+    exit_with(EXIT_OK)
 
 
 @main.command(help="Revise a plan file from a later year, given the capacity starts "
@@ -231,7 +252,7 @@ def reoptimise(plan_file: Path, draws: int | None, seed: int | None, workers: in
               help="First year of the revised plan (a plan year after the first).")
 @_csv_out
 @_xlsx_out
-@_overwrite
+@overwrite_options
 @click.option("--progress/--no-progress", default=True, show_default=True,
               help="Show the solver's progress.")
 def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
@@ -243,28 +264,33 @@ def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
 
     _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file, actuals),
                  _SUFFIXES)
-    _input_file(plan_file, "plan file")
-    _input_file(actuals, "actuals")
-    with _reading(plan_file):
+    input_file(plan_file, "plan file")
+    input_file(actuals, "actuals")
+    with reading_input(plan_file):
         plan, opts = load_plan_file(plan_file)
-    with _reading(actuals):
+    with reading_input(actuals):
         done = read_actuals(actuals)
+    absent = [n for n in plan.economy.names if n not in done.columns]
+    if absent:  # a forgotten or misspelt sector would silently start nothing
+        raise invalid(f"actuals ({actuals.name})", "name every sector of the plan at least "
+                      "once (write 0 for a sector that started nothing)",
+                      f"missing {absent[:5]}")
     new_plan = revised_plan(plan, done, from_year)  # checked before anything is solved
     options = {"method": opts.method, "time_limit": opts.time_limit, "threads": opts.threads,
                "tolerance": opts.tolerance, "progress": progress}
-    original = _solve(plan, **options)
+    original = solve_stoppable(plan, **options)
     if not original.ok:
         click.echo(str(original.summary()))
         click.echo("The original plan has no optimum: nothing to compare with.")
-        _exit(_exit_code(original))
-    result = _solve(new_plan, **options)
+        exit_with(result_exit_code(original))
+    result = solve_stoppable(new_plan, **options)
     click.echo(str(result.summary()))
     if not result.ok:
         click.echo(f"The revised plan from {from_year} has no optimum.")
         if result.diagnosis is not None and not result.diagnosis.shortfalls.empty:
             click.echo("\nShortfalls (elastic re-solve):")
             click.echo(result.diagnosis.shortfalls.to_string(index=False))
-        _exit(_exit_code(result))
+        exit_with(result_exit_code(result))
     table = compare(original, result)
     per_year = table.groupby(["quantity", "year"])[["a", "b", "difference"]].sum()
     per_year = per_year.rename(columns={"a": "original", "b": "revised"}).reset_index()
@@ -273,4 +299,4 @@ def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
     click.echo(f"objective: original {original.objective:.6g}, revised {result.objective:.6g}")
     _write(out, excel, {"comparison": table, "per_year": per_year}, "comparison", overwrite,
            (*plan_file_inputs(plan_file), actuals))
-    _exit(_exit_code(result))
+    exit_with(result_exit_code(result))

@@ -36,13 +36,14 @@ import signal
 import stat
 import tempfile
 import threading
-from collections.abc import Iterable, Iterator
+from collections.abc import Callable, Iterable, Iterator
 from pathlib import Path
 from typing import Any
 
 from ..errors import InvalidInput, invalid
+from .marks import MARK, ours, record
 
-__all__ = ["atomic_file", "atomic_files", "atomic_folder", "MANIFEST"]
+__all__ = ["atomic_file", "atomic_files", "atomic_folder", "together", "MANIFEST"]
 
 MANIFEST = ".growthplan-manifest"
 _MANIFEST_MAX_BYTES = 1 << 20
@@ -112,8 +113,25 @@ def _stat(path: Path) -> os.stat_result | None:
         raise _os_error("path", "be a path you can reach", path, exc) from None
 
 
+def valid_path(path: PathLike, field: str) -> Path:
+    """``path`` as a Path, refused in the message template when no system accepts it
+    (a NUL byte, a name longer than the file system takes)."""
+    try:
+        p = Path(path)
+        os.stat(p)
+    except (FileNotFoundError, NotADirectoryError):
+        pass
+    except ValueError:  # an embedded NUL byte
+        raise invalid(field, "be a valid path (no NUL character)", str(path)) from None
+    except TypeError:
+        raise invalid(field, "be a path", path) from None
+    except OSError as exc:
+        raise _os_error(field, "be a path the system accepts", Path(path), exc) from None
+    return p
+
+
 def _resolved(paths: Iterable[PathLike]) -> list[Path]:
-    return [Path(p).resolve() for p in paths]
+    return [valid_path(p, "protect").resolve() for p in paths]
 
 
 def _make_parent(folder: Path) -> None:
@@ -126,7 +144,8 @@ def _make_parent(folder: Path) -> None:
         raise _os_error("path", "be in a folder you can create", folder, exc) from None
 
 
-def _check_file_target(target: Path, overwrite: bool, protected: list[Path]) -> None:
+def _check_file_target(target: Path, overwrite: bool, protected: list[Path],
+                       force: bool = False) -> None:
     if target.name in ("", ".", ".."):
         raise invalid("path", "name a file", str(target))
     st = _stat(target)
@@ -141,11 +160,14 @@ def _check_file_target(target: Path, overwrite: bool, protected: list[Path]) -> 
     if target.resolve() in protected:
         # the plan file and its tables, or an economy spec and its tables
         raise invalid("path", "not be one of the input files it was made from", str(target))
+    if st is not None and not force and not ours(target):
+        raise invalid("path", "be a file growthplan wrote to be replaced (it holds no "
+                      f"'{MARK}' mark; pass force=True to replace it anyway)", str(target))
 
 
 @contextlib.contextmanager
 def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
-                 protect: Iterable[PathLike] = ()) -> Iterator[list[Path]]:
+                 protect: Iterable[PathLike] = (), force: bool = False) -> Iterator[list[Path]]:
     """Write several files that appear together or not at all.
 
     Parameters
@@ -153,9 +175,12 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
     paths : iterable of path
         The files to write.
     overwrite : bool, default False
-        Replace existing files; without it an existing target is an error.
+        Replace existing files the library wrote (they carry its mark, see
+        :mod:`growthplan.io.marks`); without it an existing target is an error.
     protect : iterable of path
         Files that must never be written (the inputs the output came from).
+    force : bool, default False
+        With ``overwrite``, replace existing files that lack the library's mark too.
 
     Yields
     ------
@@ -169,13 +194,14 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
         A target that is a folder, a device, exists without ``overwrite``,
         is protected, or lies in a folder that cannot be written.
     """
-    targets = [Path(p) for p in paths]
+    targets = [valid_path(p, "path") for p in paths]
     protected = _resolved(protect)
     if len({t.resolve() for t in targets}) != len(targets):
         raise invalid("path", "name each file once", [str(t) for t in targets])
     for t in targets:
-        _check_file_target(t, overwrite, protected)
+        _check_file_target(t, overwrite, protected, force)
     temps: list[Path] = []
+    deferred = False
     try:
         for t in targets:
             _make_parent(t.parent)
@@ -189,21 +215,35 @@ def atomic_files(paths: Iterable[PathLike], *, overwrite: bool = False,
             temps.append(Path(name))
         yield list(temps)
         for t in targets:  # the targets may have appeared while the files were written
-            _check_file_target(t, overwrite, protected)
-        mode = _file_mode()
-        with _interrupt_deferred():
-            for tmp, t in zip(temps, targets, strict=True):
-                os.chmod(tmp, mode)
-                os.replace(tmp, t)
+            _check_file_target(t, overwrite, protected, force)
+
+        def commit() -> None:
+            for t in targets:
+                _check_file_target(t, overwrite, protected, force)
+            mode = _file_mode()
+            with _interrupt_deferred():
+                for tmp, t in zip(temps, targets, strict=True):
+                    os.chmod(tmp, mode)
+                    os.replace(tmp, t)
+            record(targets)  # CSV files have no room for the mark: a record beside them
+
+        def discard() -> None:
+            for tmp in temps:
+                with contextlib.suppress(OSError):
+                    tmp.unlink(missing_ok=True)
+
+        deferred = _defer(commit, discard)
+        if not deferred:
+            commit()
     finally:
-        for tmp in temps:
+        for tmp in temps if not deferred else ():
             with contextlib.suppress(OSError):
                 tmp.unlink(missing_ok=True)
 
 
 @contextlib.contextmanager
 def atomic_file(path: PathLike, *, overwrite: bool = False,
-                protect: Iterable[PathLike] = ()) -> Iterator[Path]:
+                protect: Iterable[PathLike] = (), force: bool = False) -> Iterator[Path]:
     """Write one file atomically: yield a temporary path, rename it into place on success.
 
     Parameters
@@ -211,9 +251,12 @@ def atomic_file(path: PathLike, *, overwrite: bool = False,
     path : path
         The file to write. Missing parent folders are created.
     overwrite : bool, default False
-        Replace an existing file; without it an existing file is an error.
+        Replace an existing file the library wrote (it carries the library's
+        mark); without it an existing file is an error.
     protect : iterable of path
         Files that must never be written (the inputs the output came from).
+    force : bool, default False
+        With ``overwrite``, replace an existing file without the mark too.
 
     Yields
     ------
@@ -226,15 +269,70 @@ def atomic_file(path: PathLike, *, overwrite: bool = False,
     ------
     InvalidInput
         Naming the path: it is an existing folder, exists without
-        ``overwrite``, is protected, or its folder cannot be written.
+        ``overwrite``, exists without the library's mark and without
+        ``force``, is protected, or its folder cannot be written.
     """
-    with atomic_files([path], overwrite=overwrite, protect=protect) as (tmp,):
+    with atomic_files([path], overwrite=overwrite, protect=protect, force=force) as (tmp,):
         yield tmp
+
+
+# -- outputs that appear together -----------------------------------------
+
+_BATCH: list[list[tuple[Callable[[], None], Callable[[], None]]]] = []
+
+
+def _defer(commit: Callable[[], None], discard: Callable[[], None]) -> bool:
+    """Hand a checked, written output to the open :func:`together` block (False: none)."""
+    if not _BATCH or threading.current_thread() is not threading.main_thread():
+        return False
+    _BATCH[-1].append((commit, discard))
+    return True
+
+
+@contextlib.contextmanager
+def together() -> Iterator[None]:
+    """Outputs written in the block appear together at its end, or none of them.
+
+    Every :func:`atomic_file`, :func:`atomic_files` and :func:`atomic_folder`
+    inside the block writes and checks its files as usual, but the renames
+    into place wait for the end of the block; an error or an interrupt in the
+    block removes every output written so far (a command's workbook, report
+    and folder of tables are all written or none is).
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     try:
+    ...         with together():
+    ...             with atomic_file(Path(folder) / "a.txt") as tmp:
+    ...                 _ = tmp.write_text("first")
+    ...             raise RuntimeError("the second output failed")
+    ...     except RuntimeError:
+    ...         pass
+    ...     print(sorted(p.name for p in Path(folder).iterdir()))
+    []
+    """
+    pending: list[tuple[Callable[[], None], Callable[[], None]]] = []
+    _BATCH.append(pending)
+    done = 0
+    try:
+        yield
+        _BATCH.pop()
+        with _interrupt_deferred():
+            for commit, _ in pending:
+                commit()
+                done += 1
+    finally:
+        if _BATCH and _BATCH[-1] is pending:
+            _BATCH.pop()
+        for _, discard in pending[done:]:
+            discard()
 
 
 # -- folders ---------------------------------------------------------------
 
-def _read_manifest(folder: Path) -> dict[str, list[str]]:
+def read_manifest(folder: Path) -> dict[str, list[str]]:
     """The files the library wrote in ``folder``, by export kind (unsafe names dropped)."""
     try:
         fd = os.open(folder / MANIFEST, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0))
@@ -331,7 +429,7 @@ def atomic_folder(path: PathLike, *, overwrite: bool = False,
         ``overwrite``, holds a file of a new file's name that the library did
         not write, or cannot be written.
     """
-    target = Path(path)
+    target = valid_path(path, "folder")
     protected = _resolved(protect)
     _check_folder_target(target, overwrite, protected)
     existed = _stat(target) is not None
@@ -344,6 +442,39 @@ def atomic_folder(path: PathLike, *, overwrite: bool = False,
     moved = False
     try:
         yield tmp
+        _precheck_folder(tmp, target, overwrite, protected)
+        if _defer(lambda: _commit_folder(tmp, target, overwrite, protected, kind, existed),
+                  lambda: shutil.rmtree(tmp, ignore_errors=True)):
+            moved = True  # at the end of the batch, or removed then
+            return
+        _commit_folder(tmp, target, overwrite, protected, kind, existed)
+        moved = True
+    finally:
+        if not moved:
+            shutil.rmtree(tmp, ignore_errors=True)
+
+
+def _precheck_folder(tmp: Path, target: Path, overwrite: bool,
+                     protected: list[Path]) -> None:
+    """What :func:`_commit_folder` would refuse, refused before anything moves."""
+    with os.scandir(tmp) as listing:
+        names = [e.name for e in listing if e.name != MANIFEST]
+    _check_folder_target(target, overwrite, protected, ignore=tmp.name)
+    if _stat(target) is None:
+        return
+    ours = {n for v in read_manifest(target).values() for n in v}
+    for name in sorted(names):
+        if os.path.lexists(target / name) and name not in ours:
+            raise invalid("folder", "not hold files growthplan did not write under the "
+                          "names it writes (move them, or choose another folder)",
+                          str(target / name))
+
+
+def _commit_folder(tmp: Path, target: Path, overwrite: bool, protected: list[Path],
+                   kind: str, existed: bool) -> None:
+    """Move the files of ``tmp`` into ``target`` (see :func:`atomic_folder`)."""
+    moved = False
+    try:
         with os.scandir(tmp) as listing:
             entries = sorted(listing, key=lambda e: e.name)
         for e in entries:
@@ -362,7 +493,7 @@ def atomic_folder(path: PathLike, *, overwrite: bool = False,
                 os.rename(tmp, target)
             moved = True
             return
-        kinds = _read_manifest(target)
+        kinds = read_manifest(target)
         ours = {n for v in kinds.values() for n in v}
         for name in names:
             if os.path.lexists(target / name) and name not in ours:

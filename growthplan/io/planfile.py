@@ -56,6 +56,7 @@ from yaml.events import AliasEvent
 from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 
 from ..errors import InvalidInput, invalid, show, suggest
+from ..limits import MAX_YEARS, PLAN_FILE_MAX_BYTES
 from ..model.economy import Economy, Sector
 from ..model.plan import Plan
 from ..model.validation import Model, Rule
@@ -63,6 +64,7 @@ from ..scenarios.uncertainty import UncertaintySpec
 from ..statistics.tables import _coefficient_frames, _write_csv, economy_from_coefficients
 from .atomic import atomic_files
 from .files import read_regular_file
+from .marks import comment_line
 
 __all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "save_plan_file",
            "plan_file_schema", "plan_file_inputs", "PLAN_FILE_MAX_BYTES", "MAX_DEPTH",
@@ -71,12 +73,8 @@ __all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "save_
 _TABLE_FIELDS = ("flows", "input_coefficients", "labour_coefficients", "capital",
                  "capital_stocks", "capital_coefficients")
 
-PLAN_FILE_MAX_BYTES = 5 << 20
-"""Largest plan file read (5 MB); real ones are a few kB."""
 MAX_DEPTH = 100
 """Deepest nesting of mappings and lists in a plan file."""
-MAX_YEARS = 1000
-"""Longest plan: ``last`` at most this many years after ``first``."""
 
 
 class EconomyTables(Model):
@@ -495,8 +493,8 @@ def _read(path: Path, *, what: str = "plan file", limit: int = PLAN_FILE_MAX_BYT
     if suffix not in (".toml", ".yaml", ".yml"):
         raise invalid(f"{path}", "end in .yaml, .yml or .toml", suffix or "no suffix")
     raw = read_regular_file(path, what=what, limit=limit)
-    try:
-        text = raw.decode("utf-8")
+    try:  # a byte-order mark (some editors write one) is not part of the text
+        text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
         raise invalid(f"{path}", "be UTF-8 text", f"byte {exc.start}") from None
     node = None
@@ -857,7 +855,7 @@ def _plan_section(plan: Plan) -> dict[str, Any]:
 
 
 def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool = False,
-                   solve: SolveOptions | None = None) -> Path:
+                   solve: SolveOptions | None = None, force: bool = False) -> Path:
     """Write ``plan`` as a YAML plan file with its coefficient tables beside it.
 
     The tables are ``<stem>_input_coefficients.csv``, ``<stem>_capital_coefficients.csv``,
@@ -873,10 +871,14 @@ def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool 
     path : str or path-like
         The plan file; must end in ``.yaml`` or ``.yml``.
     overwrite : bool, default False
-        Replace the plan file and tables if they exist.
+        Replace the plan file and tables if they exist and the library wrote
+        them (the plan file's second line is the mark; the tables are in the
+        folder's record, :mod:`growthplan.io.marks`).
     solve : SolveOptions, optional
         Solver settings stored in the file's ``solve`` section (method, time
         limit, threads, tolerance); default the library's defaults.
+    force : bool, default False
+        With ``overwrite``, replace files the library did not write too.
 
     Notes
     -----
@@ -915,10 +917,10 @@ def save_plan_file(plan: Plan, path: str | os.PathLike[str], *, overwrite: bool 
     if settings:
         doc["solve"] = settings
     targets = [path, *(path.parent / name for name, _ in frames.values())]
-    with atomic_files(targets, overwrite=overwrite) as (plan_tmp, *table_tmps):
+    with atomic_files(targets, overwrite=overwrite, force=force) as (plan_tmp, *table_tmps):
         for (key, (_, frame)), tmp in zip(frames.items(), table_tmps, strict=True):
             _write_csv(key, frame, tmp)
-        plan_tmp.write_text("# growthplan plan file (written by save_plan_file)\n"
+        plan_tmp.write_text("# growthplan plan file\n" + comment_line(".yaml")
                             + yaml.safe_dump(doc, sort_keys=False, allow_unicode=True),
                             encoding="utf-8")
     return path

@@ -21,7 +21,16 @@ from pydantic import Field, PrivateAttr, field_validator, model_validator
 from ..analysis import steady
 from ..errors import TinyCoefficientsWarning, UnproductiveEconomy
 from . import capital as cap
-from .validation import Matrix, Model, Rule, Vector, align_matrix, align_vector
+from .validation import (
+    Matrix,
+    Model,
+    Rule,
+    Vector,
+    align_matrix,
+    align_vector,
+    check_distinct,
+    check_label,
+)
 
 __all__ = ["Sector", "CapitalSpec", "Economy"]
 
@@ -53,7 +62,7 @@ class Sector(Model):
     def _name(cls, v: str) -> str:
         if not v.strip():
             raise Rule("be a non-empty name", v)
-        return v.strip()
+        return check_label(v.strip())
 
     @field_validator("price", mode="before")
     @classmethod
@@ -62,6 +71,11 @@ class Sector(Model):
                 or not (np.isfinite(v) and v > 0):
             raise Rule("be a finite price > 0 (the value of one unit at base-year prices)", v)
         return float(v)
+
+    @field_validator("unit")
+    @classmethod
+    def _unit(cls, v: str | None) -> str | None:
+        return check_label(v)
 
 
 class CapitalSpec(Model):
@@ -368,6 +382,9 @@ class Economy(Model):
             raise Rule("be a list of sector names", raw, field="sectors")
         if any(isinstance(s, str) and not s.strip() for s in raw):
             raise Rule("be non-empty names", list(raw), field="sectors")
+        for i, s in enumerate(raw):
+            if isinstance(s, str):
+                check_label(s.strip(), f"sectors.{i}")
         sectors = [Sector(name=s) if isinstance(s, str) else s for s in raw]
         names: list[Any] = [s.name if isinstance(s, Sector) else
                             (s.get("name") if isinstance(s, dict) else s) for s in sectors]
@@ -380,6 +397,7 @@ class Economy(Model):
         if len(set(stripped)) != len(stripped):
             dup = sorted({x for x in stripped if stripped.count(x) > 1})
             raise Rule("be unique", dup, field="sectors")
+        check_distinct(stripped, "sectors")
         names = stripped
         for key in ("input_coefficients", "capital_coefficients"):
             if key in data:
@@ -445,6 +463,9 @@ class Economy(Model):
             if len(kinds) != lab.shape[0] or len(set(kinds)) != len(kinds):
                 raise Rule(f"name each of the {lab.shape[0]} labour kinds once", kinds,
                            field="labour_kinds")
+            for i, kind in enumerate(kinds):
+                check_label(kind, f"labour_kinds.{i}")
+            check_distinct([str(k) for k in kinds], "labour_kinds")
             object.__setattr__(self, "labour_kinds", list(kinds))
             object.__setattr__(self, "labour_coefficients",
                                _drop_tiny(lab, "labour_coefficients", list(kinds), self.names))
@@ -459,6 +480,9 @@ class Economy(Model):
                            field="labour_units")
         if not self.value_unit.strip():
             raise Rule("be a non-empty unit", self.value_unit, field="value_unit")
+        check_label(self.value_unit, "value_unit")
+        for i, u in enumerate(self.labour_units or []):
+            check_label(u, f"labour_units.{i}")
         for key in ("consumption_basket", "wage_basket", "base_output"):
             v = getattr(self, key)
             if v is not None:

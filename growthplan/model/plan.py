@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING, Annotated, Any
 import numpy as np
 from pydantic import Field, PrivateAttr, field_validator, model_validator
 
+from ..limits import MAX_YEARS
 from . import objectives as obj
 from .economy import Economy
 from .regions import Regions, check_regions
@@ -37,7 +38,6 @@ if TYPE_CHECKING:
     from ..lp.program import LinearProgram
     from ..results.result import PlanResult
 
-MAX_YEARS = 1000  # longer plans are refused before anything is allocated
 
 __all__ = ["TechnicalChange", "LabourSupply", "Consumption", "Target", "StartsCeiling",
            "TerminalGrowth", "Trade", "Plan"]
@@ -827,7 +827,8 @@ class Plan(Model):
 
         return solve_pulp(self, solver, problem=problem, audit_tolerance=audit_tolerance)
 
-    def write_mps(self, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
+    def write_mps(self, path: str | os.PathLike[str], *, overwrite: bool = False,
+                  force: bool = False) -> Path:
         """Write the plan's LP as an MPS file (the objective sense included).
 
         Parameters
@@ -835,7 +836,11 @@ class Plan(Model):
         path : str or path-like
             The file to write (whole or not at all).
         overwrite : bool, default False
-            Replace an existing file.
+            Replace an existing file the library wrote (its first line is the mark).
+        force : bool, default False
+            With ``overwrite``, replace a file the library did not write (one
+            without its mark, see :mod:`growthplan.io.marks`); without it such
+            a file is refused, naming it.
 
         Returns
         -------
@@ -844,9 +849,10 @@ class Plan(Model):
         """
         from ..solve import write_program
 
-        return write_program(self, path, overwrite=overwrite, kind="mps")
+        return write_program(self, path, overwrite=overwrite, kind="mps", force=force)
 
-    def write_lp(self, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
+    def write_lp(self, path: str | os.PathLike[str], *, overwrite: bool = False,
+                 force: bool = False) -> Path:
         """Write the plan's LP in the LP file format.
 
         Parameters
@@ -854,7 +860,11 @@ class Plan(Model):
         path : str or path-like
             The file to write (whole or not at all).
         overwrite : bool, default False
-            Replace an existing file.
+            Replace an existing file the library wrote (its first line is the mark).
+        force : bool, default False
+            With ``overwrite``, replace a file the library did not write (one
+            without its mark, see :mod:`growthplan.io.marks`); without it such
+            a file is refused, naming it.
 
         Returns
         -------
@@ -863,7 +873,7 @@ class Plan(Model):
         """
         from ..solve import write_program
 
-        return write_program(self, path, overwrite=overwrite, kind="lp")
+        return write_program(self, path, overwrite=overwrite, kind="lp", force=force)
 
     def with_horizon(self, years: int) -> Plan:
         """This plan over its first ``years`` years, targets moved to the end (see Fastest).

@@ -31,7 +31,7 @@ from pydantic import Field, field_validator, model_validator
 
 from ..errors import InvalidInput, invalid
 from .economy import Economy, Sector
-from .validation import Model, Rule
+from .validation import Model, Rule, check_distinct, check_label
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -59,6 +59,9 @@ def _names(v: list[str], what: str) -> list[str]:
     dup = sorted({x for x in v if v.count(x) > 1})
     if dup:
         raise Rule("be unique", dup)
+    for i, x in enumerate(v):  # names reach every export
+        check_label(x, str(i))
+    check_distinct(v, "")
     return v
 
 

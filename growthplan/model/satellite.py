@@ -29,7 +29,7 @@ from typing import TYPE_CHECKING, Any, Literal
 import numpy as np
 from pydantic import Field, field_validator, model_validator
 
-from .validation import Model, Rule
+from .validation import Model, Rule, check_distinct, check_label
 
 if TYPE_CHECKING:
     from .technique import TechniqueSet
@@ -83,7 +83,7 @@ class Stressor(Model):
     def _text(cls, v: str) -> str:
         if not v.strip():
             raise Rule("be a non-empty name", v)
-        return v
+        return check_label(v)  # names reach every export
 
     @field_validator("intensities")
     @classmethod
@@ -125,7 +125,7 @@ class Impact(Model):
     def _text(cls, v: str) -> str:
         if not v.strip():
             raise Rule("be a non-empty name", v)
-        return v
+        return check_label(v)  # names reach every export
 
     @field_validator("factors")
     @classmethod
@@ -157,6 +157,7 @@ class Satellite(Model):
         every = names + [i.name for i in self.impacts]
         if len(set(every)) != len(every):
             raise Rule("give stressors and impacts distinct names", every, field="stressors")
+        check_distinct(every, "stressors")
         for i, imp in enumerate(self.impacts):
             unknown = [k for k in imp.factors if k not in names]
             if unknown:

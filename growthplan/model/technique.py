@@ -41,7 +41,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from pydantic import Field, field_validator, model_validator
 
-from .validation import Model, Rule
+from .validation import Model, Rule, check_label
 
 if TYPE_CHECKING:
     from .economy import CapitalSpec, Economy
@@ -103,7 +103,7 @@ class Technique(Model):
     def _label(cls, v: str) -> str:
         if not v.strip():
             raise Rule("be a non-empty name", v)
-        return v
+        return check_label(v)
 
     @field_validator("inputs", "capital", "by_products")
     @classmethod

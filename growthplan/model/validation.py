@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import re
 import typing
+import unicodedata
 from collections.abc import Sequence
 from typing import Annotated, Any, Self
 
@@ -26,6 +27,7 @@ from pydantic import (
 )
 
 from ..errors import GrowthplanError, InvalidInput, invalid, show, suggest
+from ..limits import LABEL_MAX_CHARS
 
 
 class Rule(ValueError):
@@ -347,6 +349,49 @@ def align_vector(value: Any, names: list[str], field: str) -> Any:
                        sorted(map(str, value)), field=field)
         return [value.get(n, 0.0) for n in names]
     return value
+
+
+def label_rule(text: str) -> str | None:
+    """The rule a name breaks, or None: names reach every file the library writes.
+
+    A control character (NUL, BEL, a newline, a tab) cannot be written to a
+    workbook and breaks CSV rows and reports; a lone surrogate cannot be
+    written as UTF-8; a name longer than :data:`~growthplan.limits.LABEL_MAX_CHARS`
+    does not fit a workbook cell and would be cut.
+    """
+    if len(text) > LABEL_MAX_CHARS:
+        return (f"be at most {LABEL_MAX_CHARS:,} characters (the most a workbook cell holds; "
+                f"it has {len(text):,})")
+    if any(unicodedata.category(c) in ("Cc", "Cs") for c in text):
+        bad = next(c for c in text if unicodedata.category(c) in ("Cc", "Cs"))
+        return f"hold no control characters (it holds {bad!r})"
+    return None
+
+
+def check_label(text: Any, field: str | None = None) -> Any:
+    """``text`` unchanged when it is a usable name; raises :class:`Rule` otherwise."""
+    if isinstance(text, str):
+        rule = label_rule(text)
+        if rule is not None:
+            raise Rule(rule, text if len(text) <= 120 else text[:117] + "...", field=field)
+    return text
+
+
+def name_key(text: str) -> str:
+    """What two names must not share: the same text up to case and Unicode normal
+    form (``"Énergie"`` composed and decomposed, ``"energy"`` and ``"Energy"``)."""
+    return unicodedata.normalize("NFKC", text).casefold()
+
+
+def check_distinct(names: Sequence[str], field: str) -> None:
+    """Refuse names that differ only by case or Unicode normal form (readers, file
+    systems and workbooks take them for one)."""
+    seen: dict[str, str] = {}
+    for name in names:
+        other = seen.setdefault(name_key(name), name)
+        if other != name:
+            raise Rule("differ by more than case or Unicode normal form", [other, name],
+                       field=field)
 
 
 def raise_plain(exc: Rule, field: str) -> InvalidInput:

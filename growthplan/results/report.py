@@ -27,6 +27,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 import pandas as pd
 
+from ..io.marks import HTML_MARK
 from .summary import CAUTION
 
 if TYPE_CHECKING:
@@ -769,7 +770,7 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
     parts.append("<section><h2>Solver</h2>" + _pairs(rows) + "</section>")
     parts.append("</main>")
     title = f"Growth plan {years[0]}–{years[-1]}"
-    return ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
+    return ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">" + HTML_MARK +
             '<meta name="viewport" content="width=device-width, initial-scale=1">'
             f"<title>{_e(title)}</title><style>{_STYLE}</style></head><body>"
             + "".join(parts) + "</body></html>\n")
@@ -879,7 +880,8 @@ def _impossible(result: PlanResult) -> str:
 
 
 def write_report(result: PlanResult, path: str | os.PathLike[str], *, overwrite: bool = False,
-                 protect: Iterable[str | os.PathLike[str]] = (), charts: bool = True) -> Path:
+                 protect: Iterable[str | os.PathLike[str]] = (), charts: bool = True,
+                 force: bool = False) -> Path:
     """Write :func:`render`'s report to ``path`` through the atomic writer.
 
     Parameters
@@ -888,11 +890,13 @@ def write_report(result: PlanResult, path: str | os.PathLike[str], *, overwrite:
     path : str or path-like
         The HTML file, written aside and renamed into place.
     overwrite : bool, default False
-        Replace an existing file.
+        Replace an existing report the library wrote (its ``<meta>`` mark).
     protect : iterable of paths
         Input files that must never be overwritten.
     charts : bool, default True
         Draw the charts (when matplotlib is installed).
+    force : bool, default False
+        With ``overwrite``, replace a file without the mark too.
 
     Returns
     -------
@@ -901,6 +905,6 @@ def write_report(result: PlanResult, path: str | os.PathLike[str], *, overwrite:
     from ..io.atomic import atomic_file
 
     text = render(result, charts=charts)  # built first: a failure leaves no file
-    with atomic_file(path, overwrite=overwrite, protect=protect) as tmp:
+    with atomic_file(path, overwrite=overwrite, protect=protect, force=force) as tmp:
         tmp.write_text(text, encoding="utf-8")
     return Path(path)

@@ -486,7 +486,7 @@ class PlanResult:
         return Path(folder)
 
     def report(self, path: str | os.PathLike[str], *, overwrite: bool = False,
-               protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
+               protect: Iterable[str | os.PathLike[str]] = (), force: bool = False) -> Path:
         """Write a self-contained HTML report a colleague opens in a browser.
 
         The report holds the caution, the inputs and assumptions, the targets
@@ -500,9 +500,13 @@ class PlanResult:
         path : str or path-like
             The HTML file, written aside and renamed into place.
         overwrite : bool, default False
-            Replace an existing file.
+            Replace an existing report the library wrote.
         protect : iterable of paths
             Input files that must never be overwritten.
+        force : bool, default False
+            With ``overwrite``, replace a file the library did not write (one
+            without its mark, see :mod:`growthplan.io.marks`); without it such
+            a file is refused, naming it.
 
         Returns
         -------
@@ -510,10 +514,10 @@ class PlanResult:
         """
         from .report import write_report
 
-        return write_report(self, path, overwrite=overwrite, protect=protect)
+        return write_report(self, path, overwrite=overwrite, protect=protect, force=force)
 
     def to_excel(self, path: str | os.PathLike[str], *, overwrite: bool = False,
-                 protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
+                 protect: Iterable[str | os.PathLike[str]] = (), force: bool = False) -> Path:
         """Write every table as a sheet of one workbook a colleague can read.
 
         A summary, the inputs and assumptions, the sectors, a glossary and the
@@ -525,9 +529,13 @@ class PlanResult:
         path : str or path-like
             The workbook, written aside and renamed into place.
         overwrite : bool, default False
-            Replace an existing workbook.
+            Replace an existing workbook the library wrote.
         protect : iterable of paths
             Input files that must never be overwritten.
+        force : bool, default False
+            With ``overwrite``, replace a file the library did not write (one
+            without its mark, see :mod:`growthplan.io.marks`); without it such
+            a file is refused, naming it.
 
         Returns
         -------
@@ -537,7 +545,8 @@ class PlanResult:
 
         # an impossible plan has no schedules: its workbook holds the diagnosis instead
         tables = self._tables() if self.ok else {}
-        return write_workbook(self, path, tables, overwrite=overwrite, protect=protect)
+        return write_workbook(self, path, tables, overwrite=overwrite, protect=protect,
+                              force=force)
 
 
 def _with_units(frame: pd.DataFrame) -> pd.DataFrame:

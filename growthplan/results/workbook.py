@@ -244,7 +244,7 @@ def _shown(v: Any, fmt: str | None) -> str:
 
 def write_workbook(result: PlanResult, path: str | os.PathLike[str],
                    tables: dict[str, pd.DataFrame], *, overwrite: bool = False,
-                   protect: Iterable[str | os.PathLike[str]] = ()) -> Path:
+                   protect: Iterable[str | os.PathLike[str]] = (), force: bool = False) -> Path:
     """Write the workbook through the atomic writer.
 
     Parameters
@@ -255,26 +255,31 @@ def write_workbook(result: PlanResult, path: str | os.PathLike[str],
     tables : dict of str to DataFrame
         The result's tables (empty for a result that is not optimal).
     overwrite : bool, default False
-        Replace an existing workbook.
+        Replace an existing workbook the library wrote (its document
+        properties hold the mark).
     protect : iterable of paths
         Input files that must never be overwritten.
+    force : bool, default False
+        With ``overwrite``, replace a workbook without the mark too.
 
     Returns
     -------
     pathlib.Path
     """
     from ..io.atomic import atomic_file
+    from ..io.workbooks import finish_workbook
 
     laid = {}
     for name, frame in sheets(result, tables).items():
         text = name in ("summary", "inputs", "glossary", "diagnosis")
         laid[name] = (*_formats(name, frame), text)
-    with atomic_file(path, overwrite=overwrite, protect=protect) as tmp:
+    with atomic_file(path, overwrite=overwrite, protect=protect, force=force) as tmp:
         writer = pd.ExcelWriter(tmp, engine="openpyxl")
         try:
             for name, (frame, fmts, text) in laid.items():
                 frame.to_excel(writer, sheet_name=name, index=False)
                 _layout(writer.sheets[name], frame, fmts, text)
+            finish_workbook(writer.book)  # names stay text; the mark for overwrite
         except BaseException:
             with contextlib.suppress(Exception):  # keep the first error, not close()'s
                 writer.close()

@@ -25,11 +25,10 @@ import numpy as np
 import pandas as pd
 
 from ..errors import invalid
+from ..limits import ACTUALS_MAX_BYTES
 
 __all__ = ["revise", "compare", "plot_compare", "read_actuals"]
 
-ACTUALS_MAX_BYTES = 50 << 20
-"""Largest actuals file read (50 MB)."""
 
 
 def _actuals(plan: Any, actuals: Any, k: int) -> np.ndarray:

@@ -22,6 +22,9 @@ import csv
 import difflib
 import itertools
 import os
+import signal
+import sys
+import threading
 import time
 import traceback
 import warnings
@@ -36,6 +39,7 @@ from typing import Any, TypeVar
 import pandas as pd
 
 from ..errors import invalid
+from ..limits import MAX_WORKERS
 from ..model.plan import Plan
 
 __all__ = ["Sweep", "SerialExecutor", "check_parameters", "sweep", "variant"]
@@ -269,6 +273,7 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
     """
     from ..progress import sweep_progress
 
+    check_workers(max_workers)
     for name, params in (scenarios or {}).items():
         if not isinstance(params, dict):
             raise invalid(f"scenarios.{name}", "be a mapping of parameter paths to values",
@@ -287,11 +292,10 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
         raise invalid("grid", "or scenarios name at least one variant", None)
     options = dict(solve_options or {})
     own = executor is None
-    workers = max_workers or os.cpu_count() or 1
+    workers = check_workers(max_workers) or os.cpu_count() or 1
     key = _token()
     if own:  # the base plan goes to each worker once, when it starts, not with every task
-        pool: Executor = ProcessPoolExecutor(max_workers=workers, initializer=_warm,
-                                             initargs=(key, (plan, options, keep_results)))
+        pool: Executor = worker_pool(workers, _warm, (key, (plan, options, keep_results)))
         fn: Callable[[Any], _Outcome] = _run_warm
         args: Any = _Lazy(lambda i: (key, variants[i][1]), len(variants))
     else:
@@ -336,6 +340,17 @@ def sweep(plan: Plan, grid: dict[str, list[Any]] | None = None, *,
     return Sweep(table=table, results=[r for _, r in outcomes])
 
 
+def check_workers(workers: Any) -> int | None:
+    """``max_workers`` within :data:`~growthplan.limits.MAX_WORKERS` (None: the CPU count)."""
+    if workers is None:
+        return None
+    if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
+        raise invalid("max_workers", "be a whole number >= 1", workers)
+    if workers > MAX_WORKERS:
+        raise invalid("max_workers", f"be at most {MAX_WORKERS:,}", int(workers))
+    return int(workers)
+
+
 # -- running many tasks with few in flight --------------------------------------------------
 
 LOST = object()
@@ -376,6 +391,49 @@ def _scattered(executor: Executor, base: Any) -> Any:
 def _run_based(task: tuple[Any, dict[str, Any]]) -> _Outcome:
     (plan, options, keep), params = task
     return _run_one((plan, params, options, keep))
+
+
+def worker_pool(max_workers: int, initializer: Callable[..., None] | None = None,
+                initargs: tuple[Any, ...] = (),
+                mp_context: BaseContext | None = None) -> ProcessPoolExecutor:
+    """The library's own process pool, whose workers never outlive this process.
+
+    Each worker, when it starts, asks the kernel to kill it when its parent dies
+    (Linux), watches its parent in a thread (every system), takes SIGTERM with
+    the system's default action (so ``terminate`` ends it even where the parent
+    routed SIGTERM to a handler) and leaves Ctrl-C to the parent, which stops
+    the pool; then it runs ``initializer(*initargs)``.
+    """
+    return ProcessPoolExecutor(max_workers=max_workers, mp_context=mp_context,
+                               initializer=_guarded_worker,
+                               initargs=(os.getpid(), initializer, initargs))
+
+
+_PARENT_POLL = 0.2  # seconds between a worker's looks at its parent
+
+
+def _guarded_worker(parent: int, initializer: Callable[..., None] | None,
+                    initargs: tuple[Any, ...]) -> None:
+    """Process-pool initializer: die with the parent, then ``initializer(*initargs)``."""
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    if sys.platform.startswith("linux"):
+        with contextlib.suppress(Exception):  # no libc to ask: the watcher still runs
+            import ctypes
+
+            libc = ctypes.CDLL(None, use_errno=True)
+            libc.prctl(1, signal.SIGKILL, 0, 0, 0)  # PR_SET_PDEATHSIG
+    if os.getppid() != parent:  # the parent died before the request took hold
+        os._exit(1)
+
+    def watch() -> None:
+        while os.getppid() == parent:
+            time.sleep(_PARENT_POLL)
+        os._exit(1)
+
+    threading.Thread(target=watch, name="growthplan-parent-watch", daemon=True).start()
+    if initializer is not None:
+        initializer(*initargs)
 
 
 @contextlib.contextmanager
@@ -522,8 +580,7 @@ def _solve_alone(tasks: list[_Task], names: list[str], workers: int,
         while queue or running:
             while queue and len(running) < max(1, workers):
                 i = queue.pop(0)
-                pool = idle.pop() if idle else ProcessPoolExecutor(max_workers=1,
-                                                                   mp_context=mp_context)
+                pool = idle.pop() if idle else worker_pool(1, mp_context=mp_context)
                 running[pool.submit(_run_one, tasks[i])] = (i, pool)
             done, _ = wait(running, return_when=FIRST_COMPLETED)
             for fut in done:

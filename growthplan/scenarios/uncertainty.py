@@ -27,7 +27,7 @@ from __future__ import annotations
 import math
 import os
 import warnings
-from concurrent.futures import Executor, ProcessPoolExecutor
+from concurrent.futures import Executor
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass, field
 from typing import Annotated, Any, Literal
@@ -38,6 +38,7 @@ from pydantic import Field, field_validator, model_validator
 from scipy import sparse, stats
 
 from ..errors import invalid
+from ..limits import MAX_DRAWS, MAX_ROBUST_SCENARIOS
 from ..model.validation import Model, Rule
 
 __all__ = ["Normal", "LogNormal", "Uniform", "Triangular", "Empirical", "Uncertain",
@@ -340,7 +341,7 @@ class UncertaintySpec(Model):
     seed: int = Field(default=0, ge=0, description=(
         "Seed of the draws: draw i uses numpy.random.SeedSequence(seed).spawn(i + 1)[i], so "
         "a draw is the same whatever computes it and in whatever order."))
-    draws: int = Field(default=100, ge=1, le=10_000_000, description=(
+    draws: int = Field(default=100, ge=1, le=MAX_DRAWS, description=(
         "Number of drawn economies the analyses use when not told otherwise."))
 
     def check(self, plan: Any) -> None:
@@ -660,10 +661,14 @@ def _chunk(job: tuple[Any, ...]) -> list[tuple[Any, ...]]:
     return rows
 
 
-def _check_draws(draws: Any) -> int:
+def _check_draws(draws: Any, field: str = "draws", most: int = MAX_DRAWS) -> int:
+    """A count of draws within the library's limit, refused before anything is allocated."""
     if isinstance(draws, bool) or not isinstance(draws, int | np.integer) or draws < 1:
-        raise invalid("draws", "be a whole number >= 1", draws)
+        raise invalid(field, "be a whole number >= 1", draws)
+    if draws > most:
+        raise invalid(field, f"be at most {most:,}", int(draws))
     return int(draws)
+
 
 
 def _chunk_warm(task: tuple[str, list[int]]) -> list[tuple[Any, ...]]:
@@ -691,17 +696,27 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
     At most ``in_flight`` chunks are out at a time (default four per worker).
     """
     from ..progress import sweep_progress
-    from .sweep import LOST, _scattered, _token, _warm, in_order, owned_pool
+    from .sweep import (
+        LOST,
+        _scattered,
+        _token,
+        _warm,
+        check_workers,
+        in_order,
+        owned_pool,
+        worker_pool,
+    )
 
     own = executor is None
-    workers = max_workers or os.cpu_count() or 1
+    workers = check_workers(max_workers) or os.cpu_count() or 1
+    if chunk is not None:
+        chunk = _check_draws(chunk, "chunk")
     size = chunk or max(1, math.ceil(draws / (4 * workers)))
     groups = [list(range(s, min(s + size, draws))) for s in range(0, draws, size)]
     jobs = [(kind, plan, spec, g, extra) for g in groups]
     key = _token()
     if own:
-        pool: Executor = ProcessPoolExecutor(max_workers=workers, initializer=_warm,
-                                             initargs=(key, (kind, plan, spec, extra)))
+        pool: Executor = worker_pool(workers, _warm, (key, (kind, plan, spec, extra)))
         fn: Any = _chunk_warm
         args: list[Any] = [(key, g) for g in groups]
     else:
@@ -728,10 +743,12 @@ def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
 
 def _alone(job: tuple[Any, ...], mp_context: Any) -> list[tuple[Any, ...]]:
     """Draws of a chunk whose pool broke, each in a fresh one-worker pool."""
+    from .sweep import worker_pool
+
     kind, plan, spec, draws, extra = job
     rows: list[tuple[Any, ...]] = []
     for i in draws:
-        with ProcessPoolExecutor(max_workers=1, mp_context=mp_context) as pool:
+        with worker_pool(1, mp_context=mp_context) as pool:
             try:
                 rows.extend(pool.submit(_chunk, (kind, plan, spec, [i], extra)).result())
             except BrokenProcessPool:
@@ -928,7 +945,7 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
     from ..solve import run
 
     spec.check(plan)
-    n_s = _check_draws(scenarios)
+    n_s = _check_draws(scenarios, "scenarios", MAX_ROBUST_SCENARIOS)
     if criterion not in ("worst", "mean"):
         raise invalid("criterion", "be 'worst' or 'mean'", criterion)
     if plan.objective.horizon_search() is not None:

@@ -66,6 +66,7 @@ from pydantic import ConfigDict, Discriminator, Field, Tag
 from ..errors import InvalidInput, invalid
 from ..io.atomic import atomic_folder
 from ..io.files import read_regular_file
+from ..limits import SPEC_MAX_BYTES
 from ..model.economy import Economy
 from ..model.validation import Model
 from .capital_flows import (
@@ -84,8 +85,6 @@ __all__ = ["EconomySpec", "PublishedSpec", "BuildReport", "build_economy", "writ
            "plan_skeleton_of",
            "economy_spec_schema", "SPEC_MAX_BYTES"]
 
-SPEC_MAX_BYTES = 1 << 20
-"""Largest economy spec read (1 MB)."""
 
 
 

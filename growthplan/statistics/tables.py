@@ -39,6 +39,7 @@ from numpy.typing import ArrayLike
 from ..errors import InvalidInput, invalid, show
 from ..io.atomic import atomic_files
 from ..io.files import read_regular_file
+from ..limits import TABLE_MAX_BYTES, TABLE_MAX_CELLS, TABLE_MAX_COLUMNS
 from ..model.economy import CapitalSpec, Economy, Sector
 from ..model.validation import Rule, align_labels, raise_plain
 
@@ -51,12 +52,10 @@ LIST_COLUMNS = ("spending_profile", "investment_history")
 CAPITAL_COLUMNS = set(CapitalSpec.model_fields)
 
 
-TABLE_MAX_BYTES = 64 << 20
-"""Largest table file read (64 MB): a 1,000-sector table at full precision is ~20 MB."""
+# Largest table file read (64 MB): a 1,000-sector table at full precision is ~20 MB.
 _FLOW_RULE = "be a finite flow >= 0 (a blank cell reads as 0)"
 
-TABLE_MAX_CELLS = 4_000_000
-"""Most cells read from one workbook sheet (a compressed workbook can expand a lot)."""
+# TABLE_MAX_CELLS: most cells read from one sheet (a compressed workbook expands a lot).
 
 
 def read_frame(source: Any, *, what: str = "table") -> pd.DataFrame:
@@ -116,6 +115,7 @@ def _read_csv(raw: bytes, path: Path, what: str) -> pd.DataFrame:
                       hint=f"({exc.reason} at byte {exc.start})") from None
     if "\0" in text:
         raise invalid(what, "be a text table (it holds a NUL byte)", str(path))
+    _check_header(text.split("\n", 1)[0], path, what)
     try:
         # the csv module, not pandas: no guessing of missing values ("NA" is a sector,
         # not a gap) and no per-column cost on a very wide file
@@ -126,6 +126,25 @@ def _read_csv(raw: bytes, path: Path, what: str) -> pd.DataFrame:
     except csv.Error as exc:
         raise invalid(what, "be a readable CSV table", str(path), hint=f"({exc})") from None
     return _frame_from_rows(rows, path, what)
+
+
+_SEPARATORS = {";": "semicolons", "\t": "tabs", "|": "vertical bars"}
+
+
+def _check_header(first: str, path: Path, what: str) -> None:
+    """Refuse, from its first line alone, a table separated by something other than
+    commas (it would read as one column) or wider than the limit (before any row is
+    parsed: a million columns would take a minute and a gigabyte)."""
+    if "," not in first:
+        for sep, words in _SEPARATORS.items():
+            if sep in first:
+                raise invalid(what, "be comma-separated (CSV)", str(path),
+                              hint=f"(its first line is separated by {words}; save it with "
+                                   "commas, or as .xlsx)")
+    columns = first.count(",") + 1
+    if columns > TABLE_MAX_COLUMNS:
+        raise invalid(what, f"have at most {TABLE_MAX_COLUMNS:,} columns", str(path),
+                      hint=f"(its first line has {columns:,})")
 
 
 def _repeated(labels: list[str]) -> list[str]:
@@ -160,6 +179,10 @@ def _workbook_rows(raw: bytes, path: Path, what: str) -> list[list[Any]]:
         if not values_wb.worksheets:
             raise invalid(what, "have a worksheet", str(path))
         sheet, fsheet = values_wb.worksheets[0], formula_wb.worksheets[0]
+        if getattr(sheet, "sheet_state", "visible") != "visible":
+            # the table is the first sheet; one the reader cannot see is not taken silently
+            raise invalid(what, "have its first sheet visible (the table is read from the "
+                          f"first sheet, and {sheet.title!r} is hidden)", str(path))
         rows: list[list[Any]] = []
         cells = 0
         for vrow, frow in zip(sheet.iter_rows(), fsheet.iter_rows(), strict=False):
@@ -202,6 +225,9 @@ def _frame_from_rows(rows: list[list[Any]], path: Path, what: str) -> pd.DataFra
     dup = _repeated(labels)
     if dup:
         raise invalid(f"{what} ({path.name})", "have each column label once", dup)
+    dup = _repeated([str(r[0]).strip() for r in body if r[0] is not None])
+    if dup:  # a repeated row (two 'labour' rows) would be taken for one
+        raise invalid(f"{what} ({path.name})", "have each row label once", dup)
     index = pd.Index([r[0] for r in body], dtype=object,
                      name=None if header[0] is None else str(header[0]))
     data = [[np.nan if v is None else v for v in r[1:]] for r in body]

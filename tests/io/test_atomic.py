@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 import os
+import re
 import stat
 
 import pytest
@@ -39,7 +40,7 @@ def test_file_appears_on_success_with_umask_permissions(tmp_path, umask_022):
 def test_file_left_untouched_on_any_error(tmp_path, error):
     target = tmp_path / "out.csv"
     target.write_text("old")
-    with pytest.raises(error), atomic_file(target, overwrite=True) as tmp:
+    with pytest.raises(error), atomic_file(target, overwrite=True, force=True) as tmp:
         tmp.write_text("half")
         raise error
     assert target.read_text() == "old"
@@ -70,7 +71,10 @@ def test_files_appear_together(tmp_path):
         ta.write_text("1")
         tb.write_text("2")
     assert not a.exists() and b.read_text() == "old"
-    with atomic_files([a, b], overwrite=True) as (ta, tb):
+    with pytest.raises(gp.InvalidInput, match="force=True"), \
+            atomic_files([a, b], overwrite=True) as (ta, tb):
+        pass  # b.csv was not written by the library
+    with atomic_files([a, b], overwrite=True, force=True) as (ta, tb):
         ta.write_text("1")
         tb.write_text("2")
     assert a.read_text() == "1" and b.read_text() == "2"
@@ -174,3 +178,17 @@ def test_charts_all_or_none(tmp_path, monkeypatch):
     with pytest.raises(KeyboardInterrupt):
         save_charts(result, tmp_path / "charts")
     assert len(calls) == 3 and list(tmp_path.iterdir()) == []
+
+
+@pytest.mark.parametrize("name, rule", [
+    ("a\0b.csv", "be a valid path (no NUL character)"),  # was a bare ValueError
+    ("a" * 300 + ".csv", "be a path the system accepts"),
+    ("a" * 300 + "/b.csv", "be a path the system accepts"),
+])
+def test_paths_the_system_refuses_are_invalid_input(tmp_path, name, rule):
+    for write in (lambda p: atomic_file(p), lambda p: atomic_files([p]),
+                  lambda p: atomic_folder(p)):
+        with pytest.raises(gp.InvalidInput, match=re.escape(f"must {rule}. Got")):
+            with write(tmp_path / name):
+                pass
+    assert list(tmp_path.iterdir()) == []

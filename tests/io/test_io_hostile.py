@@ -512,6 +512,54 @@ for name, files, says in [
     add("cells named", name, files=files, expect="refused", says=says)
 
 
+
+# -- family: names unsafe for the files they reach (control characters, length, case) ------
+
+for name, names, says in [
+        ("bell in a name", ("a\x07", "b", "c"), "must hold no control characters"),
+        ("escape in a name", ("a", "b\x1b[2J", "c"), "must hold no control characters"),
+        ("name over a workbook cell", ("a", "b", "c" * 32_768),
+         "must be at most 32,767 characters (the most a workbook cell holds"),
+        ("names differing by case", ("a", "B", "b"),
+         "must differ by more than case or Unicode normal form"),
+        ("names differing by normal form", ("a", "\u00e9", "e\u0301"),
+         "must differ by more than case or Unicode normal form")]:
+    add("unsafe names", name, base=base_files(names), expect="refused", says=says)
+add("unsafe names", "formula-like names load", base=base_files(("=1+1", "@b", "-c")),
+    expect="loaded")
+
+# -- family: tables whose shape a reader would misread ---------------------------------------
+
+_labour = flows_csv().splitlines()[-1]
+for name, files, says in [
+        ("semicolons", {"flows.csv": flows_csv().replace(",", ";")},
+         "(its first line is separated by semicolons"),
+        ("tabs", {"flows.csv": flows_csv().replace(",", "\t")},
+         "(its first line is separated by tabs"),
+        ("labour row twice", {"flows.csv": flows_csv() + _labour + "\n"},
+         "must have each row label once. Got ['labour']"),
+        ("a million columns", {"flows.csv": "sector," + ",".join(
+            f"c{i}" for i in range(10**6)) + "\na," + "1," * 10**6 + "\n"},
+         "must have at most 100,000 columns")]:
+    add("table shape", name, files=files, expect="refused", says=says)
+
+
+def _hidden_first_sheet(d: Path) -> None:
+    import openpyxl
+
+    _workbook()(d)
+    wb = openpyxl.load_workbook(d / "flows.xlsx")
+    old = wb.create_sheet("old figures", 0)
+    old.append(["sector", "a"])
+    old.sheet_state = "hidden"
+    wb.save(d / "flows.xlsx")
+
+
+add("table shape", "hidden first sheet", setup=_hidden_first_sheet, files=XLSX_PLAN,
+    expect="refused", says="'old figures' is hidden")
+add("toml", "byte-order mark", plan="plan.toml", files={"plan.toml": "\ufeff" + TOML},
+    expect="loaded")
+
 # -- the test --------------------------------------------------------------------------------
 
 class CaseTimeout(BaseException):

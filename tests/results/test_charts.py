@@ -17,7 +17,7 @@ from conftest import one_sector
 from helpers import economy, make_plan
 
 import growthplan as gp
-from growthplan.cli.base import _CHART_NAMES
+from growthplan.cli.base import CHART_NAMES
 from growthplan.results import charts as plot
 
 MONEY = "million arvens at 2026 prices"
@@ -176,7 +176,7 @@ def test_save_charts_writes_the_new_charts(demo, impossible, tmp_path):
                      "utilisation", "shadow_prices", "ray_distance"]
     bad = [p.stem for p in plot.save_charts(impossible, tmp_path / "bad")]
     assert bad == ["targets", "diagnosis"]
-    assert set(names + bad) <= set(_CHART_NAMES)  # the command line knows every name
+    assert set(names + bad) <= set(CHART_NAMES)  # the command line knows every name
     assert all((tmp_path / "ok" / f"{n}.png").stat().st_size > 10_000 for n in names)
 
 
