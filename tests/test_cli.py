@@ -133,7 +133,7 @@ def installed(tmp_path_factory):
     for f in ("flows.csv", "capital.csv", "capital_stocks.csv", "plan.yaml"):
         shutil.copy(DEMO_DIR / f, d / f)
     (d / "mine.xlsx").write_text("the user's")
-    gp.load_plan_file(d / "plan.yaml")[0].economy.B.to_csv(d / "b.csv", index_label="sector")
+    gp.load_plan_file(d / "plan.yaml").economy.B.to_csv(d / "b.csv", index_label="sector")
     free = yaml.safe_load((d / "plan.yaml").read_text())
     del free["economy"]["capital_stocks"]  # capacity needs no capital goods
     (d / "free.yaml").write_text(yaml.safe_dump(free))

@@ -64,7 +64,7 @@ def test_reoptimise_on_two_workers_matches_the_library(folder):
     assert r.returncode == 0, r.stderr
     assert "Probability that the plan is feasible: 1.000 (3 draws)" in r.stdout
     assert "terminal_capacity" in r.stdout
-    plan, _ = gp.load_plan_file(folder / "plan.yaml")
+    plan = gp.load_plan_file(folder / "plan.yaml")
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         ref = gp.reoptimise(plan, gp.load_uncertainty(folder / "plan.yaml"),

@@ -424,6 +424,9 @@ def _fresh_folder(target: Path, overwrite: bool) -> Iterator[Path]:
     tmp = Path(tempfile.mkdtemp(prefix=f".{target.name}.", dir=target.parent))
     try:
         yield tmp
+        from ..io.atomic import _folder_mode
+
+        os.chmod(tmp, _folder_mode())  # mkdtemp's folder is private; the user's umask rules
         tmp.rename(target)
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)

@@ -34,7 +34,6 @@ from .base import (
 )
 
 if TYPE_CHECKING:
-    from ..io.planfile import SolveOptions
     from ..model.plan import Plan
 
 
@@ -42,14 +41,17 @@ def _method_help() -> str:
     return "HiGHS method: " + ", ".join(("auto", *METHODS)) + " (default: the plan file's)."
 
 
-def _solver_options(opts: SolveOptions, method: str | None,
+def _solver_options(plan: Plan, method: str | None,
                     time_limit: float | None) -> dict[str, Any]:
-    """The solve's settings, refused here as the solve would refuse them."""
+    """The solve's settings (the options', else the plan file's), refused here as the
+    solve would refuse them."""
     from ..backends.highs import HighsBackend
 
-    chosen: dict[str, Any] = {"method": method or opts.method,
-                              "time_limit": time_limit or opts.time_limit,
-                              "threads": opts.threads, "tolerance": opts.tolerance}
+    opts = plan.solve_options
+    chosen: dict[str, Any] = {"method": method or opts.get("method") or "auto",
+                              "time_limit": time_limit or opts.get("time_limit"),
+                              "threads": opts.get("threads"),
+                              "tolerance": opts.get("tolerance")}
     try:
         HighsBackend(chosen["method"], time_limit=chosen["time_limit"],
                      threads=chosen["threads"], tolerance=chosen["tolerance"])  # no solve
@@ -90,8 +92,8 @@ def solve(plan_file: Path, out: Path | None, excel: Path | None, report: Path | 
 
     _check_outputs(out, excel, charts, overwrite, inputs=(plan_file,), report=report)
     with _reading(plan_file):
-        plan, opts = load_plan_file(_input_file(plan_file, "plan file"))
-    chosen = _solver_options(opts, method, time_limit)
+        plan = load_plan_file(_input_file(plan_file, "plan file"))
+    chosen = _solver_options(plan, method, time_limit)
     result = _solve(plan, **chosen, progress=progress)
     from ..io.planfile import plan_file_inputs
 
@@ -110,8 +112,8 @@ def check(plan_file: Path) -> None:
     from .. import load_plan_file
 
     with _reading(plan_file):
-        plan, opts = load_plan_file(_input_file(plan_file, "plan file"))
-    chosen = _solver_options(opts, None, None)
+        plan = load_plan_file(_input_file(plan_file, "plan file"))
+    chosen = _solver_options(plan, None, None)
     _needs_capital(plan)
     econ = plan.economy
     lp = plan.compile()  # the size guard and the build the solve runs first
@@ -216,7 +218,7 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
         raise invalid("--charts", "be used with matplotlib installed (pip install "
                       "'growthplan[plot]')", str(charts))
     with _reading(DEMO_DIR / PLAN_FILE):
-        plan, _ = load_plan_file(DEMO_DIR / PLAN_FILE)
+        plan = load_plan_file(DEMO_DIR / PLAN_FILE)
     econ = plan.economy
     bg = econ.dynamic_balanced_growth()
     money = econ.value_unit

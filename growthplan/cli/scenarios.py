@@ -104,14 +104,21 @@ def _load(plan_file: Path, draws: int | None, seed: int | None) -> tuple[Any, An
 
     _input_file(plan_file, "plan file")
     with _reading(plan_file):
-        plan, opts = load_plan_file(plan_file)
+        plan = load_plan_file(plan_file)
         spec = load_uncertainty(plan_file)
     if spec is None:
         raise invalid("plan file", "have an uncertainty section (see 'growthplan schema')",
                       str(plan_file))
     if seed is not None:
         spec = spec.model_copy(update={"seed": seed})
-    return plan, opts, spec, spec.draws if draws is None else draws
+    return plan, _options(plan), spec, spec.draws if draws is None else draws
+
+
+def _options(plan: Any) -> Any:
+    """The plan file's solver settings, as attributes."""
+    from ..io.planfile import SolveOptions
+
+    return SolveOptions(**plan.solve_options)
 
 
 def _analysis_options(f: Any) -> Any:
@@ -246,7 +253,8 @@ def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
     _input_file(plan_file, "plan file")
     _input_file(actuals, "actuals")
     with _reading(plan_file):
-        plan, opts = load_plan_file(plan_file)
+        plan = load_plan_file(plan_file)
+    opts = _options(plan)
     with _reading(actuals):
         done = read_actuals(actuals)
     new_plan = revised_plan(plan, done, from_year)  # checked before anything is solved

@@ -397,6 +397,7 @@ class Plan(Model):
                                        discriminator="kind")
     _validate_seconds: float = PrivateAttr(default=0.0)
     _lowered: Any = PrivateAttr(default=None)
+    _solve_options: dict[str, Any] = PrivateAttr(default_factory=dict)
 
     def __init__(self, /, **data: Any) -> None:
         t0 = time.perf_counter()
@@ -566,7 +567,9 @@ class Plan(Model):
         if update:
             fields = {k: getattr(self, k) for k in type(self).model_fields}
             fields.update(update)
-            return Plan(**fields)
+            new = Plan(**fields)
+            new._solve_options = dict(self._solve_options)
+            return new
         out = super().model_copy(deep=deep)
         out._lowered = None
         return out
@@ -643,7 +646,14 @@ class Plan(Model):
 
         return estimate_size(self)
 
-    def solve(self, *, method: str = "auto", time_limit: float | None = None,
+    @property
+    def solve_options(self) -> dict[str, Any]:
+        """The solver settings of the plan file this plan was read from (``method``,
+        ``time_limit``, ``threads``, ``tolerance``; empty for a plan built in Python).
+        :meth:`solve` uses them where it is not told otherwise."""
+        return dict(self._solve_options)
+
+    def solve(self, *, method: str | None = None, time_limit: float | None = None,
               threads: int | None = None, tolerance: float | None = None,
               audit_tolerance: float = 1e-6, options: dict[str, Any] | None = None,
               progress: bool = False, stop: Any = None,
@@ -663,8 +673,10 @@ class Plan(Model):
 
         Parameters
         ----------
-        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp"}
-            HiGHS method. ``"auto"`` picks by problem size (see the README).
+        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp"}, optional
+            HiGHS method (default: the plan file's, else ``"auto"``). ``"auto"``
+            picks by problem size (see the README). ``time_limit``, ``threads``
+            and ``tolerance`` also default to the plan file's (:attr:`solve_options`).
             When a solve fails, the other method is tried before giving up.
         time_limit : float, optional
             Seconds; a solve that hits it returns status ``time_limit``.
@@ -712,6 +724,11 @@ class Plan(Model):
         """
         from ..solve import solve
 
+        given = self._solve_options
+        method = method or given.get("method") or "auto"
+        time_limit = time_limit if time_limit is not None else given.get("time_limit")
+        threads = threads if threads is not None else given.get("threads")
+        tolerance = tolerance if tolerance is not None else given.get("tolerance")
         return solve(self, backend=backend, method=method, time_limit=time_limit,
                      threads=threads, tolerance=tolerance, audit_tolerance=audit_tolerance,
                      options=options, progress=progress, stop=stop, size_limit=size_limit)

@@ -1,0 +1,82 @@
+"""A new analyst's first hour, through the installed command and the public API:
+units on every figure, words a colleague reads, files a colleague can open."""
+
+from __future__ import annotations
+
+import os
+import shutil
+import stat
+import subprocess
+import sys
+import warnings
+from pathlib import Path
+
+import pytest
+import yaml
+
+import growthplan as gp
+from growthplan.demo import DEMO_DIR
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def cli(*args: object, cwd: Path, umask: int | None = None) -> subprocess.CompletedProcess[str]:
+    """``python -m growthplan.cli`` as a user runs it, with this tree on the path."""
+    env = {**os.environ, "PYTHONPATH": str(ROOT)}
+    pre = (lambda: os.umask(umask)) if umask is not None else None  # noqa: E731
+    return subprocess.run([sys.executable, "-m", "growthplan.cli", *map(str, args)],
+                          cwd=cwd, env=env, capture_output=True, text=True, timeout=300,
+                          preexec_fn=pre)
+
+
+@pytest.fixture(scope="module")
+def copied(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """The demo copied as ``demo --copy`` writes it, to edit."""
+    d = tmp_path_factory.mktemp("first-hour")
+    res = cli("demo", "--copy", "my-plan", cwd=d)
+    assert res.returncode == 0, res.stderr
+    return d / "my-plan"
+
+
+@pytest.fixture(scope="module")
+def solved(copied: Path) -> tuple[Path, subprocess.CompletedProcess[str]]:
+    """``solve`` of the copied plan with every export, under umask 022."""
+    d = copied.parent / "solved"
+    d.mkdir()
+    res = cli("solve", copied / "plan.yaml", "--no-progress", "--out", "out", "--excel",
+              "plan.xlsx", "--charts", "charts", "--report", "plan.html", cwd=d, umask=0o022)
+    assert res.returncode == 0, res.stderr
+    return d, res
+
+
+def test_the_public_door_lists_no_stray_names():
+    assert "PackageNotFoundError" not in dir(gp)
+    assert not [n for n in dir(gp) if n.endswith("Error") and n not in gp.__all__]
+
+
+def test_load_plan_file_returns_a_plan_that_solves_with_the_files_settings(tmp_path):
+    for f in ("flows.csv", "capital.csv", "capital_stocks.csv", "plan.yaml"):
+        shutil.copy(DEMO_DIR / f, tmp_path / f)
+    d = yaml.safe_load((tmp_path / "plan.yaml").read_text())
+    d["solve"] = {"method": "ipm", "time_limit": 120}
+    (tmp_path / "plan.yaml").write_text(yaml.safe_dump(d))
+    plan = gp.load_plan_file(tmp_path / "plan.yaml")
+    assert isinstance(plan, gp.Plan)
+    assert plan.solve_options["method"] == "ipm" and plan.solve_options["time_limit"] == 120
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        result = plan.solve()
+        simplex = plan.solve(method="simplex")
+    assert result.ok and result.solver["method"].startswith("ipm")
+    assert simplex.solver["method"] == "simplex"
+    assert gp.Plan(economy=plan.economy, years=plan.years).solve_options == {}
+
+
+def test_every_folder_and_file_follows_the_umask(solved):
+    d, _ = solved
+    for folder in (d / "out", d / "charts"):
+        assert stat.S_IMODE(folder.stat().st_mode) == 0o755, folder
+        for f in folder.iterdir():
+            assert stat.S_IMODE(f.stat().st_mode) == 0o644, f
+    for f in (d / "plan.xlsx", d / "plan.html"):
+        assert stat.S_IMODE(f.stat().st_mode) == 0o644, f
