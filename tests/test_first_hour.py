@@ -80,3 +80,24 @@ def test_every_folder_and_file_follows_the_umask(solved):
             assert stat.S_IMODE(f.stat().st_mode) == 0o644, f
     for f in (d / "plan.xlsx", d / "plan.html"):
         assert stat.S_IMODE(f.stat().st_mode) == 0o644, f
+
+
+def test_check_reports_every_misspelt_key_at_once(copied):
+    text = (copied / "plan.yaml").read_text()
+    bad = (text.replace("  targets:", "  tagrets:").replace("max_fall:", "maxfall:")
+           .replace("first_year_within:", "first_year_whithin:")
+           .replace("method: auto", "methd: auto"))
+    (copied / "misspelt.yaml").write_text(bad)
+    res = cli("check", "misspelt.yaml", cwd=copied)
+    assert res.returncode == 2
+    assert "3 problems" in res.stderr or "4 problems" in res.stderr, res.stderr
+    for key, meant in (("tagrets", "targets"), ("first_year_whithin", "first_year_within"),
+                       ("methd", "method")):
+        assert f"{key} must be a known field (did you mean '{meant}'?)" in res.stderr
+    # within the plan's models too: a target's key and the consumption's, together
+    bad = text.replace("capacity_at_least", "capacity_atleast").replace("max_fall:",
+                                                                        "maxfall:")
+    (copied / "misspelt.yaml").write_text(bad)
+    res = cli("check", "misspelt.yaml", cwd=copied)
+    assert "2 problems" in res.stderr and "capacity_atleast" in res.stderr
+    assert "maxfall" in res.stderr

@@ -58,7 +58,7 @@ from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 from ..errors import InvalidInput, invalid, show, suggest
 from ..model.economy import Economy, Sector
 from ..model.plan import Plan
-from ..model.validation import Model, Rule
+from ..model.validation import Model, Rule, unknown_keys
 from ..scenarios.uncertainty import UncertaintySpec
 from ..statistics.tables import _coefficient_frames, _write_csv, economy_from_coefficients
 from .atomic import atomic_files
@@ -248,8 +248,10 @@ class PlanFile(Model):
     def _plan(cls, v: dict[str, Any]) -> dict[str, Any]:
         if "economy" in v:
             raise Rule("not contain 'economy' (it is a section of its own)", "economy")
-        if "years" not in v:
-            raise Rule("give years (a list, or first and last)", sorted(v))
+        # every misspelt key of the section at once, before the tables are read
+        names = [n for n in Plan.model_fields if n != "economy"]
+        unknown_keys(v, names, more=[] if "years" in v else [invalid(
+            "years", "be given (a list, or first and last)", None)])
         return v
 
 
