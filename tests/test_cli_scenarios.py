@@ -86,10 +86,10 @@ def test_revise_prints_the_comparison_and_writes_it(folder):
     assert r.returncode == 0, r.stderr
     assert "Original and revised plan from 2030" in r.stdout and "objective: original" in r.stdout
     table = pd.read_csv(out)
-    assert list(table.columns) == ["year", "sector", "quantity", "a", "b", "difference",
-                                   "relative"]
+    assert list(table.columns) == ["year", "sector", "quantity", "original", "revised",
+                                   "difference", "relative"]
     assert table["year"].min() == 2030
-    np.testing.assert_allclose(table["difference"], table["b"] - table["a"])
+    np.testing.assert_allclose(table["difference"], table["revised"] - table["original"])
 
 
 @pytest.mark.parametrize("actuals, args, match", [

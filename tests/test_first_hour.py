@@ -101,3 +101,30 @@ def test_check_reports_every_misspelt_key_at_once(copied):
     res = cli("check", "misspelt.yaml", cwd=copied)
     assert "2 problems" in res.stderr and "capacity_atleast" in res.stderr
     assert "maxfall" in res.stderr
+
+
+def test_a_revision_speaks_of_its_actuals_and_names_its_columns(copied):
+    rows = [f"{y},energy,60\n{y},services,300\n" for y in (2027, 2028, 2029)]
+    (copied / "actuals.csv").write_text("year,sector,starts\n" + "".join(rows))
+    res = cli("revise", "plan.yaml", "actuals.csv", "--from-year", "2030", "--no-progress",
+              "--out", "cmp.csv", "--overwrite", cwd=copied)
+    assert res.returncode == 0, res.stderr
+    said = res.stdout + res.stderr
+    assert "departs from the base year" not in said  # its base is the actuals
+    assert "revision" in said and "from 2030" in said
+    assert "=...)" not in said and "Plan(" not in said  # no Python for a command-line user
+    assert "(million arvens at 2026 prices a year)" in res.stdout
+    header = (copied / "cmp.csv").read_text().splitlines()[0].split(",")
+    assert header == ["year", "sector", "quantity", "original", "revised", "difference",
+                      "relative"]
+
+
+def test_no_message_suggests_python_syntax_to_a_command_line_user(copied):
+    d = yaml.safe_load((copied / "plan.yaml").read_text())
+    d["plan"].pop("terminal")
+    d["plan"].pop("first_year_within")
+    (copied / "open-ended.yaml").write_text(yaml.safe_dump(d))
+    res = cli("solve", "open-ended.yaml", "--no-progress", cwd=copied)
+    said = res.stdout + res.stderr
+    assert "end effects" in said and "terminal: {rate: ...}" in said
+    assert "=...)" not in said and "Plan(" not in said

@@ -273,10 +273,14 @@ def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
             click.echo("\nShortfalls (elastic re-solve):")
             click.echo(result.diagnosis.shortfalls.to_string(index=False))
         _exit(_exit_code(result))
-    table = compare(original, result)
-    per_year = table.groupby(["quantity", "year"])[["a", "b", "difference"]].sum()
-    per_year = per_year.rename(columns={"a": "original", "b": "revised"}).reset_index()
-    click.echo(f"\nOriginal and revised plan from {from_year}, summed over sectors:")
+    # the columns named as the console names them
+    table = compare(original, result).rename(columns={"a": "original", "b": "revised"})
+    per_year = table.groupby(["quantity", "year"])[["original", "revised",
+                                                    "difference"]].sum().reset_index()
+    units = sorted(set(plan.economy.units))
+    unit = (f"{units[0]} a year" if len(units) == 1 else
+            "each sector's own unit a year, summed as given")
+    click.echo(f"\nOriginal and revised plan from {from_year}, summed over sectors ({unit}):")
     click.echo(per_year.to_string(index=False, float_format=lambda v: f"{v:.6g}"))
     click.echo(f"objective: original {original.objective:.6g}, revised {result.objective:.6g}")
     _write(out, excel, {"comparison": table, "per_year": per_year}, "comparison", overwrite,

@@ -398,6 +398,7 @@ class Plan(Model):
     _validate_seconds: float = PrivateAttr(default=0.0)
     _lowered: Any = PrivateAttr(default=None)
     _solve_options: dict[str, Any] = PrivateAttr(default_factory=dict)
+    _revised_from: int | None = PrivateAttr(default=None)
 
     def __init__(self, /, **data: Any) -> None:
         t0 = time.perf_counter()
@@ -569,6 +570,7 @@ class Plan(Model):
             fields.update(update)
             new = Plan(**fields)
             new._solve_options = dict(self._solve_options)
+            new._revised_from = self._revised_from
             return new
         out = super().model_copy(deep=deep)
         out._lowered = None
@@ -652,6 +654,13 @@ class Plan(Model):
         ``time_limit``, ``threads``, ``tolerance``; empty for a plan built in Python).
         :meth:`solve` uses them where it is not told otherwise."""
         return dict(self._solve_options)
+
+    @property
+    def revised_from(self) -> int | None:
+        """The first year of a revision made by :func:`growthplan.revise` (its starting
+        capacity comes from the starts actually made, not from the base year); None
+        for an original plan."""
+        return self._revised_from
 
     def solve(self, *, method: str | None = None, time_limit: float | None = None,
               threads: int | None = None, tolerance: float | None = None,

@@ -116,7 +116,10 @@ class Summary:
                                  f"{use}; at least {100 * ratio.min():.1f} % "
                                  f"({ratio.idxmin()})"))
             cal = r.calibration
-            if not cal.empty:
+            if p.revised_from is not None:
+                rows.append(("revision", f"from {p.revised_from}, on the capacity the starts "
+                             "actually made left (the base year is not its starting point)"))
+            elif not cal.empty:
                 far = cal[cal["change"].abs() > CALIBRATION_WARNING].sort_values(
                     "change", key=abs, ascending=False)
                 if not far.empty:
@@ -124,7 +127,7 @@ class Summary:
                                  f"{100 * CALIBRATION_WARNING:.0f} %: " + ", ".join(
                                      f"{k} {100 * v:+.0f} %" for k, v in
                                      far["change"].head(4).items())
-                                 + (" (Plan(first_year_within=...) holds it nearer)"
+                                 + (" (the plan's first_year_within holds it nearer)"
                                     if p.first_year_within is None else "")))
             b = r.bottlenecks(top=3)
             if not b.empty:
