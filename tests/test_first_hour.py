@@ -128,3 +128,67 @@ def test_no_message_suggests_python_syntax_to_a_command_line_user(copied):
     said = res.stdout + res.stderr
     assert "end effects" in said and "terminal: {rate: ...}" in said
     assert "=...)" not in said and "Plan(" not in said
+
+
+UNIT = "million arvens at 2026 prices"  # the demo's money (its sectors are in money)
+LABOUR = "thousand person-years"
+
+
+def _headers(path: Path) -> list[str]:
+    return path.read_text(encoding="utf-8").splitlines()[0].split(",")
+
+
+def test_every_exported_figure_carries_its_unit(solved):
+    import pandas as pd
+
+    d, _ = solved
+    out = d / "out"
+    for f in out.glob("*.csv"):
+        head = pd.read_csv(f, nrows=1).columns
+        assert not [c for c in head if c.startswith("Unnamed")], f  # no bare row numbers
+    assert _headers(out / "starts.csv")[1] == f"agriculture [{UNIT} a year]"
+    assert _headers(out / "utilisation.csv")[1] == "agriculture [fraction of capacity]"
+    assert _headers(out / "shadow_prices.csv")[1] == f"agriculture [terminal bundles per {UNIT}]"
+    assert _headers(out / "quasi_rents.csv")[1] == (
+        f"agriculture [terminal bundles per {UNIT} a year of capacity]")
+    assert _headers(out / "labour_values.csv")[1] == f"labour [terminal bundles per {LABOUR}]"
+    assert "shadow_prices_current" in {f.stem for f in out.glob("*.csv")}
+    assert all("[" in c for c in pd.read_csv(out / "shadow_prices_current.csv").columns[1:])
+    acc = pd.read_csv(out / "accounts.csv").columns
+    assert "investment_share [fraction of GDP]" in acc
+    assert f"employment [{LABOUR}]" in acc and not [c for c in acc if "labour labour" in c]
+    assert _headers(out / "labour.csv") == ["year", f"labour used [{LABOUR}]",
+                                            f"labour available [{LABOUR}]"]
+    cap = pd.read_csv(out / "capacity.csv")
+    assert cap["year"].tolist() == list(range(2027, 2043))  # numeric, the year after too
+    assert cap["period"].iloc[-1] == "after the plan"
+    book = pd.read_excel(d / "plan.xlsx", sheet_name=None)
+    assert pd.api.types.is_integer_dtype(book["capacity"]["year"])
+    for sheet in ("shadow_prices", "shadow_prices_current", "quasi_rents", "labour_values",
+                  "utilisation", "starts"):
+        assert all("[" in str(c) for c in book[sheet].columns[1:]), sheet
+    assert book["starts"].columns[1].endswith(" a year]")
+
+
+def test_an_impossible_plans_shortfalls_carry_units_without_doubled_words(copied):
+    d = yaml.safe_load((copied / "plan.yaml").read_text())
+    d["plan"]["labour"]["start"] = 2000  # far below what the floor needs
+    (copied / "short.yaml").write_text(yaml.safe_dump(d))
+    res = cli("solve", "short.yaml", "--no-progress", "--out", "short-out", "--excel",
+              "short.xlsx", "--report", "short.html", "--overwrite", cwd=copied)
+    assert res.returncode == 1, res.stderr
+    assert "Shortfalls" in res.stdout and LABOUR in res.stdout and " %" in res.stdout
+    table = (copied / "short-out" / "shortfalls.csv").read_text(encoding="utf-8")
+    assert "unit" in table.splitlines()[0] and LABOUR in table
+    assert "share [fraction of the requirement]" in table.splitlines()[0]
+    html = (copied / "short.html").read_text(encoding="utf-8")
+    assert f"{LABOUR} can be reached" in html
+    import pandas as pd
+
+    sheet = pd.read_excel(copied / "short.xlsx", sheet_name="shortfalls")
+    words = sheet["in words"]
+    labour = sheet["condition"] == "labour"
+    assert labour.any() and words[labour].str.contains(f"labour supply in .* {LABOUR}").all()
+    assert (sheet["unit"].fillna("") != "").all()
+    for text in (res.stdout, table, html, " ".join(words)):
+        assert "labour labour" not in text

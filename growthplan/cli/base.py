@@ -437,9 +437,7 @@ def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Pa
             overwrite: bool, protect: tuple[Path, ...] = (),
             report: Path | None = None) -> None:
     click.echo(str(result.summary()))
-    if result.diagnosis is not None and not result.diagnosis.shortfalls.empty:
-        click.echo("\nShortfalls (elastic re-solve):")
-        click.echo(result.diagnosis.shortfalls.to_string(index=False))
+    _shortfalls(result)
     if report is not None:  # an impossible plan's report holds its diagnosis
         with _writing(report, "--report"):
             click.echo(f"wrote {result.report(report, overwrite=overwrite, protect=protect)}")
@@ -462,6 +460,18 @@ def _report(result: PlanResult, out: Path | None, excel: Path | None, charts: Pa
             written = save_charts(result, folder, overwrite=overwrite, protect=protect)
         for p in written:
             click.echo(f"wrote {charts / p.name}")
+
+
+def _shortfalls(result: PlanResult) -> None:
+    """The elastic re-solve's shortfalls, each with its unit, the share in percent."""
+    from ..results.report import shortfall_table
+
+    short = shortfall_table(result)
+    if short.empty:
+        return
+    short["share"] = [f"{100 * v:.1f} %" for v in short["share"]]
+    click.echo("\nShortfalls (elastic re-solve):")
+    click.echo(short.to_string(index=False, float_format=lambda v: f"{v:,.2f}"))
 
 
 def _plural(n: int, word: str, many: str | None = None) -> str:

@@ -162,7 +162,10 @@ def steady(flows: Path, capital: Path | None, capital_stocks: Path | None,
     click.echo(f"{_plural(econ.n, 'sector')}; spectral radius {econ.spectral_radius():.6f}")
     table = econ.output_multipliers().to_frame()
     if econ.labour_coefficients is not None:
-        table = table.join(econ.labour_content().T.add_prefix("labour_content_"))
+        content = econ.labour_content().T
+        content.columns = ["labour_content" if k == "labour" else f"labour_content_{k}"
+                           for k in content.columns]
+        table = table.join(content)
     bg = econ.balanced_growth()
     table["static_balanced"] = bg.proportions
     click.echo(f"static balanced growth rate (current inputs only, ignoring capital) "

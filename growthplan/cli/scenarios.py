@@ -30,6 +30,7 @@ from .base import (
     _overwrite,
     _reading,
     _resolved,
+    _shortfalls,
     _solve,
     _writable,
     _writing,
@@ -269,9 +270,7 @@ def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
     click.echo(str(result.summary()))
     if not result.ok:
         click.echo(f"The revised plan from {from_year} has no optimum.")
-        if result.diagnosis is not None and not result.diagnosis.shortfalls.empty:
-            click.echo("\nShortfalls (elastic re-solve):")
-            click.echo(result.diagnosis.shortfalls.to_string(index=False))
+        _shortfalls(result)
         _exit(_exit_code(result))
     # the columns named as the console names them
     table = compare(original, result).rename(columns={"a": "original", "b": "revised"})

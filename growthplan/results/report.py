@@ -27,6 +27,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 import pandas as pd
 
+from .accounts import employment_kind
 from .summary import CAUTION
 
 if TYPE_CHECKING:
@@ -143,6 +144,65 @@ def _text(x: Any, decimals: int = 2, *, ratio: bool = False, scale: float = 1.0)
     if text.lstrip("-").strip("0.,% ") == "":
         text = text.lstrip("-")  # a value rounded to zero shows no sign
     return text.replace("-", "−")
+
+
+def _shortfall_unit(result: PlanResult, condition: str, who: str) -> str:
+    """The unit a shortfall row is counted in, from its condition and sector or kind."""
+    d = result.data
+    if d is None:
+        return ""
+    if condition == "labour":
+        units = dict(zip(d.labour_all_kinds, d.labour_all_units, strict=False))
+        return units.get(who, "") or "person-years"
+    if condition == "foreign exchange":
+        return d.value_unit
+    if condition.startswith("consumption"):
+        return "units of the consumption level"
+    units = dict(zip(d.names, d.units, strict=False))
+    return f"{units[who]} a year" if who in units else ""
+
+
+def shortfall_table(result: PlanResult) -> pd.DataFrame:
+    """The diagnosis's shortfalls with the unit of each row (empty without any).
+
+    The default labour kind is not repeated after its condition ("labour", not
+    "labour labour").
+
+    Parameters
+    ----------
+    result : PlanResult
+
+    Returns
+    -------
+    pandas.DataFrame
+        condition, sector, year, unit, required, achievable, shortfall and
+        share (a fraction of what is required).
+    """
+    diag = result.diagnosis
+    if diag is None or diag.shortfalls.empty:
+        return pd.DataFrame()
+    short = diag.shortfalls.copy()
+    pairs = list(zip(short["condition"].astype(str), short["sector"].astype(str),
+                     strict=True))
+    short.insert(short.columns.get_loc("year") + 1, "unit",
+                 [_shortfall_unit(result, c, s) for c, s in pairs])
+    short["sector"] = ["" if c == s == "labour" else s for c, s in pairs]
+    return short
+
+
+def shortfall_words(result: PlanResult) -> list[str]:
+    """Each shortfall as a sentence with its unit."""
+    words = []
+    for r in shortfall_table(result).itertuples():
+        cond = "labour supply" if r.condition == "labour" else r.condition
+        where = " ".join(str(x) for x in (cond, r.sector) if x != "")
+        when = f" in {r.year}" if r.year != "" else ""
+        unit = f" {r.unit}" if r.unit else ""
+        words.append(f"The {where}{when} asks for {_text(float(r.required))}{unit} but at "
+                     f"most {_text(float(r.achievable))}{unit} can be reached: short by "
+                     f"{_text(float(r.shortfall))}{unit} "
+                     f"({_text(float(r.share), ratio=True)}).")
+    return words
 
 
 def _is_ratio(name: object) -> bool:
@@ -704,10 +764,11 @@ def _binding(condition: str, name: str) -> str:
 def _account_name(result: PlanResult, column: str) -> str:
     """"GDP growth", "employment skilled (thousand person-years)": accounts rows for reading."""
     name = column.replace("_", " ").replace("gdp", "GDP")
-    if column.startswith("employment ") and result.data is not None:
+    kind = employment_kind(column)
+    if kind is not None and result.data is not None:
         d = result.data
         units = dict(zip(d.labour_all_kinds, d.labour_all_units, strict=False))
-        unit = units.get(column[len("employment "):], "") or "person-years"
+        unit = units.get(kind, "") or "person-years"
         name = f"{name} ({unit})"
     return name
 
@@ -763,15 +824,9 @@ def _impossible(result: PlanResult) -> str:
         out.append(f"<p>{_e(conflict)}</p>")
     out.append("</div>")
     if not diag.shortfalls.empty:
-        words = []
-        for r in diag.shortfalls.itertuples():
-            where = " ".join(str(x) for x in (r.condition, r.sector) if x != "")
-            when = f" in {r.year}" if r.year != "" else ""
-            words.append(f"The {where}{when} asks for {_text(float(r.required))} but at most "
-                         f"{_text(float(r.achievable))} can be reached: short by "
-                         f"{_text(float(r.shortfall))} ({_text(float(r.share), ratio=True)}).")
+        words = shortfall_words(result)
         out.append("<ul>" + "".join(f"<li>{_e(w)}</li>" for w in words) + "</ul>")
-        out.append(_table(diag.shortfalls, index=False, ratios=("share",),
+        out.append(_table(shortfall_table(result), index=False, ratios=("share",),
                           caption="Shortfalls found by the elastic re-solve"))
     for note in diag.notes:
         out.append(f'<p class="note">{_e(note)}</p>')

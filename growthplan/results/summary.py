@@ -58,6 +58,23 @@ def key_figures(result: PlanResult) -> dict[str, Any]:
     return out
 
 
+def objective_unit(result: PlanResult) -> str:
+    """The objective's unit in words, for the headers of shadow values: "terminal
+    bundles" (each able to make output worth 1 unit of money a year in the terminal
+    proportions), the labour unit, the consumption level's units, …"""
+    kind = result.plan.objective.kind
+    d = result.data
+    if kind == "terminal_capacity":
+        return "terminal bundles"
+    if kind == "least_labour" and d is not None and len(set(d.labour_all_units)) == 1:
+        return str(d.labour_all_units[0])
+    if kind == "discounted_consumption":
+        return "discounted consumption-level units"
+    if kind == "least_foreign_exchange" and d is not None:
+        return f"{d.value_unit} of foreign exchange"
+    return "units of the objective"
+
+
 def labour_label(kind: str, unit: str) -> str:
     """"labour (person-years)" for the default kind, "labour skilled (person-years)" else."""
     return f"labour ({unit})" if kind == "labour" else f"labour {kind} ({unit})"
