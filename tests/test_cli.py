@@ -337,7 +337,7 @@ def test_solve_prints_key_schedules_and_next_steps(installed):
     res = installed[1]("solve")
     assert res.returncode == 0, res.stderr
     assert "Output by sector in the first, middle and last plan year" in res.stdout
-    table = res.stdout.split("last plan year:")[1]
+    table = res.stdout.split("last plan year (million arvens at 2026 prices a year):")[1]
     assert "2027" in table and "2034" in table and "2041" in table
     assert "What binds first" in res.stdout
     steps = res.stdout.split("Next:")[1]

@@ -192,3 +192,38 @@ def test_an_impossible_plans_shortfalls_carry_units_without_doubled_words(copied
     assert (sheet["unit"].fillna("") != "").all()
     for text in (res.stdout, table, html, " ".join(words)):
         assert "labour labour" not in text
+
+
+def _uncommented(text: str) -> str:
+    """The demo plan with its commented ``uncertainty:`` section switched on."""
+    head, _, tail = text.partition("# uncertainty:")
+    lines = [ln[2:] if ln.startswith("# ") else ln for ln in tail.splitlines()]
+    return head + "uncertainty:" + "\n".join(lines) + "\n"
+
+
+def test_scenario_commands_need_no_hand_written_yaml(copied):
+    text = (copied / "plan.yaml").read_text()
+    assert text == (DEMO_DIR / "plan.yaml").read_text()
+    assert text == (ROOT / "data" / "demo" / "plan.yaml").read_text()  # the two copies agree
+    assert "# uncertainty:" in text and gp.load_uncertainty(copied / "plan.yaml") is None
+    # the commented section, switched on, is a valid one with the common cases
+    (copied / "with-section.yaml").write_text(_uncommented(text))
+    spec = gp.load_uncertainty(copied / "with-section.yaml")
+    gp.load_plan_file(copied / "with-section.yaml")  # its selections fit the plan
+    assert {i.what for i in spec.items} >= {"capital_coefficients", "labour_growth"}
+    # the plan as copied, with --vary instead of a section
+    res = cli("reoptimise", "plan.yaml", "--no-progress", "--draws", "3", "--vary",
+              "capital_coefficients=uniform:0.9:1.1", "--out", "re.csv", "--overwrite",
+              cwd=copied)
+    assert res.returncode == 0, res.stderr
+    assert "3 drawn economies" in res.stdout
+    # shares in percent in text, with their unit; every figure has one
+    assert "share of GDP" in res.stdout and " %" in res.stdout
+    lines = {ln.split()[0]: ln for ln in res.stdout.splitlines() if ln.strip()}
+    assert "million arvens at 2026 prices" in lines["gdp_first"]
+    assert "%" in lines["peak_labour_use"] and "labour supply" in lines["peak_labour_use"]
+    res = cli("stress", "plan.yaml", "--no-progress", "--vary", "capital_coefficients=unifrm:1",
+              cwd=copied)
+    assert res.returncode == 2 and "capital_coefficients=uniform:0.9:1.1" in res.stderr
+    res = cli("stress", "plan.yaml", "--no-progress", cwd=copied)
+    assert res.returncode == 2 and "--vary" in res.stderr and "demo --copy" in res.stderr

@@ -487,19 +487,39 @@ def _key_schedules(result: PlanResult) -> None:
     rows = sorted({0, (len(output) - 1) // 2, len(output) - 1})
     which = {1: "the plan year", 2: "the first and last plan year",
              3: "the first, middle and last plan year"}[len(rows)]
-    click.echo(f"\nOutput by sector in {which}:")
+    click.echo(f"\nOutput by sector in {which} ({_sector_units(result)}):")
     click.echo(output.iloc[rows].T.round(0).to_string())
     first = output.index[0]
-    b = result.bottlenecks(top=5)
-    b = b[b.year == first]
+    b = _binding(result, first)
     if not b.empty:
-        click.echo(f"\nWhat binds first (value of one more unit, {first}):")
+        from ..results.summary import objective_unit
+
+        click.echo(f"\nWhat binds first (value of one more unit, in {objective_unit(result)} "
+                   f"per unit, {first}):")
         click.echo(b.to_string(index=False))
     if result.data is not None and result.data.tech is not None:
         years = result.technique_years[["sector", "first_start", "last_used"]].rename(
             columns={"first_start": "first started", "last_used": "last used"})
         click.echo("\nTechniques (first year started, last year used):")
         click.echo(years.to_string(na_rep="never"))
+
+
+def _sector_units(result: PlanResult) -> str:
+    """"million arvens a year" when every sector shares a unit, else where to read them."""
+    units = sorted(set(result.plan.economy.units))
+    if len(units) == 1:
+        return f"{units[0]} a year"
+    return "each sector in its own unit a year: " + ", ".join(units)
+
+
+def _binding(result: PlanResult, year: int) -> Any:
+    """The first year's five most valuable binding conditions; ``per_value`` only where it
+    differs from ``value`` (it does when a base-year price is not 1)."""
+    b = result.bottlenecks(top=5)
+    b = b[b.year == year]
+    if np.allclose(b["value"], b["per_value"], rtol=1e-12, atol=0):
+        b = b.drop(columns="per_value")
+    return b
 
 
 def _next_steps(out: Path | None, excel: Path | None, report: Path | None,
