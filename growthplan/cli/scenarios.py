@@ -2,9 +2,10 @@
 
 ``stress`` and ``reoptimise`` read the plan file's ``uncertainty:`` section
 (see :func:`growthplan.load_uncertainty`), or ``--vary`` options for the
-common cases; ``--draws`` and ``--seed`` override its numbers. ``revise`` reads the starts actually made from a tidy CSV file
-(``year,sector,starts``, see :func:`growthplan.read_actuals`). Every output
-file is checked before anything is solved and written atomically.
+common cases; ``--draws`` and ``--seed`` override its numbers. ``revise``
+reads the starts actually made from a tidy CSV file (``year,sector,starts``,
+see :func:`growthplan.read_actuals`). Every output file is checked before
+anything is solved and written atomically.
 """
 
 from __future__ import annotations
@@ -141,8 +142,8 @@ def _vary(ctx: click.Context, param: click.Parameter, values: tuple[str, ...]) -
         except ValueError:
             raise click.BadParameter(f"must give numbers after {kind}:. Got {text!r}.") from None
         try:
-            items.append(Uncertain(what=what.strip(), distribution={
-                "kind": kind.strip(), **dict(zip(names, values_, strict=True))}))
+            items.append(Uncertain.model_validate({"what": what.strip(), "distribution": {
+                "kind": kind.strip(), **dict(zip(names, values_, strict=True))}}))
         except InvalidInput as exc:
             raise click.BadParameter(f"{exc} (in {text!r})") from None
     return items
