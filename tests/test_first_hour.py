@@ -227,3 +227,49 @@ def test_scenario_commands_need_no_hand_written_yaml(copied):
     assert res.returncode == 2 and "capital_coefficients=uniform:0.9:1.1" in res.stderr
     res = cli("stress", "plan.yaml", "--no-progress", cwd=copied)
     assert res.returncode == 2 and "--vary" in res.stderr and "demo --copy" in res.stderr
+
+
+def test_the_report_reads_as_words_with_units(solved):
+    import html
+    import re
+
+    d, _ = solved
+    page = (d / "plan.html").read_text(encoding="utf-8")
+    text = html.unescape(re.sub(r"<[^>]+>", " ", re.sub(r"<style>.*?</style>|<img[^>]*>", "",
+                                                        page, flags=re.S)))
+    for symbol in ("TerminalCapacity", "λ", "C_T", "π", "=...", "terminal_capacity"):
+        assert symbol not in text, symbol
+    assert re.search(r'class="badge ok">optimal<', page)  # one status word
+    assert "terminal bundles" in text and "million arvens at 2026 prices a year" in text
+    assert "not scarce" in text and "2027: only machinery" in text  # the early zeros
+    assert "Disposal is the value of what was made but not used" in text
+    assert "consumption per head (million arvens at 2026 prices per unit of the plan's " \
+           "population)" in text
+
+
+def test_the_shadow_price_map_labels_its_cells_and_resists_an_outlier():
+    pytest.importorskip("matplotlib")
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        result = gp.demo_plan().solve()
+    money = result.shadow_prices_money
+    ax = gp.plot.plot_shadow_prices(result, money=True)
+    assert len(ax.texts) == money.size  # every cell carries its value
+    low, high = ax.images[0].get_clim()
+    values = money.to_numpy(dtype=float)
+    # the demo's first-year machinery price (11.2) is an outlier: the colours stop well
+    # below it, so the other years' prices keep their shades
+    assert values.max() > 2 * high and high >= float(pd_quantile(values, 0.95)) - 1e-12
+    assert "11" in {t.get_text() for t in ax.texts}
+    plt.close("all")
+
+
+def pd_quantile(values, q):
+    import numpy as np
+
+    return np.percentile(values[np.isfinite(values)], 100 * q)

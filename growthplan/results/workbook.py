@@ -121,7 +121,7 @@ SHARE = "share [fraction of the requirement]"
 DUALS = {"shadow_prices": "", "shadow_prices_current": ", in current-year terms",
          "quasi_rents": " a year of capacity", "labour_values": ""}
 _ACCOUNT_UNITS = {"investment_share": "fraction of GDP",
-                  "consumption_per_head": "{money} per head of the population as given",
+                  "consumption_per_head": "{money} per unit of the plan's population",
                   "gross_output_growth": "fraction, on the year before",
                   "gdp_growth": "fraction, on the year before",
                   "investment_growth": "fraction, on the year before",
