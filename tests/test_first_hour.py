@@ -4,6 +4,7 @@ units on every figure, words a colleague reads, files a colleague can open."""
 from __future__ import annotations
 
 import os
+import re
 import shutil
 import stat
 import subprocess
@@ -273,3 +274,45 @@ def pd_quantile(values, q):
     import numpy as np
 
     return np.percentile(values[np.isfinite(values)], 100 * q)
+
+
+def test_solve_after_an_edit_says_each_targets_margin(solved, copied):
+    _, res = solved
+    out = res.stdout
+    # the demo's energy target binds; machinery output is met with room to spare
+    assert "capacity of energy in 2034: binding (met exactly); required 3,400" in out
+    assert re.search(r"output of machinery in 2033: met, margin \+[\d,]+; required 3,600", out)
+    assert "(million arvens at 2026 prices a year)" in out
+    assert "Output by sector in the first, middle and last plan year (million arvens at 2026 " \
+           "prices a year)" in out
+    assert "What binds first (value of one more unit, in terminal bundles per unit" in out
+    # every base-year price is 1: per_value would only repeat value
+    assert "per_value" not in out
+    d = yaml.safe_load((copied / "plan.yaml").read_text())
+    d["plan"]["targets"][0]["capacity_at_least"] = 20000  # the edit that makes it impossible
+    (copied / "too-much.yaml").write_text(yaml.safe_dump(d))
+    res = cli("solve", "too-much.yaml", "--no-progress", cwd=copied)
+    assert res.returncode == 1
+    assert re.search(r"capacity of energy in 2034: missed by [\d,]+; required 20,000, "
+                     r"reached [\d,]+", res.stdout)
+
+
+def test_steady_prints_units_and_no_doubled_words(copied):
+    res = cli("steady", "flows.csv", "--capital", "capital.csv", "--capital-stocks",
+              "capital_stocks.csv", cwd=copied)
+    assert res.returncode == 0, res.stderr
+    out = res.stdout
+    assert "% a year" in out and "Units:" in out
+    assert "labour content: person-years per money at base-year prices" in out
+    assert "labour_content_labour" not in out and "labour labour" not in out
+    assert re.search(r"agriculture +\d\.\d{4} +\d\.\d{4} +\d+\.\d\d % +\d+\.\d\d %", out)
+
+
+def test_demo_suggests_only_what_it_did_not_write(tmp_path):
+    res = cli("demo", "--no-progress", "--report", "arvenna.html", cwd=tmp_path)
+    assert res.returncode == 0, res.stderr
+    tried = res.stdout.split("Try next:")[1]
+    assert "--report" not in tried and "--excel" in tried and "--copy" in tried
+    helptext = cli("demo", "--help", cwd=tmp_path).stdout
+    assert "--progress / --no-progress" in helptext
+    assert "Show the solver's progress." in " ".join(helptext.split())
