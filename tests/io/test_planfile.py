@@ -152,6 +152,7 @@ def test_billion_laughs_is_refused_before_expansion(folder):
     text = (folder / "plan.yaml").read_text().replace(
         "  labour: {start: 4900, growth: 0.012}",
         "  labour: {series: *l9}")
+    text = text.split("\n# What is uncertain")[0] + "\n"  # without the commented section
     p = folder / "laughs.yaml"
     p.write_text("\n".join(lines) + "\n" + text)
     assert len(p.read_bytes()) < 3000
