@@ -36,10 +36,17 @@ if TYPE_CHECKING:
         wage_profit_frontier,
     )
     from .analysis.expanding import ExpandingEconomy, expanding_economy
+    from .analysis.footprint import (
+        balanced_emissions,
+        direct_intensities,
+        emissions_by_sector,
+        footprints,
+        total_intensities,
+    )
     from .analysis.steady import BalancedGrowth
     from .backends import HighsBackend, PulpBackend, Status
     from .backends.highs import SlowMethodWarning
-    from .demo import DEMO_DIR, copy_demo, demo_economy, demo_plan
+    from .demo import DEMO_DIR, copy_demo, demo_climate_plan, demo_economy, demo_plan
     from .errors import (
         EndEffectsWarning,
         GrowthplanError,
@@ -67,9 +74,11 @@ if TYPE_CHECKING:
         TerminalGrowth,
         Trade,
     )
+    from .model.satellite import Budget, Cap, Impact, IntensityCeiling, Satellite, Stressor
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
+    from .scenarios.abatement import abatement_curve
     from .scenarios.revision import compare, plot_compare, read_actuals, revise
     from .scenarios.sweep import SerialExecutor, Sweep, sweep, variant
     from .scenarios.uncertainty import (
@@ -89,6 +98,7 @@ if TYPE_CHECKING:
         stress_test,
     )
     from .statistics.build import BuildReport, build_economy, economy_spec_schema, write_economy
+    from .statistics.satellite import read_satellite
     from .statistics.supply_use import SupplyUseTable, SymmetricTable
     from .statistics.tables import TransactionsTable, read_transactions
 
@@ -166,6 +176,20 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "Target": ("model.plan", "Target"),
     "TechnicalChange": ("model.plan", "TechnicalChange"),
     "Technique": ("model.technique", "Technique"),
+    "Satellite": ("model.satellite", "Satellite"),
+    "Stressor": ("model.satellite", "Stressor"),
+    "Impact": ("model.satellite", "Impact"),
+    "Cap": ("model.satellite", "Cap"),
+    "Budget": ("model.satellite", "Budget"),
+    "IntensityCeiling": ("model.satellite", "IntensityCeiling"),
+    "read_satellite": ("statistics.satellite", "read_satellite"),
+    "abatement_curve": ("scenarios.abatement", "abatement_curve"),
+    "demo_climate_plan": ("demo", "demo_climate_plan"),
+    "direct_intensities": ("analysis.footprint", "direct_intensities"),
+    "total_intensities": ("analysis.footprint", "total_intensities"),
+    "footprints": ("analysis.footprint", "footprints"),
+    "emissions_by_sector": ("analysis.footprint", "emissions_by_sector"),
+    "balanced_emissions": ("analysis.footprint", "balanced_emissions"),
     "technique_arrays": ("model.technique", "technique_arrays"),
     "TerminalGrowth": ("model.plan", "TerminalGrowth"),
     "TinyCoefficientsWarning": ("errors", "TinyCoefficientsWarning"),
@@ -259,6 +283,20 @@ __all__ = [
     "Target",
     "TechnicalChange",
     "Technique",
+    "Satellite",
+    "Stressor",
+    "Impact",
+    "Cap",
+    "Budget",
+    "IntensityCeiling",
+    "read_satellite",
+    "abatement_curve",
+    "demo_climate_plan",
+    "direct_intensities",
+    "total_intensities",
+    "footprints",
+    "emissions_by_sector",
+    "balanced_emissions",
     "technique_arrays",
     "TerminalGrowth",
     "TinyCoefficientsWarning",

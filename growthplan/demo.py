@@ -17,18 +17,22 @@ from .io.planfile import load_plan_file
 from .model.economy import Economy
 from .model.plan import Plan
 
-__all__ = ["DEMO_DIR", "PLAN_FILE", "DEMO_FILES", "SUPPLY_USE_FILES", "demo_economy", "demo_plan",
-           "copy_demo"]
+__all__ = ["DEMO_DIR", "PLAN_FILE", "CLIMATE_FILE", "DEMO_FILES", "SUPPLY_USE_FILES",
+           "demo_economy", "demo_plan", "demo_climate_plan", "copy_demo"]
 
 DEMO_DIR = Path(__file__).resolve().parent / "demo_data"
 
 PLAN_FILE = "plan.yaml"
 
-DEMO_FILES = ("plan.yaml", "flows.csv", "capital.csv", "capital_stocks.csv", "README.md")
+CLIMATE_FILE = "climate.yaml"
+
+DEMO_FILES = ("plan.yaml", "flows.csv", "capital.csv", "capital_stocks.csv", "README.md",
+              "climate.yaml", "emissions.csv")
 
 # the same country's supply and use tables and the spec that builds an economy from them
 SUPPLY_USE_FILES = tuple(f"supply_use/{name}" for name in (
-    "supply.csv", "use.csv", "employment.csv", "capital_flows.csv", "economy.yaml"))
+    "supply.csv", "use.csv", "employment.csv", "capital_flows.csv", "economy.yaml",
+    "published_supply.csv", "published_use.csv", "published.yaml"))
 
 
 def demo_plan(folder: str | Path | None = None) -> Plan:
@@ -54,6 +58,28 @@ def demo_plan(folder: str | Path | None = None) -> Plan:
     Plan
     """
     return load_plan_file(_folder(folder) / PLAN_FILE)
+
+
+def demo_climate_plan(folder: str | Path | None = None) -> Plan:
+    """Arvenna's plan under a falling cap on greenhouse gases, read from ``climate.yaml``.
+
+    The same plan as :func:`demo_plan` with the demo's invented satellite
+    accounts (``emissions.csv``: kt of CO2 and CH4 per million arvens of
+    output; households emit 0.15 kt of CO2 per basket; CH4 counts 28 times
+    CO2 in kt CO2-eq), a renewable energy technique that needs no fuel from
+    mining but more capital, and a cap on greenhouse gases of 16,000 kt
+    CO2-eq in 2029 falling 2 % a year to 2041.
+
+    Parameters
+    ----------
+    folder : str or Path, optional
+        As for :func:`demo_plan`.
+
+    Returns
+    -------
+    Plan
+    """
+    return load_plan_file(_folder(folder) / CLIMATE_FILE)[0]
 
 
 def demo_economy(folder: str | Path | None = None) -> Economy:

@@ -167,7 +167,8 @@ def _upper_bound(plan: Plan) -> int:
                            and plan.technical_change.embodied):
         return 2**62  # the exact count decides (techniques have their own lead times)
     return (T * n * n * (1 + width) + T * n * (T + 9) + T * len(plan.labour) * n + 4 * T
-            + len(plan.targets) * (T + 1) + n * width * (T + 1) + n + T * n * 2)
+            + len(plan.targets) * (T + 1) + n * width * (T + 1) + n + T * n * 2
+            + len(plan.limits) * T * (n + 1))  # emission limits: a row per year at most
 
 
 def guard_size(plan: Plan, size_limit: int | None) -> None:

@@ -19,13 +19,14 @@ import os
 import time
 from collections.abc import Mapping
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Annotated, Any
 
 import numpy as np
 from pydantic import Field, PrivateAttr, field_validator, model_validator
 
 from . import objectives as obj
 from .economy import Economy
+from .satellite import Budget, Cap, IntensityCeiling, Satellite, limits_over
 from .series import series as _series
 from .technique import Technique, check_techniques
 from .validation import Model, Rule
@@ -374,6 +375,12 @@ class Plan(Model):
         ``DiscountedConsumption``, ``LeastLabour``, ``LeastForeignExchange``,
         ``Weighted``, ``Lexicographic`` or ``Fastest`` (chosen by ``kind`` in
         a mapping).
+    satellite : Satellite, optional
+        Emissions and natural resources per unit of output and of consumption
+        (:mod:`growthplan.model.satellite`); the result then reports them.
+    limits : list of Cap, Budget or IntensityCeiling, optional
+        Yearly caps, cumulative budgets and ceilings per unit of GDP on the
+        stressors and impacts of ``satellite`` (chosen by ``kind`` in a mapping).
     """
 
     economy: Economy
@@ -395,6 +402,9 @@ class Plan(Model):
                 | obj.LeastForeignExchange | obj.Weighted | obj.Lexicographic
                 | obj.Fastest) = Field(default_factory=obj.TerminalCapacity,
                                        discriminator="kind")
+    satellite: Satellite | None = None
+    limits: list[Annotated[Cap | Budget | IntensityCeiling, Field(discriminator="kind")]] = \
+        Field(default_factory=list)
     _validate_seconds: float = PrivateAttr(default=0.0)
     _lowered: Any = PrivateAttr(default=None)
     _solve_options: dict[str, Any] = PrivateAttr(default_factory=dict)
@@ -543,7 +553,39 @@ class Plan(Model):
                                loose, field=f"trade.{field}")
             lowering.trade_sides(self)
         lowering.exogenous_demand(self)
+        self._check_limits()
         return self
+
+    def _check_limits(self) -> None:
+        """Satellite intensities name sectors or techniques; limits name its stressors."""
+        sat = self.satellite
+        if sat is None:
+            if self.limits:
+                raise Rule("come with the plan's satellite accounts (satellite=...)",
+                           self.limits[0].what, field="limits.0.what")
+            return
+        keys = [tq.key for tq in self.techniques]
+        sat.check(self.economy.names, keys)
+        years = self.years
+        for i, lim in enumerate(self.limits):
+            where = f"limits.{i}"
+            if lim.what not in sat.names:
+                raise Rule(f"name a stressor or impact ({', '.join(sat.names)})", lim.what,
+                           field=f"{where}.what")
+            if isinstance(lim, Cap):
+                bad = [y for y in (lim.years or []) if y not in years]
+                if bad or lim.years == []:
+                    raise Rule("be plan years", bad or lim.years, field=f"{where}.years")
+                lim.path(years, where)
+            elif isinstance(lim, Budget):
+                if not lim.window(years):
+                    raise Rule(f"cover at least one plan year ({years[0]}..{years[-1]})",
+                               [lim.first, lim.last], field=f"{where}.first")
+                if (lim.first is not None and lim.last is not None
+                        and lim.first > lim.last):
+                    raise Rule("be at most last", lim.first, field=f"{where}.first")
+            else:
+                lim.path(years, where)
 
     # -- derived data and delegators ------------------------------------------------
     @property
@@ -846,5 +888,7 @@ class Plan(Model):
         fields = {k: getattr(self, k) for k in type(self).model_fields}
         search = self.objective.horizon_search()
         objective = search.then if search is not None else self.objective
-        fields.update(years=list(range(first, last + 1)), targets=targets, objective=objective)
+        new_years = list(range(first, last + 1))
+        fields.update(years=new_years, targets=targets, objective=objective,
+                      limits=limits_over(self.limits, self.years, new_years))
         return Plan(**fields)

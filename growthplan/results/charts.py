@@ -28,7 +28,7 @@ if TYPE_CHECKING:
 __all__ = ["plot_paths", "plot_starts", "plot_labour", "plot_shadow_prices",
            "plot_ray_distance", "plot_scenarios", "ray_distance", "save_charts",
            "plot_consumption", "plot_targets", "plot_utilisation", "plot_diagnosis",
-           "PALETTE", "chart_list"]
+           "PALETTE", "chart_list", "plot_emissions", "plot_abatement"]
 
 # Twelve colours whose grey levels (luma 0.299 R + 0.587 G + 0.114 B) run from
 # 0.15 to 0.78 in steps of about 0.057, ordered so that neighbours in a legend
@@ -657,6 +657,82 @@ def plot_scenarios(table: pd.DataFrame, x: str, y: str = "objective", *, by: str
     if by is not None:
         _legend(ax, len(groups))
     ax.grid(alpha=0.3)
+    return ax
+
+
+def plot_emissions(result: PlanResult, what: str | None = None, *,
+                   ax: Axes | None = None) -> Axes:
+    """Emissions of one stressor or impact by year, stacked by sector, with its limits.
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal plan with satellite accounts.
+    what : str, optional
+        A stressor or impact (default: the first one a limit names, else the last).
+    ax : matplotlib.axes.Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    ax = _axes(ax)
+    d = result.data
+    assert d is not None
+    sat = d.satellite
+    if sat is None:
+        return _nothing(ax, "Emissions", "The plan has no satellite accounts.")
+    if what is None:
+        what = sat.limits[0].what if sat.limits else sat.names[-1]
+    unit = sat.units[sat.names.index(what)]
+    long = result.emissions
+    long = long[long["stressor"] == what]
+    table = long.pivot_table(index="year", columns="sector", values="amount", aggfunc="sum",
+                             fill_value=0.0).reindex(d.years, fill_value=0.0)
+    bottom = np.zeros(len(table))
+    years = np.asarray(table.index)
+    for i, col in enumerate(table.columns):
+        ax.bar(years, table[col], bottom=bottom, label=str(col), **_bar_style(i))
+        bottom += table[col].to_numpy()
+    prices = result.emission_prices
+    own = prices[(prices["what"] == what) & (prices["kind"] == "cap")]
+    if not own.empty:
+        ax.plot(own["year"], own["bound"], color="black", ls="--", marker="_", label="cap")
+    ax.set_ylabel(f"{what} ({unit} per year)")
+    ax.set_title(f"Emissions of {what} by sector")
+    _year_axis(ax, years)
+    _legend(ax, len(table.columns) + (0 if own.empty else 1))
+    return ax
+
+
+def plot_abatement(curve: pd.DataFrame, *, ax: Axes | None = None) -> Axes:
+    """The marginal abatement curve: the objective's loss and the limit's price by level.
+
+    Parameters
+    ----------
+    curve : pandas.DataFrame
+        From :func:`growthplan.scenarios.abatement.abatement_curve`.
+    ax : matplotlib.axes.Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The loss on the left axis, the price (base-year money per unit) on a
+        twin axis on the right.
+    """
+    ax = _axes(ax)
+    ok = curve[curve["status"] == "optimal"]
+    unit = ok["unit"].iloc[0] if not ok.empty else ""
+    ax.plot(ok["level"], ok["loss"], label="loss of the objective", **_style(0))
+    ax.set_xlabel(f"{curve.attrs.get('limit', 'limit')} ({unit})")
+    ax.set_ylabel("loss of the objective (objective's units)")
+    twin = ax.twinx()
+    twin.plot(ok["level"], ok["price"], label="shadow price", **_style(1))
+    twin.set_ylabel(f"shadow price ({ok['price_unit'].iloc[0] if not ok.empty else ''})")
+    ax.set_title("Marginal abatement curve")
+    ax.grid(alpha=0.3)
+    lines = ax.get_lines() + twin.get_lines()
+    ax.legend(lines, [str(ln.get_label()) for ln in lines], loc="upper right")
     return ax
 
 

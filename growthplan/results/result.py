@@ -239,6 +239,18 @@ class PlanResult:
     floor_values = property(lambda self: self._get("floor_values"),
                             doc="Value of relaxing the consumption floor by one unit, per year.")
 
+    emissions = property(
+        lambda self: self._get("emissions"),
+        doc="Emissions and resource use in long form: year, stressor (or impact), sector, "
+            "technique (households for their direct emissions), amount, unit.")
+    emission_totals = property(
+        lambda self: self._get("emission_totals"),
+        doc="Emissions of each stressor and impact by year (units in attrs['units']).")
+    emission_prices = property(
+        lambda self: self._get("emission_prices"),
+        doc="Every emission limit's row with its shadow price: value (objective gained per "
+            "unit relaxed) and price (base-year money per unit); one row for a budget.")
+
     @property
     def terminal_value(self) -> float:
         """Value at base-year prices of the capacity in service after the plan."""
@@ -398,6 +410,10 @@ class PlanResult:
             from .techniques import technique_export
 
             out["techniques"] = technique_export(self)
+        if self.data is not None and self.data.satellite is not None:
+            out["emissions"] = self._get("emissions")
+            out["emission_totals"] = _with_units(self._get("emission_totals"))
+            out["emission_prices"] = self._get("emission_prices")
         assert self.audit is not None
         out["audit"] = self.audit.checks.reset_index()
         return {k: v for k, v in out.items() if v is not None and not v.empty}

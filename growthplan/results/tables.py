@@ -162,6 +162,9 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     units = dict(zip(names, d.units, strict=True))
     for key in PER_SECTOR:
         out[key].attrs["units"] = units
+    from .emissions import emission_frames
+
+    out.update(emission_frames(d, lp, value, s, factor))
     if "foreign_exchange" in lp.rows:
         out["shadow_exchange_rate"] = pd.Series(lp.rows["foreign_exchange"].take(value),
                                                 index=idx, name="shadow_exchange_rate")

@@ -127,6 +127,10 @@ class Condition:
         """(condition, sector or kind, year) of one row, for the shortfall table."""
         return (self.words or self.name, str(label[2]) if len(label) > 2 else "", label[1])
 
+    def excess_words(self, d: PlanData, label: tuple[Any, ...], excess: float) -> str | None:
+        """A limit exceeded by ``excess``, in words with its unit (None: the usual wording)."""
+        return None
+
     def describe(self, label: tuple[Any, ...]) -> str:
         """The row in the trade's words, e.g. "labour in 2031"."""
         cond, who, year = self.shortfall_label(label)
@@ -153,6 +157,7 @@ def _registry() -> list[Condition]:
     from .calibration import FirstYear
     from .capacity import Capacity
     from .consumption import ConsumptionFall, ConsumptionFloor
+    from .emissions import Emissions
     from .labour import Labour
     from .level import TerminalLevel
     from .targets import Targets
@@ -162,7 +167,7 @@ def _registry() -> list[Condition]:
 
     return [Balance(), Capacity(), Labour(), ForeignExchange(), ConsumptionFloor(),
             ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds(),
-            FirstYear(), Techniques()]
+            FirstYear(), Techniques(), Emissions()]
 
 
 CONDITIONS: list[Condition] = _registry()
