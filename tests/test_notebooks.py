@@ -65,12 +65,12 @@ def _tiny(value: float) -> str:
 def test_every_number_in_the_prose_is_one_the_code_prints(path):
     """The notebooks state only figures their cells reproduce: every number in the prose
     (but years and small counts) is, to the decimals it shows, a number printed by a cell,
-    written in a cell's code or given in the demo's plan file (a share may be printed as a
+    written in a cell's code or given in the demo's plan files (a share may be printed as a
     fraction and written as a percentage)."""
     cells = json.loads(path.read_text(encoding="utf-8"))["cells"]
     prose = "\n".join("".join(c["source"]) for c in cells if c["cell_type"] == "markdown")
-    shown = [(Path(__file__).resolve().parent.parent / "growthplan" / "demo_data"
-              / "plan.yaml").read_text(encoding="utf-8")]
+    demo = Path(__file__).resolve().parent.parent / "growthplan" / "demo_data"
+    shown = [p.read_text(encoding="utf-8") for p in sorted(demo.glob("*.yaml"))]
     for c in cells:
         if c["cell_type"] != "code":
             continue
