@@ -46,7 +46,15 @@ if TYPE_CHECKING:
     from .analysis.steady import BalancedGrowth
     from .backends import HighsBackend, PulpBackend, Status
     from .backends.highs import SlowMethodWarning
-    from .demo import DEMO_DIR, copy_demo, demo_climate_plan, demo_economy, demo_plan
+    from .demo import (
+        DEMO_DIR,
+        copy_demo,
+        demo_climate_plan,
+        demo_economy,
+        demo_plan,
+        demo_regional_plan,
+        demo_regions,
+    )
     from .errors import (
         EndEffectsWarning,
         GrowthplanError,
@@ -74,6 +82,7 @@ if TYPE_CHECKING:
         TerminalGrowth,
         Trade,
     )
+    from .model.regions import Corridor, MultiRegionalEconomy, NationalTarget, Regions
     from .model.satellite import Budget, Cap, Impact, IntensityCeiling, Satellite, Stressor
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
@@ -118,12 +127,15 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "CAUTION": ("results", "CAUTION"),
     "cheapest_techniques": ("analysis.choice", "cheapest_techniques"),
     "CheapestTechniques": ("analysis.choice", "CheapestTechniques"),
+    "Corridor": ("model.regions", "Corridor"),
     "compare": ("scenarios.revision", "compare"),
     "Consumption": ("model.plan", "Consumption"),
     "copy_demo": ("demo", "copy_demo"),
     "DEMO_DIR": ("demo", "DEMO_DIR"),
     "demo_economy": ("demo", "demo_economy"),
     "demo_plan": ("demo", "demo_plan"),
+    "demo_regional_plan": ("demo", "demo_regional_plan"),
+    "demo_regions": ("demo", "demo_regions"),
     "Diagnosis": ("results", "Diagnosis"),
     "Economy": ("model.economy", "Economy"),
     "economy_spec_schema": ("statistics.build", "economy_spec_schema"),
@@ -137,6 +149,8 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "InvalidInput": ("errors", "InvalidInput"),
     "LabourSupply": ("model.plan", "LabourSupply"),
     "LinearProgram": ("lp.program", "LinearProgram"),
+    "MultiRegionalEconomy": ("model.regions", "MultiRegionalEconomy"),
+    "NationalTarget": ("model.regions", "NationalTarget"),
     "load_plan_file": ("io.planfile", "load_plan_file"),
     "load_uncertainty": ("io.planfile", "load_uncertainty"),
     "LogNormal": ("scenarios.uncertainty", "LogNormal"),
@@ -157,6 +171,7 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "PulpBackend": ("backends", "PulpBackend"),
     "read_actuals": ("scenarios.revision", "read_actuals"),
     "read_transactions": ("statistics.tables", "read_transactions"),
+    "Regions": ("model.regions", "Regions"),
     "reoptimise": ("scenarios.uncertainty", "reoptimise"),
     "revise": ("scenarios.revision", "revise"),
     "robust_plan": ("scenarios.uncertainty", "robust_plan"),
@@ -225,12 +240,15 @@ __all__ = [
     "CAUTION",
     "cheapest_techniques",
     "CheapestTechniques",
+    "Corridor",
     "compare",
     "Consumption",
     "copy_demo",
     "DEMO_DIR",
     "demo_economy",
     "demo_plan",
+    "demo_regional_plan",
+    "demo_regions",
     "Diagnosis",
     "Economy",
     "economy_spec_schema",
@@ -244,6 +262,8 @@ __all__ = [
     "InvalidInput",
     "LabourSupply",
     "LinearProgram",
+    "MultiRegionalEconomy",
+    "NationalTarget",
     "load_plan_file",
     "load_uncertainty",
     "LogNormal",
@@ -264,6 +284,7 @@ __all__ = [
     "PulpBackend",
     "read_actuals",
     "read_transactions",
+    "Regions",
     "reoptimise",
     "revise",
     "robust_plan",

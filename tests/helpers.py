@@ -8,8 +8,8 @@ import numpy as np
 
 import growthplan as gp
 
-__all__ = ["economy", "make_plan", "rescale", "two_sector", "random_plan", "bea_tables",
-           "bea_spec", "bea_economy", "bea_plan", "BEA_SIZES"]
+__all__ = ["economy", "make_plan", "rescale", "two_sector", "random_plan", "regional_economy",
+           "bea_tables", "bea_spec", "bea_economy", "bea_plan", "BEA_SIZES"]
 
 BEA_SIZES = (15, 71)
 """Industries of the published BEA 2021 supply and use tables the tests read."""
@@ -212,3 +212,25 @@ def bea_plan(size: int, years: int = 30, *, floor_factor: float = 1.0,
                    final_demand=sec.get("final_demand"),
                    terminal=gp.TerminalGrowth(rate=sec["terminal"]["rate"]),
                    objective=gp.objectives.TerminalCapacity())
+
+
+def regional_economy(regions: list[str], n: int, seed: int = 1, *,
+                     identical: bool = False) -> gp.MultiRegionalEconomy:
+    """Dense random regions sharing ``n`` sectors (the last one, "haul", carries shipments).
+
+    With ``identical`` every region has the same coefficients and capital.
+    """
+    names = [f"s{i}" for i in range(n - 1)] + ["haul"]
+    econs = {}
+    for k, r in enumerate(regions):
+        rng = np.random.default_rng(seed if identical else seed + k)
+        a = rng.uniform(0, 1, (n, n))
+        a *= 0.5 / a.sum(axis=0).max()
+        b = rng.uniform(0, 1, (n, n))
+        b *= 2.0 / b.sum(axis=0).max()
+        cap = {s: gp.CapitalSpec(initial_capacity=float(rng.uniform(50, 150)),
+                                 mean_service_life=20.0) for s in names}
+        econs[r] = gp.Economy(sectors=names, input_coefficients=a, capital_coefficients=b,
+                              labour_coefficients=[rng.uniform(0.1, 1.0, n)], capital=cap,
+                              consumption_basket=rng.uniform(0.1, 1.0, n))
+    return gp.MultiRegionalEconomy.from_regions(econs)

@@ -14,7 +14,7 @@ NOTEBOOKS = sorted((Path(__file__).resolve().parent.parent / "notebooks").glob("
 
 def test_the_notebooks_are_there():
     assert [p.stem for p in NOTEBOOKS] == ["climate_plan", "impossible_targets", "quickstart",
-                                           "scenario_sweep",
+                                           "regions", "scenario_sweep",
                                            "supply_use_to_plan", "techniques",
                                            "uncertainty_and_revision"]
 

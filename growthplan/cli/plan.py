@@ -120,7 +120,13 @@ def check(plan_file: Path) -> None:
     chosen = _solver_options(plan, None, None)
     _needs_capital(plan)
     econ = plan.economy
-    lp = plan.compile()  # the size guard and the build the solve runs first
+    from ..backends.highs import HighsBackend
+    from ..solve import formulation_for
+
+    form, rule = formulation_for(plan.lowered(), HighsBackend(
+        chosen["method"], time_limit=chosen["time_limit"], threads=chosen["threads"],
+        tolerance=chosen["tolerance"]))
+    lp = plan.compile(formulation=form)  # the size guard and the build the solve runs first
     click.echo(f"{plan_file}: valid")
     click.echo(f"  {_plural(econ.n, 'sector')}, years {plan.years[0]}–{plan.years[-1]}, "
                f"{_plural(len(plan.targets), 'target')}, objective "
@@ -129,6 +135,7 @@ def check(plan_file: Path) -> None:
                "(productive)")
     click.echo(f"  LP: {_plural(lp.shape[0], 'row')}, {_plural(lp.shape[1], 'column')}, "
                f"{_plural(lp.nnz, 'nonzero')}")
+    click.echo(f"  solver: {rule}")
 
 
 @main.command(help="Print the steady-state figures of an economy given as tables: the "

@@ -280,13 +280,13 @@ def plan_file_schema() -> dict[str, Any]:
     defs["PlanSection"] = plan_schema
     schema["properties"]["plan"] = {"$ref": "#/$defs/PlanSection"}
     _as_loaded(plan_schema["properties"], defs)
-    from ..model import objectives, satellite, technique
+    from ..model import objectives, regions, satellite, technique
     from ..model import plan as plan_module
     from ..scenarios import uncertainty
     from .schema import describe
 
     classes: dict[str, type] = {name: c for module in (plan_module, objectives, technique,
-                                                       uncertainty, satellite)
+                                                       uncertainty, satellite, regions)
                                 for name, c in vars(module).items()
                                 if isinstance(c, type) and issubclass(c, Model)}
     classes.update({"": PlanFile, "PlanSection": Plan, "EconomyTables": EconomyTables,

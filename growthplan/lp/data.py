@@ -113,6 +113,8 @@ class PlanData:
     extra: dict[str, Any] = field(default_factory=dict)
     tech: TechniqueSet | None = None          # alternative techniques (None: one per sector)
     satellite: SatelliteData | None = None    # emissions and resources, their limits
+    # -- several regions (lp.regional): shipments, transport, regional labour -----------
+    regions: Any = None                       # RegionData; None for a plan of one region
 
     @property
     def m(self) -> int:
@@ -460,6 +462,10 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
         labour_all_units=econ.labour_unit_names, value_unit=econ.value_unit,
         base_output=None if econ.base_output is None else np.asarray(econ.base_output),
         first_year_within=plan.first_year_within, population=population(plan), tech=ts)
+    # several regions: their arrays live in lp.regional (None without regions)
+    from .regional import lower_regions
+
+    data.regions = lower_regions(plan)
     tc = plan.technical_change
     if tc is not None and not tc.embodied and (tc.input_rate or tc.capital_rate
                                                or tc.labour_rate):

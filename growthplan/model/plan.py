@@ -26,6 +26,7 @@ from pydantic import Field, PrivateAttr, field_validator, model_validator
 
 from . import objectives as obj
 from .economy import Economy
+from .regions import Regions, check_regions
 from .satellite import Budget, Cap, IntensityCeiling, Satellite, limits_over
 from .series import series as _series
 from .technique import Technique, check_techniques
@@ -361,6 +362,11 @@ class Plan(Model):
     techniques : list of Technique, optional
         Alternative techniques of sectors (and phase-outs of their base
         techniques); see :mod:`growthplan.model.technique`.
+    regions : Regions, optional
+        Several regions in one plan: the economy's sectors are region–sector
+        pairs (a MultiRegionalEconomy's economy), with shipments between
+        regions, transport costs and regional labour; see
+        :mod:`growthplan.model.regions`.
     first_year_within : float, optional
         Hold the first plan year's output of every sector at least at
         ``(1 − share)`` times its base-year output (the economy's
@@ -396,6 +402,7 @@ class Plan(Model):
     trade: Trade | None = None
     technical_change: TechnicalChange | None = None
     techniques: list[Technique] = Field(default_factory=list)
+    regions: Regions | None = None
     allow_high_rates: bool = False
     first_year_within: float | None = Field(default=None, gt=0, lt=1, allow_inf_nan=False)
     objective: (obj.TerminalCapacity | obj.DiscountedConsumption | obj.LeastLabour
@@ -554,6 +561,8 @@ class Plan(Model):
             lowering.trade_sides(self)
         lowering.exogenous_demand(self)
         self._check_limits()
+        if self.regions is not None:
+            check_regions(self)
         return self
 
     def _check_limits(self) -> None:
@@ -658,13 +667,17 @@ class Plan(Model):
             self._lowered = lowering.lower(self)
         return self._lowered
 
-    def compile(self, *, size_limit: int | None = 25_000_000) -> LinearProgram:
+    def compile(self, *, size_limit: int | None = 25_000_000,
+                formulation: str = "expression") -> LinearProgram:
         """The plan's :class:`~growthplan.lp.program.LinearProgram`.
 
         Parameters
         ----------
         size_limit : int or None, default 25,000,000
             Largest LP (in nonzeros) to build; None builds any size.
+        formulation : {"expression", "state"}
+            How capacity in service is written: an expression in past starts,
+            or stocks carried from year to year (:mod:`growthplan.lp.build`).
 
         Returns
         -------
@@ -672,10 +685,15 @@ class Plan(Model):
         """
         from ..solve import program
 
-        return program(self, size_limit=size_limit)
+        return program(self, size_limit=size_limit, formulation=formulation)
 
-    def estimate_size(self) -> dict[str, float]:
+    def estimate_size(self, formulation: str = "expression") -> dict[str, float]:
         """Size, memory and a rough solve time of this plan's LP, without building it.
+
+        Parameters
+        ----------
+        formulation : {"expression", "state"}
+            How capacity in service is written (see :meth:`compile`).
 
         Returns
         -------
@@ -688,7 +706,7 @@ class Plan(Model):
         """
         from ..lp.build import estimate_size
 
-        return estimate_size(self)
+        return estimate_size(self, formulation)
 
     @property
     def solve_options(self) -> dict[str, Any]:
@@ -708,7 +726,8 @@ class Plan(Model):
               threads: int | None = None, tolerance: float | None = None,
               audit_tolerance: float = 1e-6, options: dict[str, Any] | None = None,
               progress: bool = False, stop: Any = None,
-              size_limit: int | None = 25_000_000, backend: Any = None) -> PlanResult:
+              size_limit: int | None = 25_000_000, backend: Any = None,
+              formulation: str = "auto") -> PlanResult:
         """Solve the plan (HiGHS by default) and audit the result.
 
         The LP, for years ``t = 0..T−1``::
@@ -724,10 +743,11 @@ class Plan(Model):
 
         Parameters
         ----------
-        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp"}, optional
+        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "hipo"}, optional
             HiGHS method (default: the plan file's, else ``"auto"``). ``"auto"``
-            picks by problem size (see the README). ``time_limit``, ``threads``
-            and ``tolerance`` also default to the plan file's (:attr:`solve_options`).
+            picks by problem size (see the README); ``"hipo"`` needs the ``hipo``
+            extra. ``time_limit``, ``threads`` and ``tolerance`` also default to
+            the plan file's (:attr:`solve_options`).
             When a solve fails, the other method is tried before giving up.
         time_limit : float, optional
             Seconds; a solve that hits it returns status ``time_limit``.
@@ -751,6 +771,10 @@ class Plan(Model):
             Another back end (:class:`growthplan.backends.PulpBackend`, …);
             then ``method``, ``time_limit``, ``threads``, ``tolerance`` and
             ``options`` belong to it.
+        formulation : {"auto", "expression", "state"}
+            How capacity in service is written in the LP (the same optimum
+            either way); ``"auto"`` follows the measured rule of
+            :func:`growthplan.backends.methods.choose`.
 
         Returns
         -------
@@ -782,7 +806,8 @@ class Plan(Model):
         tolerance = tolerance if tolerance is not None else given.get("tolerance")
         return solve(self, backend=backend, method=method, time_limit=time_limit,
                      threads=threads, tolerance=tolerance, audit_tolerance=audit_tolerance,
-                     options=options, progress=progress, stop=stop, size_limit=size_limit)
+                     options=options, progress=progress, stop=stop, size_limit=size_limit,
+                     formulation=formulation)
 
     def to_pulp(self, name: str = "growthplan") -> Any:
         """A ``pulp.LpProblem`` of this plan, built from the same LinearProgram as ``solve``.

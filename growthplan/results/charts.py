@@ -28,7 +28,8 @@ if TYPE_CHECKING:
 __all__ = ["plot_paths", "plot_starts", "plot_labour", "plot_shadow_prices",
            "plot_ray_distance", "plot_scenarios", "ray_distance", "save_charts",
            "plot_consumption", "plot_targets", "plot_utilisation", "plot_diagnosis",
-           "PALETTE", "chart_list", "plot_emissions", "plot_abatement"]
+           "PALETTE", "chart_list", "plot_emissions", "plot_abatement", "plot_flows",
+           "plot_regional_growth"]
 
 # Twelve colours whose grey levels (luma 0.299 R + 0.587 G + 0.114 B) run from
 # 0.15 to 0.78 in steps of about 0.057, ordered so that neighbours in a legend
@@ -782,6 +783,11 @@ def chart_list(result: PlanResult) -> list[tuple[str, str, Callable[[Axes], Axes
                 lambda ax: plot_utilisation(result, ax=ax)))
     out.append(("shadow_prices", "Shadow prices in base-year money",
                 lambda ax: plot_shadow_prices(result, money=True, ax=ax)))
+    if d is not None and d.regions is not None:
+        out.append(("flows", "Shipments between regions over the plan, at base-year prices",
+                    lambda ax: plot_flows(result, ax=ax)))
+        out.append(("regional_growth", "Regional product by region",
+                    lambda ax: plot_regional_growth(result, ax=ax)))
     if d is not None and np.any(d.b):
         out.append(("ray_distance", "Capacity's distance from balanced growth",
                     lambda ax: plot_ray_distance(result, ax=ax)))
@@ -888,3 +894,72 @@ def plot_techniques(result: PlanResult, sector: str, *, what: str = "output",
 
 
 __all__ += ["plot_techniques"]
+
+
+def plot_flows(result: PlanResult, *, year: int | None = None, ax: Axes | None = None) -> Axes:
+    """A matrix of the value shipped from each region (rows) to each other (columns).
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result of a plan over several regions.
+    year : int, optional
+        One plan year (default: the whole plan).
+    ax : matplotlib.axes.Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    from .regions import flow_matrix
+
+    ax = _axes(ax)
+    d = result.data
+    title = "Shipments between regions" + ("" if year is None else f" in {year}")
+    if d is None or d.regions is None or result.flows.empty:
+        return _nothing(ax, title, "This plan has no shipments between regions.")
+    m = flow_matrix(result.flows, d.regions.regions, year=year)
+    values = m.to_numpy(dtype=float)
+    image = ax.imshow(values, cmap="Greys", vmin=0.0)
+    top = values.max() if values.size else 0.0
+    for (i, j), v in np.ndenumerate(values):
+        ax.text(j, i, _fmt(v), ha="center", va="center",
+                color="white" if top > 0 and v > 0.6 * top else "black")
+    ax.set_xticks(range(len(m.columns)), [str(c) for c in m.columns])
+    ax.set_yticks(range(len(m.index)), [str(c) for c in m.index])
+    ax.set_xlabel("to (destination)")
+    ax.set_ylabel("from (origin)")
+    unit = result.plan.economy.value_unit
+    ax.figure.colorbar(image, ax=ax, label=f"value shipped, {unit}")
+    ax.set_title(title)
+    return ax
+
+
+def plot_regional_growth(result: PlanResult, *, ax: Axes | None = None) -> Axes:
+    """Each region's product at base-year prices by year.
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result of a plan over several regions.
+    ax : matplotlib.axes.Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    ax = _axes(ax)
+    d = result.data
+    title = "Regional product"
+    if d is None or d.regions is None:
+        return _nothing(ax, title, "This plan has one region.")
+    table = result.regional_accounts["regional_product"].unstack("region")
+    for i, region in enumerate(d.regions.regions):
+        ax.plot(table.index, table[region].to_numpy(dtype=float), label=str(region),
+                **_style(i))
+    ax.set_ylabel(f"regional product, {result.plan.economy.value_unit} a year")
+    _year_axis(ax, table.index, pad=0.4)
+    ax.set_title(title)
+    _legend(ax, len(d.regions.regions))
+    ax.grid(alpha=0.3)
+    return ax

@@ -226,6 +226,8 @@ def _year_name(label: tuple[Any, ...]) -> tuple[Any, str]:
         parts = list(parts[0])
     year = parts[0] if parts else ""
     name = str(parts[1]) if len(parts) > 1 else ""
+    if len(parts) > 1 and isinstance(parts[1], tuple) and len(parts[1]) == 3:
+        name = "{2} from {0} to {1}".format(*parts[1])  # a shipment: origin, destination, good
     return year, name
 
 

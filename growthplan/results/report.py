@@ -776,6 +776,31 @@ def _emissions_section(result: PlanResult, charts: bool) -> str:
     return "".join(parts)
 
 
+def _regions_section(result: PlanResult) -> str:
+    """Regions: growth, the gap, the main corridor, accounts, flows and the price pattern."""
+    from .regions import flow_matrix, regional_words
+
+    unit = result.plan.economy.value_unit
+    acc, gap, flows = result.regional_accounts, result.regional_gap, result.flows
+    regions = result.data.regions.regions if result.data is not None else []
+    last = acc.index.get_level_values("year").max()
+    parts = ["<section><h2>Regions</h2>", _pairs(regional_words(acc, gap, flows, unit)),
+             _table(acc.xs(last, level="year").round(3),
+                    caption=f"Regional accounts in {last} ({unit}; employment in "
+                            "person-years)"),
+             _table(gap.round(3), caption=f"Regional gap: {gap.attrs.get('note', '')}")]
+    if not flows.empty:
+        parts.append(_table(flow_matrix(flows, list(regions)).round(2),
+                            caption=f"Value shipped over the plan, origin × destination "
+                                    f"({unit})"))
+    sp = result.spatial_prices
+    parts.append(_table(sp.xs(last, level="year").round(4),
+                        caption=f"Shadow prices by region in {last}: a traded good's prices "
+                                "differ by at most the transport it needs, valued at the "
+                                "transport sector's price"))
+    return "".join(parts) + "</section>"
+
+
 def _job(result: PlanResult) -> str:
     p = result.plan
     years = list(p.years)
@@ -854,6 +879,8 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
                          "raise the objective most.</p>" + _table(table)
                          + _end_effect(result, b, dec) + "</section>")
         parts.append(_charts_section(result, charts))
+        if result.data is not None and result.data.regions is not None:
+            parts.append(_regions_section(result))
         if result.data is not None and result.data.tech is not None:
             parts.append(_techniques_section(result, charts))
         if result.data is not None and result.data.satellite is not None:

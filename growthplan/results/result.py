@@ -236,6 +236,21 @@ class PlanResult:
         lambda self: self._get("calibration"),
         doc="The first plan year against the base year by sector: output, its change, "
             "employment (empty when the economy has no base-year output).")
+    # several regions (empty tables for a plan of one region)
+    regional_accounts = property(
+        lambda self: self._get("regional_accounts"),
+        doc="Each region's product, investment and its share, consumption and employment, "
+            "(year, region) × items, at base-year prices.")
+    regional_gap = property(lambda self: self._get("regional_gap"),
+                            doc="Regional product per person-year by region, and the ratio "
+                                "of the highest to the lowest, by year.")
+    flows = property(lambda self: self._get("flows"),
+                     doc="Shipments by year, origin, destination and good: units, transport "
+                         "used, value at base-year prices.")
+    spatial_prices = property(lambda self: self._get("spatial_prices"),
+                              doc="Shadow prices by (year, commodity) × region, with the spread.")
+    regional_output = property(lambda self: self._get("regional_output"),
+                               doc="Output, years × (region, sector).")
     floor_values = property(lambda self: self._get("floor_values"),
                             doc="Value of relaxing the consumption floor by one unit, per year.")
 
@@ -406,6 +421,10 @@ class PlanResult:
         fx = self._get("shadow_exchange_rate")
         if not fx.isna().all():
             out["shadow_exchange_rate"] = fx.to_frame()
+        from .regions import REGIONAL_TABLES, flat_table
+
+        for name in REGIONAL_TABLES:  # several regions only (empty otherwise)
+            out[name] = flat_table(self._get(name))
         if self.data is not None and self.data.tech is not None:
             from .techniques import technique_export
 

@@ -34,12 +34,19 @@ def schedules(d: PlanData, lp: LinearProgram, x: np.ndarray) -> Schedules:
     kappa = lp.cols["consumption"].take(x) if "consumption" in lp.cols else None
     level = float(x[lp.cols["level"].start]) if "level" in lp.cols else None
     g, w = lp.operators["capacity"], lp.operators["deliveries"]
-    cap = (d.base.ravel() + g @ starts.ravel()).reshape(T + 1, n)
+    # the state form carries the new capacity in columns of its own: read it from them,
+    # so that the audit's vintage-by-vintage recomputation checks the stock rows too
+    new = lp.cols["stock"].take(x).ravel() if "stock" in lp.cols else g @ starts.ravel()
+    cap = (d.base.ravel() + new).reshape(T + 1, n)
     deliv = (w @ starts.ravel()).reshape(T, d.n) + d.pipe_deliveries
     imports = lp.cols["imports"].take(x) if "imports" in lp.cols else None
     exports = lp.cols["exports"].take(x) if "exports" in lp.cols else None
+    shipments = lp.cols["shipments"].take(x) if "shipments" in lp.cols else None
+    own = lp.cols["regional_consumption"].take(x) if "regional_consumption" in lp.cols \
+        else None
     return Schedules(output=output, starts=starts, consumption=kappa, level=level,
-                     imports=imports, exports=exports, capacity=cap, deliveries=deliv)
+                     imports=imports, exports=exports, capacity=cap, deliveries=deliv,
+                     shipments=shipments, regional_consumption=own)
 
 
 def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
@@ -91,7 +98,12 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     else:
         out["labour"] = pd.DataFrame(index=idx)
     if kappa is not None:
-        cons = pd.DataFrame(kappa[:, None] * d.basket[None, :], index=idx, columns=cols)
+        by_pair = kappa[:, None] * d.basket[None, :]
+        if s.regional_consumption is not None:  # each region at its own level
+            from ..lp.regional import regional_use
+
+            by_pair = regional_use(d, s.regional_consumption)
+        cons = pd.DataFrame(by_pair, index=idx, columns=cols)
         cons.insert(0, "level", kappa)
         out["consumption"] = cons
     else:
@@ -171,6 +183,10 @@ def frames(d: PlanData, lp: LinearProgram, outcome: SolverOutcome, s: Schedules,
     else:
         out["shadow_exchange_rate"] = pd.Series(np.full(T, np.nan), index=idx,
                                                 name="shadow_exchange_rate")
+    # several regions: accounts, gap, flows and prices by region (empty for one region)
+    from .regions import regional_frames
+
+    out.update(regional_frames(d, s, prices))
     return out
 
 

@@ -11,7 +11,8 @@ capital coefficients, :mod:`~growthplan.statistics.employment` labour by kind,
 special cells, :mod:`~growthplan.statistics.published` tables as offices
 publish them, :mod:`~growthplan.statistics.skeleton` a first plan of a built
 economy, :mod:`~growthplan.statistics.satellite` emissions and resources by
-sector, and :mod:`~growthplan.statistics.build` the economy spec that turns
+sector, :mod:`~growthplan.statistics.regions` interregional tables and trade
+shares, and :mod:`~growthplan.statistics.build` the economy spec that turns
 them into an economy.
 
 The names below are loaded on first use.
@@ -42,6 +43,7 @@ if TYPE_CHECKING:
     from .employment import Employment, employment_table, labour_coefficients
     from .layouts import LAYOUT_VERSION, LocatedTable, TableLayout, read_table
     from .published import PublishedEconomy, PublishedTables, published_economy, read_published
+    from .regions import interregional_economy, read_interregional, read_trade_shares
     from .satellite import read_satellite, satellite_from_frame
     from .skeleton import PlanSkeleton, plan_skeleton
     from .supply_use import MODELS, SupplyUseTable, SymmetricTable
@@ -85,6 +87,8 @@ _LAZY = {
     "negative_supply": "valuation", "negative_uses": "valuation",
     "to_basic_prices": "valuation",
     "read_satellite": "satellite", "satellite_from_frame": "satellite",
+    "interregional_economy": "regions", "read_interregional": "regions",
+    "read_trade_shares": "regions",
 }
 
 __all__ = [
@@ -120,6 +124,7 @@ __all__ = [
     "economy_from_coefficients",
     "economy_spec_schema",
     "employment_table",
+    "interregional_economy",
     "gras",
     "investment_matrix",
     "labour_coefficients",
@@ -127,7 +132,9 @@ __all__ = [
     "satellite_from_frame",
     "ras",
     "read_frame",
+    "read_interregional",
     "read_table",
+    "read_trade_shares",
     "read_transactions",
     "stocks_from_investment",
     "write_coefficient_tables",

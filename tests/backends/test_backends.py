@@ -27,9 +27,15 @@ G = 0.15  # one_sector(): (1 − a)/b − δ = 0.4/2 − 1/20 (Harrod–Domar, R
 BACKENDS = {
     "highs-simplex": lambda: gp.HighsBackend("simplex"),
     "highs-ipm": lambda: gp.HighsBackend("ipm"),
+    # the state form of capacity must give the same plans, audits, diagnoses and duals
+    "highs-ipm-state": lambda: gp.HighsBackend("ipm", formulation="state"),
+    "highs-simplex-state": lambda: gp.HighsBackend("simplex", formulation="state"),
     "pulp-cbc": lambda: gp.PulpBackend(cbc_solver()),
+    "pulp-cbc-state": lambda: gp.PulpBackend(cbc_solver(), formulation="state"),
     "pulp-highs": lambda: gp.PulpBackend(pulp.HiGHS(msg=False)),
 }
+if gp.HighsBackend.hipo_available():  # the hipo extra: HiPO, in the state form auto gives it
+    BACKENDS["highs-hipo"] = lambda: gp.HighsBackend("hipo")
 PULP = ["pulp-cbc", "pulp-highs"]
 
 
