@@ -59,7 +59,7 @@ def demo_plan(folder: str | Path | None = None) -> Plan:
     -------
     Plan
     """
-    return load_plan_file(_folder(folder) / PLAN_FILE)[0]
+    return load_plan_file(_folder(folder) / PLAN_FILE)
 
 
 def demo_climate_plan(folder: str | Path | None = None) -> Plan:
@@ -81,7 +81,7 @@ def demo_climate_plan(folder: str | Path | None = None) -> Plan:
     -------
     Plan
     """
-    return load_plan_file(_folder(folder) / CLIMATE_FILE)[0]
+    return load_plan_file(_folder(folder) / CLIMATE_FILE)
 
 
 def demo_economy(folder: str | Path | None = None) -> Economy:

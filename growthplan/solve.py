@@ -42,7 +42,8 @@ __all__ = ["solve", "solve_pulp", "program", "optimise", "write_program"]
 
 END_EFFECTS = ("No terminal condition: investment in the last years only serves the "
                "objective, so end-of-plan starts may be too low (end effects). Give "
-               "terminal=TerminalGrowth(rate=...) to value the years after the plan.")
+               "a terminal growth rate (plan file: terminal: {rate: ...}) to value the "
+               "years after the plan.")
 
 
 def _check_tolerance(audit_tolerance: Any) -> float:

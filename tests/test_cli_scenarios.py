@@ -66,7 +66,7 @@ def test_reoptimise_on_two_workers_matches_the_library(folder):
     assert r.returncode == 0, r.stderr
     assert "Probability that the plan is feasible: 1.000 (3 draws)" in r.stdout
     assert "terminal_capacity" in r.stdout
-    plan, _ = gp.load_plan_file(folder / "plan.yaml")
+    plan = gp.load_plan_file(folder / "plan.yaml")
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         ref = gp.reoptimise(plan, gp.load_uncertainty(folder / "plan.yaml"),
@@ -89,10 +89,10 @@ def test_revise_prints_the_comparison_and_writes_it(folder):
     assert r.returncode == 0, r.stderr
     assert "Original and revised plan from 2030" in r.stdout and "objective: original" in r.stdout
     table = pd.read_csv(out)
-    assert list(table.columns) == ["year", "sector", "quantity", "a", "b", "difference",
-                                   "relative"]
+    assert list(table.columns) == ["year", "sector", "quantity", "original", "revised",
+                                   "difference", "relative"]
     assert table["year"].min() == 2030
-    np.testing.assert_allclose(table["difference"], table["b"] - table["a"])
+    np.testing.assert_allclose(table["difference"], table["revised"] - table["original"])
 
 
 @pytest.mark.parametrize("actuals, args, match", [

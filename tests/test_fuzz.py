@@ -267,7 +267,7 @@ def test_malformed_plan_files(plan_folder, edits):
     target = plan_folder / "fuzz.yaml"
     target.write_text(yaml.safe_dump(data), encoding="utf-8")
     try:
-        plan, _ = load_plan_file(target)
+        plan = load_plan_file(target)
     except gp.InvalidInput as exc:
         assert "fuzz.yaml" in str(exc) or "economy tables" in str(exc) or "flows" in str(exc)
         return

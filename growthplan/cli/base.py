@@ -424,9 +424,7 @@ def report_result(result: PlanResult, out: Path | None, excel: Path | None, char
             overwrite: bool, protect: tuple[Path, ...] = (),
             report: Path | None = None) -> None:
     click.echo(str(result.summary()))
-    if result.diagnosis is not None and not result.diagnosis.shortfalls.empty:
-        click.echo("\nShortfalls (elastic re-solve):")
-        click.echo(result.diagnosis.shortfalls.to_string(index=False))
+    print_shortfalls(result)
     from ..io.atomic import together
 
     wrote: list[Path] = []
@@ -458,6 +456,18 @@ def report_result(result: PlanResult, out: Path | None, excel: Path | None, char
         click.echo(f"wrote {p}")
 
 
+def print_shortfalls(result: PlanResult) -> None:
+    """The elastic re-solve's shortfalls, each with its unit, the share in percent."""
+    from ..results.report import shortfall_table
+
+    short = shortfall_table(result)
+    if short.empty:
+        return
+    short["share"] = [f"{100 * v:.1f} %" for v in short["share"]]
+    click.echo("\nShortfalls (elastic re-solve):")
+    click.echo(short.to_string(index=False, float_format=lambda v: f"{v:,.2f}"))
+
+
 def plural(n: int, word: str, many: str | None = None) -> str:
     """``1 target``, ``2 targets``: a count with its noun in the right number."""
     return f"{n} {word if n == 1 else (many or word + 's')}"
@@ -471,19 +481,39 @@ def key_schedules(result: PlanResult) -> None:
     rows = sorted({0, (len(output) - 1) // 2, len(output) - 1})
     which = {1: "the plan year", 2: "the first and last plan year",
              3: "the first, middle and last plan year"}[len(rows)]
-    click.echo(f"\nOutput by sector in {which}:")
+    click.echo(f"\nOutput by sector in {which} ({output_unit_words(result)}):")
     click.echo(output.iloc[rows].T.round(0).to_string())
     first = output.index[0]
-    b = result.bottlenecks(top=5)
-    b = b[b.year == first]
+    b = first_year_binding(result, first)
     if not b.empty:
-        click.echo(f"\nWhat binds first (value of one more unit, {first}):")
+        from ..results.summary import objective_unit
+
+        click.echo(f"\nWhat binds first (value of one more unit, in {objective_unit(result)} "
+                   f"per unit, {first}):")
         click.echo(b.to_string(index=False))
     if result.data is not None and result.data.tech is not None:
         years = result.technique_years[["sector", "first_start", "last_used"]].rename(
             columns={"first_start": "first started", "last_used": "last used"})
         click.echo("\nTechniques (first year started, last year used):")
         click.echo(years.to_string(na_rep="never"))
+
+
+def output_unit_words(result: PlanResult) -> str:
+    """"million arvens a year" when every sector shares a unit, else where to read them."""
+    units = sorted(set(result.plan.economy.units))
+    if len(units) == 1:
+        return f"{units[0]} a year"
+    return "each sector in its own unit a year: " + ", ".join(units)
+
+
+def first_year_binding(result: PlanResult, year: int) -> Any:
+    """The first year's five most valuable binding conditions; ``per_value`` only where it
+    differs from ``value`` (it does when a base-year price is not 1)."""
+    b = result.bottlenecks(top=5)
+    b = b[b.year == year]
+    if np.allclose(b["value"], b["per_value"], rtol=1e-12, atol=0):
+        b = b.drop(columns="per_value")
+    return b
 
 
 def next_steps(out: Path | None, excel: Path | None, report: Path | None,

@@ -18,11 +18,13 @@ from .base import (
     distinct_outputs,
     excel_option,
     exit_with,
+    first_year_binding,
     input_file,
     key_schedules,
     main,
     next_steps,
     out_option,
+    output_unit_words,
     overwrite_options,
     plural,
     positive_seconds,
@@ -35,7 +37,6 @@ from .base import (
 )
 
 if TYPE_CHECKING:
-    from ..io.planfile import SolveOptions
     from ..model.plan import Plan
 
 
@@ -43,14 +44,17 @@ def _method_help() -> str:
     return "HiGHS method: " + ", ".join(("auto", *METHODS)) + " (default: the plan file's)."
 
 
-def _solver_options(opts: SolveOptions, method: str | None,
+def _solver_options(plan: Plan, method: str | None,
                     time_limit: float | None) -> dict[str, Any]:
-    """The solve's settings, refused here as the solve would refuse them."""
+    """The solve's settings (the options', else the plan file's), refused here as the
+    solve would refuse them."""
     from ..backends.highs import HighsBackend
 
-    chosen: dict[str, Any] = {"method": method or opts.method,
-                              "time_limit": time_limit or opts.time_limit,
-                              "threads": opts.threads, "tolerance": opts.tolerance}
+    opts = plan.solve_options
+    chosen: dict[str, Any] = {"method": method or opts.get("method") or "auto",
+                              "time_limit": time_limit or opts.get("time_limit"),
+                              "threads": opts.get("threads"),
+                              "tolerance": opts.get("tolerance")}
     try:
         HighsBackend(chosen["method"], time_limit=chosen["time_limit"],
                      threads=chosen["threads"], tolerance=chosen["tolerance"])  # no solve
@@ -91,14 +95,16 @@ def solve(plan_file: Path, out: Path | None, excel: Path | None, report: Path | 
 
     check_outputs(out, excel, charts, overwrite, inputs=(plan_file,), report=report)
     with reading_input(plan_file):
-        plan, opts = load_plan_file(input_file(plan_file, "plan file"))
-    chosen = _solver_options(opts, method, time_limit)
+        plan = load_plan_file(input_file(plan_file, "plan file"))
+    chosen = _solver_options(plan, method, time_limit)
     result = solve_stoppable(plan, **chosen, progress=progress)
     from ..io.planfile import plan_file_inputs
 
     report_result(result, out, excel, charts, overwrite, protect=tuple(plan_file_inputs(plan_file)),
             report=report)
     key_schedules(result)
+    if result.ok or result.diagnosis is not None:
+        _targets(result)  # what an edit changed that matters: met, binding, missed
     if result.ok:
         next_steps(out, excel, report, charts)
     exit_with(result_exit_code(result))
@@ -111,8 +117,8 @@ def check(plan_file: Path) -> None:
     from .. import load_plan_file
 
     with reading_input(plan_file):
-        plan, opts = load_plan_file(input_file(plan_file, "plan file"))
-    chosen = _solver_options(opts, None, None)
+        plan = load_plan_file(input_file(plan_file, "plan file"))
+    chosen = _solver_options(plan, None, None)
     _needs_capital(plan)
     econ = plan.economy
     from ..backends.highs import HighsBackend
@@ -165,14 +171,28 @@ def steady(flows: Path, capital: Path | None, capital_stocks: Path | None,
     with reading_input(flows):
         econ = Economy.from_tables(flows, capital=capital, capital_stocks=capital_stocks,
                                    capital_coefficients=capital_coefficients)
-    click.echo(f"{plural(econ.n, 'sector')}; spectral radius {econ.spectral_radius():.6f}")
-    table = econ.output_multipliers().to_frame()
+    click.echo(f"{plural(econ.n, 'sector')}; spectral radius of the input coefficients "
+               f"{econ.spectral_radius():.6f} (below 1: productive)")
+    units = sorted(set(econ.units))
+    unit = units[0] if len(units) == 1 else "the sector's own unit"
+    legend = [f"output multiplier: output of all sectors ({unit}) per {unit} of the "
+              "sector's final demand"]
+    table = econ.output_multipliers().to_frame("output multiplier").map(lambda v: f"{v:.4f}")
     if econ.labour_coefficients is not None:
-        table = table.join(econ.labour_content().T.add_prefix("labour_content_"))
+        content = econ.labour_content().T
+        kinds = dict(zip(econ.labour_kinds or ["labour"], econ.labour_unit_names,
+                         strict=False))
+        for k in content.columns:
+            name = "labour content" if k == "labour" else f"labour content {k}"
+            legend.append(f"{name}: {kinds.get(k, 'person-years')} per {unit} of the "
+                          "sector's final demand")
+            table[name] = [f"{v:.4f}" for v in content[k]]
     bg = econ.balanced_growth()
-    table["static_balanced"] = bg.proportions
+    table["static balanced"] = [f"{100 * v:.2f} %" for v in bg.proportions]
+    legend.append("balanced: each sector's share of the balanced-growth "
+                  "output bundle")
     click.echo(f"static balanced growth rate (current inputs only, ignoring capital) "
-               f"{100 * bg.rate:.3f} %")
+               f"{100 * bg.rate:.3f} % a year")
     if capital is not None:
         if not np.any(econ.capital_coefficients):
             raise invalid("--capital-stocks" if capital_stocks is not None
@@ -180,9 +200,10 @@ def steady(flows: Path, capital: Path | None, capital_stocks: Path | None,
                           "zero, so capacity would cost nothing)", "all zero")
         dyn = econ.dynamic_balanced_growth()
         click.echo(f"dynamic balanced growth rate (with capital and its replacement) "
-                   f"{100 * dyn.rate:.3f} %")
-        table["dynamic_balanced"] = dyn.proportions
-    click.echo(table.round(4).to_string())
+                   f"{100 * dyn.rate:.3f} % a year")
+        table["dynamic balanced"] = [f"{100 * v:.2f} %" for v in dyn.proportions]
+    click.echo("\nUnits: " + "; ".join(legend) + ".")
+    click.echo(table.to_string())
 
 
 @main.command(help="Print the JSON Schema of plan files.")
@@ -198,7 +219,8 @@ def schema() -> None:
 @report_option
 @charts_option
 @overwrite_options
-@click.option("--progress/--no-progress", default=True, show_default=True)
+@click.option("--progress/--no-progress", default=True, show_default=True,
+              help="Show the solver's progress.")
 @click.option("--copy", "copy_to", type=click.Path(path_type=Path), default=None,
               help="Write the demo's plan file and tables into this folder, to edit and "
                    "solve with 'growthplan solve FOLDER/plan.yaml', and stop.")
@@ -206,7 +228,6 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
          overwrite: bool, progress: bool, copy_to: Path | None) -> None:
     from .. import load_plan_file
     from ..demo import DEMO_DIR, PLAN_FILE, copy_demo
-    from ..results.report import targets_table
 
     if copy_to is not None:
         distinct_outputs({"--copy": copy_to})  # a path the system refuses: said in one line
@@ -225,7 +246,7 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
         raise invalid("--charts", "be used with matplotlib installed (pip install "
                       "'growthplan[plot]')", str(charts))
     with reading_input(DEMO_DIR / PLAN_FILE):
-        plan, _ = load_plan_file(DEMO_DIR / PLAN_FILE)
+        plan = load_plan_file(DEMO_DIR / PLAN_FILE)
     econ = plan.economy
     bg = econ.dynamic_balanced_growth()
     money = econ.value_unit
@@ -252,8 +273,8 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
     report_result(result, out, excel, charts, overwrite, report=report)
     if result.ok:
         shown = [0, plan.horizon // 2, plan.horizon - 1]
-        click.echo(f"\nOutput by sector ({money} a year) in the first, middle and last "
-                   "plan year:")
+        click.echo(f"\nOutput by sector ({output_unit_words(result)}) in the first, middle and "
+                   "last plan year:")
         click.echo(result.output.iloc[shown].T.round(0).to_string())
         assert result.data is not None
         level = result.consumption["level"].to_numpy()
@@ -264,32 +285,29 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
                      f"{floor[0]:,.0f}), {level[-1]:,.0f} in {last} (floor {floor[-1]:,.0f}); "
                      f"at the floor in {on_floor} of {plan.horizon} years: the plan invests "
                      "what it does not have to consume.")
-        targets = targets_table(result)
-        if not targets.empty:
-            click.echo("\nTargets:")
-            for t in targets.itertuples():
-                tight = " (binding: met exactly)" if abs(t.margin) <= 1e-6 * max(
-                    1.0, t.required) else ""
-                unit = f" {t.unit}" if t.unit else ""
-                _say_wrapped(f"{t.target} in {t.year}: {t.verdict}; required "
-                             f"{t.required:,.0f}{unit}, reached {t.reached:,.0f}, margin "
-                             f"{t.margin:+,.0f}{tight}", indent="  ")
+        _targets(result)
         click.echo()
         _say_wrapped("The objective: " + _objective_words(result))
         click.echo()
+        b = first_year_binding(result, plan.years[0])
         _say_wrapped("What binds first, in the first plan year: value is what one more "
                      "unit of the commodity (or of the sector's capacity) would add to the "
-                     "objective, in bundles; per_value is the same per unit of base-year "
-                     "value.")
-        b = result.bottlenecks(top=5)
-        click.echo(b[b.year == plan.years[0]].to_string(index=False))
-        click.echo("\nTry next:\n"
-                   "  growthplan demo --report arvenna.html   one page to open in a browser "
-                   "(charts, targets, accounts)\n"
-                   "  growthplan demo --excel arvenna.xlsx    the workbook, one sheet per "
-                   "schedule, with units\n"
-                   "  growthplan demo --charts charts         the charts as PNG files\n"
-                   "  growthplan demo --copy my-plan          the plan file and tables, to "
+                     "objective, in terminal bundles" + (
+                         "; per_value is the same per unit of base-year value."
+                         if "per_value" in b else
+                         " (every base-year price is 1, so per unit of base-year value too)."))
+        click.echo(b.to_string(index=False))
+        # what this run did not write yet, then the way to a plan of one's own
+        steps = [(report, "  growthplan demo --report arvenna.html   one page to open in a "
+                  "browser (charts, targets, accounts)"),
+                 (excel, "  growthplan demo --excel arvenna.xlsx    the workbook, one sheet "
+                  "per schedule, with units"),
+                 (out, "  growthplan demo --out arvenna           every schedule as CSV"),
+                 (charts, "  growthplan demo --charts charts         the charts as PNG files"
+                  + ("" if has_plot else " (need pip install 'growthplan[plot]')"))]
+        click.echo("\nTry next:\n" + "".join(line + "\n" for given, line in steps
+                                              if given is None)
+                   + "  growthplan demo --copy my-plan          the plan file and tables, to "
                    "edit my-plan/plan.yaml\n"
                    "                                          (data/demo/plan.yaml in a "
                    "source checkout)\n"
@@ -297,6 +315,28 @@ def demo(out: Path | None, excel: Path | None, report: Path | None, charts: Path
                    + ("" if has_plot else "\n(charts need matplotlib: "
                       "pip install 'growthplan[plot]')"))
     exit_with(result_exit_code(result))
+
+
+def _targets(result: Any) -> None:
+    """Each target in words: met (with its margin), binding (met exactly) or missed."""
+    from ..results.report import targets_table
+
+    targets = targets_table(result)
+    if targets.empty:
+        return
+    click.echo("\nTargets:")
+    for t in targets.itertuples():
+        tight = abs(t.margin) <= 1e-6 * max(1.0, abs(t.required))
+        if t.verdict == "met":
+            verdict = "binding (met exactly)" if tight else f"met, margin {t.margin:+,.0f}"
+        elif t.verdict == "missed":
+            verdict = f"missed by {-t.margin:,.0f}"
+        else:
+            verdict = str(t.verdict)
+        reached = "" if np.isnan(t.reached) else f", reached {t.reached:,.0f}"
+        unit = f" ({t.unit} a year)" if t.unit else ""  # a sector's output or capacity
+        _say_wrapped(f"{t.target} in {t.year}: {verdict}; required {t.required:,.0f}"
+                     f"{reached}{unit}", indent="  ")
 
 
 def _basket(plan: Any) -> np.ndarray:

@@ -1,10 +1,11 @@
 """The scenario commands: stress, reoptimise and revise.
 
 ``stress`` and ``reoptimise`` read the plan file's ``uncertainty:`` section
-(see :func:`growthplan.load_uncertainty`); ``--draws`` and ``--seed`` override
-its numbers. ``revise`` reads the starts actually made from a tidy CSV file
-(``year,sector,starts``, see :func:`growthplan.read_actuals`). Every output
-file is checked before anything is solved and written atomically.
+(see :func:`growthplan.load_uncertainty`), or ``--vary`` options for the
+common cases; ``--draws`` and ``--seed`` override its numbers. ``revise``
+reads the starts actually made from a tidy CSV file (``year,sector,starts``,
+see :func:`growthplan.read_actuals`). Every output file is checked before
+anything is solved and written atomically.
 """
 
 from __future__ import annotations
@@ -31,6 +32,7 @@ from .base import (
     input_file,
     main,
     overwrite_options,
+    print_shortfalls,
     reading_input,
     replaceable,
     result_exit_code,
@@ -108,6 +110,18 @@ def _write_files(out: Path | None, excel: Path | None, sheets: dict[str, pd.Data
             finish_workbook(book.book)  # names stay text; the mark for --overwrite
 
 
+def _figure_unit(plan: Any, figure: str) -> str:
+    """The unit of a key figure of :func:`growthplan.results.summary.key_figures`."""
+    money = plan.economy.value_unit
+    units = {"terminal_capacity": f"{money} a year", "total_starts": f"{money} a year",
+             "gdp_first": money, "gdp_last": money,
+             "investment_share": "fraction of GDP (mean over the years)",
+             "peak_labour_use": "fraction of the labour supply (the largest)",
+             "objective": "terminal bundles" if plan.objective.kind == "terminal_capacity"
+             else "units of the objective"}
+    return units.get(figure, "")
+
+
 @contextmanager
 def _executor(workers: int) -> Iterator[Executor | None]:
     """None (the analysis's own warm process pool) for several workers, else serial."""
@@ -119,19 +133,70 @@ def _executor(workers: int) -> Iterator[Executor | None]:
         yield SerialExecutor()
 
 
-def _load(plan_file: Path, draws: int | None, seed: int | None) -> tuple[Any, Any, Any, int]:
+# the parameters of each distribution --vary takes, in order
+_VARY = {"uniform": ("low", "high"), "triangular": ("low", "mode", "high"),
+         "normal": ("mean", "sd"), "lognormal": ("mean", "sd")}
+VARY_HELP = ("What is uncertain, as WHAT=DISTRIBUTION:PARAMETERS, for example "
+             "capital_coefficients=uniform:0.9:1.1 (a factor on every cell, one draw for all); "
+             "distributions uniform:LOW:HIGH, triangular:LOW:MODE:HIGH, normal:MEAN:SD, "
+             "lognormal:MEAN:SD. Repeat for several; replaces the plan file's uncertainty "
+             "items.")
+
+
+def _vary(ctx: click.Context, param: click.Parameter, values: tuple[str, ...]) -> list[Any]:
+    """``--vary`` options as uncertain items, refused in the option's words."""
+    from ..errors import InvalidInput
+    from ..scenarios.uncertainty import Uncertain
+
+    items = []
+    for text in values:
+        what, sep, dist = text.partition("=")
+        kind, *numbers = dist.split(":")
+        names = _VARY.get(kind.strip())
+        if not sep or names is None or len(numbers) != len(names):
+            raise click.BadParameter(
+                "must be WHAT=uniform:LOW:HIGH, triangular:LOW:MODE:HIGH, normal:MEAN:SD or "
+                f"lognormal:MEAN:SD (e.g. capital_coefficients=uniform:0.9:1.1). Got {text!r}.")
+        try:
+            values_ = [float(n) for n in numbers]
+        except ValueError:
+            raise click.BadParameter(f"must give numbers after {kind}:. Got {text!r}.") from None
+        try:
+            items.append(Uncertain.model_validate({"what": what.strip(), "distribution": {
+                "kind": kind.strip(), **dict(zip(names, values_, strict=True))}}))
+        except InvalidInput as exc:
+            raise click.BadParameter(f"{exc} (in {text!r})") from None
+    return items
+
+
+def _load(plan_file: Path, draws: int | None, seed: int | None,
+          vary: list[Any] | None = None) -> tuple[Any, Any, Any, int]:
     from .. import load_plan_file, load_uncertainty
+    from ..scenarios.uncertainty import UncertaintySpec
 
     input_file(plan_file, "plan file")
     with reading_input(plan_file):
-        plan, opts = load_plan_file(plan_file)
+        plan = load_plan_file(plan_file)
         spec = load_uncertainty(plan_file)
+    if vary:
+        spec = UncertaintySpec(items=vary, seed=0 if spec is None else spec.seed,
+                               draws=100 if spec is None else spec.draws)
+        with reading_input(plan_file):
+            spec.check(plan)  # the cells it names exist
     if spec is None:
-        raise invalid("plan file", "have an uncertainty section (see 'growthplan schema')",
-                      str(plan_file))
+        raise invalid("plan file", "have an uncertainty section (see the commented one in "
+                      "'growthplan demo --copy' and 'growthplan schema'), or the command "
+                      "--vary WHAT=uniform:LOW:HIGH", str(plan_file))
     if seed is not None:
         spec = spec.model_copy(update={"seed": seed})
-    return plan, opts, spec, spec.draws if draws is None else draws
+    return plan, _options(plan), spec, spec.draws if draws is None else draws
+
+
+def _options(plan: Any) -> Any:
+    """The plan file's solver settings, as attributes."""
+    from ..io.planfile import SolveOptions
+
+    return SolveOptions(**plan.solve_options)
 
 
 def _analysis_options(f: Any) -> Any:
@@ -146,6 +211,8 @@ def _analysis_options(f: Any) -> Any:
         _csv_out, _xlsx_out, overwrite_options,
         click.option("--progress/--no-progress", default=True, show_default=True,
                      help="A progress bar over the draws."),
+        click.option("--vary", multiple=True, callback=_vary, metavar="WHAT=DIST:ARGS",
+                     help=VARY_HELP),
     ]
     for option in reversed(options):
         f = option(f)
@@ -164,13 +231,14 @@ def _probabilities(result: Any) -> pd.DataFrame:
 @click.argument("plan_file", type=click.Path(path_type=Path))
 @_analysis_options
 def stress(plan_file: Path, draws: int | None, seed: int | None, workers: int,
-           out: Path | None, excel: Path | None, overwrite: bool, progress: bool) -> None:
+           out: Path | None, excel: Path | None, overwrite: bool, progress: bool,
+           vary: list[Any]) -> None:
     from ..io.planfile import plan_file_inputs
     from ..scenarios.uncertainty import stress_test
 
     _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file),
                  _SUFFIXES)
-    plan, opts, spec, n = _load(plan_file, draws, seed)
+    plan, opts, spec, n = _load(plan_file, draws, seed, vary)
     nominal = solve_stoppable(plan, method=opts.method, time_limit=opts.time_limit,
                      threads=opts.threads, tolerance=opts.tolerance, progress=False)
     if not nominal.ok:
@@ -209,13 +277,14 @@ def stress(plan_file: Path, draws: int | None, seed: int | None, workers: int,
 @click.argument("plan_file", type=click.Path(path_type=Path))
 @_analysis_options
 def reoptimise(plan_file: Path, draws: int | None, seed: int | None, workers: int,
-               out: Path | None, excel: Path | None, overwrite: bool, progress: bool) -> None:
+               out: Path | None, excel: Path | None, overwrite: bool, progress: bool,
+               vary: list[Any]) -> None:
     from ..io.planfile import plan_file_inputs
     from ..scenarios.uncertainty import reoptimise as run
 
     _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file),
                  _SUFFIXES)
-    plan, opts, spec, n = _load(plan_file, draws, seed)
+    plan, opts, spec, n = _load(plan_file, draws, seed, vary)
     options = {"method": opts.method, "time_limit": opts.time_limit, "threads": opts.threads,
                "tolerance": opts.tolerance}
     with _executor(workers) as ex:
@@ -227,6 +296,7 @@ def reoptimise(plan_file: Path, draws: int | None, seed: int | None, workers: in
     numeric = numeric.loc[:, [not c.startswith(tuple("0123456789")) for c in numeric.columns]]
     quant = numeric.quantile([0.05, 0.5, 0.95]).T.rename_axis("figure")
     quant.columns = ["p05", "median", "p95"]
+    quant.insert(0, "unit", [_figure_unit(plan, str(f)) for f in quant.index])
     click.echo(f"Re-optimisation of {plan_file.name}: {n} drawn economies (seed {spec.seed}); "
                f"{len(result.failed)} draws failed.")
     whole = prob[prob["condition"] == "plan"]
@@ -235,7 +305,13 @@ def reoptimise(plan_file: Path, draws: int | None, seed: int | None, workers: in
                    f"{float(whole['probability'].iloc[0]):.3f} "
                    f"({int(whole['draws'].iloc[0])} draws)")
     click.echo("Key figures over the draws (5 %, median, 95 %):")
-    click.echo(quant.to_string(float_format=lambda v: f"{v:.6g}"))
+    shown = quant.copy()
+    for col in ("p05", "median", "p95"):  # shares as percent in text, fractions in files
+        shown[col] = [f"{100 * v:.1f} %" if u.startswith("fraction") else f"{v:,.6g}"
+                      for v, u in zip(quant[col], quant["unit"], strict=True)]
+    shown["unit"] = [u.replace("fraction", "share", 1) if u.startswith("fraction") else u
+                     for u in quant["unit"]]
+    click.echo(shown.to_string())
     _write(out, excel, {"draws": result.table, "probability": prob,
                         "figures": figures.reset_index(),
                         "quantiles": quant.reset_index()}, "draws", overwrite,
@@ -267,7 +343,8 @@ def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
     input_file(plan_file, "plan file")
     input_file(actuals, "actuals")
     with reading_input(plan_file):
-        plan, opts = load_plan_file(plan_file)
+        plan = load_plan_file(plan_file)
+    opts = _options(plan)
     with reading_input(actuals):
         done = read_actuals(actuals)
     absent = [n for n in plan.economy.names if n not in done.columns]
@@ -287,14 +364,16 @@ def revise(plan_file: Path, actuals: Path, from_year: int, out: Path | None,
     click.echo(str(result.summary()))
     if not result.ok:
         click.echo(f"The revised plan from {from_year} has no optimum.")
-        if result.diagnosis is not None and not result.diagnosis.shortfalls.empty:
-            click.echo("\nShortfalls (elastic re-solve):")
-            click.echo(result.diagnosis.shortfalls.to_string(index=False))
+        print_shortfalls(result)
         exit_with(result_exit_code(result))
-    table = compare(original, result)
-    per_year = table.groupby(["quantity", "year"])[["a", "b", "difference"]].sum()
-    per_year = per_year.rename(columns={"a": "original", "b": "revised"}).reset_index()
-    click.echo(f"\nOriginal and revised plan from {from_year}, summed over sectors:")
+    # the columns named as the console names them
+    table = compare(original, result).rename(columns={"a": "original", "b": "revised"})
+    per_year = table.groupby(["quantity", "year"])[["original", "revised",
+                                                    "difference"]].sum().reset_index()
+    units = sorted(set(plan.economy.units))
+    unit = (f"{units[0]} a year" if len(units) == 1 else
+            "each sector's own unit a year, summed as given")
+    click.echo(f"\nOriginal and revised plan from {from_year}, summed over sectors ({unit}):")
     click.echo(per_year.to_string(index=False, float_format=lambda v: f"{v:.6g}"))
     click.echo(f"objective: original {original.objective:.6g}, revised {result.objective:.6g}")
     _write(out, excel, {"comparison": table, "per_year": per_year}, "comparison", overwrite,

@@ -59,14 +59,15 @@ from ..errors import InvalidInput, invalid, show, suggest
 from ..limits import MAX_YEARS, PLAN_FILE_MAX_BYTES
 from ..model.economy import Economy, Sector
 from ..model.plan import Plan
-from ..model.validation import Model, Rule
+from ..model.validation import Model, Rule, unknown_keys
 from ..scenarios.uncertainty import UncertaintySpec
 from ..statistics.tables import _coefficient_frames, _write_csv, economy_from_coefficients
 from .atomic import atomic_files
 from .files import read_regular_file
 from .marks import comment_line
 
-__all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "save_plan_file",
+__all__ = ["PlanFile", "EconomyTables", "SolveOptions", "load_plan_file", "read_plan_file",
+           "save_plan_file",
            "plan_file_schema", "plan_file_inputs", "PLAN_FILE_MAX_BYTES", "MAX_DEPTH",
            "MAX_YEARS", "load_uncertainty"]
 
@@ -253,8 +254,10 @@ class PlanFile(Model):
     def _plan(cls, v: dict[str, Any]) -> dict[str, Any]:
         if "economy" in v:
             raise Rule("not contain 'economy' (it is a section of its own)", "economy")
-        if "years" not in v:
-            raise Rule("give years (a list, or first and last)", sorted(v))
+        # every misspelt key of the section at once, before the tables are read
+        names = [n for n in Plan.model_fields if n != "economy"]
+        unknown_keys(v, names, more=[] if "years" in v else [invalid(
+            "years", "be given (a list, or first and last)", None)])
         return v
 
 
@@ -570,9 +573,41 @@ def _years(years: Any) -> Any:
     return years
 
 
-def load_plan_file(path: str | os.PathLike[str], *,
-                   allow_outside: bool = False) -> tuple[Plan, SolveOptions]:
+def load_plan_file(path: str | os.PathLike[str], *, allow_outside: bool = False) -> Plan:
     """Read a plan file and its tables into a validated :class:`Plan`.
+
+    The file's ``solve:`` settings travel with the plan
+    (:attr:`Plan.solve_options`) and :meth:`Plan.solve` uses them, so
+    ``load_plan_file(path).solve()`` solves as ``growthplan solve path`` does.
+
+    Parameters
+    ----------
+    path : path
+        A ``.yaml``, ``.yml`` or ``.toml`` plan file.
+    allow_outside : bool, default False
+        Read tables outside the plan file's folder. By default a table path
+        must stay in that folder or below it (after following symbolic
+        links), so a plan file received from someone else cannot make the
+        library read arbitrary files.
+
+    Returns
+    -------
+    Plan
+        With the file's solver settings in ``plan.solve_options``.
+
+    Raises
+    ------
+    InvalidInput
+        Naming the file, the field and (for YAML) the line.
+    """
+    plan, options = read_plan_file(path, allow_outside=allow_outside)
+    plan._solve_options = options.model_dump()
+    return plan
+
+
+def read_plan_file(path: str | os.PathLike[str], *,
+                   allow_outside: bool = False) -> tuple[Plan, SolveOptions]:
+    """Read a plan file into a validated :class:`Plan` and its solver settings apart.
 
     Parameters
     ----------

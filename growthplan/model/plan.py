@@ -414,6 +414,8 @@ class Plan(Model):
         Field(default_factory=list)
     _validate_seconds: float = PrivateAttr(default=0.0)
     _lowered: Any = PrivateAttr(default=None)
+    _solve_options: dict[str, Any] = PrivateAttr(default_factory=dict)
+    _revised_from: int | None = PrivateAttr(default=None)
 
     def __init__(self, /, **data: Any) -> None:
         t0 = time.perf_counter()
@@ -617,7 +619,10 @@ class Plan(Model):
         if update:
             fields = {k: getattr(self, k) for k in type(self).model_fields}
             fields.update(update)
-            return Plan(**fields)
+            new = Plan(**fields)
+            new._solve_options = dict(self._solve_options)
+            new._revised_from = self._revised_from
+            return new
         out = super().model_copy(deep=deep)
         out._lowered = None
         return out
@@ -703,7 +708,21 @@ class Plan(Model):
 
         return estimate_size(self, formulation)
 
-    def solve(self, *, method: str = "auto", time_limit: float | None = None,
+    @property
+    def solve_options(self) -> dict[str, Any]:
+        """The solver settings of the plan file this plan was read from (``method``,
+        ``time_limit``, ``threads``, ``tolerance``; empty for a plan built in Python).
+        :meth:`solve` uses them where it is not told otherwise."""
+        return dict(self._solve_options)
+
+    @property
+    def revised_from(self) -> int | None:
+        """The first year of a revision made by :func:`growthplan.revise` (its starting
+        capacity comes from the starts actually made, not from the base year); None
+        for an original plan."""
+        return self._revised_from
+
+    def solve(self, *, method: str | None = None, time_limit: float | None = None,
               threads: int | None = None, tolerance: float | None = None,
               audit_tolerance: float = 1e-6, options: dict[str, Any] | None = None,
               progress: bool = False, stop: Any = None,
@@ -724,9 +743,11 @@ class Plan(Model):
 
         Parameters
         ----------
-        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "hipo"}
-            HiGHS method. ``"auto"`` picks by problem size (see the README);
-            ``"hipo"`` needs the ``hipo`` extra.
+        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "hipo"}, optional
+            HiGHS method (default: the plan file's, else ``"auto"``). ``"auto"``
+            picks by problem size (see the README); ``"hipo"`` needs the ``hipo``
+            extra. ``time_limit``, ``threads`` and ``tolerance`` also default to
+            the plan file's (:attr:`solve_options`).
             When a solve fails, the other method is tried before giving up.
         time_limit : float, optional
             Seconds; a solve that hits it returns status ``time_limit``.
@@ -778,6 +799,11 @@ class Plan(Model):
         """
         from ..solve import solve
 
+        given = self._solve_options
+        method = method or given.get("method") or "auto"
+        time_limit = time_limit if time_limit is not None else given.get("time_limit")
+        threads = threads if threads is not None else given.get("threads")
+        tolerance = tolerance if tolerance is not None else given.get("tolerance")
         return solve(self, backend=backend, method=method, time_limit=time_limit,
                      threads=threads, tolerance=tolerance, audit_tolerance=audit_tolerance,
                      options=options, progress=progress, stop=stop, size_limit=size_limit,

@@ -231,6 +231,35 @@ def translate(exc: ValidationError, model: str, data: Any = _MISSING,
     return InvalidInput(message, field=first_field or None)
 
 
+def unknown_keys(data: dict[Any, Any], names: list[str], *,
+                 more: list[InvalidInput] | None = None) -> None:
+    """Refuse the keys of ``data`` not in ``names`` (and the problems in ``more``),
+    all in one error, so a second misspelt key shows with the first.
+
+    Parameters
+    ----------
+    data : dict
+    names : list of str
+        The known keys.
+    more : list of InvalidInput, optional
+        Other problems found with these, listed after them.
+    """
+    problems = []
+    for k in (k for k in data if k not in names):
+        hint = suggest(k, names)
+        problems.append(Rule(f"be a known field ({hint})" if hint else
+                             f"be a known field (one of {', '.join(names)})", k,
+                             field=str(k)))
+    if len(problems) == 1 and not more:
+        raise problems[0]
+    found = [invalid(str(p.field), p.rule, p.value) for p in problems] + (more or [])
+    if len(found) == 1:
+        raise found[0]
+    if found:
+        raise InvalidInput(f"{len(found)} problems:\n  " + "\n  ".join(map(str, found)),
+                           field=found[0].field)
+
+
 class Model(BaseModel):
     """Base of every growthplan model: strict fields, growthplan errors."""
 
@@ -246,15 +275,10 @@ class Model(BaseModel):
     @model_validator(mode="before")
     @classmethod
     def _known_fields(cls, data: Any) -> Any:
-        """Refuse an unknown key first, with the known field it most likely meant."""
+        """Refuse unknown keys first, every one at once, each with the known field it
+        most likely meant."""
         if isinstance(data, dict):
-            unknown = [k for k in data if k not in cls.model_fields]
-            if unknown:
-                names = list(cls.model_fields)
-                hint = suggest(unknown[0], names)
-                raise Rule(f"be a known field ({hint})" if hint else
-                           f"be a known field (one of {', '.join(names)})", unknown[0],
-                           field=str(unknown[0]))
+            unknown_keys(data, list(cls.model_fields))
         return data
 
     @classmethod

@@ -26,7 +26,20 @@ import pandas as pd
 from ..lp.conditions import Schedules
 from ..lp.data import PlanData
 
-__all__ = ["national_accounts", "employment"]
+__all__ = ["national_accounts", "employment", "employment_column", "employment_kind"]
+
+
+def employment_column(kind: str) -> str:
+    """"employment" for the default labour kind "labour", "employment skilled" else
+    (never "employment labour")."""
+    return "employment" if kind == "labour" else f"employment {kind}"
+
+
+def employment_kind(column: str) -> str | None:
+    """The labour kind of an accounts column made by :func:`employment_column`, or None."""
+    if column == "employment":
+        return "labour"
+    return column[len("employment "):] if column.startswith("employment ") else None
 
 
 def _trade(d: PlanData, s: Schedules) -> tuple[np.ndarray, np.ndarray]:
@@ -117,7 +130,7 @@ def national_accounts(d: PlanData, s: Schedules, retirements: np.ndarray) -> pd.
                    cons / d.population)
     used = d.labour_used(x, every_kind=True)
     for k, kind in enumerate(d.labour_all_kinds):
-        out[f"employment {kind}"] = used[:, k]
+        out[employment_column(kind)] = used[:, k]
     for col in ("gross_output", "gdp", "investment", "consumption"):
         prev = out[col].shift(1)
         with np.errstate(divide="ignore", invalid="ignore"):

@@ -307,14 +307,39 @@ def plot_shadow_prices(result: PlanResult, *, current: bool = True, money: bool 
         what = "(current-year terms)" if current else "(as solved)"
         unit = "objective's units\nper unit"
     ax = _axes(ax)
-    im = ax.imshow(frame.T.to_numpy(dtype=float), aspect="auto", cmap="cividis",
+    values = frame.T.to_numpy(dtype=float)
+    low, top, clipped = _robust_range(values)
+    im = ax.imshow(values, aspect="auto", cmap="cividis", vmin=low, vmax=top,
                    origin="upper", interpolation="nearest")
     ax.set_yticks(range(frame.shape[1]), [str(c) for c in frame.columns])
     ax.set_ylabel("commodity")
     _year_positions(ax, list(frame.index))
-    ax.set_title(f"Shadow prices {what}")
-    ax.figure.colorbar(im, ax=ax, label=f"{unit} of the commodity")
+    if values.shape[0] <= 16 and values.shape[1] <= 20:
+        for (i, j), v in np.ndenumerate(values):
+            if np.isfinite(v):
+                # each cell its own value, an outlier included; ink readable on its colour
+                ink = "black" if (min(v, top) - low) > 0.6 * (top - low) else "white"
+                ax.text(j, i, f"{v:.2g}" if abs(v) >= 1e-9 * max(abs(top), 1e-300) else "0",
+                        ha="center", va="center", fontsize=6, color=ink)
+    ax.set_title(f"Shadow prices {what}"
+                 + ("\n(colours capped at the 95th percentile; cells give the values)"
+                    if clipped else ""))
+    ax.figure.colorbar(im, ax=ax, label=f"{unit} of the commodity",
+                       extend="max" if clipped else "neither")
     return ax
+
+
+def _robust_range(values: np.ndarray) -> tuple[float, float, bool]:
+    """Colour limits a single outlier does not flatten: up to the 95th percentile when
+    the largest value is more than twice it (the cells still print the values)."""
+    finite = values[np.isfinite(values)]
+    if not finite.size:
+        return 0.0, 1.0, False
+    low, high = float(min(finite.min(), 0.0)), float(finite.max())
+    p95 = float(np.percentile(finite, 95))
+    if p95 > low and high > 2 * p95:
+        return low, p95, True
+    return low, high if high > low else low + 1.0, False
 
 
 def plot_utilisation(result: PlanResult, *, ax: Axes | None = None) -> Axes:

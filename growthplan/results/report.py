@@ -28,6 +28,7 @@ import numpy as np
 import pandas as pd
 
 from ..io.marks import HTML_MARK
+from .accounts import employment_kind
 from .summary import CAUTION
 
 if TYPE_CHECKING:
@@ -153,6 +154,65 @@ def _text(x: Any, decimals: int = 2, *, ratio: bool = False, scale: float = 1.0)
     return text.replace("-", "−")
 
 
+def _shortfall_unit(result: PlanResult, condition: str, who: str) -> str:
+    """The unit a shortfall row is counted in, from its condition and sector or kind."""
+    d = result.data
+    if d is None:
+        return ""
+    if condition == "labour":
+        units = dict(zip(d.labour_all_kinds, d.labour_all_units, strict=False))
+        return units.get(who, "") or "person-years"
+    if condition == "foreign exchange":
+        return d.value_unit
+    if condition.startswith("consumption"):
+        return "units of the consumption level"
+    units = dict(zip(d.names, d.units, strict=False))
+    return f"{units[who]} a year" if who in units else ""
+
+
+def shortfall_table(result: PlanResult) -> pd.DataFrame:
+    """The diagnosis's shortfalls with the unit of each row (empty without any).
+
+    The default labour kind is not repeated after its condition ("labour", not
+    "labour labour").
+
+    Parameters
+    ----------
+    result : PlanResult
+
+    Returns
+    -------
+    pandas.DataFrame
+        condition, sector, year, unit, required, achievable, shortfall and
+        share (a fraction of what is required).
+    """
+    diag = result.diagnosis
+    if diag is None or diag.shortfalls.empty:
+        return pd.DataFrame()
+    short = diag.shortfalls.copy()
+    pairs = list(zip(short["condition"].astype(str), short["sector"].astype(str),
+                     strict=True))
+    short.insert(short.columns.get_loc("year") + 1, "unit",
+                 [_shortfall_unit(result, c, s) for c, s in pairs])
+    short["sector"] = ["" if c == s == "labour" else s for c, s in pairs]
+    return short
+
+
+def shortfall_words(result: PlanResult) -> list[str]:
+    """Each shortfall as a sentence with its unit."""
+    words = []
+    for r in shortfall_table(result).itertuples():
+        cond = "labour supply" if r.condition == "labour" else r.condition
+        where = " ".join(str(x) for x in (cond, r.sector) if x != "")
+        when = f" in {r.year}" if r.year != "" else ""
+        unit = f" {r.unit}" if r.unit else ""
+        words.append(f"The {where}{when} asks for {_text(float(r.required))}{unit} but at "
+                     f"most {_text(float(r.achievable))}{unit} can be reached: short by "
+                     f"{_text(float(r.shortfall))}{unit} "
+                     f"({_text(float(r.share), ratio=True)}).")
+    return words
+
+
 def _is_ratio(name: object) -> bool:
     return isinstance(name, str) and any(w in name for w in RATIO_WORDS)
 
@@ -171,10 +231,83 @@ def _span(values: Sequence[float] | np.ndarray, years: Sequence[int], unit: str)
             f"{years[-1]}")
 
 
+# each objective in a reader's words (no symbols)
+_OBJECTIVES = {
+    "terminal_capacity": "the largest capacity in service after the plan, counted in "
+                         "bundles of the terminal proportions",
+    "discounted_consumption": "the largest sum of the consumption level over the plan years, "
+                              "discounted",
+    "least_labour": "the least labour, all kinds and years together, that meets every "
+                    "condition",
+    "least_foreign_exchange": "the least net outlay of foreign exchange over the plan years",
+    "weighted": "a weighted sum of several objectives",
+    "lexicographic": "several objectives, each optimised in turn without giving up the ones "
+                     "before",
+    "fastest": "the shortest plan that reaches the targets",
+}
+
+
 def _objective_words(obj: Any) -> str:
-    doc = (type(obj).__doc__ or "").strip().splitlines()
-    head = doc[0].rstrip(".").replace("``", "") if doc else ""
-    return f"{obj.kind.replace('_', ' ')} ({obj.sense}imise)" + (f": {head}" if head else "")
+    return _OBJECTIVES.get(obj.kind, obj.kind.replace("_", " "))
+
+
+# one word for the outcome, for a reader
+STATUS_WORDS = {"optimal": "optimal", "infeasible": "impossible", "unbounded": "unbounded"}
+
+
+def status_word(result: PlanResult) -> str:
+    """"optimal", "impossible", "unbounded", or "unfinished" (stopped, failed, unverified)."""
+    return STATUS_WORDS.get(result.status.value, "unfinished")
+
+
+def _reader_summary(result: PlanResult) -> list[tuple[str, str]]:
+    """The summary's lines for a reader: one status word, the objective in words and
+    units, no symbols and no solver details."""
+    from .summary import objective_unit
+
+    p = result.plan
+    rows = []
+    for key, value in result.summary()._lines():
+        if key in ("time", "solver"):
+            continue
+        if key == "status":
+            value = status_word(result)
+        elif key == "objective":
+            obj = objective_unit(result)
+            value = f"{_objective_words(p.objective)}: {_text(result.objective, 0)} {obj}"
+        elif key == "terminal level":
+            unit = p.economy.value_unit
+            key = "after the plan"
+            value = (f"in {p.years[-1] + 1} the capacity in the terminal proportions can make "
+                     f"output worth {_text(result.level, 0)} {unit} a year (one bundle per "
+                     f"{unit}); all capacity then in service, "
+                     f"{_text(result.terminal_value, 0)} {unit} a year")
+        rows.append((key, value))
+    return rows
+
+
+def _zero_prices(result: PlanResult) -> str:
+    """A sentence on years whose shadow prices are mostly zero, so that the one
+    non-zero value does not puzzle a reader."""
+    money = result.shadow_prices_money
+    scale = float(np.nanmax(np.abs(money.to_numpy(dtype=float)))) if money.size else 0.0
+    if not scale > 0:
+        return ""
+    said = []
+    for year, row in money.iterrows():
+        scarce = [str(c) for c, v in row.items() if abs(float(v)) > 1e-9 * scale]
+        if len(scarce) * 2 > len(row):
+            break  # from here most commodities are scarce
+        only = ("no commodity" if not scarce else
+                "only " + ", ".join(scarce) if len(scarce) < 4 else ", ".join(scarce))
+        said.append(f"{year}: {only}")
+    if not said:
+        return ""
+    first = "In the first year" if len(said) == 1 else "In the first years"
+    return ("A shadow price of zero means the commodity was not scarce that year: the plan "
+            f"left some of it unused, so one more unit would have added nothing. {first} few "
+            "commodities are scarce (" + "; ".join(said) + "), which is why most prices there "
+            "are zero.")
 
 
 def inputs(result: PlanResult) -> list[tuple[str, str]]:
@@ -703,7 +836,7 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
     p = result.plan
     years = list(p.years)
     unit = p.economy.value_unit
-    status = result.status.value
+    status = status_word(result)
     badge = "ok" if result.ok else "bad"
     parts = [f"<header><h1>Growth plan {years[0]}–{years[-1]}"
              f'<span class="badge {badge}">{_e(status)}</span></h1>'
@@ -714,9 +847,8 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
     if not result.ok:
         parts.append(_impossible(result))
     else:
-        parts.append("<section><h2>Summary</h2>"
-                     + _pairs((k, v) for k, v in result.summary()._lines()
-                              if k not in ("time", "solver")) + "</section>")
+        parts.append("<section><h2>Summary</h2>" + _pairs(_reader_summary(result))
+                     + "</section>")
     parts.append("<section><h2>Inputs and assumptions</h2>" + _pairs(inputs(result))
                  + _table(sectors_table(result).set_index("sector"),
                           caption="Sectors, their units and base-year prices") + "</section>")
@@ -729,7 +861,10 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
         acc = result.accounts
         names = {c: _account_name(result, c) for c in acc.columns}
         parts.append("<section><h2>National accounts at base-year prices</h2>"
-                     + _accounts(acc.rename(columns=names), unit) + "</section>")
+                     + _accounts(acc.rename(columns=names), unit)
+                     + '<p class="note">Disposal is the value of what was made but not used '
+                     "in the year (a commodity in surplus, left over); it is counted so that "
+                     "GDP equals final uses plus disposal exactly.</p></section>")
         b = result.bottlenecks(top=3)
         if not b.empty:
             dec = decimals_for(b["per_value"])
@@ -752,14 +887,16 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
         if result.data is not None and result.data.satellite is not None:
             parts.append(_emissions_section(result, charts))
         money = result.shadow_prices_money
+        zero = _zero_prices(result)
         parts.append("<section><h2>Shadow prices in base-year money</h2>"
                      f'<p class="note">{_e(money.attrs.get("note", unit))}.</p>'
+                     + (f"<p>{_e(zero)}</p>" if zero else "")
                      + _table(money) + "</section>")
     elif result.diagnosis is not None:
         parts.append(_charts_section(result, charts))
     warnings = list(result.warnings)
     solver = result.solver
-    rows = [("status", f"{status} ({result.message})"),
+    rows = [("status", f"{result.status.value} ({result.message})"),
             ("back end", f"{solver.get('backend', '')}, method {solver.get('method', '')}"),
             ("versions", _versions(solver)),
             ("time", f"{sum(result.timings.values()):.3f} s in all")]
@@ -802,11 +939,15 @@ def _binding(condition: str, name: str) -> str:
 def _account_name(result: PlanResult, column: str) -> str:
     """"GDP growth", "employment skilled (thousand person-years)": accounts rows for reading."""
     name = column.replace("_", " ").replace("gdp", "GDP")
-    if column.startswith("employment ") and result.data is not None:
+    kind = employment_kind(column)
+    if kind is not None and result.data is not None:
         d = result.data
         units = dict(zip(d.labour_all_kinds, d.labour_all_units, strict=False))
-        unit = units.get(column[len("employment "):], "") or "person-years"
+        unit = units.get(kind, "") or "person-years"
         name = f"{name} ({unit})"
+    elif column == "consumption_per_head" and result.data is not None:
+        # the population's unit is the plan's own (people, thousands, millions…)
+        name = f"{name} ({result.data.value_unit} per unit of the plan's population)"
     return name
 
 
@@ -863,15 +1004,9 @@ def _impossible(result: PlanResult) -> str:
     out.append(f"<p>{_e(conflict or 'Conflict ' + diag.subset_source + '.')}</p>")
     out.append("</div>")
     if not diag.shortfalls.empty:
-        words = []
-        for r in diag.shortfalls.itertuples():
-            where = " ".join(str(x) for x in (r.condition, r.sector) if x != "")
-            when = f" in {r.year}" if r.year != "" else ""
-            words.append(f"The {where}{when} asks for {_text(float(r.required))} but at most "
-                         f"{_text(float(r.achievable))} can be reached: short by "
-                         f"{_text(float(r.shortfall))} ({_text(float(r.share), ratio=True)}).")
+        words = shortfall_words(result)
         out.append("<ul>" + "".join(f"<li>{_e(w)}</li>" for w in words) + "</ul>")
-        out.append(_table(diag.shortfalls, index=False, ratios=("share",),
+        out.append(_table(shortfall_table(result), index=False, ratios=("share",),
                           caption="Shortfalls found by the elastic re-solve"))
     for note in diag.notes:
         out.append(f'<p class="note">{_e(note)}</p>')

@@ -444,7 +444,9 @@ class PlanResult:
         """The diagnosis of a result that is not a plan, as tables (empty without one)."""
         if self.diagnosis is None:
             return {}
-        out = {"shortfalls": self.diagnosis.shortfalls}
+        from .report import shortfall_table
+
+        out = {"shortfalls": shortfall_table(self)}
         subset = self.diagnosis.infeasible_subset
         if subset is not None and not subset.empty:
             out["conflict"] = subset
@@ -477,11 +479,13 @@ class PlanResult:
             The folder.
         """
         from ..io.atomic import atomic_folder
+        from .workbook import flat_table
 
         tables = self._tables() if self.ok else self._diagnosis_tables()
         with atomic_folder(folder, overwrite=overwrite, protect=protect, kind="tables") as tmp:
             for name, frame in tables.items():
-                frame.to_csv(tmp / f"{name}.csv")
+                # the workbook's headers: one row, units, the key as a named column
+                flat_table(name, frame, self).to_csv(tmp / f"{name}.csv", index=False)
             (tmp / "summary.txt").write_text(str(self.summary()), encoding="utf-8")
         return Path(folder)
 

@@ -60,6 +60,23 @@ def key_figures(result: PlanResult) -> dict[str, Any]:
     return out
 
 
+def objective_unit(result: PlanResult) -> str:
+    """The objective's unit in words, for the headers of shadow values: "terminal
+    bundles" (each able to make output worth 1 unit of money a year in the terminal
+    proportions), the labour unit, the consumption level's units, …"""
+    kind = result.plan.objective.kind
+    d = result.data
+    if kind == "terminal_capacity":
+        return "terminal bundles"
+    if kind == "least_labour" and d is not None and len(set(d.labour_all_units)) == 1:
+        return str(d.labour_all_units[0])
+    if kind == "discounted_consumption":
+        return "discounted consumption-level units"
+    if kind == "least_foreign_exchange" and d is not None:
+        return f"{d.value_unit} of foreign exchange"
+    return "units of the objective"
+
+
 def labour_label(kind: str, unit: str) -> str:
     """"labour (person-years)" for the default kind, "labour skilled (person-years)" else."""
     return f"labour ({unit})" if kind == "labour" else f"labour {kind} ({unit})"
@@ -137,7 +154,10 @@ class Summary:
                                  f"{use}; at least {100 * ratio.min():.1f} % "
                                  f"({ratio.idxmin()})"))
             cal = r.calibration
-            if not cal.empty:
+            if p.revised_from is not None:
+                rows.append(("revision", f"from {p.revised_from}, on the capacity the starts "
+                             "actually made left (the base year is not its starting point)"))
+            elif not cal.empty:
                 far = cal[cal["change"].abs() > CALIBRATION_WARNING].sort_values(
                     "change", key=abs, ascending=False)
                 if not far.empty:
@@ -145,7 +165,7 @@ class Summary:
                                  f"{100 * CALIBRATION_WARNING:.0f} %: " + ", ".join(
                                      f"{k} {100 * v:+.0f} %" for k, v in
                                      far["change"].head(4).items())
-                                 + (" (Plan(first_year_within=...) holds it nearer)"
+                                 + (" (the plan's first_year_within holds it nearer)"
                                     if p.first_year_within is None else "")))
             if d.satellite is not None:
                 rows.extend(_emission_lines(r))

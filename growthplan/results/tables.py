@@ -17,7 +17,7 @@ from ..backends.base import SolverOutcome
 from ..lp.conditions import Schedules
 from ..lp.data import PlanData
 from ..lp.program import LinearProgram
-from .accounts import employment, national_accounts
+from .accounts import employment, employment_column, national_accounts
 
 __all__ = ["schedules", "frames", "current_prices", "money_factor"]
 
@@ -216,8 +216,8 @@ def calibration(d: PlanData, output: np.ndarray) -> pd.DataFrame:
                        index=pd.Index(d.names, name="sector"))
     for k, kind in enumerate(d.labour_all_kinds):
         # the base year ran on the base techniques, the first columns
-        out[f"base employment {kind}"] = base * d.labour_all[k, : d.n]
-        out[f"first-year employment {kind}"] = d.by_sector(output[0] * d.labour_all[k])
+        out[f"base {employment_column(kind)}"] = base * d.labour_all[k, : d.n]
+        out[f"first-year {employment_column(kind)}"] = d.by_sector(output[0] * d.labour_all[k])
     out.attrs["units"] = dict(zip(d.names, d.units, strict=True))
     return out
 

@@ -14,8 +14,8 @@ such as the labour table's becomes "labour used", "labour available"), the
 year as its first column (never a bare row number), units in the headers,
 per-column number formats with the values rounded to what the format shows
 (no ``2435.9999999999995``, no ``-0.0``, no ``4.5e-13``), a frozen header row
-and column widths that fit. The capacity table's last row is labelled
-"<year> (after the plan)".
+and column widths that fit. The capacity table's year stays numeric; its
+``period`` column marks the last row "after the plan".
 """
 
 from __future__ import annotations
@@ -30,23 +30,25 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 import pandas as pd
 
+from .accounts import employment_kind
 from .report import (
     GLOSSARY,
     RATIO_WORDS,
     _job,
-    _text,
     decimals_for,
     inputs,
     sectors_table,
+    shortfall_table,
+    shortfall_words,
     targets_table,
     tidy_number,
 )
-from .summary import CAUTION
+from .summary import CAUTION, objective_unit
 
 if TYPE_CHECKING:
     from .result import PlanResult
 
-__all__ = ["write_workbook", "sheets"]
+__all__ = ["write_workbook", "sheets", "flat_table"]
 
 TEXT_WIDTH = 110     # width of the words column of the text sheets
 MAX_WIDTH = 30       # widest numeric column (headers wrap)
@@ -77,33 +79,87 @@ def _flat(name: str, frame: pd.DataFrame, result: PlanResult) -> pd.DataFrame:
             out.columns = pd.Index([f"{c} [{vu} per {labour_units.get(str(c), 'unit')}]"
                                     for c in out.columns])
         else:
-            out.columns = pd.Index([f"{c} [{vu} per unit]" for c in out.columns])
+            units = dict(zip(d.names, d.units, strict=False))
+            more = " a year of capacity" if name == "quasi_rents_money" else ""
+            out.columns = pd.Index([f"{c} [{vu} per {units.get(str(c), 'unit')}{more}]"
+                                    for c in out.columns])
     elif d is not None and name in ("consumption", "imports", "exports"):
         units = dict(zip(d.names, d.units, strict=False))
         out.columns = pd.Index([f"{c} [{units[c]}]" if c in units else
                                 ("level [units of the consumption level]" if c == "level"
                                  else str(c)) for c in out.columns])
+    elif d is not None and name in DUALS:
+        units = dict(zip(d.names, d.units, strict=False))
+        per = "{obj} per {unit}" + DUALS[name]
+        obj = objective_unit(result)
+        out.columns = pd.Index([f"{c} [" + per.format(
+            obj=obj, unit=(labour_units.get(str(c)) or "person-year") if name == "labour_values"
+            else units.get(str(c), "unit")) + "]" for c in out.columns])
     else:
         cols = []
         for c in map(str, out.columns):
-            if name == "accounts" and c.startswith("employment "):
-                c = f"{c} [{labour_units.get(c[len('employment '):]) or 'person-years'}]"
+            kind = employment_kind(c) if name == "accounts" else None
+            if kind is not None:
+                c = f"{c} [{labour_units.get(kind) or 'person-years'}]"
+            elif name == "utilisation":
+                c = f"{c} [fraction of capacity]"
+            elif name == "starts" and c.endswith("]"):
+                c = c[:-1] + " a year]"  # capacity begun, as output a year
+            elif name == "accounts" and d is not None and c in _ACCOUNT_UNITS:
+                c = f"{c} [{_ACCOUNT_UNITS[c].format(money=d.value_unit)}]"
+            elif name == "shortfalls" and c == "share":
+                c = SHARE
+            elif name == "target_values" and c == "value":
+                c = f"value [{objective_unit(result)} per unit of the requirement]"
             cols.append(c)
         out.columns = pd.Index(cols)
     return out
 
 
+SHARE = "share [fraction of the requirement]"
+# the shadow values' headers: the objective's unit per unit of the column
+DUALS = {"shadow_prices": "", "shadow_prices_current": ", in current-year terms",
+         "quasi_rents": " a year of capacity", "labour_values": ""}
+_ACCOUNT_UNITS = {"investment_share": "fraction of GDP",
+                  "consumption_per_head": "{money} per unit of the plan's population",
+                  "gross_output_growth": "fraction, on the year before",
+                  "gdp_growth": "fraction, on the year before",
+                  "investment_growth": "fraction, on the year before",
+                  "consumption_growth": "fraction, on the year before"}
+
+
 def _with_year(name: str, frame: pd.DataFrame) -> pd.DataFrame:
-    """The index as the first column (year), or none when it is only a row number."""
+    """The index as the first column (year), or none when it is only a row number.
+
+    The capacity table's year stays a number; a ``period`` column beside it
+    says which row is the capacity left after the plan."""
     if isinstance(frame.index, pd.RangeIndex) and frame.index.name is None:
         return frame.reset_index(drop=True)
     label = frame.index.name or "year"
     out = frame.reset_index(names=label)
     if name == "capacity" and label == "year" and len(out):
-        years: list[Any] = [int(y) for y in out["year"]]
-        years[-1] = f"{years[-1]} (after the plan)"
-        out["year"] = pd.Series(years, dtype=object)
+        period = ["plan"] * len(out)
+        period[-1] = "after the plan"
+        out.insert(1, "period", period)
     return out
+
+
+def flat_table(name: str, frame: pd.DataFrame, result: PlanResult) -> pd.DataFrame:
+    """A result table as it is exported: one header row with units, the year (or the
+    table's own key) as a column, no bare row numbers.
+
+    Parameters
+    ----------
+    name : str
+        The table's name (``output``, ``shadow_prices``, …).
+    frame : pandas.DataFrame
+    result : PlanResult
+
+    Returns
+    -------
+    pandas.DataFrame
+    """
+    return _with_year(name, _flat(name, frame, result))
 
 
 def _is_ratio(sheet: str, column: str) -> bool:
@@ -168,7 +224,7 @@ def sheets(result: PlanResult, tables: dict[str, pd.DataFrame]) -> dict[str, pd.
     if not result.ok:
         out.update(_diagnosis(result))
     for name, frame in tables.items():
-        out[name[:31]] = _with_year(name, _flat(name, frame, result))
+        out[name[:31]] = flat_table(name, frame, result)
     return out
 
 
@@ -185,13 +241,9 @@ def _diagnosis(result: PlanResult) -> dict[str, pd.DataFrame]:
     words.extend(("step", str(step)) for step in diag.steps)
     out = {"diagnosis": _text_sheet(words, ("item", "value"))}
     if not diag.shortfalls.empty:
-        short = diag.shortfalls.copy()
-        short["in words"] = [
-            f"{' '.join(str(x) for x in (r.condition, r.sector) if x != '')}"
-            f"{' in ' + str(r.year) if r.year != '' else ''}: asks for {_text(r.required)}, "
-            f"at most {_text(r.achievable)} can be reached, short by {_text(r.shortfall)}"
-            for r in short.itertuples()]
-        out["shortfalls"] = short
+        short = shortfall_table(result)
+        short["in words"] = shortfall_words(result)
+        out["shortfalls"] = short.rename(columns={"share": SHARE})
     if diag.infeasible_subset is not None and not diag.infeasible_subset.empty:
         out["conflict"] = diag.infeasible_subset.reset_index(drop=True)
     return out

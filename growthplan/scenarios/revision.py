@@ -292,7 +292,9 @@ def revise(plan: Any, actuals: Any, from_year: int, *, capacity: dict[str, float
                 t[key] = {g: side.ceilings[k:, i].tolist()
                           for i, g in enumerate(side.goods) if g in t[key]}
         fields_p["trade"] = Trade(**t)
-    return Plan(**fields_p)
+    out = Plan(**fields_p)
+    out._revised_from = int(from_year)  # its base is the actuals, not the base year
+    return out
 
 
 def _remaining_limits(plan: Any, from_year: int, used: dict[int, float]) -> list[Any]:

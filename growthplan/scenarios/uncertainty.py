@@ -611,7 +611,8 @@ def _stress_one(plan: Any, spec: UncertaintySpec, i: int,
     any_short = False
     for rec, s in zip(info, share, strict=True):
         cname, sector, year = rec["condition"].shortfall_label(rec["label"])
-        name = f"{cname} {sector}".strip()
+        # the default labour kind is not named twice ("labour", not "labour labour")
+        name = cname if sector == cname else f"{cname} {sector}".strip()
         short = s > POSITIVE_SHARE
         any_short |= bool(short)
         items.append(("met", year, name, 0.0 if short else 1.0))

@@ -139,7 +139,7 @@ def test_the_marks_do_not_change_what_readers_read(injected, tmp_path):
     # the objective of the written model is the plan's optimum (HiGHS reads it back)
     assert np.isclose(abs(h.getInfo().objective_function_value), abs(injected.objective),
                       rtol=1e-7)
-    loaded, _ = gp.load_plan_file(gp.save_plan_file(plan, tmp_path / "p.yaml"))
+    loaded = gp.load_plan_file(gp.save_plan_file(plan, tmp_path / "p.yaml"))
     assert loaded.economy.names == plan.economy.names
 
 

@@ -55,7 +55,7 @@ def test_flows_table_divided_by_base_output(tmp_path):
     text = text.replace("units: {CO2: kt, CH4: kt}", "units: {CO2: kt}")
     text = text.replace("factors: {CO2: 1.0, CH4: 28.0}", "factors: {CO2: 1.0}")
     (demo / "f.yaml").write_text(text, encoding="utf-8")
-    plan, _ = gp.load_plan_file(demo / "f.yaml")
+    plan = gp.load_plan_file(demo / "f.yaml")
     s = plan.satellite.stressors[0].intensities
     assert s["agriculture"] == pytest.approx(884 / 5200) and s["energy"] == pytest.approx(3.0)
 
@@ -75,5 +75,5 @@ def test_inline_accounts_round_trip(tmp_path):
         path = gp.save_plan_file(plan, tmp_path / "p.yaml")
     data = yaml.safe_load(path.read_text(encoding="utf-8"))
     assert data["plan"]["limits"][1]["kind"] == "budget"
-    again, _ = gp.load_plan_file(path)
+    again = gp.load_plan_file(path)
     assert again.satellite == plan.satellite and again.limits == plan.limits

@@ -24,7 +24,7 @@ def test_plan_file_with_techniques(tmp_path):
         {"sector": "energy", "label": "base", "last_start": 2029}]
     path = tmp_path / "plan.yaml"
     path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
-    plan, _ = gp.load_plan_file(path)
+    plan = gp.load_plan_file(path)
     assert [t.label for t in plan.techniques] == ["solar", "base"]
     assert plan.techniques[0] == gp.Technique(
         sector="energy", label="solar", labour=0.01, first_year=2028,

@@ -92,9 +92,9 @@ def test_files_save_plan_file_writes_are_valid_and_compact(validator, tmp_path, 
     assert data["solve"] == {"method": "ipm", "time_limit": 60}
     for target in section.get("targets", []):
         assert None not in target.values()
-    again, options = load_plan_file(path)
+    again = load_plan_file(path)
     assert again.model_dump_json() == plan.model_dump_json()
-    assert options == SolveOptions(method="ipm", time_limit=60)
+    assert SolveOptions(**again.solve_options) == SolveOptions(method="ipm", time_limit=60)
 
 
 def test_default_solver_settings_are_left_out(tmp_path):

@@ -270,8 +270,10 @@ def test_impossible_plan_report(impossible, tmp_path):
     assert row["sector"] == "energy" and row["year"] == 2034
     assert html.escape(diag.headline()) in doc
     assert html.escape(diag.conflict()) in doc
-    assert (f"The capacity target energy in 2034 asks for 1,000,000.00 but at most "
-            f"{row['achievable']:,.2f} can be reached: short by {row['shortfall']:,.2f}") in doc
+    unit = "million arvens at 2026 prices a year"  # the shortfall's unit, each time
+    assert (f"The capacity target energy in 2034 asks for 1,000,000.00 {unit} but at most "
+            f"{row['achievable']:,.2f} {unit} can be reached: short by "
+            f"{row['shortfall']:,.2f} {unit}") in doc
     assert "missed</td>" in doc
     assert html.escape(CAUTION) in doc
     assert doc.count("<img src=\"data:image/png;base64,") == 2  # targets and shortfalls

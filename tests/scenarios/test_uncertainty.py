@@ -237,7 +237,7 @@ def _demo_copy(tmp_path, section):
 
 def test_plan_file_section_is_read_checked_and_in_the_schema(tmp_path):
     path = _demo_copy(tmp_path, SECTION)
-    plan, _ = gp.load_plan_file(path)
+    plan = gp.load_plan_file(path)
     spec = gp.load_uncertainty(path)
     assert spec.seed == 7 and spec.draws == 12 and len(spec.items) == 3
     assert spec.items[1].cols == ["energy"] and spec.items[1].distribution.mode == 1.0

@@ -203,7 +203,7 @@ def test_command_builds_a_folder_a_plan_loads(demo, tmp_path):
                    "consumption": {"floor": 1750, "floor_growth": 0.02},
                    "terminal": {"rate": 0.03}, "objective": {"kind": "terminal_capacity"}}
     (out / "plan.yaml").write_text(yaml.safe_dump(doc), encoding="utf-8")
-    plan, _ = gp.load_plan_file(out / "plan.yaml")
+    plan = gp.load_plan_file(out / "plan.yaml")
     econ, _ = build_economy(demo / "economy.yaml")
     np.testing.assert_allclose(plan.economy.A, econ.A, rtol=1e-15)
     np.testing.assert_allclose(plan.economy.B, econ.B, rtol=1e-15)

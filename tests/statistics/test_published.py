@@ -158,7 +158,7 @@ def test_economy_build_on_bea_15_writes_a_plan_that_solves(tmp_path):
                   "capital–output ratio of 3", "average wage of 75", "Consumption floor"):
         assert words in text, words
     assert "labour_kinds:\n  - employees" in (out / "economy.yaml").read_text(encoding="utf-8")
-    plan, options = gp.load_plan_file(out / "plan.yaml")
+    plan = gp.load_plan_file(out / "plan.yaml")
     assert plan.years[0] == 2022 and len(plan.years) == 30
     assert_optimal(plan.solve())
 
@@ -181,7 +181,7 @@ def test_economy_build_on_the_demo_writes_labour_kinds_and_a_plan(tmp_path):
     text = (out / "assumptions.md").read_text(encoding="utf-8")
     assert "capacity = " not in text and "K = I" not in text  # prose, not formulas
     assert "its capacity is its base-year output" in text
-    plan, _ = gp.load_plan_file(out / "plan.yaml")
+    plan = gp.load_plan_file(out / "plan.yaml")
     assert plan.economy.labour_kinds == ["skilled", "unskilled"]
     assert [lab.kind for lab in plan.labour] == ["skilled", "unskilled"]
     result = assert_optimal(plan.solve())
