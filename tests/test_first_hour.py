@@ -105,7 +105,11 @@ def test_check_reports_every_misspelt_key_at_once(copied):
 
 
 def test_a_revision_speaks_of_its_actuals_and_names_its_columns(copied):
-    rows = [f"{y},energy,60\n{y},services,300\n" for y in (2027, 2028, 2029)]
+    import growthplan as gp
+
+    names = gp.demo_plan().economy.names  # actuals name every sector, 0 where none started
+    starts = {"energy": 60, "services": 300}
+    rows = [f"{y},{n},{starts.get(n, 0)}\n" for y in (2027, 2028, 2029) for n in names]
     (copied / "actuals.csv").write_text("year,sector,starts\n" + "".join(rows))
     res = cli("revise", "plan.yaml", "actuals.csv", "--from-year", "2030", "--no-progress",
               "--out", "cmp.csv", "--overwrite", cwd=copied)
@@ -133,6 +137,7 @@ def test_no_message_suggests_python_syntax_to_a_command_line_user(copied):
 
 UNIT = "million arvens at 2026 prices"  # the demo's money (its sectors are in money)
 LABOUR = "thousand person-years"
+CONSUMPTION = "units of the consumption level"
 
 
 def _headers(path: Path) -> list[str]:
@@ -178,20 +183,19 @@ def test_an_impossible_plans_shortfalls_carry_units_without_doubled_words(copied
     res = cli("solve", "short.yaml", "--no-progress", "--out", "short-out", "--excel",
               "short.xlsx", "--report", "short.html", "--overwrite", cwd=copied)
     assert res.returncode == 1, res.stderr
-    assert "Shortfalls" in res.stdout and LABOUR in res.stdout and " %" in res.stdout
+    # the aims are relaxed before the facts: the consumption path is what gives way
+    assert "Shortfalls" in res.stdout and CONSUMPTION in res.stdout and " %" in res.stdout
     table = (copied / "short-out" / "shortfalls.csv").read_text(encoding="utf-8")
-    assert "unit" in table.splitlines()[0] and LABOUR in table
+    assert "unit" in table.splitlines()[0] and CONSUMPTION in table
     assert "share [fraction of the requirement]" in table.splitlines()[0]
     html = (copied / "short.html").read_text(encoding="utf-8")
-    assert f"{LABOUR} can be reached" in html
+    assert f"{CONSUMPTION} can be reached" in html
     import pandas as pd
 
     sheet = pd.read_excel(copied / "short.xlsx", sheet_name="shortfalls")
-    words = sheet["in words"]
-    labour = sheet["condition"] == "labour"
-    assert labour.any() and words[labour].str.contains(f"labour supply in .* {LABOUR}").all()
     assert (sheet["unit"].fillna("") != "").all()
-    for text in (res.stdout, table, html, " ".join(words)):
+    assert all(u in w for u, w in zip(sheet["unit"], sheet["in words"], strict=True))
+    for text in (res.stdout, table, html, " ".join(sheet["in words"])):
         assert "labour labour" not in text
 
 

@@ -192,8 +192,12 @@ def shortfall_table(result: PlanResult) -> pd.DataFrame:
     short = diag.shortfalls.copy()
     pairs = list(zip(short["condition"].astype(str), short["sector"].astype(str),
                      strict=True))
-    short.insert(short.columns.get_loc("year") + 1, "unit",
-                 [_shortfall_unit(result, c, s) for c, s in pairs])
+    units = [_shortfall_unit(result, c, s) for c, s in pairs]
+    if "unit" in short.columns:  # the diagnosis's own unit where it names one
+        short["unit"] = [str(u) if isinstance(u, str) and u else w
+                         for u, w in zip(short["unit"], units, strict=True)]
+    else:
+        short.insert(short.columns.get_loc("year") + 1, "unit", units)
     short["sector"] = ["" if c == s == "labour" else s for c, s in pairs]
     return short
 
