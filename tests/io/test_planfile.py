@@ -422,9 +422,9 @@ PYDANTIC_WORDS = ("Input should", "input should", "input tag", "found using", "v
 
 
 def _class_names():
+    from growthplan.io import planfile
     from growthplan.model import economy, objectives, plan
     from growthplan.model.validation import Model
-    from growthplan.io import planfile
 
     return {name for module in (plan, objectives, economy, planfile)
             for name, c in vars(module).items()

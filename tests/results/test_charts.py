@@ -17,8 +17,8 @@ from conftest import one_sector
 from helpers import economy, make_plan
 
 import growthplan as gp
-from growthplan.results import charts as plot
 from growthplan.cli.base import _CHART_NAMES
+from growthplan.results import charts as plot
 
 MONEY = "million arvens at 2026 prices"
 
