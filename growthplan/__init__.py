@@ -30,7 +30,6 @@ if TYPE_CHECKING:
         activity_table_from_economy,
         activity_table_from_plan,
         cheapest_techniques,
-        plot_wage_profit,
         von_neumann_choice,
         wage_profit_frontier,
     )
@@ -69,7 +68,8 @@ if TYPE_CHECKING:
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
-    from .scenarios.revision import compare, plot_compare, read_actuals, revise
+    from .results.charts import plot_compare, plot_fan, plot_probabilities, plot_wage_profit
+    from .scenarios.revision import compare, read_actuals, revise
     from .scenarios.sweep import SerialExecutor, Sweep, sweep, variant
     from .scenarios.uncertainty import (
         Empirical,
@@ -81,8 +81,6 @@ if TYPE_CHECKING:
         UncertaintyResult,
         UncertaintySpec,
         Uniform,
-        plot_fan,
-        plot_probabilities,
         reoptimise,
         robust_plan,
         stress_test,
@@ -139,10 +137,10 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "PlanResult": ("results", "PlanResult"),
     "PlanUnbounded": ("errors", "PlanUnbounded"),
     "plot": ("results.charts", None),
-    "plot_compare": ("scenarios.revision", "plot_compare"),
-    "plot_fan": ("scenarios.uncertainty", "plot_fan"),
-    "plot_probabilities": ("scenarios.uncertainty", "plot_probabilities"),
-    "plot_wage_profit": ("analysis.choice", "plot_wage_profit"),
+    "plot_compare": ("results.charts", "plot_compare"),
+    "plot_fan": ("results.charts", "plot_fan"),
+    "plot_probabilities": ("results.charts", "plot_probabilities"),
+    "plot_wage_profit": ("results.charts", "plot_wage_profit"),
     "PulpBackend": ("backends", "PulpBackend"),
     "read_actuals": ("scenarios.revision", "read_actuals"),
     "read_transactions": ("statistics.tables", "read_transactions"),

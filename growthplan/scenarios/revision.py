@@ -26,7 +26,7 @@ import pandas as pd
 
 from ..errors import invalid
 
-__all__ = ["revise", "compare", "plot_compare", "read_actuals"]
+__all__ = ["revise", "compare", "read_actuals"]
 
 ACTUALS_MAX_BYTES = 50 << 20
 """Largest actuals file read (50 MB)."""
@@ -318,23 +318,3 @@ def compare(result_a: Any, result_b: Any, *, quantities: tuple[str, ...] = (
     with np.errstate(divide="ignore", invalid="ignore"):
         out["relative"] = np.where(out["a"] != 0, out["difference"] / out["a"].abs(), np.nan)
     return out
-
-
-def plot_compare(table: pd.DataFrame, quantity: str = "starts", *, sector: str | None = None,
-                 labels: tuple[str, str] = ("original", "revised"), ax: Any = None) -> Any:
-    """Lines of a quantity in two results (from :func:`compare`), summed over sectors."""
-    from ..results.charts import _axes, _style
-
-    t = table[table["quantity"] == quantity]
-    if sector is not None:
-        t = t[t["sector"] == sector]
-    if t.empty:
-        raise invalid("quantity", "be a quantity (and sector) of the comparison", quantity)
-    per = t.groupby("year")[["a", "b"]].sum()
-    ax = _axes(ax)
-    for i, (col, label) in enumerate(zip(("a", "b"), labels, strict=True)):
-        ax.plot(per.index, per[col], label=label, **_style(i))
-    ax.set_xlabel("year")
-    ax.set_ylabel(f"{quantity}{' of ' + sector if sector else ' (sum over sectors)'}")
-    ax.legend(frameon=False)
-    return ax

@@ -42,7 +42,7 @@ from ..model.validation import Model, Rule
 
 __all__ = ["Normal", "LogNormal", "Uniform", "Triangular", "Empirical", "Uncertain",
            "UncertaintySpec", "UncertaintyResult", "RobustPlan", "stress_test", "reoptimise",
-           "robust_plan", "fix_starts", "plot_fan", "plot_probabilities"]
+           "robust_plan", "fix_starts"]
 
 COLUMNS = ["draw", "status", "quantity", "year", "name", "value", "error"]
 
@@ -1001,46 +1001,3 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
     return RobustPlan(status=out.status, starts=starts, objective=objective,
                       scenario_objectives=scen, nominal_objective=nom, cost=cost_r,
                       criterion=criterion, plans=plans, lp=stacked)
-
-
-# -- charts ---------------------------------------------------------------------------------
-
-def plot_fan(result: UncertaintyResult, quantity: str = "capacity", *,
-             sector: str | None = None, ax: Any = None) -> Any:
-    """Fan chart of a yearly quantity over the draws: median, 50 % and 90 % bands.
-
-    Parameters
-    ----------
-    result : UncertaintyResult
-    quantity : {"capacity", "output", "shadow_price"}
-    sector : str, optional
-        One sector (default: the sum over sectors).
-    """
-    from ..results.charts import _axes
-
-    q = result.quantiles(quantity, sector=sector)
-    ax = _axes(ax)
-    years = q.index.to_numpy()
-    ax.fill_between(years, q[0.05], q[0.95], color="#1b3a5c", alpha=0.15, hatch="..",
-                    label="5–95 %")
-    ax.fill_between(years, q[0.25], q[0.75], color="#1b3a5c", alpha=0.35, label="25–75 %")
-    ax.plot(years, q[0.5], color="#1b3a5c", marker="o", markersize=3, label="median")
-    ax.set_xlabel("year")
-    ax.set_ylabel(f"{quantity}{' of ' + sector if sector else ' (sum over sectors)'}")
-    ax.legend(frameon=False)
-    return ax
-
-
-def plot_probabilities(result: UncertaintyResult, *, ax: Any = None, top: int = 30) -> Any:
-    """Horizontal bars: the probability that each condition (and the plan) is met."""
-    from ..results.charts import _axes
-
-    p = result.probability()
-    label = p["condition"] + p["year"].map(lambda y: "" if pd.isna(y) else f" {y}")
-    p = p.assign(label=label).sort_values("probability").head(top)
-    ax = _axes(ax)
-    ax.barh(p["label"], p["probability"], color="#4f7d3a", hatch="//", edgecolor="white")
-    ax.set_xlim(0, 1)
-    ax.set_xlabel("probability met")
-    return ax
-
