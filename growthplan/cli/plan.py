@@ -45,17 +45,12 @@ def _method_help() -> str:
 def _solver_options(opts: SolveOptions, method: str | None,
                     time_limit: float | None) -> dict[str, Any]:
     """The solve's settings, refused here as the solve would refuse them."""
-    from ..backends.highs import HighsBackend
-
-    chosen: dict[str, Any] = {"method": method or opts.method,
-                              "time_limit": time_limit or opts.time_limit,
-                              "threads": opts.threads, "tolerance": opts.tolerance}
+    changes = {k: v for k, v in (("method", method), ("time_limit", time_limit)) if v}
     try:
-        HighsBackend(chosen["method"], time_limit=chosen["time_limit"],
-                     threads=chosen["threads"], tolerance=chosen["tolerance"])  # no solve
+        chosen = type(opts)(**{**opts.model_dump(), **changes})  # checked as every solve's
     except InvalidInput as exc:
         raise InvalidInput(f"solve.{exc}", field=f"solve.{exc.field}") from None
-    return chosen
+    return chosen.keywords()
 
 
 def _needs_capital(plan: Plan) -> None:

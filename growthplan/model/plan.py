@@ -31,6 +31,8 @@ from .technique import Technique, check_techniques
 from .validation import Model, Rule
 
 if TYPE_CHECKING:
+    from ..backends.base import Backend
+    from ..backends.options import SolveOptions
     from ..lp.data import PlanData
     from ..lp.program import LinearProgram
     from ..results.result import PlanResult
@@ -647,7 +649,8 @@ class Plan(Model):
               threads: int | None = None, tolerance: float | None = None,
               audit_tolerance: float = 1e-6, options: dict[str, Any] | None = None,
               progress: bool = False, stop: Any = None,
-              size_limit: int | None = 25_000_000, backend: Any = None) -> PlanResult:
+              size_limit: int | None = 25_000_000, backend: Backend | None = None,
+              solver: SolveOptions | None = None) -> PlanResult:
         """Solve the plan (HiGHS by default) and audit the result.
 
         The LP, for years ``t = 0..T−1``::
@@ -688,6 +691,10 @@ class Plan(Model):
             Another back end (:class:`growthplan.backends.PulpBackend`, …);
             then ``method``, ``time_limit``, ``threads``, ``tolerance`` and
             ``options`` belong to it.
+        solver : SolveOptions, optional
+            All the settings above as one object
+            (:class:`growthplan.backends.options.SolveOptions`, also what a plan
+            file's ``solve`` section holds); then give none of them as keywords.
 
         Returns
         -------
@@ -714,7 +721,8 @@ class Plan(Model):
 
         return solve(self, backend=backend, method=method, time_limit=time_limit,
                      threads=threads, tolerance=tolerance, audit_tolerance=audit_tolerance,
-                     options=options, progress=progress, stop=stop, size_limit=size_limit)
+                     options=options, progress=progress, stop=stop, size_limit=size_limit,
+                     solver=solver)
 
     def to_pulp(self, name: str = "growthplan") -> Any:
         """A ``pulp.LpProblem`` of this plan, built from the same LinearProgram as ``solve``.

@@ -23,7 +23,7 @@ import pandas as pd
 from scipy import sparse
 
 from ..backends.base import FAILED, Feature, Status
-from ..backends.highs import HighsBackend
+from ..backends.options import SolveOptions, highs_backend
 from ..lp.conditions import CONDITIONS
 from ..lp.program import LinearProgram
 
@@ -249,16 +249,16 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
     Diagnosis
     """
     elastic, info = elastic_program(lp, weights=weights)
-    solver = HighsBackend("simplex", tolerance=1e-9)
+    solver = highs_backend(SolveOptions(method="simplex", tolerance=1e-9))
     out = solver.solve(elastic)
     if out.status in FAILED:
-        for alt in [HighsBackend("ipm-crossover", tolerance=1e-9, scale=True),
-                    *solver.alternatives()]:
+        crossover = SolveOptions(method="ipm-crossover", tolerance=1e-9)
+        for alt in [highs_backend(crossover, scale=True), *solver.alternatives()]:
             out = alt.solve(elastic)
             if out.status not in FAILED:
                 break
     iis_backend = backend if backend is not None and Feature.IIS in getattr(
-        backend, "features", ()) else HighsBackend()
+        backend, "features", ()) else highs_backend()
     want = subset if subset is not None else lp.shape[0] <= IIS_ROW_LIMIT
     if out.status is not Status.OPTIMAL:
         iis = _subset(lp, iis_backend) if want and out.status is Status.INFEASIBLE else None

@@ -539,11 +539,11 @@ def fix_starts(lp: Any, starts: np.ndarray, *, ceiling: bool = False) -> Any:
 def _elastic(lp: Any) -> tuple[Any, Any, list[dict[str, Any]]]:
     """Least total shortfall, then, holding it, the plan's own objective (its first stage)."""
     from ..backends.base import Status
-    from ..backends.highs import HighsBackend
+    from ..backends.options import SolveOptions, highs_backend
     from ..results.diagnosis import elastic_program
 
     elastic, info = elastic_program(lp)
-    solver = HighsBackend("simplex", tolerance=1e-9)
+    solver = highs_backend(SolveOptions(method="simplex", tolerance=1e-9))
     out = solver.solve(elastic)
     if out.status is not Status.OPTIMAL or not np.any(lp.cost):
         return elastic, out, info
@@ -889,7 +889,7 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
         Default HiGHS.
     """
     from ..backends.base import Status
-    from ..backends.highs import HighsBackend
+    from ..backends.options import default_backend
     from ..lp.build import build
     from ..model.technique import refuse_techniques
 
@@ -982,7 +982,7 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
                             row_upper=np.concatenate(row_up), col_lower=np.concatenate(col_lo),
                             col_upper=np.concatenate(col_up), cost=cost, sense=sense,
                             rows=rows, cols=cols)
-    out = run(stacked, backend or HighsBackend())
+    out = run(stacked, backend or default_backend())
     scen = np.full(S, np.nan)
     starts = None
     objective = float("nan")
@@ -992,7 +992,7 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
                               columns=pd.Index(z0.labels[1], name="sector"))
         # each scenario's own objective with the robust starts (its other columns free)
         for s, lp in enumerate(lps):
-            alone = run(fix_starts(lp, z), backend or HighsBackend())
+            alone = run(fix_starts(lp, z), backend or default_backend())
             if alone.status is Status.OPTIMAL:
                 scen[s] = float(alone.objective)
         objective = float(out.objective) if worst else float(scen.mean())
