@@ -46,7 +46,7 @@ import pandas as pd
 from numpy.typing import ArrayLike
 from scipy.optimize import brentq, linprog
 
-from ..errors import invalid
+from ..errors import SolverFailure, invalid
 from .expanding import ExpandingEconomy, expanding_economy
 from .steady import spectral_radius
 
@@ -620,10 +620,10 @@ def _policy_iteration(single: _Single, r: float, wl: np.ndarray,
             return s, p, step
         p_new = _solve_set(new, m_r, wl)
         if p_new is None:  # only when some technique uses no labour at all
-            raise RuntimeError("policy iteration reached an unproductive set; a technique "
+            raise SolverFailure("policy iteration reached an unproductive set; a technique "
                                "without labour makes the costs degenerate")
         s, p = new, p_new
-    raise RuntimeError(f"policy iteration did not settle in {max_iter} steps")
+    raise SolverFailure(f"policy iteration did not settle in {max_iter} steps")
 
 
 def _maximal_rate(single: _Single, tol: float = 1e-9) -> float:

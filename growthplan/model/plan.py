@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from pydantic import Field, PrivateAttr, field_validator, model_validator
 
+from ..errors import GrowthplanError
 from . import objectives as obj
 from .economy import Economy
 from .series import series as _series
@@ -174,7 +175,7 @@ class Target(Model):
         for k in ("output", "capacity", "consumption"):
             if getattr(self, f"{k}_at_least") is not None:
                 return k
-        raise AssertionError("validated target without a condition")
+        raise GrowthplanError("a validated target has no condition")  # never reached
 
     @property
     def required(self) -> float:

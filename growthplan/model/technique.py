@@ -36,7 +36,7 @@ coefficients of ``τ`` for its whole life.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
 import numpy as np
 from pydantic import Field, field_validator, model_validator
@@ -45,6 +45,7 @@ from .validation import Model, Rule
 
 if TYPE_CHECKING:
     from .economy import CapitalSpec, Economy
+    from .plan import Plan
 
 __all__ = ["Technique", "TechniqueSet", "technique_arrays", "refuse_techniques"]
 
@@ -195,7 +196,7 @@ class TechniqueSet:
         return self.m == n and bool(np.array_equal(self.outputs, np.eye(n)))
 
 
-def refuse_techniques(plan: Any, what: str) -> None:
+def refuse_techniques(plan: Plan, what: str) -> None:
     """Refuse a plan with alternative techniques or embodied change where they are not handled.
 
     Raises

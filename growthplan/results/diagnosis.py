@@ -22,7 +22,7 @@ import numpy as np
 import pandas as pd
 from scipy import sparse
 
-from ..backends.base import FAILED, Feature, Status
+from ..backends.base import FAILED, Backend, Feature, IisBackend, Status
 from ..backends.options import SolveOptions, highs_backend
 from ..lp.conditions import CONDITIONS
 from ..lp.program import LinearProgram
@@ -167,7 +167,7 @@ def elastic_program(lp: LinearProgram, *, weights: dict[str, float] | None = Non
 POLISH_LIMIT = 10  # short conditions polished one by one (each one more simplex solve)
 
 
-def _polished(elastic: LinearProgram, s: np.ndarray, solver: Any) -> np.ndarray:
+def _polished(elastic: LinearProgram, s: np.ndarray, solver: Backend) -> np.ndarray:
     """Each positive shortfall made as small as it can be with the others held.
 
     The joint re-solve weighs many shortfall columns at once and stops within its
@@ -190,7 +190,7 @@ def _polished(elastic: LinearProgram, s: np.ndarray, solver: Any) -> np.ndarray:
     return s
 
 
-def _subset(lp: LinearProgram, backend: Any) -> pd.DataFrame | None:
+def _subset(lp: LinearProgram, backend: IisBackend) -> pd.DataFrame | None:
     found = backend.iis(lp)
     if found is None:
         return None
@@ -229,7 +229,7 @@ def _year_name(label: tuple[Any, ...]) -> tuple[Any, str]:
 
 
 def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
-             subset: bool | None = None, backend: Any = None) -> Diagnosis:
+             subset: bool | None = None, backend: Backend | None = None) -> Diagnosis:
     """Elastic re-solve of a plan's programme (see the module notes).
 
     Parameters
@@ -257,8 +257,8 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
             out = alt.solve(elastic)
             if out.status not in FAILED:
                 break
-    iis_backend = backend if backend is not None and Feature.IIS in getattr(
-        backend, "features", ()) else highs_backend()
+    iis_backend: IisBackend = backend if isinstance(backend, IisBackend) \
+        and Feature.IIS in backend.features else highs_backend()
     want = subset if subset is not None else lp.shape[0] <= IIS_ROW_LIMIT
     if out.status is not Status.OPTIMAL:
         iis = _subset(lp, iis_backend) if want and out.status is Status.INFEASIBLE else None

@@ -26,6 +26,7 @@ from .audit import Audit
 from .summary import CAUTION, Summary, key_figures
 
 if TYPE_CHECKING:
+    from ..model.plan import Plan
     from .diagnosis import Diagnosis
 
 __all__ = ["PlanResult", "Table", "CAUTION"]
@@ -123,7 +124,7 @@ class PlanResult:
     numbers for inspection.
     """
 
-    def __init__(self, plan: Any, lp: LinearProgram, outcome: SolverOutcome, *,
+    def __init__(self, plan: Plan, lp: LinearProgram, outcome: SolverOutcome, *,
                  status: Status, timings: dict[str, float], audit: Audit | None = None,
                  schedules: Schedules | None = None, notes: list[str] | None = None,
                  diagnosis: Diagnosis | None = None, backend: str = "highs") -> None:

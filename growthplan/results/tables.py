@@ -25,6 +25,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 import pandas as pd
 
+from ..errors import GrowthplanError
 from ..lp.conditions import Schedules
 from ..lp.data import PlanData
 from ..lp.program import LinearProgram
@@ -150,7 +151,7 @@ def table(name: str, *, doc: str, unit: str = "",
         The decorator (it returns the function unchanged).
     """
     if name in TABLES:
-        raise KeyError(f"the result table {name!r} is declared twice")
+        raise GrowthplanError(f"the result table {name!r} is declared twice")
 
     def register(compute: Callable[[Solved], Any]) -> Callable[[Solved], Any]:
         TABLES[name] = ResultTable(name=name, compute=compute, doc=doc, unit=unit,

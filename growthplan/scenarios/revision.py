@@ -19,12 +19,15 @@ and its survival in later years follows the vintages' ages.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
 
 from ..errors import invalid
+
+if TYPE_CHECKING:
+    from ..model.plan import Plan
 
 __all__ = ["revise", "compare", "read_actuals"]
 
@@ -32,7 +35,7 @@ ACTUALS_MAX_BYTES = 50 << 20
 """Largest actuals file read (50 MB)."""
 
 
-def _actuals(plan: Any, actuals: Any, k: int) -> np.ndarray:
+def _actuals(plan: Plan, actuals: Any, k: int) -> np.ndarray:
     """Starts made in plan years 0..k−1, years × sectors."""
     names = plan.economy.names
     past = plan.years[:k]
@@ -147,7 +150,7 @@ def _vintages(spec: Any, c0: float) -> np.ndarray:
     return h * (c0 / alive) if alive > 0 else h * 0.0
 
 
-def revise(plan: Any, actuals: Any, from_year: int, *, capacity: dict[str, float] | None = None,
+def revise(plan: Plan, actuals: Any, from_year: int, *, capacity: dict[str, float] | None = None,
            labour: dict[str, float] | None = None) -> Any:
     """The plan for ``from_year``..end, starting from what was actually built.
 
@@ -196,6 +199,7 @@ def revise(plan: Any, actuals: Any, from_year: int, *, capacity: dict[str, float
     new_years = years[k:]
     pipeline: dict[str, list[float]] = {}
     capital: dict[str, Any] = {}
+    assert econ.capital is not None  # a valid plan's economy has capital for every sector
     for j, name in enumerate(names):
         spec = econ.capital[name]
         theta = int(d.theta[j])

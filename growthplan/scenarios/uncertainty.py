@@ -30,7 +30,7 @@ import warnings
 from concurrent.futures import Executor, ProcessPoolExecutor
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass, field
-from typing import Annotated, Any, Literal
+from typing import TYPE_CHECKING, Annotated, Any, Literal
 
 import numpy as np
 import pandas as pd
@@ -39,6 +39,10 @@ from scipy import sparse, stats
 
 from ..errors import invalid
 from ..model.validation import Model, Rule
+
+if TYPE_CHECKING:
+    from ..backends.base import Backend
+    from ..model.plan import Plan
 
 __all__ = ["Normal", "LogNormal", "Uniform", "Triangular", "Empirical", "Uncertain",
            "UncertaintySpec", "UncertaintyResult", "RobustPlan", "stress_test", "reoptimise",
@@ -257,7 +261,7 @@ class Uncertain(Model):
                        field="relative")
         return self
 
-    def _cells(self, plan: Any, where: str) -> tuple[list[str], list[str], list[str], list[str]]:
+    def _cells(self, plan: Plan, where: str) -> tuple[list[str], list[str], list[str], list[str]]:
         """(row names available, column names available, rows chosen, columns chosen)."""
         econ = plan.economy
         if self.what in ("input_coefficients", "capital_coefficients"):
@@ -333,7 +337,7 @@ class UncertaintySpec(Model):
     draws: int = Field(default=100, ge=1, le=10_000_000, description=(
         "Number of drawn economies the analyses use when not told otherwise."))
 
-    def check(self, plan: Any) -> None:
+    def check(self, plan: Plan) -> None:
         """Raise InvalidInput when an item selects cells the plan does not have."""
         for k, item in enumerate(self.items):
             item._cells(plan, f"items.{k}")
@@ -342,7 +346,7 @@ class UncertaintySpec(Model):
         """The generator of draw ``i`` (a child of the seed, independent of other draws)."""
         return np.random.default_rng(np.random.SeedSequence(self.seed, spawn_key=(int(i),)))
 
-    def values(self, plan: Any, i: int) -> list[np.ndarray]:
+    def values(self, plan: Plan, i: int) -> list[np.ndarray]:
         """The values drawn for each item in draw ``i`` (rows × cols of its selection)."""
         rng = self.rng(i)
         out = []
@@ -352,13 +356,14 @@ class UncertaintySpec(Model):
             out.append(item.distribution.ppf(u).reshape(len(rows), len(cols)))
         return out
 
-    def draw(self, plan: Any, i: int) -> Any:
+    def draw(self, plan: Plan, i: int) -> Any:
         """Plan of draw ``i``: the nominal plan with every item's cells drawn (validated anew)."""
         from ..lp.data import exogenous_demand
         from ..model.economy import CapitalSpec, Economy
         from ..model.plan import LabourSupply, Plan, Trade
 
         econ = plan.economy
+        assert econ.capital is not None  # a valid plan's economy has capital for every sector
         blocks = {"input_coefficients": np.array(econ.input_coefficients, dtype=float),
                   "capital_coefficients": np.array(econ.capital_coefficients, dtype=float)}
         if econ.labour_coefficients is not None:
@@ -402,6 +407,7 @@ class UncertaintySpec(Model):
             fields["final_demand"] = pd.DataFrame(path, index=plan.years, columns=econ.names)
             fields["final_demand_growth"] = 0.0
         if touched & set(_PRICES):
+            assert plan.trade is not None  # checked: prices are uncertain only with trade
             trade = plan.trade.model_dump()
             for w, v in prices.items():
                 trade[w] = dict(zip(trade[w], v.tolist(), strict=True))
@@ -503,7 +509,7 @@ def _error_row(draw: int, exc: BaseException | str) -> list[tuple[Any, ...]]:
     return [(draw, "error", "error", None, "", np.nan, text)]
 
 
-def _drawn(spec: UncertaintySpec, plan: Any, i: int) -> list[tuple[str, Any, str, float]]:
+def _drawn(spec: UncertaintySpec, plan: Plan, i: int) -> list[tuple[str, Any, str, float]]:
     return [("drawn", None, f"{k}: {item.what}", float(np.mean(v)))
             for k, (item, v) in enumerate(zip(spec.items, spec.values(plan, i), strict=True))]
 
@@ -556,7 +562,7 @@ def _elastic(lp: Any) -> tuple[Any, Any, list[dict[str, Any]]]:
     return elastic, (again if again.status is Status.OPTIMAL else out), info
 
 
-def _stress_one(plan: Any, spec: UncertaintySpec, i: int,
+def _stress_one(plan: Plan, spec: UncertaintySpec, i: int,
                 starts: np.ndarray) -> list[tuple[Any, ...]]:
     from ..backends.base import Status
     from ..lp.build import build
@@ -595,7 +601,7 @@ def _stress_one(plan: Any, spec: UncertaintySpec, i: int,
     return _rows(i, "met" if not (any_short or cut) else "short", items)
 
 
-def _reopt_one(plan: Any, spec: UncertaintySpec, i: int, options: dict[str, Any]
+def _reopt_one(plan: Plan, spec: UncertaintySpec, i: int, options: dict[str, Any]
                ) -> list[tuple[Any, ...]]:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
@@ -651,7 +657,7 @@ def _chunk_based(task: tuple[tuple[Any, ...], list[int]]) -> list[tuple[Any, ...
     return _chunk((kind, plan, spec, draws, extra))
 
 
-def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
+def _run(kind: str, plan: Plan, spec: UncertaintySpec, draws: int, extra: Any,
          executor: Executor | None, max_workers: int | None, chunk: int | None,
          progress: bool, in_flight: int | None = None) -> pd.DataFrame:
     """Run chunks of draws on an executor, results in draw order, failures as rows.
@@ -710,7 +716,7 @@ def _alone(job: tuple[Any, ...], mp_context: Any) -> list[tuple[Any, ...]]:
     return rows
 
 
-def stress_test(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
+def stress_test(plan: Plan, spec: UncertaintySpec, draws: int | None = None, *,
                 nominal: Any = None, executor: Executor | None = None,
                 max_workers: int | None = None, chunk: int | None = None,
                 progress: bool = False, in_flight: int | None = None) -> UncertaintyResult:
@@ -764,7 +770,7 @@ def stress_test(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
     return UncertaintyResult(table, "stress_test", nominal)
 
 
-def reoptimise(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
+def reoptimise(plan: Plan, spec: UncertaintySpec, draws: int | None = None, *,
                executor: Executor | None = None, max_workers: int | None = None,
                chunk: int | None = None, progress: bool = False,
                solve_options: dict[str, Any] | None = None,
@@ -859,9 +865,9 @@ class RobustPlan:
         return pd.DataFrame(rows, columns=["scenario", "status", "max_shortfall_share"])
 
 
-def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
+def robust_plan(plan: Plan, spec: UncertaintySpec, scenarios: int = 20, *,
                 criterion: Literal["worst", "mean"] = "worst", include_nominal: bool = True,
-                nominal: Any = None, backend: Any = None) -> RobustPlan:
+                nominal: Any = None, backend: Backend | None = None) -> RobustPlan:
     """One set of starts that meets every condition in each of ``scenarios`` drawn economies.
 
     The scenario LPs are stacked block-diagonally with one shared set of

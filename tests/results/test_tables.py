@@ -68,7 +68,7 @@ def test_a_new_table_reaches_the_csv_folder_and_the_workbook(result, tmp_path):
 
 
 def test_a_name_is_declared_once():
-    with pytest.raises(KeyError, match="output"):
+    with pytest.raises(gp.GrowthplanError, match="output"):
         tables.table("output", doc="again")(lambda s: None)
 
 
