@@ -28,7 +28,8 @@ def test_readme_tour_runs(tmp_path, monkeypatch):
 
 @pytest.mark.parametrize("module", ["errors", "model.capital", "model.economy",
                                     "analysis.expanding", "model.plan",
-                                    "io.atomic"])
+                                    "io.atomic", "io.planfile", "results.result",
+                                    "backends.options"])
 def test_docstring_examples(module):
     mod = importlib.import_module(f"growthplan.{module}")
     failures, tried = doctest.testmod(mod, optionflags=doctest.NORMALIZE_WHITESPACE)

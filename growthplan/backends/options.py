@@ -64,7 +64,7 @@ class SolveOptions(Model):
     >>> SolveOptions(threads=0)
     Traceback (most recent call last):
         ...
-    growthplan.errors.InvalidInput: threads must be greater than or equal to 1. Got 0.
+    growthplan.errors.InvalidInput: threads must be at least 1. Got 0.
     """
 
     method: str = "auto"

@@ -121,7 +121,27 @@ class PlanResult:
     available only when ``ok`` is true; on any other result they raise
     :class:`~growthplan.PlanNotOptimal`, so a stopped or unverified solve
     cannot be mistaken for a plan. ``raw_solution`` still holds the solver's
-    numbers for inspection.
+    numbers for inspection. Every table is declared once in
+    :mod:`growthplan.results.tables`.
+
+    Examples
+    --------
+    One sector with a = 0.6, b = 2 and a 20-year geometric life: capacity
+    grows at the Harrod–Domar rate (1 − a)/b − δ = 0.15 a year.
+
+    >>> from growthplan import CapitalSpec, Economy, Plan, TerminalGrowth
+    >>> econ = Economy(sectors=["goods"], input_coefficients=[[0.6]],
+    ...                capital_coefficients=[[2.0]],
+    ...                capital={"goods": CapitalSpec(initial_capacity=100,
+    ...                                              mean_service_life=20)})
+    >>> result = Plan(economy=econ, years=range(2030, 2033),
+    ...               terminal=TerminalGrowth(rate=0.02)).solve()
+    >>> result.ok
+    True
+    >>> result.capacity["goods"].round(4).tolist()
+    [100.0, 115.0, 132.25, 152.0875]
+    >>> float(result.utilisation.loc[2031, "goods"].round(9))
+    1.0
     """
 
     def __init__(self, plan: Plan, lp: LinearProgram, outcome: SolverOutcome, *,
