@@ -16,8 +16,9 @@ Examples
 
 from __future__ import annotations
 
-import importlib
 from typing import TYPE_CHECKING, Any
+
+from .lazy import attribute
 
 if TYPE_CHECKING:
     from . import backends
@@ -287,15 +288,9 @@ def _version() -> str:
 
 def __getattr__(name: str) -> Any:
     if name == "__version__":
-        value: Any = _version()
-    else:
-        where = _LAZY.get(name)
-        if where is None:
-            raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-        module = importlib.import_module(f"{__name__}.{where[0]}")
-        value = module if where[1] is None else getattr(module, where[1])
-    globals()[name] = value
-    return value
+        globals()[name] = _version()
+        return globals()[name]
+    return attribute(__name__, name, _LAZY, globals())
 
 
 def __dir__() -> list[str]:

@@ -14,10 +14,10 @@ release, with a :class:`DeprecationWarning`.
 
 from __future__ import annotations
 
-import importlib
 import warnings
 from typing import TYPE_CHECKING, Any
 
+from ..lazy import attribute
 from .atomic import atomic_file, atomic_files, atomic_folder
 
 if TYPE_CHECKING:
@@ -52,11 +52,8 @@ __all__ = [
 
 
 def __getattr__(name: str) -> Any:
-    module = _LAZY.get(name)
-    if module is not None:
-        value = getattr(importlib.import_module(f"{__name__}.{module}"), name)
-        globals()[name] = value
-        return value
+    if name in _LAZY:
+        return attribute(__name__, name, _LAZY, globals())
     from .. import statistics
 
     if name in statistics.__all__:

@@ -15,8 +15,9 @@ The names below are loaded on first use.
 
 from __future__ import annotations
 
-import importlib
 from typing import TYPE_CHECKING, Any
+
+from ..lazy import attribute
 
 if TYPE_CHECKING:
     from .balancing import Balanced, gras, ras
@@ -88,12 +89,7 @@ __all__ = [
 
 
 def __getattr__(name: str) -> Any:
-    module = _LAZY.get(name)
-    if module is None:
-        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-    value = getattr(importlib.import_module(f"{__name__}.{module}"), name)
-    globals()[name] = value
-    return value
+    return attribute(__name__, name, _LAZY, globals())
 
 
 def __dir__() -> list[str]:
