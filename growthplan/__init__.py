@@ -38,6 +38,7 @@ if TYPE_CHECKING:
     from .analysis.steady import BalancedGrowth
     from .backends import HighsBackend, PulpBackend, Status
     from .backends.highs import SlowMethodWarning
+    from .backends.options import SolveOptions
     from .demo import DEMO_DIR, copy_demo, demo_economy, demo_plan
     from .errors import (
         EndEffectsWarning,
@@ -153,6 +154,7 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "Sector": ("model.economy", "Sector"),
     "SerialExecutor": ("scenarios.sweep", "SerialExecutor"),
     "SlowMethodWarning": ("backends.highs", "SlowMethodWarning"),
+    "SolveOptions": ("backends.options", "SolveOptions"),
     "SolverFailure": ("errors", "SolverFailure"),
     "StartsCeiling": ("model.plan", "StartsCeiling"),
     "Status": ("backends", "Status"),
@@ -246,6 +248,7 @@ __all__ = [
     "Sector",
     "SerialExecutor",
     "SlowMethodWarning",
+    "SolveOptions",
     "SolverFailure",
     "StartsCeiling",
     "Status",
