@@ -35,11 +35,26 @@ if TYPE_CHECKING:
         wage_profit_frontier,
     )
     from .analysis.expanding import ExpandingEconomy, expanding_economy
+    from .analysis.footprint import (
+        balanced_emissions,
+        direct_intensities,
+        emissions_by_sector,
+        footprints,
+        total_intensities,
+    )
     from .analysis.steady import BalancedGrowth
     from .backends import HighsBackend, PulpBackend, Status
     from .backends.highs import SlowMethodWarning
     from .backends.options import SolveOptions
-    from .demo import DEMO_DIR, copy_demo, demo_economy, demo_plan
+    from .demo import (
+        DEMO_DIR,
+        copy_demo,
+        demo_climate_plan,
+        demo_economy,
+        demo_plan,
+        demo_regional_plan,
+        demo_regions,
+    )
     from .errors import (
         EndEffectsWarning,
         GrowthplanError,
@@ -67,10 +82,13 @@ if TYPE_CHECKING:
         TerminalGrowth,
         Trade,
     )
+    from .model.regions import Corridor, MultiRegionalEconomy, NationalTarget, Regions
+    from .model.satellite import Budget, Cap, Impact, IntensityCeiling, Satellite, Stressor
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
     from .results.charts import plot_compare, plot_fan, plot_probabilities, plot_wage_profit
+    from .scenarios.abatement import abatement_curve
     from .scenarios.revision import compare, read_actuals, revise
     from .scenarios.sweep import SerialExecutor, Sweep, sweep, variant
     from .scenarios.uncertainty import (
@@ -88,6 +106,7 @@ if TYPE_CHECKING:
         stress_test,
     )
     from .statistics.build import BuildReport, build_economy, economy_spec_schema, write_economy
+    from .statistics.satellite import read_satellite
     from .statistics.supply_use import SupplyUseTable, SymmetricTable
     from .statistics.tables import TransactionsTable, read_transactions
 
@@ -107,12 +126,15 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "CAUTION": ("results", "CAUTION"),
     "cheapest_techniques": ("analysis.choice", "cheapest_techniques"),
     "CheapestTechniques": ("analysis.choice", "CheapestTechniques"),
+    "Corridor": ("model.regions", "Corridor"),
     "compare": ("scenarios.revision", "compare"),
     "Consumption": ("model.plan", "Consumption"),
     "copy_demo": ("demo", "copy_demo"),
     "DEMO_DIR": ("demo", "DEMO_DIR"),
     "demo_economy": ("demo", "demo_economy"),
     "demo_plan": ("demo", "demo_plan"),
+    "demo_regional_plan": ("demo", "demo_regional_plan"),
+    "demo_regions": ("demo", "demo_regions"),
     "Diagnosis": ("results", "Diagnosis"),
     "Economy": ("model.economy", "Economy"),
     "economy_spec_schema": ("statistics.build", "economy_spec_schema"),
@@ -126,6 +148,8 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "InvalidInput": ("errors", "InvalidInput"),
     "LabourSupply": ("model.plan", "LabourSupply"),
     "LinearProgram": ("lp.program", "LinearProgram"),
+    "MultiRegionalEconomy": ("model.regions", "MultiRegionalEconomy"),
+    "NationalTarget": ("model.regions", "NationalTarget"),
     "load_plan_file": ("io.planfile", "load_plan_file"),
     "load_uncertainty": ("io.planfile", "load_uncertainty"),
     "LogNormal": ("scenarios.uncertainty", "LogNormal"),
@@ -146,6 +170,7 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "PulpBackend": ("backends", "PulpBackend"),
     "read_actuals": ("scenarios.revision", "read_actuals"),
     "read_transactions": ("statistics.tables", "read_transactions"),
+    "Regions": ("model.regions", "Regions"),
     "reoptimise": ("scenarios.uncertainty", "reoptimise"),
     "revise": ("scenarios.revision", "revise"),
     "robust_plan": ("scenarios.uncertainty", "robust_plan"),
@@ -166,6 +191,20 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "Target": ("model.plan", "Target"),
     "TechnicalChange": ("model.plan", "TechnicalChange"),
     "Technique": ("model.technique", "Technique"),
+    "Satellite": ("model.satellite", "Satellite"),
+    "Stressor": ("model.satellite", "Stressor"),
+    "Impact": ("model.satellite", "Impact"),
+    "Cap": ("model.satellite", "Cap"),
+    "Budget": ("model.satellite", "Budget"),
+    "IntensityCeiling": ("model.satellite", "IntensityCeiling"),
+    "read_satellite": ("statistics.satellite", "read_satellite"),
+    "abatement_curve": ("scenarios.abatement", "abatement_curve"),
+    "demo_climate_plan": ("demo", "demo_climate_plan"),
+    "direct_intensities": ("analysis.footprint", "direct_intensities"),
+    "total_intensities": ("analysis.footprint", "total_intensities"),
+    "footprints": ("analysis.footprint", "footprints"),
+    "emissions_by_sector": ("analysis.footprint", "emissions_by_sector"),
+    "balanced_emissions": ("analysis.footprint", "balanced_emissions"),
     "technique_arrays": ("model.technique", "technique_arrays"),
     "TerminalGrowth": ("model.plan", "TerminalGrowth"),
     "TinyCoefficientsWarning": ("errors", "TinyCoefficientsWarning"),
@@ -201,12 +240,15 @@ __all__ = [
     "CAUTION",
     "cheapest_techniques",
     "CheapestTechniques",
+    "Corridor",
     "compare",
     "Consumption",
     "copy_demo",
     "DEMO_DIR",
     "demo_economy",
     "demo_plan",
+    "demo_regional_plan",
+    "demo_regions",
     "Diagnosis",
     "Economy",
     "economy_spec_schema",
@@ -220,6 +262,8 @@ __all__ = [
     "InvalidInput",
     "LabourSupply",
     "LinearProgram",
+    "MultiRegionalEconomy",
+    "NationalTarget",
     "load_plan_file",
     "load_uncertainty",
     "LogNormal",
@@ -240,6 +284,7 @@ __all__ = [
     "PulpBackend",
     "read_actuals",
     "read_transactions",
+    "Regions",
     "reoptimise",
     "revise",
     "robust_plan",
@@ -260,6 +305,20 @@ __all__ = [
     "Target",
     "TechnicalChange",
     "Technique",
+    "Satellite",
+    "Stressor",
+    "Impact",
+    "Cap",
+    "Budget",
+    "IntensityCeiling",
+    "read_satellite",
+    "abatement_curve",
+    "demo_climate_plan",
+    "direct_intensities",
+    "total_intensities",
+    "footprints",
+    "emissions_by_sector",
+    "balanced_emissions",
     "technique_arrays",
     "TerminalGrowth",
     "TinyCoefficientsWarning",

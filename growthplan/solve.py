@@ -25,8 +25,8 @@ import numpy as np
 from .backends.base import FAILED, Backend, Feature, RayBackend, SolverOutcome, Status
 from .backends.options import SolveOptions, default_backend, highs_backend
 from .backends.pulp import PulpBackend, to_pulp
-from .errors import EndEffectsWarning, InvalidInput
-from .lp.build import SIZE_LIMIT, build, guard_size
+from .errors import EndEffectsWarning, InvalidInput, invalid
+from .lp.build import FORMULATIONS, SIZE_LIMIT, build, estimate_size, guard_size
 from .lp.data import lower, terminal_proportions
 from .lp.program import LinearProgram
 from .results.audit import audit
@@ -44,10 +44,39 @@ END_EFFECTS = ("No terminal condition: investment in the last years only serves 
                "terminal=TerminalGrowth(rate=...) to value the years after the plan.")
 
 
-def program(plan: Plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
+def _check_formulation(formulation: Any, *, auto: bool = True) -> str:
+    allowed = (("auto",) if auto else ()) + FORMULATIONS
+    if formulation not in allowed:
+        raise invalid("formulation", f"be one of {', '.join(allowed)}", formulation)
+    return str(formulation)
+
+
+def program(plan: Plan, *, size_limit: int | None = SIZE_LIMIT,
+            formulation: str = "expression") -> LinearProgram:
     """The plan's LP (size guarded; the plan is lowered once and the arrays cached)."""
     guard_size(plan, size_limit)
-    return build(plan.lowered())
+    return build(plan.lowered(), formulation=_check_formulation(formulation, auto=False))
+
+
+def formulation_for(d: Any, backend: Any, formulation: str = "auto") -> tuple[str, str]:
+    """The capacity formulation a back end will solve a lowered plan in, and why.
+
+    A back end with a ``rule`` (HiGHS) decides from the plan's size
+    (:func:`growthplan.backends.methods.choose`); any other gets the
+    expression form unless told.
+
+    Returns
+    -------
+    (formulation, description) : the formulation and the rule in words
+    """
+    rule_of = getattr(backend, "rule", None)
+    if rule_of is None:
+        if formulation == "auto":
+            formulation = getattr(backend, "formulation", "auto")
+        form = "expression" if formulation == "auto" else formulation
+        return form, f"{form} form"
+    rule = rule_of(int(estimate_size(d)["nonzeros"]), formulation)
+    return rule.formulation, rule.describe()
 
 
 def run(lp: LinearProgram, backend: Backend, *, stop: Any = None, callback: Any = None
@@ -107,8 +136,8 @@ def solve(plan: Plan, *, backend: Backend | None = None, method: str = "auto",
           time_limit: float | None = None, threads: int | None = None,
           tolerance: float | None = None, audit_tolerance: float = 1e-6,
           options: dict[str, Any] | None = None, progress: bool = False, stop: Any = None,
-          size_limit: int | None = SIZE_LIMIT, solver: SolveOptions | None = None
-          ) -> PlanResult:
+          size_limit: int | None = SIZE_LIMIT, formulation: str = "auto",
+          solver: SolveOptions | None = None) -> PlanResult:
     """Solve a plan on a back end (default HiGHS) and audit the result.
 
     See :meth:`growthplan.Plan.solve` for the parameters; the settings are
@@ -123,10 +152,11 @@ def solve(plan: Plan, *, backend: Backend | None = None, method: str = "auto",
                                audit_tolerance=audit_tolerance, options=options)
     tol = settings.audit_tolerance
     be = default_backend(settings)
+    form = _check_formulation(formulation)
     search = plan.objective.horizon_search()
     if search is not None:
-        return _fastest(plan, be, search.max_years, tol, progress, stop, size_limit)
-    return _fixed(plan, be, tol, progress, stop, size_limit)
+        return _fastest(plan, be, search.max_years, tol, progress, stop, size_limit, form)
+    return _fixed(plan, be, tol, progress, stop, size_limit, formulation=form)
 
 
 def solve_pulp(plan: Plan, solver: Any = None, *, problem: Any = None,
@@ -141,15 +171,16 @@ def solve_pulp(plan: Plan, solver: Any = None, *, problem: Any = None,
 
 
 def _fixed(plan: Plan, backend: Backend, tol: float, progress: bool, stop: Any,
-           size_limit: int | None, data: Any = None) -> PlanResult:
+           size_limit: int | None, data: Any = None, formulation: str = "auto") -> PlanResult:
     from .progress import solve_progress
 
     t0 = time.perf_counter()
     guard_size(plan, size_limit)
     d = data if data is not None else plan.lowered()
-    lp = build(d)
+    form, words = formulation_for(d, backend, formulation)
+    lp = build(d, formulation=form)
     t1 = time.perf_counter()
-    with solve_progress(progress, f"{d.n} sectors × {d.T} years") as cb:
+    with solve_progress(progress, f"{d.n} sectors × {d.T} years, {words}") as cb:
         final_lp, outcome = optimise(lp, backend, stop=stop, callback=cb)
     timings = {"validate": plan.validation_seconds(), "compile": t1 - t0}
     return _finish(plan, lp, final_lp, outcome, backend, tol, timings, stop)
@@ -255,7 +286,7 @@ def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: Sol
 
 
 def _fastest(plan: Plan, backend: Backend, max_years: int, tol: float, progress: bool,
-             stop: Any, size_limit: int | None) -> PlanResult:
+             stop: Any, size_limit: int | None, formulation: str = "auto") -> PlanResult:
     """Bisection over horizons, each a feasibility LP (no objective).
 
     A horizon counts as feasible when its LP solves; any other verdict is
@@ -275,7 +306,7 @@ def _fastest(plan: Plan, backend: Backend, max_years: int, tol: float, progress:
 
     def feasible(years: int) -> bool:
         _, d = lowered(years)
-        probe = build(d, objective=False)
+        probe = build(d, objective=False, formulation=formulation_for(d, backend, formulation)[0])
         out = run(probe, backend, stop=stop)
         if out.status is Status.OPTIMAL:
             tried[years] = Status.OPTIMAL.value
@@ -291,7 +322,8 @@ def _fastest(plan: Plan, backend: Backend, max_years: int, tol: float, progress:
         sub, d = lowered(years)
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", EndEffectsWarning)
-            result = _fixed(sub, backend, tol, progress, stop, size_limit, data=d)
+            result = _fixed(sub, backend, tol, progress, stop, size_limit, data=d,
+                            formulation=formulation)
         if sub.terminal is None and result.ok:
             warnings.warn(END_EFFECTS, EndEffectsWarning, stacklevel=4)
         result.horizons = dict(sorted(tried.items()))

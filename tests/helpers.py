@@ -2,11 +2,17 @@
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import numpy as np
 
 import growthplan as gp
 
-__all__ = ["economy", "make_plan", "rescale", "two_sector", "random_plan"]
+__all__ = ["economy", "make_plan", "rescale", "two_sector", "random_plan", "regional_economy",
+           "bea_tables", "bea_spec", "bea_economy", "bea_plan", "BEA_SIZES"]
+
+BEA_SIZES = (15, 71)
+"""Industries of the published BEA 2021 supply and use tables the tests read."""
 
 
 def economy(n: int, seed: int = 1) -> gp.Economy:
@@ -122,6 +128,112 @@ def switch_plan() -> gp.Plan:
                    labour=gp.LabourSupply(start=150, growth=0.05),
                    techniques=[gp.Technique(sector="goods", label="saving", labour=0.5,
                                             capital={"goods": 0.45})])
+
+
+def bea_tables(size: int) -> tuple[Path, Path] | None:
+    """The BEA 2021 supply ("make") and use tables of ``size`` industries, or None.
+
+    Public-domain tables of the United States Bureau of Economic Analysis, as
+    shipped in the registry package ``quantecon-book-networks`` (a test
+    dependency); None when it is not installed.
+    """
+    from importlib.resources import files
+
+    try:
+        root = files("quantecon_book_networks") / "data" / "csv_files"
+    except ModuleNotFoundError:
+        return None
+    supply, use = root / f"make_{size}.csv", root / f"use_{size}.csv"
+    if not (supply.is_file() and use.is_file()):
+        return None
+    return Path(str(supply)), Path(str(use))
+
+
+def bea_spec(folder: Path, size: int, *, capital: str = "{capital_output_ratio: 3.0}",
+             extra: str = "") -> Path:
+    """An economy spec in ``folder`` for the BEA tables: one line of capital, one of labour.
+
+    The tables are copied beside it (specs read tables in their own folder).
+    """
+    found = bea_tables(size)
+    assert found is not None, "quantecon-book-networks is not installed"
+    folder.mkdir(parents=True, exist_ok=True)
+    for src in found:
+        (folder / src.name).write_bytes(src.read_bytes())
+    spec = folder / "economy.yaml"
+    spec.write_text(
+        "layout_version: 1\n"
+        "value_unit: million dollars at 2021 prices\n"
+        "base_year: 2021\n"
+        f"published: {{supply: make_{size}.csv, use: use_{size}.csv}}\n"
+        f"capital: {capital}\n"
+        "labour: {wage: 75, unit: thousand person-years}   # $75,000 a person-year\n"
+        + extra, encoding="utf-8")
+    return spec
+
+
+def bea_economy(size: int, **options: object) -> tuple[gp.Economy, object]:
+    """The economy built from the BEA tables of ``size`` industries, and its report.
+
+    Capital–output ratio 3 on value added, 20-year lives, labour from
+    compensation at $75,000 a person-year; ``options`` go to
+    :func:`growthplan.statistics.published.published_economy`.
+    """
+    from growthplan.statistics.published import PublishedTables, published_economy
+
+    found = bea_tables(size)
+    assert found is not None, "quantecon-book-networks is not installed"
+    kwargs: dict[str, object] = {"value_unit": "million dollars at 2021 prices",
+                                 "capital_output_ratio": 3.0, "wage": 75.0}
+    kwargs.update(options)
+    return published_economy(PublishedTables.read(*found), **kwargs)  # type: ignore[arg-type]
+
+
+def bea_plan(size: int, years: int = 30, *, floor_factor: float = 1.0,
+             labour_factor: float = 1.0) -> gp.Plan:
+    """A plan of the BEA economy: the plan skeleton ``economy build --plan`` writes.
+
+    ``floor_factor`` and ``labour_factor`` scale the consumption floor and the
+    labour supply (a floor far above the skeleton's, or labour far below the
+    base year's use, makes the plan impossible).
+    """
+    from growthplan.statistics.skeleton import plan_skeleton
+
+    econ, report = bea_economy(size)
+    sk = plan_skeleton(econ, base_year=2021, years=years,
+                       other_demand=report.other_demand().to_numpy(),  # type: ignore[attr-defined]
+                       base_consumption=report.base_consumption())  # type: ignore[attr-defined]
+    sec = sk.section
+    return gp.Plan(economy=econ, years=range(2022, 2022 + years),
+                   labour=[gp.LabourSupply(kind=lab["kind"], start=lab["start"] * labour_factor,
+                                           growth=lab["growth"]) for lab in sec["labour"]],
+                   consumption=gp.Consumption(floor=sec["consumption"]["floor"] * floor_factor,
+                                              max_fall=0.0),
+                   final_demand=sec.get("final_demand"),
+                   terminal=gp.TerminalGrowth(rate=sec["terminal"]["rate"]),
+                   objective=gp.objectives.TerminalCapacity())
+
+
+def regional_economy(regions: list[str], n: int, seed: int = 1, *,
+                     identical: bool = False) -> gp.MultiRegionalEconomy:
+    """Dense random regions sharing ``n`` sectors (the last one, "haul", carries shipments).
+
+    With ``identical`` every region has the same coefficients and capital.
+    """
+    names = [f"s{i}" for i in range(n - 1)] + ["haul"]
+    econs = {}
+    for k, r in enumerate(regions):
+        rng = np.random.default_rng(seed if identical else seed + k)
+        a = rng.uniform(0, 1, (n, n))
+        a *= 0.5 / a.sum(axis=0).max()
+        b = rng.uniform(0, 1, (n, n))
+        b *= 2.0 / b.sum(axis=0).max()
+        cap = {s: gp.CapitalSpec(initial_capacity=float(rng.uniform(50, 150)),
+                                 mean_service_life=20.0) for s in names}
+        econs[r] = gp.Economy(sectors=names, input_coefficients=a, capital_coefficients=b,
+                              labour_coefficients=[rng.uniform(0.1, 1.0, n)], capital=cap,
+                              consumption_basket=rng.uniform(0.1, 1.0, n))
+    return gp.MultiRegionalEconomy.from_regions(econs)
 
 
 def check_family(plan: gp.Plan, name: str, spoil, kind: str) -> dict:

@@ -71,6 +71,9 @@ def test_solver_failure_exit_code(folder):
 def test_check_and_schema(folder):
     res = run("check", folder / "plan.yaml")
     assert res.exit_code == 0 and "valid" in res.output and "productive" in res.output
+    # the solver line states the rule auto follows: formulation, method and why
+    solver = [ln for ln in res.output.splitlines() if ln.strip().startswith("solver:")]
+    assert len(solver) == 1 and "form, " in solver[0] and "nonzeros" in solver[0], res.output
     res = run("schema")
     assert res.exit_code == 0 and '"economy"' in res.output
 
@@ -204,7 +207,8 @@ def test_time_limit_zero_is_refused(installed):
 
 
 def test_method_help_lists_exactly_the_methods_accepted(folder):
-    from growthplan.backends.highs import METHODS
+    from growthplan.backends.highs import METHODS, hipo_available
+    from growthplan.backends.methods import EXTRA_METHODS
 
     help_text = " ".join(run("solve", "--help").output.split())
     listed = help_text.split("HiGHS method: ", 1)[1].split(" (default")[0]
@@ -212,6 +216,9 @@ def test_method_help_lists_exactly_the_methods_accepted(folder):
     for method in listed.split(", "):  # each is taken: a time limit too small stops it
         res = run("solve", folder / "plan.yaml", "--no-progress", "--method", method,
                   "--time-limit", "1e-9")
+        if method in EXTRA_METHODS and not hipo_available():  # refused, saying what to install
+            one_line(res.exit_code, res.stderr, 2, "solve.method", "growthplan[hipo]")
+            continue
         assert res.exit_code in (0, 3) and "--method" not in res.stderr, res.output
     res = run("solve", folder / "plan.yaml", "--method", "fastest")
     one_line(res.exit_code, res.stderr, 2, "--method", "fastest")

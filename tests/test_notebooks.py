@@ -13,7 +13,8 @@ NOTEBOOKS = sorted((Path(__file__).resolve().parent.parent / "notebooks").glob("
 
 
 def test_the_notebooks_are_there():
-    assert [p.stem for p in NOTEBOOKS] == ["impossible_targets", "quickstart", "scenario_sweep",
+    assert [p.stem for p in NOTEBOOKS] == ["climate_plan", "impossible_targets", "quickstart",
+                                           "regions", "scenario_sweep",
                                            "supply_use_to_plan", "techniques",
                                            "uncertainty_and_revision"]
 

@@ -18,7 +18,7 @@ from typing import Any
 import highspy
 import numpy as np
 
-from ..errors import GrowthplanWarning, SolverFailure, invalid
+from ..errors import GrowthplanWarning, InvalidInput, SolverFailure, invalid
 from ..lp.program import LinearProgram
 from .base import Backend, Feature, SolverOutcome, Status
 from .certificate import (
@@ -30,10 +30,18 @@ from .certificate import (
     scaled,
     valid_ray,
 )
-from .methods import AUTO_IPM_NONZEROS, METHODS, SLOW_METHOD_NONZEROS, SLOW_METHODS
+from .methods import (
+    AUTO_IPM_NONZEROS,
+    HIPO_INSTALL,
+    METHODS,
+    SLOW_METHOD_NONZEROS,
+    SLOW_METHODS,
+    Rule,
+    choose,
+)
 
 __all__ = ["HighsBackend", "STATUS_TABLE", "METHODS", "choose_method", "highs_version",
-           "AUTO_IPM_NONZEROS", "SLOW_METHOD_NONZEROS", "SlowMethodWarning"]
+           "AUTO_IPM_NONZEROS", "SLOW_METHOD_NONZEROS", "SlowMethodWarning", "hipo_available"]
 
 _MS = highspy.HighsModelStatus
 STATUS_TABLE: dict[object, Status] = {
@@ -73,8 +81,19 @@ class SlowMethodWarning(GrowthplanWarning):
     """
 
 
+@functools.cache
+def hipo_available() -> bool:
+    """Whether this HiGHS has HiPO (highspy-extras of the same version installed).
+
+    Asked once per process: the plain highspy wheel refuses ``solver="hipo"``.
+    """
+    h = _new_highs(_STATE["threads"])
+    h.setOptionValue("output_flag", False)
+    return bool(h.setOptionValue("solver", "hipo") == highspy.HighsStatus.kOk)
+
+
 def choose_method(nonzeros: int) -> str:
-    """HiGHS method for a plan with this many nonzeros.
+    """HiGHS method for a plan with this many nonzeros (``choose``'s, on this install).
 
     Multi-year plans have dense input and capital blocks repeated over years;
     on them the interior point method without crossover was many times faster
@@ -85,7 +104,7 @@ def choose_method(nonzeros: int) -> str:
     at 10 × 10 (2,760 nonzeros), 0.71 at 10 × 12 (3,430), 1.09 at 12 × 10
     (3,792), 1.00–1.46 at 10 × 15 (4,510), 2.2 at 15 × 15 and 15 at 25 × 20.
     """
-    return "ipm" if nonzeros > AUTO_IPM_NONZEROS else "simplex"
+    return choose(nonzeros, hipo=hipo_available()).method
 
 
 _LOCK = threading.Lock()
@@ -193,8 +212,9 @@ class HighsBackend:
 
     Parameters
     ----------
-    method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "highs-default"}
-        ``"auto"`` picks by problem size (:func:`choose_method`).
+    method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "highs-default", "hipo"}
+        ``"auto"`` picks by problem size (:func:`~growthplan.backends.methods.choose`);
+        ``"hipo"`` needs the ``hipo`` extra (refused with the line to install it).
     time_limit : float, optional
         Seconds per solve.
     threads : int, optional
@@ -210,6 +230,9 @@ class HighsBackend:
         optimum that the unscaled duals do not certify is solved again unscaled.
     presolve : bool, default True
         Let HiGHS presolve the LP.
+    formulation : {"auto", "expression", "state"}
+        How capacity in service is written in the LP; ``"auto"`` goes with the
+        method (:func:`growthplan.backends.methods.choose`).
     """
 
     name = "highs"
@@ -219,14 +242,23 @@ class HighsBackend:
     def __init__(self, method: str = "auto", *, time_limit: float | None = None,
                  threads: int | None = None, tolerance: float | None = None,
                  options: dict[str, Any] | None = None, scale: bool | str = "auto",
-                 presolve: bool = True) -> None:
+                 presolve: bool = True, formulation: str = "auto") -> None:
         from .options import SolveOptions
 
         # the settings are checked where every solve's are (plan files and the command line too)
         opts = SolveOptions.of(method=method, time_limit=time_limit, threads=threads,
                                tolerance=tolerance, options=options)
+        if opts.method == "hipo" and not hipo_available():
+            raise InvalidInput(
+                f"method must be one this HiGHS provides: 'hipo' needs HiGHS's HiPO, which "
+                f"the plain highspy wheel lacks. Got 'hipo'. Install it with {HIPO_INSTALL} "
+                f"(highspy and highspy-extras of the same version; this is HiGHS "
+                f"{highs_version()}), or use method='ipm'.", field="method")
         if scale not in ("auto", True, False):
             raise invalid("scale", "be 'auto', True or False", scale)
+        if formulation not in ("auto", "expression", "state"):
+            raise invalid("formulation", "be one of auto, expression, state", formulation)
+        self.formulation = formulation
         self.method = opts.method
         self.time_limit = opts.time_limit
         self.threads = opts.threads
@@ -239,10 +271,37 @@ class HighsBackend:
     def __repr__(self) -> str:
         return f"HighsBackend(method={self.method!r})"
 
+    @staticmethod
+    def hipo_available() -> bool:
+        """Whether HiPO is installed (:func:`hipo_available`).
+
+        Returns
+        -------
+        bool
+        """
+        return hipo_available()
+
+    def rule(self, nonzeros: int, formulation: str = "auto") -> Rule:
+        """The formulation, method and options this back end uses for an LP of this size.
+
+        Parameters
+        ----------
+        nonzeros : int
+            The LP's nonzeros (the expression form's, before it is built).
+        formulation : {"auto", "expression", "state"}
+
+        Returns
+        -------
+        Rule
+            See :func:`growthplan.backends.methods.choose`.
+        """
+        return choose(nonzeros, hipo=hipo_available(), method=self.method,
+                      formulation=self.formulation if formulation == "auto" else formulation)
+
     def _variant(self, **changes: Any) -> HighsBackend:
         kw: dict[str, Any] = {"time_limit": self.time_limit, "threads": self.threads,
               "tolerance": self.tolerance, "options": self.options, "scale": self.scale,
-              "presolve": self.presolve}
+              "presolve": self.presolve, "formulation": self.formulation}
         method = changes.pop("method", self.method)
         kw.update(changes)
         variant = HighsBackend(method, **kw)
@@ -257,7 +316,10 @@ class HighsBackend:
         list of Backend
             Copies of this back end with the other method, scaling on.
         """
-        other = "simplex" if self.method in ("ipm", "ipm-crossover", "pdlp", "auto") else "ipm"
+        # HiPO's stand-in is the other interior point (simplex takes far longer on the
+        # large plans HiPO is chosen for); the others stand in for each other
+        other = "ipm" if self.method == "hipo" else \
+            "simplex" if self.method in ("ipm", "ipm-crossover", "pdlp", "auto") else "ipm"
         out: list[Backend] = [self._variant(method=other, scale=True)]
         if other != "simplex" or self.method == "auto":
             out.append(self._variant(method="simplex", scale=True, presolve=False))
@@ -340,11 +402,13 @@ class HighsBackend:
                 out.message += " (no valid unbounded ray: not confirmed)"
         return out
 
-    def _highs(self, method: str, callback: Any, stop: Any) -> tuple[highspy.Highs, dict[str, Any]]:
+    def _highs(self, rule: Rule, callback: Any, stop: Any
+               ) -> tuple[highspy.Highs, dict[str, Any]]:
         h = _new_highs(self.threads)
         chosen: dict[str, object] = {"output_flag": callback is not None,
                                      "log_to_console": False, "random_seed": 0}
-        chosen.update(METHODS[method])
+        chosen.update(METHODS[rule.method])
+        chosen.update(rule.options)
         if not self.presolve:
             chosen["presolve"] = "off"
         if self.time_limit is not None:
@@ -372,8 +436,9 @@ class HighsBackend:
 
     def _once(self, lp: LinearProgram, stop: Any, callback: Any, *,
               scale: bool) -> SolverOutcome:
-        method = choose_method(lp.nnz) if self.method == "auto" else self.method
-        h, chosen = self._highs(method, callback, stop)
+        rule = self.rule(lp.nnz, lp.formulation)
+        method = rule.method
+        h, chosen = self._highs(rule, callback, stop)
         r = c = None
         t_start = time.perf_counter()
         try:

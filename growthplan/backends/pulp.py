@@ -16,6 +16,8 @@ from typing import Any
 
 import numpy as np
 
+from ..errors import invalid
+from ..lp.conditions import FORMULATIONS
 from ..lp.program import LinearProgram
 from .base import Backend, Feature, SolverOutcome, Status
 from .certificate import optimality_gap
@@ -112,13 +114,20 @@ class PulpBackend:
     gap_tolerance : float, default 1e-6
         Largest relative duality gap of a believed optimum; checked only when
         the problem holds no constraints of the user's own.
+    formulation : {"auto", "expression", "state"}
+        How capacity in service is written in the LP (``"auto"``: the
+        expression form; :mod:`growthplan.lp.build`).
     """
 
     name = "pulp"
     features: frozenset[Feature] = frozenset({Feature.DUALS})
 
     def __init__(self, solver: Any = None, *, problem: Any = None,
-                 gap_tolerance: float = 1e-6) -> None:
+                 gap_tolerance: float = 1e-6, formulation: str = "auto") -> None:
+        if formulation not in ("auto", *FORMULATIONS):
+            raise invalid("formulation", f"be one of auto, {', '.join(FORMULATIONS)}",
+                          formulation)
+        self.formulation = formulation
         self.solver = solver
         self.problem = problem
         self.gap_tolerance = gap_tolerance

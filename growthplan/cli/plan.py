@@ -109,7 +109,11 @@ def check(plan_file: Path) -> None:
     chosen = _solver_options(opts, None, None)
     _needs_capital(plan)
     econ = plan.economy
-    lp = plan.compile()  # the size guard and the build the solve runs first
+    from ..backends.options import SolveOptions, highs_backend
+    from ..solve import formulation_for
+
+    form, rule = formulation_for(plan.lowered(), highs_backend(SolveOptions.of(**chosen)))
+    lp = plan.compile(formulation=form)  # the size guard and the build the solve runs first
     click.echo(f"{plan_file}: valid")
     click.echo(f"  {_plural(econ.n, 'sector')}, years {plan.years[0]}–{plan.years[-1]}, "
                f"{_plural(len(plan.targets), 'target')}, objective "
@@ -118,6 +122,7 @@ def check(plan_file: Path) -> None:
                "(productive)")
     click.echo(f"  LP: {_plural(lp.shape[0], 'row')}, {_plural(lp.shape[1], 'column')}, "
                f"{_plural(lp.nnz, 'nonzero')}")
+    click.echo(f"  solver: {rule}")
 
 
 @main.command(help="Print the steady-state figures of an economy given as tables: the "

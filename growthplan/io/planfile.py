@@ -56,7 +56,7 @@ from yaml.events import AliasEvent
 from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 
 from ..backends.options import SolveOptions
-from ..errors import InvalidInput, invalid, show
+from ..errors import InvalidInput, invalid, show, suggest
 from ..model.economy import Economy, Sector
 from ..model.plan import Plan
 from ..model.validation import Model, Rule
@@ -113,6 +113,9 @@ class EconomyTables(Model):
         The unit values are measured in (e.g. million arvens at 2026 prices).
     labour_units : list of str, optional
         The unit of each labour kind, in the order of the labour rows.
+    labour_kinds : list of str, optional
+        The labour kinds the tables hold, in the order of their labour rows
+        (checked against the tables).
     units : dict of str to str, optional
         Physical unit of each sector's output, by sector.
     prices : dict of str to float, optional
@@ -143,6 +146,7 @@ class EconomyTables(Model):
     wage_basket: dict[str, float] | None = None
     value_unit: str | None = None
     labour_units: list[str] | None = None
+    labour_kinds: list[str] | None = None
     units: dict[str, str] | None = None
     prices: dict[str, float] | None = None
     base_output: dict[str, float] | None = None
@@ -162,6 +166,10 @@ def with_units(econ: Economy, tables: EconomyTables) -> Economy:
     -------
     Economy
     """
+    if tables.labour_kinds is not None and list(tables.labour_kinds) != [
+            str(k) for k in econ.labour_kinds or []]:
+        raise invalid("economy.labour_kinds", "name the labour rows of the tables, in their "
+                      f"order {econ.labour_kinds or []}", tables.labour_kinds)
     if not (tables.value_unit or tables.labour_units or tables.units or tables.prices
             or tables.base_output):
         return econ
@@ -238,13 +246,13 @@ def plan_file_schema() -> dict[str, Any]:
     defs["PlanSection"] = plan_schema
     schema["properties"]["plan"] = {"$ref": "#/$defs/PlanSection"}
     _as_loaded(plan_schema["properties"], defs)
-    from ..model import objectives, technique
+    from ..model import objectives, regions, satellite, technique
     from ..model import plan as plan_module
     from ..scenarios import uncertainty
     from .schema import describe
 
     classes: dict[str, type] = {name: c for module in (plan_module, objectives, technique,
-                                                       uncertainty)
+                                                       uncertainty, satellite, regions)
                                 for name, c in vars(module).items()
                                 if isinstance(c, type) and issubclass(c, Model)}
     classes.update({"": PlanFile, "PlanSection": Plan, "EconomyTables": EconomyTables,
@@ -267,6 +275,25 @@ def _as_loaded(plan: dict[str, Any], defs: dict[str, Any]) -> None:
                         "last": {**year, "description": "The last plan year."}}}]}
     supply = {"$ref": "#/$defs/LabourSupply"}
     plan["labour"] = {"anyOf": [supply, {"type": "array", "items": supply}]}
+    sat_table = {"type": "object", "additionalProperties": False, "required": ["table", "units"],
+                 "description": "Satellite accounts read from a table (wide or long layout).",
+                 "properties": {
+                     "table": {"description": "The table's file (wide layout: stressors as "
+                               "rows, sectors or techniques as columns), or a table layout "
+                               "mapping for the long layout."},
+                     "units": {"type": "object", "description": "The unit of every "
+                               "stressor in the table."},
+                     "flows": {"type": "boolean", "description": "True when the table holds "
+                               "base-year flows, divided by the base-year output."},
+                     "households": {"type": "object", "description": "Direct amounts per "
+                                    "unit of the consumption level, by stressor."},
+                     "impacts": {"type": "array", "items": {"$ref": "#/$defs/Impact"},
+                                 "description": "The characterisation of the stressors."},
+                     "resources": {"type": "array", "items": {"type": "string"},
+                                   "description": "Stressors that are resources used."}}}
+    if "satellite" in plan:
+        plan["satellite"] = {"anyOf": [{"$ref": "#/$defs/Satellite"}, sat_table,
+                                       {"type": "null"}]}
     from ..backends.methods import METHODS
 
     defs["SolveOptions"]["properties"]["method"]["enum"] = ["auto", *METHODS]
@@ -607,6 +634,12 @@ def load_plan_file(path: str | os.PathLike[str], *,
         if str(exc).startswith(str(path)):
             raise
         raise InvalidInput(f"{path}: economy tables: {exc}", field=exc.field) from None
+    sat = fields.get("satellite")
+    if isinstance(sat, dict) and "table" in sat:
+        try:
+            fields["satellite"] = _satellite_table(sat, econ, base, allow_outside)
+        except InvalidInput as exc:
+            raise _located(exc, path, node, ["plan", "satellite"]) from None
     try:
         plan = Plan(economy=econ, **fields)
     except InvalidInput as exc:
@@ -619,6 +652,52 @@ def load_plan_file(path: str | os.PathLike[str], *,
         except InvalidInput as exc:
             raise _located(exc, path, node, ["uncertainty"]) from None
     return plan, spec.solve
+
+
+SATELLITE_TABLE_KEYS = {"table", "units", "flows", "households", "impacts", "resources"}
+
+
+def _satellite_table(section: dict[str, Any], econ: Economy, base: Path,
+                     allow_outside: bool) -> Any:
+    """The ``satellite`` section given as a table: ``table`` (a file name, or a layout
+    mapping for the long layout), ``units`` by stressor, ``flows: true`` when the table
+    holds base-year flows (divided by the economy's base-year output), ``households``,
+    ``impacts`` and ``resources``."""
+    from ..model.satellite import Impact
+    from ..statistics.layouts import TableLayout
+    from ..statistics.satellite import read_satellite
+
+    unknown = sorted(set(section) - SATELLITE_TABLE_KEYS)
+    if unknown:
+        raise invalid(f"satellite.{unknown[0]}", "be one of "
+                      f"{', '.join(sorted(SATELLITE_TABLE_KEYS))}", unknown[0],
+                      hint=suggest(unknown[0], sorted(SATELLITE_TABLE_KEYS), sentence=True))
+    table = section["table"]
+    layout = TableLayout.model_validate(table if isinstance(table, dict)
+                                        else {"file": str(table)})
+    target = (base / layout.file)
+    if not allow_outside:
+        try:
+            resolved, root = target.resolve(), base.resolve()
+        except (OSError, RuntimeError) as exc:
+            raise invalid("satellite.table", "name a reachable table file", layout.file,
+                          hint=f"({exc})") from None
+        if resolved != root and root not in resolved.parents:
+            raise invalid("satellite.table", "name a table in the plan file's folder or "
+                          "below it", layout.file)
+    output = None
+    if section.get("flows"):
+        if econ.base_output is None:
+            raise invalid("satellite.flows", "come with the economy's base-year output "
+                          "(flows tables carry it)", True)
+        output = dict(zip(econ.names, econ.base_output, strict=True))
+    units = section.get("units")
+    if not isinstance(units, dict):
+        raise invalid("satellite.units", "map every stressor of the table to its unit", units)
+    impacts = [Impact.model_validate(i) for i in section.get("impacts") or []]
+    return read_satellite(layout, units=units, output=output,
+                          households=section.get("households"), impacts=impacts,
+                          resources=section.get("resources"), base=base)
 
 
 def load_uncertainty(path: str | os.PathLike[str]) -> UncertaintySpec | None:
@@ -673,6 +752,13 @@ def plan_file_inputs(path: str | os.PathLike[str]) -> list[Path]:
     except InvalidInput as exc:
         raise _located(exc, path, node, ["economy"]) from None
     names = [getattr(tables, f) for f in _TABLE_FIELDS]
+    sat = (data.get("plan") or {}).get("satellite") if isinstance(data.get("plan"), dict) \
+        else None
+    if isinstance(sat, dict) and isinstance(sat.get("table"), str | dict):
+        table = sat["table"]
+        name = table.get("file") if isinstance(table, dict) else table
+        if isinstance(name, str):
+            names.append(name)
     return [path, *(path.parent / n for n in names if n is not None)]
 
 
@@ -718,12 +804,14 @@ def _compact(value: Any) -> Any:
     from pydantic import BaseModel
 
     from ..model.objectives import Objective
+    from ..model.satellite import Budget, Cap, IntensityCeiling
 
     if isinstance(value, BaseModel):
         out = {}
         for name, info in type(value).model_fields.items():
             v = getattr(value, name)
-            keep = name == "kind" and isinstance(value, Objective)  # the tag is never implied
+            keep = name == "kind" and isinstance(value, Objective | Cap | Budget
+                                                 | IntensityCeiling)  # the tag is never implied
             if keep or not _is_default(v, info):
                 out[name] = _compact(v)
         return out

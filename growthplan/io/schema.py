@@ -39,6 +39,9 @@ _EXTRA = {
         "then": "The objective the shortest feasible plan is solved with (default "
                 "terminal_capacity).",
     },
+    "Cap": {"kind": "Always cap: a yearly ceiling (or a falling path)."},
+    "Budget": {"kind": "Always budget: a cumulative budget over the plan or a window."},
+    "IntensityCeiling": {"kind": "Always intensity: a ceiling per unit of GDP."},
     "Objective": {
         "kind": "Which objective: terminal_capacity, discounted_consumption, least_labour, "
                 "least_foreign_exchange, weighted, lexicographic or fastest.",

@@ -3,14 +3,23 @@
 Columns (the decisions) are laid out here; rows come from the condition
 families in :mod:`growthplan.lp.conditions`, each a whole sparse block.
 
-Capacity in service is written as a linear expression in past starts,
-``C_jt = base_jt + Σ_τ S_j(t − τ − θ_j) z_jτ`` (``base``: capacity from before
-the plan), not as state variables: the expression form holds for every
-retirement profile (a state recursion exists only for the geometric one) and
-adds no rows or columns. Measured against the state form on the same plans
-(``tests/benchmarks/bench_capacity_form.py``, geometric retirement) the state
-form took 1.02–1.14 times as long with interior point and 1.04–1.95 times
-with simplex at 30×20 and 60×25.
+Capacity in service has two formulations (``formulation=``):
+
+- ``"expression"`` (the default): a linear expression in past starts,
+  ``C_jt = base_jt + Σ_τ S_j(t − τ − θ_j) z_jτ`` (``base``: capacity from
+  before the plan). No rows or columns of its own, but each start appears in
+  every later capacity row, so an interior point's normal matrix is dense
+  across years.
+- ``"state"``: the new capacity ``K = G z`` gets columns of its own, carried
+  from year to year by one row per year and technique
+  (:class:`~growthplan.lp.conditions.capacity.CapacityStock`, exact for every
+  retirement profile). More rows, but banded in years: a factorising
+  interior point (HiPO) exploits it, IPX and simplex do not.
+
+Both give the same optimum, the same schedules and the same rows with the same
+bounds (so the same shadow prices); the state form adds its stock rows. Which
+one ``auto`` uses is decided in :mod:`growthplan.backends.methods` from
+measurements.
 """
 
 from __future__ import annotations
@@ -21,7 +30,7 @@ import numpy as np
 from scipy import sparse
 
 from ..errors import InvalidInput
-from .conditions import CONDITIONS, Context
+from .conditions import CONDITIONS, FORMULATIONS, Context
 from .data import PlanData
 from .program import Block, LinearProgram
 
@@ -30,7 +39,7 @@ if TYPE_CHECKING:
 
 __all__ = ["build", "build_plan", "estimate_size", "columns", "capacity_operator",
            "deliveries_operator", "SIZE_LIMIT", "BYTES_PER_NONZERO", "peak_memory",
-           "solve_seconds"]
+           "solve_seconds", "FORMULATIONS"]
 
 SIZE_LIMIT = 25_000_000  # nonzeros; larger plans are refused unless told otherwise
 BYTES_PER_NONZERO = 60   # peak while building: blocks, the stacked copy and CSC arrays
@@ -40,10 +49,11 @@ PROCESS_BYTES = 150 * 2**20    # Python with numpy, scipy, pandas, highspy and g
 SOLVE_BYTES_PER_NONZERO = 190  # HiGHS's interior point at its peak: its copies, presolve, factors
 
 
-def capacity_operator(d: PlanData) -> sparse.csr_array:
+def capacity_operator(d: PlanData, profile: np.ndarray | None = None) -> sparse.csr_array:
     """``G`` with ``C = base + G z``: rows (t, k) for t = 0..T, columns starts (τ, k).
 
     ``k`` runs over techniques (sectors when there are no alternatives).
+    ``profile`` (techniques × (T + 2), by age) replaces the survival profile.
     """
     T, n = d.T, d.m
     t = np.arange(T + 1)[:, None, None]
@@ -52,7 +62,7 @@ def capacity_operator(d: PlanData) -> sparse.csr_array:
     age = t - tau - d.theta[None, None, :]
     age_b, t_b, tau_b, j_b = np.broadcast_arrays(age, t, tau, j)
     mask = age_b >= 0
-    vals = d.surv[j_b[mask], age_b[mask]]
+    vals = (d.surv if profile is None else profile)[j_b[mask], age_b[mask]]
     keep = vals != 0
     rows = (t_b[mask] * n + j_b[mask])[keep]
     cols = (tau_b[mask] * n + j_b[mask])[keep]
@@ -80,7 +90,15 @@ def deliveries_operator(d: PlanData) -> sparse.csr_array:
     return sparse.csr_array(out)
 
 
-def columns(d: PlanData) -> list[tuple[str, tuple[int, ...], tuple[tuple[Any, ...], ...]]]:
+def _formulation(formulation: str) -> str:
+    if formulation not in FORMULATIONS:
+        raise InvalidInput(f"formulation must be one of {', '.join(FORMULATIONS)}. "
+                           f"Got {formulation!r}.", field="formulation")
+    return formulation
+
+
+def columns(d: PlanData, formulation: str = "expression"
+            ) -> list[tuple[str, tuple[int, ...], tuple[tuple[Any, ...], ...]]]:
     """The decision columns: (name, shape, labels) in order."""
     years, names = tuple(d.years), tuple(d.tech_names)  # one column per technique
     out: list[tuple[str, tuple[int, ...], tuple[tuple[Any, ...], ...]]] = [
@@ -92,11 +110,19 @@ def columns(d: PlanData) -> list[tuple[str, tuple[int, ...], tuple[tuple[Any, ..
     for name, side in (("imports", d.imports), ("exports", d.exports)):
         if d.trades and side is not None and side.goods:
             out.append((name, (d.T, len(side.goods)), (years, tuple(side.goods))))
+    # several regions: one column per shipment (origin, destination, good) and year
+    if d.regions is not None and d.regions.K:
+        out.append(("shipments", (d.T, d.regions.K), (years, d.regions.labels)))
+    if d.regions is not None and d.regions.consumption_floor is not None and d.has_consumption:
+        out.append(("regional_consumption", (d.T, d.regions.R), (years, tuple(d.regions.regions))))
+    if _formulation(formulation) == "state":  # new capacity in service, years 0..T
+        out.append(("stock", (d.T + 1, d.m), ((*years, years[-1] + 1), names)))
     return out
 
 
-def _count(d: PlanData) -> dict[str, int]:
-    cols = {name: int(np.prod(shape)) if shape else 1 for name, shape, _ in columns(d)}
+def _count(d: PlanData, formulation: str = "expression") -> dict[str, int]:
+    cols = {name: int(np.prod(shape)) if shape else 1
+            for name, shape, _ in columns(d, formulation)}
     rows = nnz = 0
     for cond in CONDITIONS:
         if cond.applies(d):
@@ -132,12 +158,15 @@ def solve_seconds(nonzeros: int) -> float:
     return float(SECONDS_COEFFICIENT * max(nonzeros, 1) ** SECONDS_EXPONENT)
 
 
-def estimate_size(plan: Plan | PlanData) -> dict[str, float]:
+def estimate_size(plan: Plan | PlanData, formulation: str = "expression"
+                  ) -> dict[str, float]:
     """Size, memory and a rough solve time of a plan's LP, without building it.
 
     Parameters
     ----------
     plan : Plan or PlanData
+    formulation : {"expression", "state"}
+        How capacity in service is written (see the module notes).
 
     Returns
     -------
@@ -152,7 +181,7 @@ def estimate_size(plan: Plan | PlanData) -> dict[str, float]:
         sparser plans differ, often by a factor of two or more.
     """
     d = plan if isinstance(plan, PlanData) else plan.lowered()
-    out: dict[str, float] = dict(_count(d))
+    out: dict[str, float] = dict(_count(d, formulation))
     out["peak_bytes"] = peak_memory(int(out["nonzeros"]))
     out["seconds"] = solve_seconds(int(out["nonzeros"]))
     return out
@@ -166,8 +195,11 @@ def _upper_bound(plan: Plan) -> int:
     if plan.techniques or (plan.technical_change is not None
                            and plan.technical_change.embodied):
         return 2**62  # the exact count decides (techniques have their own lead times)
+    if plan.regions is not None:
+        return 2**62  # several regions: the exact count decides (shipments, regional rows)
     return (T * n * n * (1 + width) + T * n * (T + 9) + T * len(plan.labour) * n + 4 * T
-            + len(plan.targets) * (T + 1) + n * width * (T + 1) + n + T * n * 2)
+            + len(plan.targets) * (T + 1) + n * width * (T + 1) + n + T * n * 2
+            + len(plan.limits) * T * (n + 1))  # emission limits: a row per year at most
 
 
 def guard_size(plan: Plan, size_limit: int | None) -> None:
@@ -184,7 +216,8 @@ def guard_size(plan: Plan, size_limit: int | None) -> None:
             "size_limit=None (or a larger number) to build it anyway.", field="size_limit")
 
 
-def build(d: PlanData, *, objective: Any = None) -> LinearProgram:
+def build(d: PlanData, *, objective: Any = None, formulation: str = "expression"
+          ) -> LinearProgram:
     """Build the LP of a lowered plan.
 
     Parameters
@@ -192,10 +225,12 @@ def build(d: PlanData, *, objective: Any = None) -> LinearProgram:
     d : PlanData
     objective : Objective, optional
         Default: the plan's own. ``False`` builds a feasibility problem (zero cost).
+    formulation : {"expression", "state"}
+        How capacity in service is written (see the module notes).
     """
     cols: dict[str, Block] = {}
     ncol = 0
-    for name, shape, labels in columns(d):
+    for name, shape, labels in columns(d, formulation):
         cols[name] = Block(name, ncol, shape, labels)
         ncol = cols[name].stop
     ctx = Context(d, cols, ncol, capacity_operator(d), deliveries_operator(d))
@@ -238,10 +273,12 @@ def build(d: PlanData, *, objective: Any = None) -> LinearProgram:
         matrix=matrix, row_lower=np.concatenate(lowers), row_upper=np.concatenate(uppers),
         col_lower=col_lower, col_upper=col_upper, cost=stages[0].cost, sense=stages[0].sense,
         rows=rows, cols=cols, stages=stages, data=d,
-        operators={"capacity": ctx.capacity, "deliveries": ctx.deliveries})
+        operators={"capacity": ctx.capacity, "deliveries": ctx.deliveries},
+        formulation=formulation)
 
 
-def build_plan(plan: Plan, *, size_limit: int | None = SIZE_LIMIT) -> LinearProgram:
+def build_plan(plan: Plan, *, size_limit: int | None = SIZE_LIMIT,
+               formulation: str = "expression") -> LinearProgram:
     """Guard the size, lower the plan (once) and build its LP."""
     guard_size(plan, size_limit)
-    return build(plan.lowered())
+    return build(plan.lowered(), formulation=formulation)

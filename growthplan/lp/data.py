@@ -22,7 +22,8 @@ if TYPE_CHECKING:
     from ..model.plan import Plan
     from ..model.technique import TechniqueSet
 
-__all__ = ["PlanData", "TargetData", "TradeSide", "lower", "techniques", "basket",
+__all__ = ["PlanData", "TargetData", "SatelliteData", "LimitData", "satellite_data",
+           "TradeSide", "lower", "techniques", "basket",
            "consumption_floor",
            "population",
            "labour_supply", "exogenous_demand", "trade_sides", "terminal_proportions"]
@@ -111,6 +112,9 @@ class PlanData:
     first_year_within: float | None = None
     extra: dict[str, Any] = field(default_factory=dict)
     tech: TechniqueSet | None = None          # alternative techniques (None: one per sector)
+    satellite: SatelliteData | None = None    # emissions and resources, their limits
+    # -- several regions (lp.regional): shipments, transport, regional labour -----------
+    regions: Any = None                       # RegionData; None for a plan of one region
 
     @property
     def m(self) -> int:
@@ -332,15 +336,21 @@ def techniques(plan: Plan) -> TechniqueSet | None:
     tc = plan.technical_change
     embodied = tc is not None and tc.embodied and bool(tc.input_rate or tc.capital_rate
                                                       or tc.labour_rate)
+    sat = plan.satellite
+    if tc is not None and tc.embodied and sat is not None and sat.rates_given():
+        embodied = True  # intensities that change go with the vintage
     if not plan.techniques and not embodied:
         return None
     ts = technique_arrays(plan.economy, plan.techniques)
     if embodied:
         assert tc is not None
         T = len(plan.years)
-        ts = split_vintages(ts, list(plan.years),
-                            {k: tc.factors(plan.economy.names, T, k)
-                             for k in ("input", "capital", "labour")})
+        factors = {k: tc.factors(plan.economy.names, T, k)
+                   for k in ("input", "capital", "labour")}
+        if sat is not None and sat.rates_given():  # a sector whose intensity changes splits too
+            factors["intensity"] = 1.0 + np.abs(
+                sat.factors(plan.economy.names, T) - 1.0).sum(axis=0)
+        ts = split_vintages(ts, list(plan.years), factors)
     return ts
 
 
@@ -452,6 +462,10 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
         labour_all_units=econ.labour_unit_names, value_unit=econ.value_unit,
         base_output=None if econ.base_output is None else np.asarray(econ.base_output),
         first_year_within=plan.first_year_within, population=population(plan), tech=ts)
+    # several regions: their arrays live in lp.regional (None without regions)
+    from .regional import lower_regions
+
+    data.regions = lower_regions(plan)
     tc = plan.technical_change
     if tc is not None and not tc.embodied and (tc.input_rate or tc.capital_rate
                                                or tc.labour_rate):
@@ -471,6 +485,7 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
             "input": tc.factors(names, T, "input"), "labour": tc.factors(names, T, "labour"),
             "capital": tc.factors(names, T, "capital"), "base_inputs": first.inputs,
             "base_labour": first.labour, "base_capital": first.capital}
+    data.satellite = satellite_data(plan, data)
     for arr_name in ("initial", "base", "surv", "pipe_deliveries", "demand", "supply"):
         arr = getattr(data, arr_name)
         if not np.all(np.isfinite(arr)):
@@ -480,3 +495,70 @@ def lower(plan: Plan, *, proportions: tuple[np.ndarray, str] | None = None) -> P
                                "Got a non-finite value: check service lives, past growth and "
                                "investment histories.", field=arr_name)
     return data
+
+
+# -- satellite accounts: emissions, resources and their limits ------------------------------
+
+@dataclass(frozen=True)
+class LimitData:
+    """One limit as numbers: on row ``w`` of the satellite's names, over plan years ``t``.
+
+    ``bound`` holds one ceiling per covered year (a cap), per plan year (an
+    intensity ceiling, per unit of GDP), or one total (a budget).
+    """
+
+    index: int
+    kind: str            # "cap", "budget" or "intensity"
+    what: str
+    w: int
+    t: np.ndarray
+    bound: np.ndarray
+
+
+@dataclass
+class SatelliteData:
+    """Emissions and resource use per unit of activity, and the plan's limits on them.
+
+    ``intensity`` is ``names × years × techniques`` (stressors, then impacts
+    through the characterisation); ``households`` one amount per name and
+    unit of the consumption level.
+    """
+
+    names: list[str]
+    units: list[str]
+    stressors: int
+    intensity: np.ndarray
+    households: np.ndarray
+    limits: list[LimitData]
+    resource: list[bool]
+
+    def emitted(self, output: np.ndarray, consumption: np.ndarray | None) -> np.ndarray:
+        """Emissions (or use) of each name and year, ``names × years``, from output by technique."""
+        out = np.einsum("wtk,tk->wt", self.intensity, output)
+        if consumption is not None:
+            out = out + self.households[:, None] * consumption[None, :]
+        return np.asarray(out)
+
+
+def satellite_data(plan: Plan, d: PlanData) -> SatelliteData | None:
+    """The satellite accounts of a plan as arrays (None without any)."""
+    sat = plan.satellite
+    if sat is None:
+        return None
+    c = sat.characterisation()
+    base = sat.technique_intensities(d.names, d.tech, d.T)   # stressors × years × techniques
+    intensity = np.einsum("ws,stk->wtk", c, base)
+    limits = []
+    for i, lim in enumerate(plan.limits):
+        w = sat.names.index(lim.what)
+        t = np.array(lim.window(d.years), dtype=int)
+        where = f"limits.{i}"
+        if lim.kind == "budget":
+            bound = np.array([lim.total])
+        else:
+            bound = lim.path(d.years, where)
+        limits.append(LimitData(i, lim.kind, lim.what, w, t, bound))
+    resource = [s.resource for s in sat.stressors] + [i.resource for i in sat.impacts]
+    return SatelliteData(names=sat.names, units=sat.units, stressors=len(sat.stressors),
+                         intensity=intensity, households=c @ sat.households(), limits=limits,
+                         resource=resource)

@@ -101,6 +101,8 @@ class LinearProgram:
     operators : dict
         ``capacity`` (``C = base + G z``) and ``deliveries`` (``W z``) operators,
         kept for the results.
+    formulation : {"expression", "state"}
+        How capacity in service is written (:mod:`growthplan.lp.build`).
     """
 
     matrix: sparse.csc_array
@@ -115,6 +117,7 @@ class LinearProgram:
     stages: list[Stage] = field(default_factory=list)
     data: PlanData | None = None
     operators: dict[str, Any] = field(default_factory=dict)
+    formulation: str = "expression"
 
     @property
     def shape(self) -> tuple[int, int]:

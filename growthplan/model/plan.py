@@ -19,7 +19,7 @@ import os
 import time
 from collections.abc import Mapping
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Annotated, Any
 
 import numpy as np
 from pydantic import Field, PrivateAttr, field_validator, model_validator
@@ -27,6 +27,8 @@ from pydantic import Field, PrivateAttr, field_validator, model_validator
 from ..errors import GrowthplanError
 from . import objectives as obj
 from .economy import Economy
+from .regions import Regions, check_regions
+from .satellite import Budget, Cap, IntensityCeiling, Satellite, limits_over
 from .series import series as _series
 from .technique import Technique, check_techniques
 from .validation import Model, Rule
@@ -363,6 +365,11 @@ class Plan(Model):
     techniques : list of Technique, optional
         Alternative techniques of sectors (and phase-outs of their base
         techniques); see :mod:`growthplan.model.technique`.
+    regions : Regions, optional
+        Several regions in one plan: the economy's sectors are region–sector
+        pairs (a MultiRegionalEconomy's economy), with shipments between
+        regions, transport costs and regional labour; see
+        :mod:`growthplan.model.regions`.
     first_year_within : float, optional
         Hold the first plan year's output of every sector at least at
         ``(1 − share)`` times its base-year output (the economy's
@@ -377,6 +384,12 @@ class Plan(Model):
         ``DiscountedConsumption``, ``LeastLabour``, ``LeastForeignExchange``,
         ``Weighted``, ``Lexicographic`` or ``Fastest`` (chosen by ``kind`` in
         a mapping).
+    satellite : Satellite, optional
+        Emissions and natural resources per unit of output and of consumption
+        (:mod:`growthplan.model.satellite`); the result then reports them.
+    limits : list of Cap, Budget or IntensityCeiling, optional
+        Yearly caps, cumulative budgets and ceilings per unit of GDP on the
+        stressors and impacts of ``satellite`` (chosen by ``kind`` in a mapping).
     """
 
     economy: Economy
@@ -392,12 +405,16 @@ class Plan(Model):
     trade: Trade | None = None
     technical_change: TechnicalChange | None = None
     techniques: list[Technique] = Field(default_factory=list)
+    regions: Regions | None = None
     allow_high_rates: bool = False
     first_year_within: float | None = Field(default=None, gt=0, lt=1, allow_inf_nan=False)
     objective: (obj.TerminalCapacity | obj.DiscountedConsumption | obj.LeastLabour
                 | obj.LeastForeignExchange | obj.Weighted | obj.Lexicographic
                 | obj.Fastest) = Field(default_factory=obj.TerminalCapacity,
                                        discriminator="kind")
+    satellite: Satellite | None = None
+    limits: list[Annotated[Cap | Budget | IntensityCeiling, Field(discriminator="kind")]] = \
+        Field(default_factory=list)
     _validate_seconds: float = PrivateAttr(default=0.0)
     _lowered: Any = PrivateAttr(default=None)
 
@@ -544,7 +561,41 @@ class Plan(Model):
                                loose, field=f"trade.{field}")
             lowering.trade_sides(self)
         lowering.exogenous_demand(self)
+        self._check_limits()
+        if self.regions is not None:
+            check_regions(self)
         return self
+
+    def _check_limits(self) -> None:
+        """Satellite intensities name sectors or techniques; limits name its stressors."""
+        sat = self.satellite
+        if sat is None:
+            if self.limits:
+                raise Rule("come with the plan's satellite accounts (satellite=...)",
+                           self.limits[0].what, field="limits.0.what")
+            return
+        keys = [tq.key for tq in self.techniques]
+        sat.check(self.economy.names, keys)
+        years = self.years
+        for i, lim in enumerate(self.limits):
+            where = f"limits.{i}"
+            if lim.what not in sat.names:
+                raise Rule(f"name a stressor or impact ({', '.join(sat.names)})", lim.what,
+                           field=f"{where}.what")
+            if isinstance(lim, Cap):
+                bad = [y for y in (lim.years or []) if y not in years]
+                if bad or lim.years == []:
+                    raise Rule("be plan years", bad or lim.years, field=f"{where}.years")
+                lim.path(years, where)
+            elif isinstance(lim, Budget):
+                if not lim.window(years):
+                    raise Rule(f"cover at least one plan year ({years[0]}..{years[-1]})",
+                               [lim.first, lim.last], field=f"{where}.first")
+                if (lim.first is not None and lim.last is not None
+                        and lim.first > lim.last):
+                    raise Rule("be at most last", lim.first, field=f"{where}.first")
+            else:
+                lim.path(years, where)
 
     # -- derived data and delegators ------------------------------------------------
     @property
@@ -614,13 +665,17 @@ class Plan(Model):
             self._lowered = lowering.lower(self)
         return self._lowered
 
-    def compile(self, *, size_limit: int | None = 25_000_000) -> LinearProgram:
+    def compile(self, *, size_limit: int | None = 25_000_000,
+                formulation: str = "expression") -> LinearProgram:
         """The plan's :class:`~growthplan.lp.program.LinearProgram`.
 
         Parameters
         ----------
         size_limit : int or None, default 25,000,000
             Largest LP (in nonzeros) to build; None builds any size.
+        formulation : {"expression", "state"}
+            How capacity in service is written: an expression in past starts,
+            or stocks carried from year to year (:mod:`growthplan.lp.build`).
 
         Returns
         -------
@@ -628,10 +683,15 @@ class Plan(Model):
         """
         from ..solve import program
 
-        return program(self, size_limit=size_limit)
+        return program(self, size_limit=size_limit, formulation=formulation)
 
-    def estimate_size(self) -> dict[str, float]:
+    def estimate_size(self, formulation: str = "expression") -> dict[str, float]:
         """Size, memory and a rough solve time of this plan's LP, without building it.
+
+        Parameters
+        ----------
+        formulation : {"expression", "state"}
+            How capacity in service is written (see :meth:`compile`).
 
         Returns
         -------
@@ -644,14 +704,14 @@ class Plan(Model):
         """
         from ..lp.build import estimate_size
 
-        return estimate_size(self)
+        return estimate_size(self, formulation)
 
     def solve(self, *, method: str = "auto", time_limit: float | None = None,
               threads: int | None = None, tolerance: float | None = None,
               audit_tolerance: float = 1e-6, options: dict[str, Any] | None = None,
               progress: bool = False, stop: Any = None,
               size_limit: int | None = 25_000_000, backend: Backend | None = None,
-              solver: SolveOptions | None = None) -> PlanResult:
+              formulation: str = "auto", solver: SolveOptions | None = None) -> PlanResult:
         """Solve the plan (HiGHS by default) and audit the result.
 
         The LP, for years ``t = 0..T−1``::
@@ -667,8 +727,9 @@ class Plan(Model):
 
         Parameters
         ----------
-        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp"}
-            HiGHS method. ``"auto"`` picks by problem size (see the README).
+        method : {"auto", "simplex", "ipm", "ipm-crossover", "pdlp", "hipo"}
+            HiGHS method. ``"auto"`` picks by problem size (see the README);
+            ``"hipo"`` needs the ``hipo`` extra.
             When a solve fails, the other method is tried before giving up.
         time_limit : float, optional
             Seconds; a solve that hits it returns status ``time_limit``.
@@ -692,6 +753,10 @@ class Plan(Model):
             Another back end (:class:`growthplan.backends.PulpBackend`, …);
             then ``method``, ``time_limit``, ``threads``, ``tolerance`` and
             ``options`` belong to it.
+        formulation : {"auto", "expression", "state"}
+            How capacity in service is written in the LP (the same optimum
+            either way); ``"auto"`` follows the measured rule of
+            :func:`growthplan.backends.methods.choose`.
         solver : SolveOptions, optional
             All the settings above as one object
             (:class:`growthplan.backends.options.SolveOptions`, also what a plan
@@ -723,7 +788,7 @@ class Plan(Model):
         return solve(self, backend=backend, method=method, time_limit=time_limit,
                      threads=threads, tolerance=tolerance, audit_tolerance=audit_tolerance,
                      options=options, progress=progress, stop=stop, size_limit=size_limit,
-                     solver=solver)
+                     formulation=formulation, solver=solver)
 
     def to_pulp(self, name: str = "growthplan") -> Any:
         """A ``pulp.LpProblem`` of this plan, built from the same LinearProgram as ``solve``.
@@ -829,5 +894,7 @@ class Plan(Model):
         fields = {k: getattr(self, k) for k in type(self).model_fields}
         search = self.objective.horizon_search()
         objective = search.then if search is not None else self.objective
-        fields.update(years=list(range(first, last + 1)), targets=targets, objective=objective)
+        new_years = list(range(first, last + 1))
+        fields.update(years=new_years, targets=targets, objective=objective,
+                      limits=limits_over(self.limits, self.years, new_years))
         return Plan(**fields)

@@ -396,7 +396,9 @@ def split_vintages(ts: TechniqueSet, years: list[int], factors: dict[str, np.nda
     years : list of int
         The plan years.
     factors : dict
-        ``input``, ``capital`` and ``labour`` multipliers, years × sectors.
+        ``input``, ``capital`` and ``labour`` multipliers, years × sectors; any
+        further entry (such as changing emission intensities) only marks the
+        sectors to split.
 
     Returns
     -------
@@ -410,7 +412,7 @@ def split_vintages(ts: TechniqueSet, years: list[int], factors: dict[str, np.nda
     T = len(years)
     fa, fb, fl = factors["input"], factors["capital"], factors["labour"]
     changing = [k for k in range(ts.m)
-                if any(np.any(f[:, ts.sector[k]] != 1.0) for f in (fa, fb, fl))]
+                if any(np.any(f[:, ts.sector[k]] != 1.0) for f in factors.values())]
     keys, labels = list(ts.keys), list(ts.labels)
     sector, origin, vintage = list(ts.sector), list(ts.origin), list(ts.vintage)
     cols_a, cols_b, cols_l = [ts.inputs], [ts.capital], [ts.labour]

@@ -36,7 +36,8 @@ if TYPE_CHECKING:
 __all__ = ["plot_paths", "plot_starts", "plot_labour", "plot_shadow_prices",
            "plot_ray_distance", "plot_scenarios", "ray_distance", "save_charts",
            "plot_consumption", "plot_targets", "plot_utilisation", "plot_diagnosis",
-           "PALETTE", "chart_list", "plot_fan", "plot_probabilities", "plot_compare",
+           "PALETTE", "chart_list", "plot_emissions", "plot_abatement", "plot_flows",
+           "plot_regional_growth", "plot_fan", "plot_probabilities", "plot_compare",
            "plot_wage_profit"]
 
 # Twelve colours whose grey levels (luma 0.299 R + 0.587 G + 0.114 B) run from
@@ -644,6 +645,82 @@ def plot_scenarios(table: pd.DataFrame, x: str, y: str = "objective", *, by: str
     return ax
 
 
+def plot_emissions(result: PlanResult, what: str | None = None, *,
+                   ax: Axes | None = None) -> Axes:
+    """Emissions of one stressor or impact by year, stacked by sector, with its limits.
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal plan with satellite accounts.
+    what : str, optional
+        A stressor or impact (default: the first one a limit names, else the last).
+    ax : matplotlib.axes.Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    ax = _axes(ax)
+    d = result.data
+    assert d is not None
+    sat = d.satellite
+    if sat is None:
+        return _nothing(ax, "Emissions", "The plan has no satellite accounts.")
+    if what is None:
+        what = sat.limits[0].what if sat.limits else sat.names[-1]
+    unit = sat.units[sat.names.index(what)]
+    long = result.emissions
+    long = long[long["stressor"] == what]
+    table = long.pivot_table(index="year", columns="sector", values="amount", aggfunc="sum",
+                             fill_value=0.0).reindex(d.years, fill_value=0.0)
+    bottom = np.zeros(len(table))
+    years = np.asarray(table.index)
+    for i, col in enumerate(table.columns):
+        ax.bar(years, table[col], bottom=bottom, label=str(col), **_bar_style(i))
+        bottom += table[col].to_numpy()
+    prices = result.emission_prices
+    own = prices[(prices["what"] == what) & (prices["kind"] == "cap")]
+    if not own.empty:
+        ax.plot(own["year"], own["bound"], color="black", ls="--", marker="_", label="cap")
+    ax.set_ylabel(f"{what} ({unit} per year)")
+    ax.set_title(f"Emissions of {what} by sector")
+    _year_axis(ax, years)
+    _legend(ax, len(table.columns) + (0 if own.empty else 1))
+    return ax
+
+
+def plot_abatement(curve: pd.DataFrame, *, ax: Axes | None = None) -> Axes:
+    """The marginal abatement curve: the objective's loss and the limit's price by level.
+
+    Parameters
+    ----------
+    curve : pandas.DataFrame
+        From :func:`growthplan.scenarios.abatement.abatement_curve`.
+    ax : matplotlib.axes.Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The loss on the left axis, the price (base-year money per unit) on a
+        twin axis on the right.
+    """
+    ax = _axes(ax)
+    ok = curve[curve["status"] == "optimal"]
+    unit = ok["unit"].iloc[0] if not ok.empty else ""
+    ax.plot(ok["level"], ok["loss"], label="loss of the objective", **_style(0))
+    ax.set_xlabel(f"{curve.attrs.get('limit', 'limit')} ({unit})")
+    ax.set_ylabel("loss of the objective (objective's units)")
+    twin = ax.twinx()
+    twin.plot(ok["level"], ok["price"], label="shadow price", **_style(1))
+    twin.set_ylabel(f"shadow price ({ok['price_unit'].iloc[0] if not ok.empty else ''})")
+    ax.set_title("Marginal abatement curve")
+    ax.grid(alpha=0.3)
+    lines = ax.get_lines() + twin.get_lines()
+    ax.legend(lines, [str(ln.get_label()) for ln in lines], loc="upper right")
+    return ax
+
+
 def chart_list(result: PlanResult) -> list[tuple[str, str, Callable[[Axes], Axes]]]:
     """The standard charts of a result: (file name, caption, drawing function).
 
@@ -690,6 +767,11 @@ def chart_list(result: PlanResult) -> list[tuple[str, str, Callable[[Axes], Axes
                 lambda ax: plot_utilisation(result, ax=ax)))
     out.append(("shadow_prices", "Shadow prices in base-year money",
                 lambda ax: plot_shadow_prices(result, money=True, ax=ax)))
+    if d is not None and d.regions is not None:
+        out.append(("flows", "Shipments between regions over the plan, at base-year prices",
+                    lambda ax: plot_flows(result, ax=ax)))
+        out.append(("regional_growth", "Regional product by region",
+                    lambda ax: plot_regional_growth(result, ax=ax)))
     if d is not None and np.any(d.b):
         out.append(("ray_distance", "Capacity's distance from balanced growth",
                     lambda ax: plot_ray_distance(result, ax=ax)))
@@ -796,6 +878,75 @@ def plot_techniques(result: PlanResult, sector: str, *, what: str = "output",
 
 
 __all__ += ["plot_techniques"]
+
+
+def plot_flows(result: PlanResult, *, year: int | None = None, ax: Axes | None = None) -> Axes:
+    """A matrix of the value shipped from each region (rows) to each other (columns).
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result of a plan over several regions.
+    year : int, optional
+        One plan year (default: the whole plan).
+    ax : matplotlib.axes.Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    from .regions import flow_matrix
+
+    ax = _axes(ax)
+    d = result.data
+    title = "Shipments between regions" + ("" if year is None else f" in {year}")
+    if d is None or d.regions is None or result.flows.empty:
+        return _nothing(ax, title, "This plan has no shipments between regions.")
+    m = flow_matrix(result.flows, d.regions.regions, year=year)
+    values = m.to_numpy(dtype=float)
+    image = ax.imshow(values, cmap="Greys", vmin=0.0)
+    top = values.max() if values.size else 0.0
+    for (i, j), v in np.ndenumerate(values):
+        ax.text(j, i, _fmt(v), ha="center", va="center",
+                color="white" if top > 0 and v > 0.6 * top else "black")
+    ax.set_xticks(range(len(m.columns)), [str(c) for c in m.columns])
+    ax.set_yticks(range(len(m.index)), [str(c) for c in m.index])
+    ax.set_xlabel("to (destination)")
+    ax.set_ylabel("from (origin)")
+    unit = result.plan.economy.value_unit
+    ax.figure.colorbar(image, ax=ax, label=f"value shipped, {unit}")
+    ax.set_title(title)
+    return ax
+
+
+def plot_regional_growth(result: PlanResult, *, ax: Axes | None = None) -> Axes:
+    """Each region's product at base-year prices by year.
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal, audited result of a plan over several regions.
+    ax : matplotlib.axes.Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    ax = _axes(ax)
+    d = result.data
+    title = "Regional product"
+    if d is None or d.regions is None:
+        return _nothing(ax, title, "This plan has one region.")
+    table = result.regional_accounts["regional_product"].unstack("region")
+    for i, region in enumerate(d.regions.regions):
+        ax.plot(table.index, table[region].to_numpy(dtype=float), label=str(region),
+                **_style(i))
+    ax.set_ylabel(f"regional product, {result.plan.economy.value_unit} a year")
+    _year_axis(ax, table.index, pad=0.4)
+    ax.set_title(title)
+    _legend(ax, len(d.regions.regions))
+    ax.grid(alpha=0.3)
+    return ax
 
 
 # -- charts of scenarios and analyses ------------------------------------------------

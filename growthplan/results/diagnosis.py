@@ -110,7 +110,8 @@ class Diagnosis:
         if self.shortfalls.empty:
             return "The elastic re-solve found no shortfall: the plan is feasible."
         worst = self.shortfalls.head(3)
-        parts = [" ".join(str(p) for p in (r.condition, r.sector, r.year) if p != "")
+        parts = [r.words if isinstance(getattr(r, "words", None), str) and r.words else
+                 " ".join(str(p) for p in (r.condition, r.sector, r.year) if p != "")
                  + f" short by {r.shortfall:.6g} ({100 * r.share:.1f} %)"
                  for r in worst.itertuples()]
         return "Cannot be met: " + "; ".join(parts) + "."
@@ -225,6 +226,8 @@ def _year_name(label: tuple[Any, ...]) -> tuple[Any, str]:
         parts = list(parts[0])
     year = parts[0] if parts else ""
     name = str(parts[1]) if len(parts) > 1 else ""
+    if len(parts) > 1 and isinstance(parts[1], tuple) and len(parts[1]) == 3:
+        name = "{2} from {0} to {1}".format(*parts[1])  # a shipment: origin, destination, good
     return year, name
 
 
@@ -271,14 +274,18 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
         short = float(share * rec["unit"])
         cond_name, sector, year = rec["condition"].shortfall_label(rec["label"])
         required = float(rec["required"])
-        if rec["family"] in ("labour", "foreign_exchange"):  # a limit exceeded: what is needed
-            need = required + short
+        words = rec["condition"].excess_words(lp.data, rec["label"], short)
+        if rec["family"] in ("labour", "foreign_exchange", "emissions"):
+            need = required + short  # a limit exceeded: what is needed
             recs.append((cond_name, sector, year, need, required, short,
-                         short / need if need else np.inf))
+                         short / need if need else np.inf, words))
         else:
             recs.append((cond_name, sector, year, required, required - short, short,
-                         short / required if required else np.inf))
-    table = pd.DataFrame(recs, columns=COLUMNS).sort_values(
+                         short / required if required else np.inf, words))
+    table = pd.DataFrame(recs, columns=[*COLUMNS, "words"])
+    if table["words"].isna().all():
+        table = table.drop(columns="words")  # only limits with a unit of their own have words
+    table = table.sort_values(
         ["share", "shortfall"], ascending=False).reset_index(drop=True)
     iis = _subset(lp, iis_backend) if want and not table.empty else None
     return Diagnosis(table, out.status, float(out.objective), iis)

@@ -78,6 +78,13 @@ GLOSSARY: list[tuple[str, str]] = [
     ("growth", "Change on the previous year (real: every aggregate is at base-year prices)."),
     ("shortfall", "For an impossible plan: how far a condition falls short of what it asks "
                   "when every other condition is kept as well as it can be."),
+    ("emissions", "What each sector, technique and households emit (or a resource they use) "
+                  "in a year, in the stressor's own unit; impacts add stressors by stated "
+                  "factors (CO2-equivalent)."),
+    ("emission prices", "Value of allowing one more unit of a capped or budgeted stressor: "
+                        "the limit's shadow price, in the objective's terms (value) and in "
+                        "base-year money per unit (price); zero where the limit does not "
+                        "bind; one price for a budget over several years."),
 ]
 
 
@@ -575,6 +582,92 @@ def _techniques_section(result: PlanResult, charts: bool) -> str:
     return "".join(parts)
 
 
+def emission_words(result: PlanResult) -> list[str]:
+    """Each limit of an optimal plan in words: binding or not, its price with units.
+
+    Parameters
+    ----------
+    result : PlanResult
+        An optimal plan with satellite accounts.
+
+    Returns
+    -------
+    list of str
+    """
+    out = []
+    for row in result.emission_prices.itertuples():
+        what = f"the {row.kind} on {row.what} in {row.year}"
+        if row.slack <= 1e-7 * max(abs(row.bound), 1.0):
+            out.append(f"{what[0].upper()}{what[1:]} binds ({row.emitted:,.6g} of "
+                       f"{row.bound:,.6g} {row.unit}): one more {row.unit} allowed would be "
+                       f"worth {row.price:.4g} {row.price_unit}.")
+        else:
+            out.append(f"{what[0].upper()}{what[1:]} does not bind ({row.emitted:,.6g} of "
+                       f"{row.bound:,.6g} {row.unit}); one more {row.unit} allowed is worth "
+                       "nothing.")
+    return out
+
+
+def _emissions_section(result: PlanResult, charts: bool) -> str:
+    """Emissions by year with their limits, the limits' prices in words, and a chart."""
+    totals = result.emission_totals
+    units = totals.attrs.get("units", {})
+    shown = totals.rename(columns={c: f"{c} [{units.get(c, '')}]" for c in totals.columns})
+    prices = result.emission_prices
+    parts = ["<section><h2>Emissions</h2><p>"
+             + _e("Emissions (and resources used) of every stressor and impact, by year, "
+                  "from each technique's output and households' consumption. A limit's "
+                  "shadow price is what one more unit allowed would add to the objective, "
+                  "in base-year money per unit (the numeraire of the other shadow prices); "
+                  "a budget over several years has one price.") + "</p>",
+             _table(shown, caption="Emissions by year")]
+    if not prices.empty:
+        parts.append(_table(prices, caption="Limits and their shadow prices", index=False))
+        parts.append("<ul>" + "".join(f"<li>{_e(w)}</li>" for w in emission_words(result))
+                     + "</ul>")
+    if charts:
+        try:
+            from matplotlib.figure import Figure  # noqa: F401
+
+            from . import charts as plot
+
+            cap = "Emissions by sector under the limit"
+            uri = _figure_uri(lambda ax: plot.plot_emissions(result, ax=ax))
+            if uri is not None:
+                parts.append(f'<figure><img src="{uri}" alt="{_e(cap)}">'
+                             f"<figcaption>{_e(cap)}</figcaption></figure>")
+        except ImportError:
+            parts.append('<p class="note">The emissions chart needs matplotlib '
+                         "(pip install 'growthplan[plot]').</p>")
+    parts.append("</section>")
+    return "".join(parts)
+
+
+def _regions_section(result: PlanResult) -> str:
+    """Regions: growth, the gap, the main corridor, accounts, flows and the price pattern."""
+    from .regions import flow_matrix, regional_words
+
+    unit = result.plan.economy.value_unit
+    acc, gap, flows = result.regional_accounts, result.regional_gap, result.flows
+    regions = result.data.regions.regions if result.data is not None else []
+    last = acc.index.get_level_values("year").max()
+    parts = ["<section><h2>Regions</h2>", _pairs(regional_words(acc, gap, flows, unit)),
+             _table(acc.xs(last, level="year").round(3),
+                    caption=f"Regional accounts in {last} ({unit}; employment in "
+                            "person-years)"),
+             _table(gap.round(3), caption=f"Regional gap: {gap.attrs.get('note', '')}")]
+    if not flows.empty:
+        parts.append(_table(flow_matrix(flows, list(regions)).round(2),
+                            caption=f"Value shipped over the plan, origin × destination "
+                                    f"({unit})"))
+    sp = result.spatial_prices
+    parts.append(_table(sp.xs(last, level="year").round(4),
+                        caption=f"Shadow prices by region in {last}: a traded good's prices "
+                                "differ by at most the transport it needs, valued at the "
+                                "transport sector's price"))
+    return "".join(parts) + "</section>"
+
+
 def _job(result: PlanResult) -> str:
     p = result.plan
     years = list(p.years)
@@ -651,8 +744,12 @@ def render(result: PlanResult, *, charts: bool = True) -> str:
                          "raise the objective most.</p>" + _table(table)
                          + _end_effect(result, b, dec) + "</section>")
         parts.append(_charts_section(result, charts))
+        if result.data is not None and result.data.regions is not None:
+            parts.append(_regions_section(result))
         if result.data is not None and result.data.tech is not None:
             parts.append(_techniques_section(result, charts))
+        if result.data is not None and result.data.satellite is not None:
+            parts.append(_emissions_section(result, charts))
         money = result.shadow_prices_money
         parts.append("<section><h2>Shadow prices in base-year money</h2>"
                      f'<p class="note">{_e(money.attrs.get("note", unit))}.</p>'

@@ -260,6 +260,16 @@ class PlanResult:
     floor_values = Table[pd.Series]()
     terminal_value = Table[float]()
     level = Table[float | None]()
+    # several regions (empty tables for a plan of one region)
+    regional_accounts = Table[pd.DataFrame]()
+    regional_gap = Table[pd.DataFrame]()
+    flows = Table[pd.DataFrame]()
+    spatial_prices = Table[pd.DataFrame]()
+    regional_output = Table[pd.DataFrame]()
+    # emissions (empty without a satellite account)
+    emissions = Table[pd.DataFrame]()
+    emission_totals = Table[pd.DataFrame]()
+    emission_prices = Table[pd.DataFrame]()
 
     def tidy(self) -> pd.DataFrame:
         """All year × sector schedules in long form: year, sector, quantity, value.

@@ -126,6 +126,8 @@ class Summary:
                                      far["change"].head(4).items())
                                  + (" (Plan(first_year_within=...) holds it nearer)"
                                     if p.first_year_within is None else "")))
+            if d.satellite is not None:
+                rows.extend(_emission_lines(r))
             b = r.bottlenecks(top=3)
             if not b.empty:
                 first_year = b[b.year == b.year.min()]
@@ -163,3 +165,23 @@ class Summary:
                         for k, v in self._lines())
         return (f"<table><caption>growthplan result</caption>{cells}</table>"
                 f"<p><em>{html.escape(CAUTION)}</em></p>")
+
+
+def _emission_lines(r: Any) -> list[tuple[str, str]]:
+    """Each limited stressor's path and where its limits bind, with the highest price."""
+    sat = r.data.satellite
+    totals, prices = r.emission_totals, r.emission_prices
+    rows = []
+    limited = list(dict.fromkeys(lim.what for lim in sat.limits)) or sat.names[-1:]
+    for what in limited:
+        unit = sat.units[sat.names.index(what)]
+        e = totals[what]
+        text = f"{e.iloc[0]:,.6g} → {e.iloc[-1]:,.6g} {unit} a year"
+        mine = prices[prices["what"] == what]
+        own = mine[mine["slack"] <= 1e-7 * mine["bound"].abs().clip(lower=1.0)]
+        if not own.empty:
+            top = own.loc[own["price"].idxmax()]
+            text += (f"; at its limit in {len(own)} of {len(mine)} limit rows, price up to "
+                     f"{top['price']:.4g} {top['price_unit']} ({top['year']})")
+        rows.append((f"emissions of {what}", text))
+    return rows

@@ -46,12 +46,19 @@ def schedules(d: PlanData, lp: LinearProgram, x: np.ndarray) -> Schedules:
     kappa = lp.cols["consumption"].take(x) if "consumption" in lp.cols else None
     level = float(x[lp.cols["level"].start]) if "level" in lp.cols else None
     g, w = lp.operators["capacity"], lp.operators["deliveries"]
-    cap = (d.base.ravel() + g @ starts.ravel()).reshape(T + 1, n)
+    # the state form carries the new capacity in columns of its own: read it from them,
+    # so that the audit's vintage-by-vintage recomputation checks the stock rows too
+    new = lp.cols["stock"].take(x).ravel() if "stock" in lp.cols else g @ starts.ravel()
+    cap = (d.base.ravel() + new).reshape(T + 1, n)
     deliv = (w @ starts.ravel()).reshape(T, d.n) + d.pipe_deliveries
     imports = lp.cols["imports"].take(x) if "imports" in lp.cols else None
     exports = lp.cols["exports"].take(x) if "exports" in lp.cols else None
+    shipments = lp.cols["shipments"].take(x) if "shipments" in lp.cols else None
+    own = lp.cols["regional_consumption"].take(x) if "regional_consumption" in lp.cols \
+        else None
     return Schedules(output=output, starts=starts, consumption=kappa, level=level,
-                     imports=imports, exports=exports, capacity=cap, deliveries=deliv)
+                     imports=imports, exports=exports, capacity=cap, deliveries=deliv,
+                     shipments=shipments, regional_consumption=own)
 
 
 def with_units(frame: pd.DataFrame) -> pd.DataFrame:
@@ -281,6 +288,20 @@ class Solved:
         return (f"{self.d.value_unit} per unit; numeraire: the first year's output bundle has "
                 "the same value at shadow prices as at base-year prices")
 
+    @cached_property
+    def emissions(self) -> dict[str, Any]:
+        """The emission tables (empty without a satellite account), computed together."""
+        from .emissions import emission_frames
+
+        return emission_frames(self.d, self.lp, self.value, self.s, self.factor)
+
+    @cached_property
+    def regional(self) -> dict[str, pd.DataFrame]:
+        """The regional tables (empty for a plan of one region), computed together."""
+        from .regions import regional_frames
+
+        return regional_frames(self.d, self.s, self.prices)
+
     def labour_values(self, scale: np.ndarray | None = None) -> pd.DataFrame:
         """Values of the labour rows, years × kinds (empty without labour limits)."""
         values = self.values_of("labour")
@@ -377,7 +398,12 @@ def _consumption(s: Solved) -> pd.DataFrame:
     kappa = s.s.consumption
     if kappa is None:
         return pd.DataFrame(index=s.years)
-    cons = s.frame(kappa[:, None] * s.d.basket[None, :])
+    by_pair = kappa[:, None] * s.d.basket[None, :]
+    if s.s.regional_consumption is not None:  # each region at its own level
+        from ..lp.regional import regional_use
+
+        by_pair = regional_use(s.d, s.s.regional_consumption)
+    cons = s.frame(by_pair)
     cons.insert(0, "level", kappa)
     return cons
 
@@ -483,6 +509,46 @@ def _shadow_exchange_rate(s: Solved) -> pd.Series:
                     "shadow_exchange_rate")
 
 
+# several regions (empty tables for a plan of one region), exported flat
+def _flat(frame: pd.DataFrame) -> pd.DataFrame:
+    from .regions import flat_table
+
+    return flat_table(frame)
+
+
+@table("regional_accounts", export=_flat, unit="money at base-year prices a year",
+       doc="Each region's product, investment and its share, consumption and employment, "
+           "(year, region) × items, at base-year prices.")
+def _regional_accounts(s: Solved) -> pd.DataFrame:
+    return s.regional["regional_accounts"]
+
+
+@table("regional_gap", export=_flat, unit="money per person-year; a ratio",
+       doc="Regional product per person-year by region, and the ratio of the highest to "
+           "the lowest, by year.")
+def _regional_gap(s: Solved) -> pd.DataFrame:
+    return s.regional["regional_gap"]
+
+
+@table("flows", export=_flat, unit="each good's unit; value at base-year prices",
+       doc="Shipments by year, origin, destination and good: units, transport used, value "
+           "at base-year prices.")
+def _flows(s: Solved) -> pd.DataFrame:
+    return s.regional["flows"]
+
+
+@table("spatial_prices", export=_flat, unit="objective per unit of each commodity",
+       doc="Shadow prices by (year, commodity) × region, with the spread.")
+def _spatial_prices(s: Solved) -> pd.DataFrame:
+    return s.regional["spatial_prices"]
+
+
+@table("regional_output", export=_flat, unit="each sector's unit a year",
+       doc="Output, years × (region, sector).")
+def _regional_output(s: Solved) -> pd.DataFrame:
+    return s.regional["regional_output"]
+
+
 @table("technique_schedules", file="techniques", attribute=False, export=_as_is,
        unit="each sector's unit a year",
        doc="Output, capacity and starts of every technique (plans with techniques only).")
@@ -492,6 +558,26 @@ def _technique_schedules(s: Solved) -> pd.DataFrame | None:
     from .techniques import technique_export
 
     return technique_export(s.result)
+
+
+@table("emissions", export=_as_is, unit="each stressor's unit",
+       doc="Emissions and resource use in long form: year, stressor (or impact), sector, "
+           "technique (households for their direct emissions), amount, unit.")
+def _emissions(s: Solved) -> pd.DataFrame:
+    return s.emissions["emissions"]
+
+
+@table("emission_totals", unit="each stressor's unit a year (in attrs['units'])",
+       doc="Emissions of each stressor and impact by year (units in attrs['units']).")
+def _emission_totals(s: Solved) -> pd.DataFrame:
+    return s.emissions["emission_totals"]
+
+
+@table("emission_prices", export=_as_is, unit="objective, and base-year money, per unit",
+       doc="Every emission limit's row with its shadow price: value (objective gained per "
+           "unit relaxed) and price (base-year money per unit); one row for a budget.")
+def _emission_prices(s: Solved) -> pd.DataFrame:
+    return s.emissions["emission_prices"]
 
 
 @table("audit_checks", file="audit", attribute=False, export=_as_is,

@@ -151,7 +151,8 @@ def _vintages(spec: Any, c0: float) -> np.ndarray:
 
 
 def revise(plan: Plan, actuals: Any, from_year: int, *, capacity: dict[str, float] | None = None,
-           labour: dict[str, float] | None = None) -> Any:
+           labour: dict[str, float] | None = None,
+           budget_used: dict[int, float] | None = None) -> Any:
     """The plan for ``from_year``..end, starting from what was actually built.
 
     Parameters
@@ -169,6 +170,11 @@ def revise(plan: Plan, actuals: Any, from_year: int, *, capacity: dict[str, floa
     labour : dict of str to float, optional
         Latest labour supply by kind, for ``from_year``; default the original
         supply of that year. It grows at the original rate after.
+    budget_used : dict of int to float, optional
+        For each emission budget (by its index in ``plan.limits``) whose window
+        began before ``from_year``: the amount already emitted in those years;
+        the revised budget is what is left (a budget over earlier years only
+        is dropped). Caps and ceilings keep their remaining years.
 
     Returns
     -------
@@ -280,6 +286,7 @@ def revise(plan: Plan, actuals: Any, from_year: int, *, capacity: dict[str, floa
             ceilings.append(StartsCeiling(sector=sc.sector, at_most=sc.at_most,
                                           years=[y for y in sc.years if y >= from_year]))
     fields_p["starts_ceilings"] = ceilings
+    fields_p["limits"] = _remaining_limits(plan, from_year, budget_used or {})
     if plan.trade is not None:
         imp, exp, inflow = trade_sides(plan)
         t = plan.trade.model_dump()
@@ -291,6 +298,39 @@ def revise(plan: Plan, actuals: Any, from_year: int, *, capacity: dict[str, floa
                           for i, g in enumerate(side.goods) if g in t[key]}
         fields_p["trade"] = Trade(**t)
     return Plan(**fields_p)
+
+
+def _remaining_limits(plan: Any, from_year: int, used: dict[int, float]) -> list[Any]:
+    """The plan's emission limits over the years from ``from_year`` on."""
+    from ..model.satellite import Budget, Cap
+
+    years = list(plan.years)
+    out: list[Any] = []
+    for i, lim in enumerate(plan.limits):
+        window = [years[t] for t in lim.window(years)]
+        left = [y for y in window if y >= from_year]
+        if not left:
+            continue
+        if isinstance(lim, Budget):
+            if left != window:
+                if i not in used:
+                    raise invalid("budget_used", f"give the amount of {lim.what} emitted in "
+                                  f"{window[0]}–{from_year - 1} under limits.{i}", sorted(used))
+                rest = lim.total - float(used[i])
+                if not np.isfinite(rest) or rest < 0:
+                    raise invalid(f"budget_used.{i}", f"be at most the budget ({lim.total:g})",
+                                  used[i])
+                lim = lim.model_copy(update={"total": rest, "first": from_year})
+            out.append(lim)
+        elif isinstance(lim, Cap):
+            path = lim.path(years, f"limits.{i}")
+            out.append(Cap(what=lim.what, at_most=path[len(window) - len(left):].tolist(),
+                           years=left))
+        else:
+            path = lim.path(years, f"limits.{i}")
+            out.append(lim.model_copy(update={"per_gdp": path[years.index(from_year):].tolist(),
+                                              "rate": 0.0}))
+    return out
 
 
 def compare(result_a: Any, result_b: Any, *, quantities: tuple[str, ...] = (

@@ -173,7 +173,7 @@ Distribution = Annotated[Normal | LogNormal | Uniform | Triangular | Empirical,
 
 _WHAT = Literal["input_coefficients", "capital_coefficients", "labour_coefficients",
                 "mean_service_life", "labour_growth", "final_demand", "import_prices",
-                "export_prices"]
+                "export_prices", "intensities"]
 _PRICES = ("import_prices", "export_prices")
 
 
@@ -188,7 +188,10 @@ class Uncertain(Model):
         ``"mean_service_life"`` or ``"final_demand"`` (``cols``: sectors) or
         ``"labour_growth"`` (``cols``: labour kinds with a supply), or
         ``"import_prices"``/``"export_prices"`` (``cols``: goods of the plan's
-        trade with such a price; world prices in the plan's value unit).
+        trade with such a price; world prices in the plan's value unit), or
+        ``"intensities"`` (cells stressors × sectors or technique keys of the
+        plan's satellite accounts; a technique without an intensity of its
+        own follows its sector's draw).
     rows, cols : str or list of str, optional
         Commodities (labour kinds for labour coefficients) and sectors
         selected; all when omitted. One row and one column select one cell.
@@ -207,7 +210,8 @@ class Uncertain(Model):
         "What is uncertain: input_coefficients, capital_coefficients, labour_coefficients "
         "(cells rows x cols), mean_service_life, final_demand (cols: sectors), labour_growth "
         "(cols: labour kinds with a supply), import_prices or export_prices (cols: traded "
-        "goods)."))
+        "goods), intensities (cells stressors x sectors or techniques of the satellite "
+        "accounts)."))
     rows: list[str] | None = Field(default=None, description=(
         "Commodities (labour kinds for labour_coefficients) selected; all when omitted. "
         "Coefficient blocks only."))
@@ -253,7 +257,7 @@ class Uncertain(Model):
     def _fits(self) -> Uncertain:
         if self.rows is not None and self.what not in ("input_coefficients",
                                                        "capital_coefficients",
-                                                       "labour_coefficients"):
+                                                       "labour_coefficients", "intensities"):
             raise Rule(f"be left out for {self.what} (select with cols)", self.rows,
                        field="rows")
         if self.what == "final_demand" and not self.relative:
@@ -281,6 +285,12 @@ class Uncertain(Model):
                 raise invalid(f"{where}.what", "name a block the plan has (no trade with "
                               f"{self.what})", self.what)
             all_rows, all_cols = [""], list(prices)
+        elif self.what == "intensities":
+            if plan.satellite is None:
+                raise invalid(f"{where}.what", "name a block the plan has (no satellite "
+                              "accounts)", self.what)
+            all_rows = [st.name for st in plan.satellite.stressors]
+            all_cols = econ.names + _technique_columns(plan)
         else:
             all_rows, all_cols = [""], econ.names
         rows = self.rows if self.rows is not None else all_rows
@@ -373,6 +383,12 @@ class UncertaintySpec(Model):
         demand = np.ones(econ.n)
         prices = {w: np.array(list(getattr(plan.trade, w).values()), dtype=float)
                   for w in _PRICES if plan.trade is not None}
+        sat = plan.satellite
+        if sat is not None:
+            cols_i = econ.names + _technique_columns(plan)
+            blocks["intensities"] = np.array(
+                [[st.intensities.get(c, np.nan if ":" in c and c not in econ.names else 0.0)
+                  for c in cols_i] for st in sat.stressors], dtype=float)
         touched: set[str] = set()
         for k, (item, drawn) in enumerate(zip(self.items, self.values(plan, i), strict=True)):
             all_rows, all_cols, rows, cols = item._cells(plan, f"items.{k}")
@@ -399,6 +415,15 @@ class UncertaintySpec(Model):
             with warnings.catch_warnings():
                 warnings.simplefilter("ignore")
                 fields["economy"] = Economy(**data)
+        if "intensities" in touched:
+            assert sat is not None
+            stressors = []
+            for st, row in zip(sat.stressors, blocks["intensities"], strict=True):
+                # NaN: a technique without its own intensity, still following its sector
+                given = {c: float(v) for c, v in zip(cols_i, row, strict=True)
+                         if np.isfinite(v) and (v != 0 or c in st.intensities)}
+                stressors.append(st.model_copy(update={"intensities": given}))
+            fields["satellite"] = sat.model_copy(update={"stressors": stressors})
         if "labour_growth" in touched:
             fields["labour"] = [LabourSupply(**{**ls.model_dump(), "growth": float(g)})
                                 for ls, g in zip(plan.labour, growth, strict=True)]
@@ -413,6 +438,11 @@ class UncertaintySpec(Model):
                 trade[w] = dict(zip(trade[w], v.tolist(), strict=True))
             fields["trade"] = Trade(**trade)
         return Plan(**fields)
+
+
+def _technique_columns(plan: Any) -> list[str]:
+    """Technique keys of the plan's alternative techniques (cells of drawn intensities)."""
+    return [tq.key for tq in plan.techniques if tq.key not in plan.economy.names]
 
 
 # -- the analyses ---------------------------------------------------------------------------

@@ -7,8 +7,13 @@ and coefficient tables (CSV or Excel) and their aggregation,
 symmetric ones, :mod:`~growthplan.statistics.balancing` updates a matrix to
 new totals (RAS, GRAS), :mod:`~growthplan.statistics.capital_flows` estimates
 capital coefficients, :mod:`~growthplan.statistics.employment` labour by kind,
-and :mod:`~growthplan.statistics.build` the economy spec that turns them into
-an economy.
+:mod:`~growthplan.statistics.valuation` the valuation layers and the rules for
+special cells, :mod:`~growthplan.statistics.published` tables as offices
+publish them, :mod:`~growthplan.statistics.skeleton` a first plan of a built
+economy, :mod:`~growthplan.statistics.satellite` emissions and resources by
+sector, :mod:`~growthplan.statistics.regions` interregional tables and trade
+shares, and :mod:`~growthplan.statistics.build` the economy spec that turns
+them into an economy.
 
 The names below are loaded on first use.
 """
@@ -21,7 +26,15 @@ from ..lazy import attribute
 
 if TYPE_CHECKING:
     from .balancing import Balanced, gras, ras
-    from .build import BuildReport, EconomySpec, build_economy, economy_spec_schema, write_economy
+    from .build import (
+        BuildReport,
+        EconomySpec,
+        PublishedSpec,
+        build_economy,
+        economy_spec_schema,
+        plan_skeleton_of,
+        write_economy,
+    )
     from .capital_flows import (
         capital_coefficients_from_ratios,
         investment_matrix,
@@ -29,6 +42,10 @@ if TYPE_CHECKING:
     )
     from .employment import Employment, employment_table, labour_coefficients
     from .layouts import LAYOUT_VERSION, LocatedTable, TableLayout, read_table
+    from .published import PublishedEconomy, PublishedTables, published_economy, read_published
+    from .regions import interregional_economy, read_interregional, read_trade_shares
+    from .satellite import read_satellite, satellite_from_frame
+    from .skeleton import PlanSkeleton, plan_skeleton
     from .supply_use import MODELS, SupplyUseTable, SymmetricTable
     from .tables import (
         TransactionsTable,
@@ -38,6 +55,14 @@ if TYPE_CHECKING:
         read_frame,
         read_transactions,
         write_coefficient_tables,
+    )
+    from .valuation import (
+        SUPPRESSED,
+        Valuation,
+        fill_suppressed,
+        negative_supply,
+        negative_uses,
+        to_basic_prices,
     )
 
 _LAZY = {
@@ -54,10 +79,34 @@ _LAZY = {
     "labour_coefficients": "employment",
     "LAYOUT_VERSION": "layouts", "LocatedTable": "layouts", "TableLayout": "layouts",
     "read_table": "layouts",
+    "PublishedSpec": "build", "plan_skeleton_of": "build",
+    "PublishedEconomy": "published", "PublishedTables": "published",
+    "published_economy": "published", "read_published": "published",
+    "PlanSkeleton": "skeleton", "plan_skeleton": "skeleton",
+    "SUPPRESSED": "valuation", "Valuation": "valuation", "fill_suppressed": "valuation",
+    "negative_supply": "valuation", "negative_uses": "valuation",
+    "to_basic_prices": "valuation",
+    "read_satellite": "satellite", "satellite_from_frame": "satellite",
+    "interregional_economy": "regions", "read_interregional": "regions",
+    "read_trade_shares": "regions",
 }
 
 __all__ = [
     "Balanced",
+    "PlanSkeleton",
+    "PublishedEconomy",
+    "PublishedSpec",
+    "PublishedTables",
+    "SUPPRESSED",
+    "Valuation",
+    "fill_suppressed",
+    "negative_supply",
+    "negative_uses",
+    "plan_skeleton",
+    "plan_skeleton_of",
+    "published_economy",
+    "read_published",
+    "to_basic_prices",
     "BuildReport",
     "EconomySpec",
     "Employment",
@@ -75,12 +124,17 @@ __all__ = [
     "economy_from_coefficients",
     "economy_spec_schema",
     "employment_table",
+    "interregional_economy",
     "gras",
     "investment_matrix",
     "labour_coefficients",
+    "read_satellite",
+    "satellite_from_frame",
     "ras",
     "read_frame",
+    "read_interregional",
     "read_table",
+    "read_trade_shares",
     "read_transactions",
     "stocks_from_investment",
     "write_coefficient_tables",

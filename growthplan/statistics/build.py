@@ -54,7 +54,7 @@ from __future__ import annotations
 import csv
 import io
 import os
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Annotated, Any, Literal
 
@@ -75,10 +75,13 @@ from .capital_flows import (
 )
 from .employment import Employment, employment_table
 from .layouts import LAYOUT_VERSION, LocatedTable, TableLayout, read_table
+from .published import PublishedEconomy, PublishedTables, published_economy, read_published
+from .skeleton import PlanSkeleton, plan_skeleton
 from .supply_use import MODELS, SupplyUseTable, SymmetricTable
 from .tables import write_coefficient_tables
 
-__all__ = ["EconomySpec", "BuildReport", "build_economy", "write_economy",
+__all__ = ["EconomySpec", "PublishedSpec", "BuildReport", "build_economy", "write_economy",
+           "plan_skeleton_of",
            "economy_spec_schema", "SPEC_MAX_BYTES"]
 
 SPEC_MAX_BYTES = 1 << 20
@@ -173,19 +176,109 @@ class EconomySpec(Model):
     negatives: Literal["raise", "zero", "industry_technology"] = "raise"
     tolerance: float = Field(default=0.005, ge=0, lt=1)
     consumption_column: str | None = None
+    base_year: int | None = Field(default=None, ge=1000, le=9999)
     aggregation: Aggregation | None = None
     employment: EmploymentSpec | None = None
     capital: CapitalSection
 
 
+class PublishedFiles(Model):
+    """The supply and use tables as the office publishes them (CSV files)."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    supply: str = Field(min_length=1)
+    use: str = Field(min_length=1)
+    labels: str | None = Field(default=None, min_length=1)  # code, label: for code-only tables
+
+
+class PublishedCapital(Model):
+    """Capital of an economy built from published tables: one line is enough.
+
+    Parameters
+    ----------
+    capital_output_ratio : float, optional
+        Capital stock per unit of value added, for every industry.
+    stocks : mapping or table, optional
+        Capital stocks by industry (instead of the ratio).
+    service_life : float, default 20
+        Mean service life, years.
+    past_growth : float, default 0
+        Growth rate of investment before the base year.
+    """
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    capital_output_ratio: float | None = Field(default=None, gt=0, lt=100)
+    stocks: Values | None = None
+    service_life: Years = 20.0
+    past_growth: float = Field(default=0.0, gt=-1, lt=1)
+
+
+class PublishedLabour(Model):
+    """Labour of an economy built from published tables.
+
+    Parameters
+    ----------
+    wage : float, optional
+        Average compensation per labour unit (value units): labour is
+        compensation of employees divided by it.
+    employment : mapping or table, optional
+        Persons employed by industry (instead of the wage).
+    unit : str, default "thousand person-years"
+    kind : str, default "employees"
+    """
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    wage: float | None = Field(default=None, gt=0)
+    employment: Values | None = None
+    unit: str = Field(default="thousand person-years", min_length=1)
+    kind: str = Field(default="employees", min_length=1)
+
+
+class PublishedSpec(Model):
+    """An economy spec for published tables (layout version 1, see the module notes).
+
+    ``valuation`` is ``proportional`` (the default: proportional margins) or
+    ``exact``, which needs ``margins`` (a margin table, laid out like the use
+    table, for each margin product: ``{product: file}``) and may give
+    ``taxes`` (taxes less subsidies on products, laid out likewise).
+    """
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    layout_version: Literal[1]
+    description: str | None = None
+    value_unit: str = Field(min_length=1)
+    base_year: int | None = Field(default=None, ge=1000, le=9999)
+    published: PublishedFiles
+    valuation: Literal["proportional", "exact"] = "proportional"
+    margins: dict[str, str] | None = None
+    taxes: str | None = None
+    negatives: Literal["byproduct", "net"] = "byproduct"
+    model: Literal["product_technology", "industry_technology", "fixed_industry_sales",
+                   "fixed_product_sales"] = "fixed_product_sales"
+    consumption_column: str | None = None
+    tolerance: float = Field(default=0.005, ge=0, lt=1)
+    capital: PublishedCapital
+    labour: PublishedLabour
+
+
 def economy_spec_schema() -> dict[str, Any]:
     """The JSON Schema of economy spec files (layout version 1).
+
+    A spec is one of two kinds: tables in the library's layouts
+    (``supply``, ``use``, ...) or tables as an office publishes them
+    (``published``).
 
     Returns
     -------
     dict
     """
-    schema = EconomySpec.model_json_schema()
+    from pydantic import TypeAdapter
+
+    schema = TypeAdapter(EconomySpec | PublishedSpec).json_schema()
     schema["title"] = "growthplan economy spec"
     schema["$comment"] = f"layout_version {LAYOUT_VERSION}"
     return schema
@@ -253,7 +346,7 @@ def _read_spec(path: Path) -> tuple[dict[str, Any], Any]:
                  holds="a mapping (an economy spec)")
 
 
-def _spec(path: Path) -> tuple[EconomySpec, Any]:
+def _spec(path: Path) -> tuple[EconomySpec | PublishedSpec, Any]:
     from ..io.planfile import _located
 
     data, node = _read_spec(path)
@@ -262,6 +355,8 @@ def _spec(path: Path) -> tuple[EconomySpec, Any]:
         raise _located(invalid("layout_version", f"be {LAYOUT_VERSION} (the layout this "
                                "version of growthplan reads)", version), path, node, [])
     try:
+        if "published" in data:
+            return PublishedSpec.model_validate(data), node
         return EconomySpec.model_validate(data), node
     except InvalidInput as exc:
         raise _located(exc, path, node, []) from None
@@ -340,6 +435,13 @@ def _spec_inputs(spec_path: str | os.PathLike[str]) -> list[Path]:
     an output folder holding any of them before the build)."""
     path = Path(spec_path)
     spec, _ = _spec(path)
+    if isinstance(spec, PublishedSpec):
+        pub = [spec.published.supply, spec.published.use, spec.published.labels,
+               spec.capital.stocks,
+               spec.labour.employment, spec.taxes, *(spec.margins or {}).values()]
+        pnames = [r.file if isinstance(r, TableLayout) else r for r in pub]
+        return [path] + [path.parent / n for n in pnames
+                         if isinstance(n, str) and "\0" not in n]
     cap, agg = spec.capital, spec.aggregation
     refs: list[Any] = [spec.supply, spec.use, spec.imports_use, cap.stocks, cap.flows,
                        cap.investment, cap.composition, cap.capital_output_ratios]
@@ -516,9 +618,10 @@ def _capital_stocks(files: _Files, spec: EconomySpec, products: list[str],
         return t.frame.reindex(index=products, columns=industries).fillna(0.0)
 
     g = cap.past_growth
-    steady = (f"stocks estimated from one year's investment by the steady-state perpetual "
-              f"inventory K = I (1 + g) / (g + 1/L), with investment grown at g = {g:g} a "
-              f"year and geometric retirement over the mean service life L")
+    steady = ("stocks estimated from one year's investment as the capital still in service "
+              f"if investment had grown {100 * g:g} % a year before the base year and capital "
+              "retired geometrically over its mean service life (the steady-state perpetual "
+              "inventory)")
     if source == "stocks":
         stocks = matrix(files.table(cap.stocks, "capital.stocks"))  # type: ignore[arg-type]
         assumptions.append("Capital: the capital stock matrix as published (products × "
@@ -557,8 +660,50 @@ def _capital_stocks(files: _Files, spec: EconomySpec, products: list[str],
     return stocks, life
 
 
+def _build_published(spec: PublishedSpec, files: _Files) -> tuple[Economy, PublishedEconomy]:
+    """The published-tables route of :func:`build_economy`."""
+    labels = None if spec.published.labels is None else files.path(spec.published.labels,
+                                                                   "published.labels")
+    tables = PublishedTables.read(files.path(spec.published.supply, "published.supply"),
+                                  files.path(spec.published.use, "published.use"),
+                                  labels=labels, tolerance=spec.tolerance)
+    margins = taxes = None
+    if spec.valuation == "exact":
+        if not spec.margins:
+            raise files.located(invalid("margins", "be given for valuation: exact ({margin "
+                                        "product: margin table file})", spec.margins))
+        rename = {code: name for name, code in tables.codes.items()}
+
+        def layer(name: str, what: str) -> pd.DataFrame:
+            frame = read_published(files.path(name, what), what=what).frame.fillna(0.0)
+            return frame.rename(columns=rename)
+
+        margins = {p: layer(f, f"margins.{p}") for p, f in spec.margins.items()}
+        taxes = None if spec.taxes is None else layer(spec.taxes, "taxes")
+    elif spec.margins is not None or spec.taxes is not None:
+        raise files.located(invalid("valuation", "be exact when margin or tax tables are "
+                                    "given", spec.valuation))
+    stocks = employment = None
+    if spec.capital.stocks is not None:
+        stocks = files.values(spec.capital.stocks, "capital.stocks")
+    if spec.labour.employment is not None:
+        employment = files.values(spec.labour.employment, "labour.employment")
+    for what, value in (("capital.stocks", stocks), ("labour.employment", employment)):
+        if isinstance(value, pd.DataFrame):
+            raise invalid(what, "be one figure per industry", f"{value.shape[1]} columns")
+    econ, report = published_economy(
+        tables, value_unit=spec.value_unit, model=spec.model, valuation=spec.valuation,
+        margins=margins, taxes=taxes,
+        negatives=spec.negatives, capital_output_ratio=spec.capital.capital_output_ratio,
+        capital_stocks=stocks, service_life=float(spec.capital.service_life),
+        past_growth=spec.capital.past_growth, employment=employment,
+        wage=spec.labour.wage, labour_unit=spec.labour.unit, labour_kind=spec.labour.kind,
+        consumption_column=spec.consumption_column, tolerance=spec.tolerance)
+    return econ, replace(report, spec=spec, inputs=list(dict.fromkeys(files.read)))
+
+
 def build_economy(spec_path: str | os.PathLike[str], *, allow_outside: bool = False
-                  ) -> tuple[Economy, BuildReport]:
+                  ) -> tuple[Economy, BuildReport | PublishedEconomy]:
     """Read an economy spec and its tables into a validated :class:`~growthplan.Economy`.
 
     Parameters
@@ -584,6 +729,8 @@ def build_economy(spec_path: str | os.PathLike[str], *, allow_outside: bool = Fa
     path = Path(spec_path)
     spec, node = _spec(path)
     files = _Files(path, allow_outside, node)
+    if isinstance(spec, PublishedSpec):
+        return _build_published(spec, files)
     assumptions: list[str] = [f"Values in {spec.value_unit}."]
     sut, emp, supply, use = _sut(files, spec, assumptions)
     products, industries = sut.products, sut.industries
@@ -675,10 +822,14 @@ def build_economy(spec_path: str | os.PathLike[str], *, allow_outside: bool = Fa
                          "retirement": cap.retirement, "lead_time": cap.lead_time,
                          "max_utilisation": cap.max_utilisation,
                          "past_growth": cap.past_growth}
-    assumptions.append(f"Capital of each sector: capacity = base-year output / "
-                       f"{cap.max_utilisation:g} (maximum utilisation); {cap.retirement} "
-                       f"retirement; lead time {cap.lead_time} year(s); service life the "
-                       "capital-weighted mean of its industries'.")
+    full = ("its base-year output, capacity being fully used in the base year"
+            if cap.max_utilisation == 1 else
+            f"its base-year output divided by {100 * cap.max_utilisation:g} %, the largest "
+            "share of capacity that can be used")
+    assumptions.append(f"Capital of each sector: its capacity is {full}; capital retires "
+                       f"by the {cap.retirement.replace('_', ' ')} profile, new capacity "
+                       f"takes {cap.lead_time} year(s) to build, and the service life is the "
+                       "mean of its industries' lives weighted by their capital.")
     kwargs: dict[str, Any] = {"value_unit": spec.value_unit}
     if emp is not None:
         kwargs["labour_units"] = [emp.unit] * len(emp.kinds)
@@ -716,6 +867,8 @@ def economy_section(econ: Economy, files: dict[str, str]) -> dict[str, Any]:
     out["value_unit"] = econ.value_unit
     if econ.labour_units is not None:
         out["labour_units"] = list(econ.labour_units)
+    if econ.labour_coefficients is not None:
+        out["labour_kinds"] = [str(k) for k in econ.labour_kinds or []]
     if econ.base_output is not None:
         out["base_output"] = {n: float(v) for n, v in zip(econ.names, econ.base_output,
                                                           strict=True)}
@@ -725,8 +878,45 @@ def economy_section(econ: Economy, files: dict[str, str]) -> dict[str, Any]:
     return out
 
 
-def write_economy(econ: Economy, report: BuildReport, folder: str | os.PathLike[str], *,
-                  overwrite: bool = False) -> list[Path]:
+def plan_skeleton_of(econ: Economy, report: BuildReport | PublishedEconomy, *,
+                     years: int = 30) -> PlanSkeleton:
+    """The plan skeleton of a built economy (see :mod:`growthplan.statistics.skeleton`).
+
+    Government's and foreign demand are the final uses other than household
+    consumption, fixed investment and inventories, by sector; the base year
+    is the spec's ``base_year``.
+
+    Parameters
+    ----------
+    econ : Economy
+    report : BuildReport or PublishedEconomy
+    years : int, default 30
+
+    Returns
+    -------
+    PlanSkeleton
+    """
+    base_year = report.spec.base_year if report.spec is not None else None
+    if base_year is None:
+        raise invalid("base_year", "be given in the economy spec for a plan (the year of the "
+                      "tables)", None)
+    if isinstance(report, PublishedEconomy):
+        other = report.other_demand().to_numpy()
+        base_c: float | None = report.base_consumption()
+    else:
+        f = report.symmetric.final_demand
+        cons = report.spec.consumption_column
+        words = ("gfcf", "investment", "capital formation", "inventor", "stocks")
+        cols = [c for c in f.columns if c != cons and not any(w in c.lower() for w in words)]
+        other = f[cols].sum(axis=1).to_numpy()
+        base_c = None if cons is None else float(f[cons].clip(lower=0.0).sum())
+    return plan_skeleton(econ, base_year=base_year, years=years, other_demand=other,
+                         base_consumption=base_c)
+
+
+def write_economy(econ: Economy, report: BuildReport | PublishedEconomy,
+                  folder: str | os.PathLike[str], *, overwrite: bool = False,
+                  skeleton: PlanSkeleton | None = None) -> list[Path]:
     """Write the economy's coefficient tables, ``economy.yaml`` and ``assumptions.md``.
 
     The folder appears whole or not at all (:func:`~growthplan.io.atomic_folder`);
@@ -734,14 +924,18 @@ def write_economy(econ: Economy, report: BuildReport, folder: str | os.PathLike[
     only files the library wrote there are replaced.
 
     ``economy.yaml`` holds the ``economy`` section of a plan file in that
-    folder (the tables, units, base-year output, consumption basket).
+    folder (the tables, units, labour kinds, base-year output, consumption
+    basket); with a ``skeleton``, ``plan.yaml`` is a whole plan file (that
+    section, the skeleton's plan section) and its assumptions join
+    ``assumptions.md``.
 
     Parameters
     ----------
     econ : Economy
-    report : BuildReport
+    report : BuildReport or PublishedEconomy
     folder : path
     overwrite : bool, default False
+    skeleton : PlanSkeleton, optional
 
     Returns
     -------
@@ -758,6 +952,15 @@ def write_economy(econ: Economy, report: BuildReport, folder: str | os.PathLike[
                   "economy section and a plan section.\n")
         (tmp / "economy.yaml").write_text(header + yaml.safe_dump(
             {"economy": section}, sort_keys=False, allow_unicode=True), encoding="utf-8")
-        (tmp / "assumptions.md").write_text(report.to_markdown(), encoding="utf-8")
+        text = report.to_markdown()
+        if skeleton is not None:
+            text += "\n## The plan skeleton (plan.yaml)\n\n" + "".join(
+                f"- {a}\n" for a in skeleton.assumptions)
+            (tmp / "plan.yaml").write_text(
+                "# A first plan of the economy built by growthplan (see assumptions.md): "
+                "edit it, then\n# growthplan solve plan.yaml\n" + yaml.safe_dump(
+                    {"economy": section, "plan": skeleton.section, "solve": {"method": "auto"}},
+                    sort_keys=False, allow_unicode=True), encoding="utf-8")
+        (tmp / "assumptions.md").write_text(text, encoding="utf-8")
         names = sorted(p.name for p in tmp.iterdir() if not p.name.startswith("."))
     return [target / n for n in names]

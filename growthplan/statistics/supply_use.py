@@ -452,8 +452,10 @@ class SupplyUseTable:
             rest = f_home * share
         fd = f.copy()
         if home:
-            weights = f[home].div(f_home.where(f_home > 0, 1.0), axis=0)
-            short = rest > f_home * (1 + self.tolerance) + 1e-12
+            # shares of the home final uses; their sum may be negative (inventories)
+            weights = f[home].div(f_home.where(f_home != 0, 1.0), axis=0)
+            # magnitudes: home final uses may be negative (inventories drawn down)
+            short = rest.abs() > f_home.abs() * (1 + self.tolerance) + 1e-12
             if short.any():
                 p = rest.index[short.to_numpy()][0]
                 raise invalid(f"imports[{p}]", "be covered by intermediate and final uses at "

@@ -27,9 +27,15 @@ G = 0.15  # one_sector(): (1 − a)/b − δ = 0.4/2 − 1/20 (Harrod–Domar, R
 BACKENDS = {
     "highs-simplex": lambda: gp.HighsBackend("simplex"),
     "highs-ipm": lambda: gp.HighsBackend("ipm"),
+    # the state form of capacity must give the same plans, audits, diagnoses and duals
+    "highs-ipm-state": lambda: gp.HighsBackend("ipm", formulation="state"),
+    "highs-simplex-state": lambda: gp.HighsBackend("simplex", formulation="state"),
     "pulp-cbc": lambda: gp.PulpBackend(cbc_solver()),
+    "pulp-cbc-state": lambda: gp.PulpBackend(cbc_solver(), formulation="state"),
     "pulp-highs": lambda: gp.PulpBackend(pulp.HiGHS(msg=False)),
 }
+if gp.HighsBackend.hipo_available():  # the hipo extra: HiPO, in the state form auto gives it
+    BACKENDS["highs-hipo"] = lambda: gp.HighsBackend("hipo")
 PULP = ["pulp-cbc", "pulp-highs"]
 
 
@@ -211,6 +217,53 @@ class TestDuals:
         cap, level = lp.rows["capacity"], lp.rows["terminal_level"]
         d_c0 = out.row_dual[cap.start:cap.stop].sum() - out.row_dual[level.start]
         assert d_c0 == pytest.approx(1.04 ** 5, rel=1e-6)
+
+
+def emission_plan(limit, **kw) -> gp.Plan:
+    """One sector emitting 0.5 t per unit of output, with one limit on it."""
+    sat = gp.Satellite(stressors=[gp.Stressor(name="CO2", unit="t", intensities={"goods": 0.5})])
+    return gp.Plan(economy=one_sector(), years=range(2030, 2036), satellite=sat,
+                   limits=[limit], **kw)
+
+
+class TestEmissions:
+    def test_cap_binds_at_cap_over_intensity(self, backend):
+        """Output at most E/e = 60/0.5 = 120 once capacity allows it (closed form); the
+        objective and the cap's prices equal the reference back end's."""
+        plan = emission_plan(gp.Cap(what="CO2", at_most=60.0))
+        r = assert_optimal(plan.solve(backend=backend))
+        np.testing.assert_allclose(r.output["goods"].to_numpy()[2:], 120.0, rtol=1e-7)
+        ref = reference(plan)
+        assert r.objective == pytest.approx(ref.objective, rel=1e-7)
+        if Feature.DUALS in backend.features:
+            np.testing.assert_allclose(r.emission_prices["value"],
+                                       ref.emission_prices["value"], rtol=1e-6, atol=1e-9)
+
+    def test_budget_price_is_the_derivative(self, backend):
+        """A budget's one dual equals dV/dB by central difference (LP duality; the
+        difference taken on the reference back end, whose objective is exact to rounding)."""
+        if Feature.DUALS not in backend.features:
+            pytest.skip("back end gives no duals")
+        r = assert_optimal(emission_plan(gp.Budget(what="CO2", total=330.0))
+                           .solve(backend=backend))
+        h = 1e-2
+        v = [assert_optimal(reference(emission_plan(gp.Budget(what="CO2",
+                                                              total=330.0 + s * h)))).objective
+             for s in (1, -1)]
+        assert r.emission_prices["value"].iloc[0] == pytest.approx((v[0] - v[1]) / (2 * h),
+                                                                   rel=1e-6)
+
+    def test_impossible_budget_is_diagnosed_in_tonnes(self, backend):
+        """Demand 30 needs output 30/(1 − 0.6) = 75 and 37.5 t a year: 187.5 t over
+        2031–2035 against a budget of 150 t, an excess of 37.5 t (by hand)."""
+        plan = emission_plan(gp.Budget(what="CO2", total=150.0, first=2031, last=2035),
+                             final_demand={"goods": 30.0})
+        r = assert_infeasible(plan.solve(backend=backend))
+        short = r.diagnosis.shortfalls
+        assert list(short["condition"]) == ["emissions budget"]
+        assert short["shortfall"].iloc[0] == pytest.approx(37.5, rel=1e-6)
+        assert r.diagnosis.headline() == ("Cannot be met: emissions of CO2 in 2031–2035 "
+                                          "exceed the budget by 37.5 t.")
 
 
 @pytest.mark.parametrize("name", PULP)

@@ -27,6 +27,12 @@ sectors over the sizes of one horizon. The wall clock left out of the
 library's ``result.timings`` is printed, and the peak-memory and solve-time
 estimates of ``plan.estimate_size()`` beside the measured figures.
 
+``--forms SIZES`` times the bare solve of each capacity formulation × method
+(expression and state form; IPX, and HiPO when the ``hipo`` extra is
+installed) in interleaved rounds, as ratios to the expression form by IPX, with
+HiPO's factorisation counts; the measurements behind ``auto``
+(``growthplan.backends.methods.MEASUREMENTS``).
+
 ``--crossover SIZES`` compares only simplex and interior point on small
 plans (where ``auto`` switches); ``--memory SIZES`` only measures the peak
 memory of a fresh process per size (``--stages``: after build, passModel and
@@ -61,9 +67,11 @@ from growthplan.backends.highs import AUTO_IPM_NONZEROS, METHODS, choose_method 
 DEFAULT_SIZES = "30x20,100x30,200x30"
 
 
-def _highs(method: str, time_limit: float | None) -> highspy.Highs:
+def _highs(method: str, time_limit: float | None,
+           extra: dict[str, Any] | None = None) -> highspy.Highs:
     h = highspy.Highs()
-    opts: dict[str, Any] = {"output_flag": False, "random_seed": 0, **METHODS[method]}
+    opts: dict[str, Any] = {"output_flag": False, "random_seed": 0, **METHODS[method],
+                            **(extra or {})}
     if time_limit is not None:
         opts["time_limit"] = float(time_limit)
     for k, v in opts.items():
@@ -109,9 +117,10 @@ def _highs_lp(lp: Any) -> highspy.HighsLp:
     return model
 
 
-def bare(lp: Any, method: str, time_limit: float | None = None) -> dict[str, Any]:
+def bare(lp: Any, method: str, time_limit: float | None = None,
+         extra: dict[str, Any] | None = None) -> dict[str, Any]:
     """passModel (numpy arrays) and run, timed apart."""
-    h = _highs(method, time_limit)
+    h = _highs(method, time_limit, extra)
     t0 = time.perf_counter()
     if h.passModel(*_arrays(lp)) == highspy.HighsStatus.kError:
         raise SystemExit("HiGHS refused the model")
@@ -122,7 +131,66 @@ def bare(lp: Any, method: str, time_limit: float | None = None) -> dict[str, Any
     info = h.getInfo()
     return {"transfer": t1 - t0, "run": t2 - t1, "cpu": time.process_time() - c1,
             "status": h.modelStatusToString(h.getModelStatus()),
-            "objective": float(info.objective_function_value)}
+            "objective": float(info.objective_function_value),
+            "iterations": int(info.ipm_iteration_count) + int(info.simplex_iteration_count)}
+
+
+def forms(sizes: str, rounds: int) -> None:
+    """Bare solve time of each formulation × method over expression form × IPX (as auto).
+
+    Each round runs every combination once, in an order rotated from round to
+    round; min and median of the ratios taken within a round, and of each
+    solve's process CPU time (disturbed far less than the wall clock on a loaded
+    machine; HiGHS's own threads count in it). On the ``hipo`` install (highspy
+    1.15.1) IPX runs with presolve off too, as ``auto`` does.
+    """
+    from growthplan.backends.highs import hipo_available
+    from growthplan.backends.methods import choose
+
+    hipo = hipo_available()
+    # (formulation, method, presolve); "rule" is what auto sets on this install
+    combos = [("expression", "ipm", "rule"), ("state", "ipm", "rule"),
+              ("expression", "ipm", "off"), ("state", "ipm", "off")]
+    if hipo:  # the hipo install's rule already turns presolve off
+        combos = [("expression", "ipm", "rule"), ("state", "ipm", "rule"),
+                  ("state", "hipo", "rule")]
+    print(f"highspy {highspy.Highs().version()}; HiPO {'installed' if hipo else 'absent'}; "
+          f"{rounds} interleaved rounds; ratios to expression form × ipm (min / median)")
+    for size in sizes.split(","):
+        n, years = (int(v) for v in size.lower().split("x"))
+        plan = make_plan(economy(n), years)
+        lps = {f: plan.compile(formulation=f, size_limit=None) for f in ("expression", "state")}
+        times: dict[tuple[str, str, str], list[float]] = {c: [] for c in combos}
+        cpus: dict[tuple[str, str, str], list[float]] = {c: [] for c in combos}
+        ratios: dict[tuple[str, str, str], list[float]] = {c: [] for c in combos}
+        last: dict[tuple[str, str, str], dict[str, Any]] = {}
+        first = combos[0]
+        for k in range(rounds):
+            order = combos[k % len(combos):] + combos[:k % len(combos)]
+            got = {}
+            for c in order:
+                f, m, pre = c
+                extra = dict(choose(lps[f].nnz, hipo=hipo, method=m).options)
+                if pre != "rule":
+                    extra["presolve"] = pre
+                got[c] = last[c] = bare(lps[f], m, extra=extra)
+                times[c].append(got[c]["run"])
+                cpus[c].append(got[c]["cpu"])
+            for c in combos:
+                ratios[c].append(got[c]["run"] / got[first]["run"])
+        ref = last[first]["objective"]
+        print(f"  {size}: expression {lps['expression'].nnz:,} nonzeros, state "
+              f"{lps['state'].nnz:,}", flush=True)
+        for c in combos:
+            r, t = ratios[c], times[c]
+            gap = abs(last[c]["objective"] - ref) / max(1.0, abs(ref))
+            pre = "" if c[2] == "rule" else f", presolve {c[2]}"
+            print(f"    {c[0]:>10} × {c[1]:<5}{pre:<14} run {min(t):8.3f} / "
+                  f"{statistics.median(t):8.3f} s"
+                  f"  ratio {min(r):.2f} / {statistics.median(r):.2f}  CPU "
+                  f"{min(cpus[c]):.3f} / {statistics.median(cpus[c]):.3f} s  "
+                  f"{last[c]['iterations']} iterations, {last[c]['status']}, "
+                  f"objective differs {gap:.1e}", flush=True)
 
 
 def transfer_field_by_field(lp: Any) -> float:
@@ -153,11 +221,14 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
     econ = economy(n)
     plan = make_plan(econ, years)
     est = plan.estimate_size()
-    lp = plan.compile()
+    from growthplan.backends.highs import HighsBackend
+
+    rule = HighsBackend().rule(int(est["nonzeros"]))  # what auto solves: the same LP bare
+    lp = plan.compile(formulation=rule.formulation, size_limit=None)
     del plan
     out: dict[str, Any] = {"size": size, "rows": lp.shape[0], "cols": lp.shape[1],
                            "nonzeros": int(lp.nnz), "estimate_mb": est["peak_bytes"] / 2**20,
-                           "estimate_seconds": est["seconds"]}
+                           "estimate_seconds": est["seconds"], "rule": rule.describe()}
     reps = repeats if lp.nnz < cheap else 1
     e2e: list[dict[str, Any]] = []
     own: list[dict[str, Any]] = []
@@ -168,7 +239,7 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
         if i == 0:
             out["peak_rss_mb"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
             out["method"] = e2e[0]["method"]
-        own.append(bare(lp, out["method"]))
+        own.append(bare(lp, out["method"], extra=rule.options))
         if not first:
             e2e.append(end_to_end(econ, years))
     out["repeats"] = reps
@@ -193,7 +264,7 @@ def child(size: str, methods: list[str], time_limit: float, repeats: int,
     out["others"] = {}
     for m in methods:
         if m != out["method"]:
-            out["others"][m] = bare(lp, m, time_limit)
+            out["others"][m] = bare(lp, m, time_limit, extra=rule.options)
     return out
 
 
@@ -259,10 +330,14 @@ def memory_child(size: str, stages: bool) -> dict[str, Any]:
         warnings.simplefilter("ignore")
         if not stages:
             t0 = time.perf_counter()
+            c0 = time.process_time()
             r = plan.solve()
             out.update(status=str(r.status), peak_mb=_peak_mb(), wall=time.perf_counter() - t0,
+                       cpu=time.process_time() - c0,
                        timings=dict(r.timings), estimate_seconds=est["seconds"],
-                       objective=float(r.objective))
+                       objective=float(r.objective), method=r.solver["method"],
+                       formulation=r.lp.formulation,
+                       iterations=r.outcome.iterations)
             return out
         lp = plan.compile()
     m = lp.matrix
@@ -307,9 +382,10 @@ def memory(sizes: str, stages: bool) -> None:
               f"{r['imports_mb']:.0f} MB; {r['status']}", flush=True)
         if not stages:
             tm = ", ".join(f"{k} {v:.3f}" for k, v in r["timings"].items())
-            print(f"          end to end {r['wall']:.1f} s (rough estimate of the solve "
-                  f"{r['estimate_seconds']:.1f} s); timings: {tm}; objective "
-                  f"{r['objective']:.10g}", flush=True)
+            print(f"          end to end {r['wall']:.1f} s, process CPU {r['cpu']:.1f} s "
+                  f"(rough estimate of the solve {r['estimate_seconds']:.1f} s); "
+                  f"{r['formulation']} form, {r['method']}, iterations {r['iterations']}; "
+                  f"timings: {tm}; objective {r['objective']:.10g}", flush=True)
         if stages:
             print(f"          the LP's own arrays {r['lp_mb']:.0f} MB; resident / peak after "
                   f"build {r['built'][0]:.0f} / {r['built'][1]:.0f} MB, after passModel "
@@ -322,6 +398,7 @@ def show(r: dict[str, Any]) -> None:
     tm = ", ".join(f"{k} {v:.3f}" for k, v in r["timings"].items())
     print(f"\n== {r['size']}: {r['rows']:,} rows, {r['cols']:,} columns, "
           f"{r['nonzeros']:,} nonzeros (median of {r['repeats']})")
+    print(f"  auto: {r['rule']}")
     print(f"  library end to end     {r['e2e']:8.2f} s  {r['e2e_all']}  "
           f"({r['e2e_status']}, {r['method']}, scaled={r['scaled']}, "
           f"objective {r['e2e_objective']:.10g})")
@@ -348,13 +425,18 @@ def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("sizes", nargs="?", default=DEFAULT_SIZES,
                     help="comma-separated SECTORSxYEARS (default %(default)s)")
-    ap.add_argument("--methods", default=",".join(METHODS),
-                    help="HiGHS methods for the bare solves (default: all)")
+    from growthplan.backends.highs import hipo_available
+
+    ap.add_argument("--methods", default=",".join(m for m in METHODS
+                                                  if m != "hipo" or hipo_available()),
+                    help="HiGHS methods for the bare solves (default: all installed)")
     ap.add_argument("--time-limit", type=float, default=60.0,
                     help="seconds for each method other than the library's")
     ap.add_argument("--repeats", type=int, default=3)
     ap.add_argument("--cheap-nonzeros", type=int, default=1_000_000,
                     help="repeat only LPs with fewer nonzeros")
+    ap.add_argument("--forms", metavar="SIZES",
+                    help="only compare the capacity formulations × methods on these sizes")
     ap.add_argument("--crossover", metavar="SIZES",
                     help="only compare simplex and interior point on these small sizes "
                          "(e.g. 5x10,10x15,15x15,25x20), where auto switches")
@@ -375,6 +457,9 @@ def main() -> None:
         return
     if a.memory:
         memory(a.memory, a.stages)
+        return
+    if a.forms:
+        forms(a.forms, a.repeats)
         return
     if a.crossover:
         crossover(a.crossover, a.repeats)

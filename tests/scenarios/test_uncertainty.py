@@ -328,3 +328,29 @@ def test_warm_pool_and_a_dask_cluster_give_the_serial_table(small):
             distributed.Client(cluster) as client:
         same(serial, reoptimise(plan, spec, 5, executor=client.get_executor(), chunk=1,
                                 in_flight=2))
+
+
+def test_draws_in_the_state_form_match_the_expression_form_on_any_executor(small):
+    """Re-optimised draws solved in the state form of capacity: the same table serially
+    and on a pool, and the same figures as the expression form (the same LP written
+    another way, so equal to solver tolerance)."""
+    plan, _ = small
+    spec = UncertaintySpec(items=[
+        Uncertain(what="capital_coefficients", distribution=Uniform(low=0.9, high=1.1),
+                  correlation="independent")], seed=4)
+
+    def table(result):
+        t = result.table
+        return t[t.quantity != "solve_seconds"].reset_index(drop=True)
+
+    state = {"formulation": "state", "method": "ipm"}
+    serial = table(reoptimise(plan, spec, 4, executor=SERIAL, solve_options=state))
+    with ProcessPoolExecutor(max_workers=2) as pool:
+        pooled = table(reoptimise(plan, spec, 4, executor=pool, chunk=1, solve_options=state))
+    pd.testing.assert_frame_equal(serial, pooled)
+    expression = table(reoptimise(plan, spec, 4, executor=SERIAL,
+                                  solve_options={"formulation": "expression", "method": "ipm"}))
+    pd.testing.assert_frame_equal(serial.drop(columns="value"), expression.drop(columns="value"))
+    objective = serial.quantity == "objective"
+    assert objective.sum() == 4
+    np.testing.assert_allclose(serial.value[objective], expression.value[objective], rtol=1e-8)

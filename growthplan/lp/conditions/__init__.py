@@ -21,7 +21,12 @@ if TYPE_CHECKING:
     from ..program import Block
 
 __all__ = ["Check", "Condition", "Context", "RowBlock", "Schedules", "CONDITIONS",
-           "capacity_nnz_by_row"]
+           "capacity_nnz_by_row", "FORMULATIONS"]
+
+# How capacity in service enters the LP (see :mod:`growthplan.lp.build`):
+# "expression": a linear expression in past starts, ``C = base + G z``;
+# "state": stock columns ``K = G z`` carried from year to year by their own rows.
+FORMULATIONS = ("expression", "state")
 
 
 @dataclass
@@ -36,6 +41,19 @@ class Context:
 
     def width(self, name: str) -> int:
         return self.cols[name].size
+
+    def new_capacity(self, weights: sparse.sparray) -> dict[str, sparse.sparray]:
+        """Coefficients of ``weights @ (G z)``, capacity from the plan's own starts.
+
+        ``weights`` has one column per row (t, k) of ``G`` (t = 0..T). In the
+        expression form the terms fall on the starts (``weights @ G``); in the
+        state form on the stock columns ``K = G z`` themselves, which keeps
+        every row short and the LP block-banded in years.
+        """
+        w = sparse.csr_array(weights)
+        if "stock" in self.cols:
+            return {"stock": w}
+        return {"starts": sparse.csr_array(w @ self.capacity)}
 
 
 @dataclass
@@ -66,6 +84,8 @@ class Schedules:
     exports: np.ndarray | None
     capacity: np.ndarray        # as reported: (T + 1) × sectors
     deliveries: np.ndarray      # as reported: years × commodities
+    shipments: np.ndarray | None = None  # years × shipments (several regions)
+    regional_consumption: np.ndarray | None = None  # years × regions (own levels)
     # recomputed independently by the audit (vintage by vintage)
     capacity_check: np.ndarray | None = None
     deliveries_check: np.ndarray | None = None
@@ -127,16 +147,25 @@ class Condition:
         """(condition, sector or kind, year) of one row, for the shortfall table."""
         return (self.words or self.name, str(label[2]) if len(label) > 2 else "", label[1])
 
+    def excess_words(self, d: PlanData, label: tuple[Any, ...], excess: float) -> str | None:
+        """A limit exceeded by ``excess``, in words with its unit (None: the usual wording)."""
+        return None
+
     def describe(self, label: tuple[Any, ...]) -> str:
         """The row in the trade's words, e.g. "labour in 2031"."""
         cond, who, year = self.shortfall_label(label)
         return " ".join(str(p) for p in (cond, "of" if who else "", who, "in", year) if p != "")
 
 
-def capacity_nnz_by_row(d: PlanData) -> np.ndarray:
-    """Nonzeros of each row of the capacity operator ``G``, shape (T + 1) × techniques."""
+def capacity_nnz_by_row(d: PlanData, profile: np.ndarray | None = None) -> np.ndarray:
+    """Nonzeros of each row of the capacity operator ``G``, shape (T + 1) × techniques.
+
+    ``profile`` (techniques × (T + 2), by age) replaces the survival profile,
+    e.g. for the stock increments of the state form.
+    """
     T = d.T
-    nz = (d.surv != 0).astype(np.int64)              # techniques × (T + 2)
+    prof = d.surv if profile is None else profile
+    nz = (prof != 0).astype(np.int64)                # techniques × (T + 2)
     csum = np.concatenate([np.zeros((d.m, 1), np.int64), np.cumsum(nz, axis=1)], axis=1)
     t = np.arange(T + 1)[:, None]
     hi = t - d.theta[None, :]                        # oldest vintage's age: τ = 0
@@ -151,18 +180,27 @@ def capacity_nnz_by_row(d: PlanData) -> np.ndarray:
 def _registry() -> list[Condition]:
     from .balance import Balance
     from .calibration import FirstYear
-    from .capacity import Capacity
+    from .capacity import Capacity, CapacityStock
     from .consumption import ConsumptionFall, ConsumptionFloor
+    from .emissions import Emissions
     from .labour import Labour
     from .level import TerminalLevel
+    from .national_targets import NationalTargets
+    from .regional_consumption import RegionalConsumptionFloor, RegionalConsumptionLevel
+    from .regional_labour import RegionalLabour
+    from .shipments import ShipmentCeilings
     from .targets import Targets
     from .techniques import Techniques
     from .terminal import Terminal
     from .trade import ForeignExchange, TradeBounds
+    from .trade_shares import FixedTradeShares
 
     return [Balance(), Capacity(), Labour(), ForeignExchange(), ConsumptionFloor(),
             ConsumptionFall(), Targets(), Terminal(), TerminalLevel(), TradeBounds(),
-            FirstYear(), Techniques()]
+            FirstYear(), Techniques(), Emissions(), CapacityStock(),
+            # several regions
+            RegionalLabour(), ShipmentCeilings(), RegionalConsumptionLevel(),
+            RegionalConsumptionFloor(), FixedTradeShares(), NationalTargets()]
 
 
 CONDITIONS: list[Condition] = _registry()

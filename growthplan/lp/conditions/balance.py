@@ -1,8 +1,10 @@
 """Commodity balances: supply covers intermediate use, capital goods, consumption and demand.
 
-``(Q − A) x_t + m_t − e_t − W z − h κ_t ≥ g_t + pipeline deliveries_t``
+``(Q − A) x_t + m_t − e_t + S y_t − W z − h κ_t ≥ g_t + pipeline deliveries_t``
 (free disposal: a surplus is allowed), ``x_t`` the output of each technique
-and ``Q`` what each makes (``Q = I`` with one technique per sector). Hard in
+and ``Q`` what each makes (``Q = I`` with one technique per sector); with
+several regions the commodities are region–sector pairs and ``S y_t`` the
+shipments in, out and the transport they use (:mod:`growthplan.lp.regional`). Hard in
 the diagnosis: a balance is physics, not a wish.
 """
 
@@ -37,6 +39,8 @@ class Balance(Condition):
         if "consumption" in cols:
             nnz += T * int(np.count_nonzero(d.basket))
         nnz += cols.get("imports", 0) + cols.get("exports", 0)
+        if "shipments" in cols:  # several regions: + inbound − outbound − transport
+            nnz += T * int(np.count_nonzero(d.regions.matrix()))
         return T * n, nnz
 
     def build(self, ctx: Context) -> RowBlock:
@@ -50,7 +54,10 @@ class Balance(Condition):
         else:
             out = sparse.kron(eye_t, sparse.csr_array(q - d.a), format="csr")
         coeffs: dict[str, sparse.sparray] = {"output": out, "starts": -ctx.deliveries}
-        if "consumption" in ctx.cols:
+        if "regional_consumption" in ctx.cols:  # each region's level and part of the basket
+            coeffs["regional_consumption"] = sparse.kron(
+                eye_t, sparse.csr_array(-d.regions.basket), format="csr")
+        elif "consumption" in ctx.cols:
             coeffs["consumption"] = sparse.kron(eye_t, sparse.csr_array(-d.basket[:, None]),
                                                 format="csr")
         for col, side, sign in (("imports", d.imports, 1.0), ("exports", d.exports, -1.0)):
@@ -58,6 +65,9 @@ class Balance(Condition):
                 sel = np.zeros((n, len(side.goods)))
                 sel[side.index, np.arange(len(side.goods))] = sign
                 coeffs[col] = sparse.kron(eye_t, sparse.csr_array(sel), format="csr")
+        if "shipments" in ctx.cols:
+            coeffs["shipments"] = sparse.kron(eye_t, sparse.csr_array(d.regions.matrix()),
+                                              format="csr")
         return RowBlock("balance", (T, n), (tuple(d.years), tuple(d.names)), coeffs,
                         d.demand + d.pipe_deliveries, np.inf)
 
@@ -67,6 +77,10 @@ class Balance(Condition):
         assert deliv is not None
         intermediate = d.intermediate(s.output)
         cons = kappa[:, None] * d.basket[None, :]
+        if s.regional_consumption is not None:
+            from ..regional import regional_use
+
+            cons = regional_use(d, s.regional_consumption)
         use = intermediate + deliv + cons + d.demand
         supply = d.supplied(s.output).copy()
         traded = np.zeros_like(supply)
@@ -76,6 +90,12 @@ class Balance(Condition):
                 for i, j in enumerate(side.index):
                     supply[:, j] += sign * flows[:, i]
                     traded[:, j] += np.abs(flows[:, i])
+        if s.shipments is not None:
+            from ..regional import shipments_in_balance
+
+            net, gross = shipments_in_balance(d, s.shipments)
+            supply += net
+            traded += gross
         scale = np.abs(d.supplied(s.output)) + np.abs(intermediate) + np.abs(deliv) + np.abs(cons) \
             + d.demand + traded
         labels = [("balance", y, c) for y in d.years for c in d.names]

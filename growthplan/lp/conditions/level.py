@@ -27,16 +27,16 @@ class TerminalLevel(Condition):
     def count(self, d: PlanData, cols: dict[str, int]) -> tuple[int, int]:
         assert d.proportions is not None
         # each technique's capacity counts towards its sector's row only
-        return d.n, int(capacity_nnz_by_row(d)[d.T].sum()) + int(np.count_nonzero(d.proportions))
+        own = d.m if "stock" in cols else int(capacity_nnz_by_row(d)[d.T].sum())
+        return d.n, own + int(np.count_nonzero(d.proportions))
 
     def build(self, ctx: Context) -> RowBlock:
         d = ctx.data
         assert d.proportions is not None
-        g_end = sparse.csr_array(ctx.capacity[d.T * d.m:])
-        if d.tech is not None:
-            g_end = sparse.csr_array(sparse.csr_array(d.sel) @ g_end)
+        # each sector's techniques' capacity at the end: rows (T, k) of G
+        end = sparse.hstack([sparse.csr_array((d.n, d.T * d.m)), sparse.csr_array(d.sel)])
         return RowBlock("terminal_level", (d.n,), (tuple(d.names),),
-                        {"starts": g_end,
+                        {**ctx.new_capacity(end),
                          "level": sparse.csr_array(-d.proportions[:, None])},
                         -d.by_sector(d.base[d.T]), np.inf)
 

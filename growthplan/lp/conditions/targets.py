@@ -30,7 +30,8 @@ class Targets(Condition):
         nnz = 0
         for tg in d.targets:  # a sector's output and capacity: the sum over its techniques
             ks = np.flatnonzero(own == tg.j)
-            nnz += int(g[tg.t, ks].sum()) if tg.quantity == "capacity" else \
+            capacity = len(ks) if "stock" in cols else int(g[tg.t, ks].sum())
+            nnz += capacity if tg.quantity == "capacity" else \
                 (len(ks) if tg.quantity == "output" else 1)
         return len(d.targets), nnz
 
@@ -38,7 +39,8 @@ class Targets(Condition):
         d = ctx.data
         T, n = d.T, d.m
         own = d.tech_sector
-        parts: dict[str, list[Any]] = {"output": [], "starts": [], "consumption": []}
+        parts: dict[str, list[Any]] = {"output": [], "starts": [], "consumption": [],
+                                       "stock": []}
         lower = []
         for tg in d.targets:
             row = {c: sparse.csr_array((1, ctx.width(c))) for c in parts if c in ctx.cols}
@@ -52,9 +54,10 @@ class Targets(Condition):
             elif tg.quantity == "capacity":
                 assert tg.j is not None
                 ks = np.flatnonzero(own == tg.j)
-                g_rows = ctx.capacity[tg.t * n + ks]
-                row["starts"] = sparse.csr_array(g_rows if ks.size == 1 else
-                                                 g_rows.sum(axis=0)[None, :])
+                pick = sparse.csr_array((np.ones(ks.size), (np.zeros(ks.size, int),
+                                                            tg.t * n + ks)),
+                                        shape=(1, (T + 1) * n))
+                row.update(ctx.new_capacity(pick))
                 lower.append(tg.required - float(d.base[tg.t, ks].sum()))
             else:
                 coef = 1.0 if tg.j is None else float(d.basket[tg.j])

@@ -45,6 +45,8 @@ class Terminal(Condition):
         own = d.tech_sector
         # G's row (t, k) covers starts of years τ ≤ t − θ_k; the start z_kt itself is
         # among them only when θ_k = 0 (techniques of a sector have columns of their own)
+        if "stock" in cols:  # z_kt and K_kt for each of the sector's techniques
+            return len(rows), sum(2 * int(np.count_nonzero(own == j)) for _, j in rows)
         nnz = sum(int(g[t, k]) + (0 if d.theta[k] == 0 else 1)
                   for t, j in rows for k in np.flatnonzero(own == j))
         return len(rows), nnz
@@ -65,13 +67,14 @@ class Terminal(Condition):
             c_idx.extend((t * m + ks).tolist())
             psi.extend(d.psi[ks].tolist())
             lower.append(float(np.sum(d.psi[ks] * d.base[t, ks])))
-        shape = (len(rows), T * m)
-        zsel = sparse.csr_array((np.ones(len(c_idx)), (r_idx, c_idx)), shape=shape)
-        weights = sparse.csr_array((np.array(psi, dtype=float), (r_idx, c_idx)), shape=shape)
-        term = zsel - weights @ ctx.capacity[: T * m]
+        zsel = sparse.csr_array((np.ones(len(c_idx)), (r_idx, c_idx)), shape=(len(rows), T * m))
+        weights = sparse.csr_array((-np.array(psi, dtype=float), (r_idx, c_idx)),
+                                   shape=(len(rows), (T + 1) * m))
+        coeffs = ctx.new_capacity(weights)
+        coeffs["starts"] = sparse.csr_array(zsel + coeffs["starts"]) if "starts" in coeffs \
+            else zsel
         labels = tuple((d.years[t], d.names[j]) for t, j in rows)
-        return RowBlock("terminal", (len(rows),), (labels,), {"starts": sparse.csr_array(term)},
-                        np.array(lower), np.inf)
+        return RowBlock("terminal", (len(rows),), (labels,), coeffs, np.array(lower), np.inf)
 
     def audit(self, d: PlanData, s: Schedules) -> list[Check]:
         cap = s.capacity_check
