@@ -46,8 +46,11 @@ def _solver_options(opts: SolveOptions, method: str | None,
                     time_limit: float | None) -> dict[str, Any]:
     """The solve's settings, refused here as the solve would refuse them."""
     changes = {k: v for k, v in (("method", method), ("time_limit", time_limit)) if v}
+    from ..backends.options import highs_backend
+
     try:
         chosen = type(opts)(**{**opts.model_dump(), **changes})  # checked as every solve's
+        highs_backend(chosen)  # and what this HiGHS provides (no solve)
     except InvalidInput as exc:
         raise InvalidInput(f"solve.{exc}", field=f"solve.{exc.field}") from None
     return chosen.keywords()
