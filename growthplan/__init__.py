@@ -35,7 +35,6 @@ if TYPE_CHECKING:
         activity_table_from_economy,
         activity_table_from_plan,
         cheapest_techniques,
-        plot_wage_profit,
         von_neumann_choice,
         wage_profit_frontier,
     )
@@ -50,6 +49,7 @@ if TYPE_CHECKING:
     from .analysis.steady import BalancedGrowth
     from .backends import HighsBackend, PulpBackend, Status
     from .backends.highs import SlowMethodWarning
+    from .backends.options import SolveOptions
     from .demo import (
         DEMO_DIR,
         copy_demo,
@@ -91,8 +91,9 @@ if TYPE_CHECKING:
     from .model.technique import Technique, technique_arrays
     from .results import CAUTION, Audit, Diagnosis, PlanResult
     from .results import charts as plot
+    from .results.charts import plot_compare, plot_fan, plot_probabilities, plot_wage_profit
     from .scenarios.abatement import abatement_curve
-    from .scenarios.revision import compare, plot_compare, read_actuals, revise
+    from .scenarios.revision import compare, read_actuals, revise
     from .scenarios.sweep import SerialExecutor, Sweep, sweep, variant
     from .scenarios.uncertainty import (
         Empirical,
@@ -104,8 +105,6 @@ if TYPE_CHECKING:
         UncertaintyResult,
         UncertaintySpec,
         Uniform,
-        plot_fan,
-        plot_probabilities,
         reoptimise,
         robust_plan,
         stress_test,
@@ -168,10 +167,10 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "PlanResult": ("results", "PlanResult"),
     "PlanUnbounded": ("errors", "PlanUnbounded"),
     "plot": ("results.charts", None),
-    "plot_compare": ("scenarios.revision", "plot_compare"),
-    "plot_fan": ("scenarios.uncertainty", "plot_fan"),
-    "plot_probabilities": ("scenarios.uncertainty", "plot_probabilities"),
-    "plot_wage_profit": ("analysis.choice", "plot_wage_profit"),
+    "plot_compare": ("results.charts", "plot_compare"),
+    "plot_fan": ("results.charts", "plot_fan"),
+    "plot_probabilities": ("results.charts", "plot_probabilities"),
+    "plot_wage_profit": ("results.charts", "plot_wage_profit"),
     "PulpBackend": ("backends", "PulpBackend"),
     "read_actuals": ("scenarios.revision", "read_actuals"),
     "read_transactions": ("statistics.tables", "read_transactions"),
@@ -184,6 +183,7 @@ _LAZY: dict[str, tuple[str, str | None]] = {
     "Sector": ("model.economy", "Sector"),
     "SerialExecutor": ("scenarios.sweep", "SerialExecutor"),
     "SlowMethodWarning": ("backends.highs", "SlowMethodWarning"),
+    "SolveOptions": ("backends.options", "SolveOptions"),
     "SolverFailure": ("errors", "SolverFailure"),
     "StartsCeiling": ("model.plan", "StartsCeiling"),
     "Status": ("backends", "Status"),
@@ -297,6 +297,7 @@ __all__ = [
     "Sector",
     "SerialExecutor",
     "SlowMethodWarning",
+    "SolveOptions",
     "SolverFailure",
     "StartsCeiling",
     "Status",

@@ -15,7 +15,6 @@ delegate here.
 
 from __future__ import annotations
 
-import math
 import time
 import warnings
 from pathlib import Path
@@ -23,8 +22,8 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
-from .backends.base import FAILED, Feature, SolverOutcome, Status
-from .backends.highs import HighsBackend
+from .backends.base import FAILED, Backend, Feature, RayBackend, SolverOutcome, Status
+from .backends.options import SolveOptions, default_backend, highs_backend
 from .backends.pulp import PulpBackend, to_pulp
 from .errors import EndEffectsWarning, InvalidInput, invalid
 from .lp.build import FORMULATIONS, SIZE_LIMIT, build, estimate_size, guard_size
@@ -44,13 +43,6 @@ END_EFFECTS = ("No terminal condition: investment in the last years only serves 
                "objective, so end-of-plan starts may be too low (end effects). Give "
                "a terminal growth rate (plan file: terminal: {rate: ...}) to value the "
                "years after the plan.")
-
-
-def _check_tolerance(audit_tolerance: Any) -> float:
-    if isinstance(audit_tolerance, bool) or not isinstance(audit_tolerance, int | float) \
-            or not (0 < audit_tolerance < 1) or math.isnan(audit_tolerance):
-        raise invalid("audit_tolerance", "be a number in (0, 1)", audit_tolerance)
-    return float(audit_tolerance)
 
 
 def _check_formulation(formulation: Any, *, auto: bool = True) -> str:
@@ -88,7 +80,7 @@ def formulation_for(d: Any, backend: Any, formulation: str = "auto") -> tuple[st
     return rule.formulation, rule.describe()
 
 
-def run(lp: LinearProgram, backend: Any, *, stop: Any = None, callback: Any = None
+def run(lp: LinearProgram, backend: Backend, *, stop: Any = None, callback: Any = None
         ) -> SolverOutcome:
     """One solve of ``lp``; when it fails, the back end's alternatives are tried in turn."""
     out = backend.solve(lp, stop=stop, callback=callback)
@@ -105,7 +97,7 @@ def run(lp: LinearProgram, backend: Any, *, stop: Any = None, callback: Any = No
     return out
 
 
-def optimise(lp: LinearProgram, backend: Any, *, stop: Any = None, callback: Any = None
+def optimise(lp: LinearProgram, backend: Backend, *, stop: Any = None, callback: Any = None
              ) -> tuple[LinearProgram, SolverOutcome]:
     """Solve ``lp`` through its objective stages.
 
@@ -141,29 +133,27 @@ def optimise(lp: LinearProgram, backend: Any, *, stop: Any = None, callback: Any
     return lp, outcome
 
 
-def _backend(backend: Any, method: str, time_limit: float | None, threads: int | None,
-             tolerance: float | None, options: dict[str, Any] | None) -> Any:
-    if backend is not None:
-        return backend
-    return HighsBackend(method, time_limit=time_limit, threads=threads, tolerance=tolerance,
-                        options=options)
-
-
-def solve(plan: Plan, *, backend: Any = None, method: str = "auto",
+def solve(plan: Plan, *, backend: Backend | None = None, method: str = "auto",
           time_limit: float | None = None, threads: int | None = None,
           tolerance: float | None = None, audit_tolerance: float = 1e-6,
           options: dict[str, Any] | None = None, progress: bool = False, stop: Any = None,
-          size_limit: int | None = SIZE_LIMIT, formulation: str = "auto") -> PlanResult:
+          size_limit: int | None = SIZE_LIMIT, formulation: str = "auto",
+          solver: SolveOptions | None = None) -> PlanResult:
     """Solve a plan on a back end (default HiGHS) and audit the result.
 
-    See :meth:`growthplan.Plan.solve` for the parameters; ``backend`` is any
+    See :meth:`growthplan.Plan.solve` for the parameters; the settings are
+    one :class:`~growthplan.backends.options.SolveOptions` (``solver``) or
+    its fields as keywords; ``backend`` is any
     :class:`~growthplan.backends.base.Backend` (then ``method``,
     ``time_limit``, ``threads``, ``tolerance`` and ``options`` are the back
     end's business).
     """
-    tol = _check_tolerance(audit_tolerance)
+    settings = SolveOptions.of(solver, backend=backend, method=method, time_limit=time_limit,
+                               threads=threads, tolerance=tolerance,
+                               audit_tolerance=audit_tolerance, options=options)
+    tol = settings.audit_tolerance
+    be = default_backend(settings)
     form = _check_formulation(formulation)
-    be = _backend(backend, method, time_limit, threads, tolerance, options)
     search = plan.objective.horizon_search()
     if search is not None:
         return _fastest(plan, be, search.max_years, tol, progress, stop, size_limit, form)
@@ -181,7 +171,7 @@ def solve_pulp(plan: Plan, solver: Any = None, *, problem: Any = None,
                  audit_tolerance=audit_tolerance)
 
 
-def _fixed(plan: Plan, backend: Any, tol: float, progress: bool, stop: Any,
+def _fixed(plan: Plan, backend: Backend, tol: float, progress: bool, stop: Any,
            size_limit: int | None, data: Any = None, formulation: str = "auto") -> PlanResult:
     from .progress import solve_progress
 
@@ -209,7 +199,7 @@ def _audited(final_lp: LinearProgram, outcome: SolverOutcome, tol: float,
     return sched, audit(d, sched, tolerance=tol)
 
 
-def _another_method(final_lp: LinearProgram, backend: Any, stop: Any, tol: float, reason: str,
+def _another_method(final_lp: LinearProgram, backend: Backend, stop: Any, tol: float, reason: str,
                     *, unbounded: bool = False) -> tuple[SolverOutcome, Any, Any] | None:
     """The first of the back end's alternatives that gives an audited optimum.
 
@@ -229,7 +219,7 @@ def _another_method(final_lp: LinearProgram, backend: Any, stop: Any, tol: float
 
 
 def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: SolverOutcome,
-            backend: Any, tol: float, timings: dict[str, float], stop: Any,
+            backend: Backend, tol: float, timings: dict[str, float], stop: Any,
             progress: bool = False) -> PlanResult:
     t0 = time.perf_counter()
     status = outcome.status
@@ -286,8 +276,8 @@ def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: Sol
                         schedules=sched, notes=notes, diagnosis=diagnosis,
                         backend=getattr(backend, "name", type(backend).__name__))
     if status is Status.UNBOUNDED:
-        ray_backend = backend if Feature.RAY in getattr(backend, "features", ()) \
-            else HighsBackend()
+        ray_backend: RayBackend = backend if isinstance(backend, RayBackend) \
+            and Feature.RAY in backend.features else highs_backend()
         ray = ray_backend.ray(final_lp)
         if ray is not None:
             labels = final_lp.col_labels()
@@ -299,7 +289,7 @@ def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: Sol
     return result
 
 
-def _fastest(plan: Plan, backend: Any, max_years: int, tol: float, progress: bool,
+def _fastest(plan: Plan, backend: Backend, max_years: int, tol: float, progress: bool,
              stop: Any, size_limit: int | None, formulation: str = "auto") -> PlanResult:
     """Bisection over horizons, each a feasibility LP (no objective).
 

@@ -234,3 +234,50 @@ def regional_economy(regions: list[str], n: int, seed: int = 1, *,
                               labour_coefficients=[rng.uniform(0.1, 1.0, n)], capital=cap,
                               consumption_basket=rng.uniform(0.1, 1.0, n))
     return gp.MultiRegionalEconomy.from_regions(econs)
+
+
+def check_family(plan: gp.Plan, name: str, spoil, kind: str) -> dict:
+    """What every condition family owes, checked on one solved plan.
+
+    Its rows in the built matrix match its ``count``; its audit passes on the
+    optimal schedules and catches ``spoil(schedules, data)`` as a violation of
+    ``kind``; the elastic programme has one shortfall column per row exactly
+    when the family is elastic; ``describe`` words each row with its year.
+    Returns the result, the family, the built LP and its row block.
+    """
+    import copy
+
+    from growthplan.lp.conditions import CONDITIONS
+    from growthplan.results.diagnosis import elastic_program
+
+    result = plan.solve()
+    assert result.ok, (result.status, result.message)
+    cond = next(c for c in CONDITIONS if c.name == name)
+    d = result.data
+    assert cond.applies(d)
+    lp = plan.compile(size_limit=None)
+    block = lp.rows.get(name)
+    matrix = lp.matrix.tocsr()
+    built = (0, 0) if block is None else (block.size, matrix[block.start:block.stop].nnz)
+    widths = {k: b.size for k, b in lp.cols.items()}
+    assert cond.count(d, widths) == built
+    s = copy.deepcopy(result._schedules)
+    before = [c for c in cond.audit(d, s) if c.kind == kind]
+    assert before, f"{name} audits no {kind!r}"
+    assert all(float(np.max(c.violation, initial=-np.inf)) <= 1e-7 * max(
+        1.0, float(np.max(c.scale, initial=0.0))) for c in before)
+    spoil(s, d)
+    after = [c for c in cond.audit(d, s) if c.kind == kind]
+    assert any(np.nanmax(np.where(np.isnan(c.violation), np.inf, c.violation)) > 1e-6
+               for c in after), f"{name}: the audit missed a spoiled {kind!r}"
+    _, info = elastic_program(lp)
+    mine = [i for i in info if i["family"] == name]
+    assert len(mine) == (built[0] if cond.elastic else 0)
+    if block is not None:
+        for i in range(block.size):
+            label = block.label(i)
+            words = cond.describe(label)
+            assert words and words[0].isalpha() and "_" not in words.split(" of ")[0], words
+            years = [p for p in label[1:] if isinstance(p, int | np.integer)]
+            assert not years or str(years[0]) in words, (label, words)
+    return {"result": result, "condition": cond, "lp": lp, "block": block}

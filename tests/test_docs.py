@@ -35,7 +35,8 @@ def test_readme_safe_outputs_example_runs(capsys):
 
 @pytest.mark.parametrize("module", ["errors", "model.capital", "model.economy",
                                     "analysis.expanding", "model.plan",
-                                    "io.atomic"])
+                                    "io.atomic", "io.planfile", "results.result",
+                                    "backends.options"])
 def test_docstring_examples(module):
     mod = importlib.import_module(f"growthplan.{module}")
     failures, tried = doctest.testmod(mod, optionflags=doctest.NORMALIZE_WHITESPACE)

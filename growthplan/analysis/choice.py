@@ -46,13 +46,11 @@ import pandas as pd
 from numpy.typing import ArrayLike
 from scipy.optimize import brentq, linprog
 
-from ..errors import invalid
+from ..errors import SolverFailure, invalid
 from .expanding import ExpandingEconomy, expanding_economy
 from .steady import spectral_radius
 
 if TYPE_CHECKING:
-    from matplotlib.axes import Axes
-
     from ..model.economy import Economy
     from ..model.plan import Plan
 
@@ -67,7 +65,6 @@ __all__ = [
     "cheapest_techniques",
     "WageProfitFrontier",
     "wage_profit_frontier",
-    "plot_wage_profit",
 ]
 
 _COST_TOL = 1e-10  # a switch needs a cost saving above this share of the price
@@ -623,10 +620,10 @@ def _policy_iteration(single: _Single, r: float, wl: np.ndarray,
             return s, p, step
         p_new = _solve_set(new, m_r, wl)
         if p_new is None:  # only when some technique uses no labour at all
-            raise RuntimeError("policy iteration reached an unproductive set; a technique "
+            raise SolverFailure("policy iteration reached an unproductive set; a technique "
                                "without labour makes the costs degenerate")
         s, p = new, p_new
-    raise RuntimeError(f"policy iteration did not settle in {max_iter} steps")
+    raise SolverFailure(f"policy iteration did not settle in {max_iter} steps")
 
 
 def _maximal_rate(single: _Single, tol: float = 1e-9) -> float:
@@ -932,69 +929,3 @@ def wage_profit_frontier(table: ActivityTable, profit_rates: ArrayLike | None = 
         reswitching=[t for t, c in seen.items() if c > 1],
         maximal_profit_rate=big_r,
         numeraire=pd.Series(u, index=table.inputs.index, name="numeraire"))
-
-
-def _legend_labels(sets: list[str]) -> dict[str, str]:
-    """Each set named by the choices in which the sets differ ("agriculture: mechanised").
-
-    A set's name lists ``commodity:technique`` for every commodity; choices
-    shared by all sets are left out (with "others alike"), and a technique
-    labelled by its commodity (an economy's own) reads "base".
-    """
-    split = [name.split(", ") for name in sets]
-    common = set.intersection(*map(set, split)) if len(split) > 1 else set()
-
-    def word(entry: str) -> str:
-        commodity, _, tech = entry.partition(":")
-        tech = tech[len(commodity) + 1:] if tech.startswith(f"{commodity}:") else tech
-        return f"{commodity}: {'base' if tech == commodity else tech}"
-
-    out = {}
-    for name, entries in zip(sets, split, strict=True):
-        own = [e for e in entries if e not in common]
-        out[name] = ", ".join(map(word, own)) + ("; others alike" if common else "") \
-            if own else name
-    return out
-
-
-def plot_wage_profit(frontier: WageProfitFrontier, *, ax: Axes | None = None) -> Axes:
-    """Chart the wage–profit frontier: one line style per technique set, switch points marked.
-
-    The legend names each set by the choices in which the sets drawn differ.
-
-    Parameters
-    ----------
-    frontier : WageProfitFrontier
-    ax : matplotlib Axes, optional
-
-    Returns
-    -------
-    matplotlib.axes.Axes
-    """
-    try:
-        import matplotlib  # noqa: F401
-    except ImportError as exc:  # pragma: no cover - depends on the extra
-        raise ImportError("charts need matplotlib: pip install 'growthplan[plot]'") from exc
-    from ..results.charts import _axes, _style
-
-    ax = _axes(ax)
-    grid = frontier.table[~frontier.table["switch"]]
-    order = list(dict.fromkeys(grid["techniques"]))
-    legend = _legend_labels(order)
-    # one line per contiguous range, so a set that comes back is drawn twice in its style
-    run = (grid["techniques"] != grid["techniques"].shift()).cumsum()
-    for _, part in grid.groupby(run, sort=False):
-        name = str(part["techniques"].iloc[0])
-        first = part.index[0] == grid.index[grid["techniques"] == name][0]
-        ax.plot(part["profit_rate"], part["wage"], label=legend[name] if first else None,
-                **(_style(order.index(name)) | {"markersize": 2}))
-    sw = frontier.switch_points
-    if not sw.empty:
-        ax.scatter(sw["profit_rate"], sw["wage"], marker="X", s=60, color="black", zorder=3,
-                   label="switch point")
-    ax.set_xlabel("profit rate")
-    ax.set_ylabel("wage (per unit of the numeraire)")
-    ax.set_title("Wage–profit frontier")
-    ax.legend(fontsize="small", frameon=False)
-    ax.grid(alpha=0.3)
-    return ax

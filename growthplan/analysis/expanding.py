@@ -34,7 +34,7 @@ import pandas as pd
 from numpy.typing import ArrayLike
 from scipy.optimize import linprog
 
-from ..errors import invalid
+from ..errors import SolverFailure, invalid
 
 __all__ = ["ExpandingEconomy", "expanding_economy"]
 
@@ -84,7 +84,7 @@ def _max_min(m: np.ndarray) -> tuple[float, np.ndarray]:
     res = linprog(c, A_ub=a_ub, b_ub=np.zeros(goods), A_eq=a_eq, b_eq=[1.0],
                   bounds=[(0, None)] * procs + [(None, None)], method="highs")
     if res.status != 0:
-        raise RuntimeError(f"feasibility LP failed: {res.message}")
+        raise SolverFailure(f"feasibility LP failed: {res.message}")
     return float(-res.fun), res.x[:procs]
 
 

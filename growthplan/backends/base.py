@@ -11,7 +11,7 @@ import numpy as np
 if TYPE_CHECKING:
     from ..lp.program import LinearProgram
 
-__all__ = ["Status", "SolverOutcome", "Feature", "Backend", "FAILED"]
+__all__ = ["Status", "SolverOutcome", "Feature", "Backend", "RayBackend", "IisBackend", "FAILED"]
 
 
 class Status(enum.StrEnum):
@@ -104,4 +104,22 @@ class Backend(Protocol):
 
     def alternatives(self) -> list[Backend]:
         """Back ends to try, in order, when this one fails on a problem."""
+        ...
+
+
+@runtime_checkable
+class RayBackend(Backend, Protocol):
+    """A back end that finds the direction an unbounded LP runs away in (``Feature.RAY``)."""
+
+    def ray(self, lp: LinearProgram) -> np.ndarray | None:
+        """A primal ray of an unbounded ``lp`` (None when none is found)."""
+        ...
+
+
+@runtime_checkable
+class IisBackend(Backend, Protocol):
+    """A back end that finds an irreducible infeasible subset (``Feature.IIS``)."""
+
+    def iis(self, lp: LinearProgram) -> tuple[list[int], list[int]] | None:
+        """Rows and columns of an irreducible infeasible subset (None when none is found)."""
         ...

@@ -245,35 +245,27 @@ class HighsBackend:
                  threads: int | None = None, tolerance: float | None = None,
                  options: dict[str, Any] | None = None, scale: bool | str = "auto",
                  presolve: bool = True, formulation: str = "auto") -> None:
-        if not isinstance(method, str) or (method != "auto" and method not in METHODS):
-            raise invalid("method", f"be 'auto' or one of {sorted(METHODS)}", method)
-        if method == "hipo" and not hipo_available():
+        from .options import SolveOptions
+
+        # the settings are checked where every solve's are (plan files and the command line too)
+        opts = SolveOptions.of(method=method, time_limit=time_limit, threads=threads,
+                               tolerance=tolerance, options=options)
+        if opts.method == "hipo" and not hipo_available():
             raise InvalidInput(
                 f"method must be one this HiGHS provides: 'hipo' needs HiGHS's HiPO, which "
                 f"the plain highspy wheel lacks. Got 'hipo'. Install it with {HIPO_INSTALL} "
                 f"(highspy and highspy-extras of the same version; this is HiGHS "
                 f"{highs_version()}), or use method='ipm'.", field="method")
-        if time_limit is not None and (isinstance(time_limit, bool) or not isinstance(
-                time_limit, int | float) or not (0 < time_limit < math.inf)):
-            raise invalid("time_limit", "be a number of seconds > 0", time_limit)
-        if threads is not None and (isinstance(threads, bool) or not isinstance(
-                threads, int | np.integer) or threads < 1):
-            raise invalid("threads", "be a whole number >= 1", threads)
-        if tolerance is not None and (isinstance(tolerance, bool) or not isinstance(
-                tolerance, int | float) or not (0 < tolerance < 1)):
-            raise invalid("tolerance", "be in (0, 1)", tolerance)
-        if options is not None and not isinstance(options, dict):
-            raise invalid("options", "be a mapping of HiGHS option names to values", options)
         if scale not in ("auto", True, False):
             raise invalid("scale", "be 'auto', True or False", scale)
         if formulation not in ("auto", "expression", "state"):
             raise invalid("formulation", "be one of auto, expression, state", formulation)
         self.formulation = formulation
-        self.method = method
-        self.time_limit = time_limit
-        self.threads = None if threads is None else int(threads)
-        self.tolerance = tolerance
-        self.options = dict(options or {})
+        self.method = opts.method
+        self.time_limit = opts.time_limit
+        self.threads = opts.threads
+        self.tolerance = opts.tolerance
+        self.options = dict(opts.options)
         self.scale = scale
         self.presolve = presolve
         self._warn_slow = True  # off for the stand-ins of alternatives(), and once warned

@@ -48,19 +48,15 @@ def _solver_options(plan: Plan, method: str | None,
                     time_limit: float | None) -> dict[str, Any]:
     """The solve's settings (the options', else the plan file's), refused here as the
     solve would refuse them."""
-    from ..backends.highs import HighsBackend
+    from ..backends.options import SolveOptions, highs_backend
 
-    opts = plan.solve_options
-    chosen: dict[str, Any] = {"method": method or opts.get("method") or "auto",
-                              "time_limit": time_limit or opts.get("time_limit"),
-                              "threads": opts.get("threads"),
-                              "tolerance": opts.get("tolerance")}
+    changes = {k: v for k, v in (("method", method), ("time_limit", time_limit)) if v}
     try:
-        HighsBackend(chosen["method"], time_limit=chosen["time_limit"],
-                     threads=chosen["threads"], tolerance=chosen["tolerance"])  # no solve
+        chosen = SolveOptions(**{**plan.solve_options, **changes})  # checked as every solve's
+        highs_backend(chosen)  # and what this HiGHS provides (no solve)
     except InvalidInput as exc:
         raise InvalidInput(f"solve.{exc}", field=f"solve.{exc.field}") from None
-    return chosen
+    return chosen.keywords()
 
 
 def _needs_capital(plan: Plan) -> None:
@@ -121,12 +117,10 @@ def check(plan_file: Path) -> None:
     chosen = _solver_options(plan, None, None)
     _needs_capital(plan)
     econ = plan.economy
-    from ..backends.highs import HighsBackend
+    from ..backends.options import SolveOptions, highs_backend
     from ..solve import formulation_for
 
-    form, rule = formulation_for(plan.lowered(), HighsBackend(
-        chosen["method"], time_limit=chosen["time_limit"], threads=chosen["threads"],
-        tolerance=chosen["tolerance"]))
+    form, rule = formulation_for(plan.lowered(), highs_backend(SolveOptions.of(**chosen)))
     lp = plan.compile(formulation=form)  # the size guard and the build the solve runs first
     click.echo(f"{plan_file}: valid")
     click.echo(f"  {plural(econ.n, 'sector')}, years {plan.years[0]}–{plan.years[-1]}, "

@@ -285,8 +285,7 @@ def reoptimise(plan_file: Path, draws: int | None, seed: int | None, workers: in
     _check_files({"--out": out, "--excel": excel}, overwrite, _protected(plan_file),
                  _SUFFIXES)
     plan, opts, spec, n = _load(plan_file, draws, seed, vary)
-    options = {"method": opts.method, "time_limit": opts.time_limit, "threads": opts.threads,
-               "tolerance": opts.tolerance}
+    options = opts.keywords()
     with _executor(workers) as ex:
         result = run(plan, spec, n, executor=ex, max_workers=workers, progress=progress,
                      solve_options=options)

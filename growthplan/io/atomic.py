@@ -479,7 +479,7 @@ def _commit_folder(tmp: Path, target: Path, overwrite: bool, protected: list[Pat
             entries = sorted(listing, key=lambda e: e.name)
         for e in entries:
             if not e.is_file(follow_symlinks=False):
-                raise TypeError(f"atomic_folder writes files only; {e.name} is not a file")
+                raise invalid("folder", "hold only files (atomic_folder writes files only)", e.name)
         names = [e.name for e in entries if e.name != MANIFEST]
         file_mode, folder_mode = _file_mode(), _folder_mode()
         for name in names:

@@ -55,6 +55,7 @@ from yaml.composer import Composer
 from yaml.events import AliasEvent
 from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 
+from ..backends.options import SolveOptions
 from ..errors import InvalidInput, invalid, show, suggest
 from ..limits import MAX_YEARS, PLAN_FILE_MAX_BYTES
 from ..model.economy import Economy, Sector
@@ -191,38 +192,6 @@ def with_units(econ: Economy, tables: EconomyTables) -> Economy:
                           f"missing {missing[:5]}")
         fields["base_output"] = [tables.base_output[k] for k in econ.names]
     return Economy(**fields)
-
-
-class SolveOptions(Model):
-    """Solver settings stored with the plan.
-
-    Parameters
-    ----------
-    method : str, default "auto"
-        HiGHS method: ``auto`` (chosen by the plan's size) or one of
-        :data:`growthplan.backends.highs.METHODS`.
-    time_limit : float, optional
-        Seconds for the solver, > 0.
-    threads : int, optional
-        Solver threads, >= 1.
-    tolerance : float, optional
-        Primal and dual feasibility tolerance of HiGHS, in (0, 1).
-    """
-
-    method: str = "auto"
-    time_limit: float | None = Field(default=None, gt=0)
-    threads: int | None = Field(default=None, ge=1)
-    tolerance: float | None = Field(default=None, gt=0, lt=1)
-
-    @field_validator("method")
-    @classmethod
-    def _method(cls, v: str) -> str:
-        from ..backends.methods import METHODS
-
-        if v != "auto" and v not in METHODS:
-            raise Rule(f"be 'auto' or one of {', '.join(METHODS)}", v,
-                       hint=suggest(v, ["auto", *METHODS], sentence=True))
-        return v
 
 
 class PlanFile(Model):
@@ -627,6 +596,16 @@ def read_plan_file(path: str | os.PathLike[str], *,
     ------
     InvalidInput
         Naming the file, the field and (for YAML) the line.
+
+    Examples
+    --------
+    The demo's plan file (Arvenna, an invented economy) and its settings:
+
+    >>> from growthplan.demo import DEMO_DIR
+    >>> plan, options = load_plan_file(DEMO_DIR / "plan.yaml")
+    >>> plan.economy.n, plan.years[0], plan.years[-1], options.method
+    (10, 2027, 2041, 'auto')
+    >>> result = plan.solve(solver=options)  # doctest: +SKIP
     """
     path = Path(path)
     data, node = _read(path)

@@ -18,6 +18,7 @@ from .validation import Model, Rule
 if TYPE_CHECKING:
     from ..lp.data import PlanData
     from ..lp.program import Block, Stage
+    from .plan import Plan
 
 __all__ = ["Objective", "TerminalCapacity", "DiscountedConsumption", "LeastLabour",
            "LeastForeignExchange", "Weighted", "WeightedTerm", "Lexicographic", "Fastest",
@@ -34,7 +35,7 @@ class Objective(Model):
         """Rate that turns the objective's year weights into present values, if any."""
         return None
 
-    def check(self, plan: Any) -> None:
+    def check(self, plan: Plan) -> None:
         """Raise :class:`Rule` when the plan lacks a part this objective needs."""
 
     def needs_level(self) -> bool:
@@ -88,7 +89,7 @@ class TerminalCapacity(Objective):
             raise Rule("hold non-negative weights with a positive sum", v)
         return v
 
-    def check(self, plan: Any) -> None:
+    def check(self, plan: Plan) -> None:
         if self.proportions:
             unknown = [k for k in self.proportions if k not in plan.economy.names]
             if unknown:
@@ -124,7 +125,7 @@ class DiscountedConsumption(Objective):
     def discount_rate(self) -> float | None:
         return self.rate
 
-    def check(self, plan: Any) -> None:
+    def check(self, plan: Plan) -> None:
         if plan.consumption is None:
             raise Rule("come with a consumption part in the plan (the objective values it)",
                        None, field="consumption")
@@ -142,7 +143,7 @@ class LeastLabour(Objective):
     kind: Literal["least_labour"] = "least_labour"
     sense: Literal["max", "min"] = "min"
 
-    def check(self, plan: Any) -> None:
+    def check(self, plan: Plan) -> None:
         if plan.economy.labour_coefficients is None:
             raise Rule("come with labour coefficients in the economy (the objective counts "
                        "labour)", None, field="economy.labour_coefficients")
@@ -161,7 +162,7 @@ class LeastForeignExchange(Objective):
     kind: Literal["least_foreign_exchange"] = "least_foreign_exchange"
     sense: Literal["max", "min"] = "min"
 
-    def check(self, plan: Any) -> None:
+    def check(self, plan: Plan) -> None:
         if plan.trade is None:
             raise Rule("come with a trade part in the plan (the objective counts foreign "
                        "exchange)", None, field="trade")
@@ -205,7 +206,7 @@ class Weighted(Objective):
                              {"objective": t[0], "weight": t[1]} for t in terms]
         super().__init__(**data)
 
-    def check(self, plan: Any) -> None:
+    def check(self, plan: Plan) -> None:
         for t in self.terms:
             t.objective.check(plan)
 
@@ -239,7 +240,7 @@ class Lexicographic(Objective):
     def discount_rate(self) -> float | None:
         return self.objectives[-1].discount_rate()
 
-    def check(self, plan: Any) -> None:
+    def check(self, plan: Plan) -> None:
         for o in self.objectives:
             o.check(plan)
 
@@ -269,7 +270,7 @@ class Fastest(Objective):
     max_years: int = Field(ge=1, le=500)
     then: Simple | Weighted = Field(default_factory=TerminalCapacity, discriminator="kind")
 
-    def check(self, plan: Any) -> None:
+    def check(self, plan: Plan) -> None:
         self.then.check(plan)
 
     def discount_rate(self) -> float | None:

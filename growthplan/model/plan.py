@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING, Annotated, Any
 import numpy as np
 from pydantic import Field, PrivateAttr, field_validator, model_validator
 
+from ..errors import GrowthplanError
 from ..limits import MAX_YEARS
 from . import objectives as obj
 from .economy import Economy
@@ -34,6 +35,8 @@ from .technique import Technique, check_techniques
 from .validation import Model, Rule
 
 if TYPE_CHECKING:
+    from ..backends.base import Backend
+    from ..backends.options import SolveOptions
     from ..lp.data import PlanData
     from ..lp.program import LinearProgram
     from ..results.result import PlanResult
@@ -174,7 +177,7 @@ class Target(Model):
         for k in ("output", "capacity", "consumption"):
             if getattr(self, f"{k}_at_least") is not None:
                 return k
-        raise AssertionError("validated target without a condition")
+        raise GrowthplanError("a validated target has no condition")  # never reached
 
     @property
     def required(self) -> float:
@@ -726,8 +729,8 @@ class Plan(Model):
               threads: int | None = None, tolerance: float | None = None,
               audit_tolerance: float = 1e-6, options: dict[str, Any] | None = None,
               progress: bool = False, stop: Any = None,
-              size_limit: int | None = 25_000_000, backend: Any = None,
-              formulation: str = "auto") -> PlanResult:
+              size_limit: int | None = 25_000_000, backend: Backend | None = None,
+              formulation: str = "auto", solver: SolveOptions | None = None) -> PlanResult:
         """Solve the plan (HiGHS by default) and audit the result.
 
         The LP, for years ``t = 0..T−1``::
@@ -775,6 +778,10 @@ class Plan(Model):
             How capacity in service is written in the LP (the same optimum
             either way); ``"auto"`` follows the measured rule of
             :func:`growthplan.backends.methods.choose`.
+        solver : SolveOptions, optional
+            All the settings above as one object
+            (:class:`growthplan.backends.options.SolveOptions`, also what a plan
+            file's ``solve`` section holds); then give none of them as keywords.
 
         Returns
         -------
@@ -807,7 +814,7 @@ class Plan(Model):
         return solve(self, backend=backend, method=method, time_limit=time_limit,
                      threads=threads, tolerance=tolerance, audit_tolerance=audit_tolerance,
                      options=options, progress=progress, stop=stop, size_limit=size_limit,
-                     formulation=formulation)
+                     formulation=formulation, solver=solver)
 
     def to_pulp(self, name: str = "growthplan") -> Any:
         """A ``pulp.LpProblem`` of this plan, built from the same LinearProgram as ``solve``.

@@ -35,6 +35,7 @@ coefficients of ``τ`` for its whole life.
 
 from __future__ import annotations
 
+import warnings
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
@@ -45,8 +46,12 @@ from .validation import Model, Rule, check_label
 
 if TYPE_CHECKING:
     from .economy import CapitalSpec, Economy
+    from .plan import Plan
 
 __all__ = ["Technique", "TechniqueSet", "technique_arrays", "refuse_techniques"]
+
+# former spelling -> the name the capital spec uses (read with a warning for one release)
+RENAMED = {"service_life": "mean_service_life", "profile": "retirement"}
 
 BASE = "base"
 
@@ -68,10 +73,12 @@ class Technique(Model):
     labour : float or dict of str to float, optional
         Labour per unit of output, one number for the first labour kind or a
         mapping of kinds (default: the sector's own).
-    service_life : float, optional
-        Mean service life in years (default: the sector's).
-    profile : str, optional
-        Retirement profile family (default: the sector's).
+    mean_service_life : float, optional
+        Mean service life in years (default: the sector's). The former
+        spelling ``service_life`` is read with a ``DeprecationWarning``.
+    retirement : str, optional
+        Retirement profile family (default: the sector's). The former
+        spelling ``profile`` is read with a ``DeprecationWarning``.
     lead_time : int, optional
         Years from a start to service (default: the sector's; a different
         lead time spreads the capital deliveries evenly).
@@ -90,8 +97,8 @@ class Technique(Model):
     inputs: dict[str, float] | None = None
     capital: dict[str, float] | None = None
     labour: float | dict[str, float] | None = None
-    service_life: float | None = None
-    profile: str | None = None
+    mean_service_life: float | None = None
+    retirement: str | None = None
     lead_time: int | None = Field(default=None, ge=0, le=100)
     first_year: int | None = None
     last_start: int | None = None
@@ -122,13 +129,44 @@ class Technique(Model):
             raise Rule("hold finite coefficients >= 0", v)
         return v
 
+    @model_validator(mode="before")
+    @classmethod
+    def _former_names(cls, data: Any) -> Any:
+        """Read the former spellings of two fields, with a warning (one release)."""
+        if isinstance(data, dict) and any(old in data for old in RENAMED):
+            data = dict(data)
+            for old, new in RENAMED.items():
+                if old in data:
+                    warnings.warn(f"Technique's {old!r} is now {new!r} (the name "
+                                  f"CapitalSpec uses); {old!r} will be refused in a later "
+                                  "release", DeprecationWarning, stacklevel=4)
+                    if new in data:
+                        raise Rule(f"be given once (as {new!r}, not also as {old!r})",
+                                   data[new], field=new)
+                    data[new] = data.pop(old)
+        return data
+
+    @property
+    def service_life(self) -> float | None:
+        """Former name of :attr:`mean_service_life` (deprecated)."""
+        warnings.warn("Technique.service_life is now Technique.mean_service_life",
+                      DeprecationWarning, stacklevel=2)
+        return self.mean_service_life
+
+    @property
+    def profile(self) -> str | None:
+        """Former name of :attr:`retirement` (deprecated)."""
+        warnings.warn("Technique.profile is now Technique.retirement", DeprecationWarning,
+                      stacklevel=2)
+        return self.retirement
+
     @model_validator(mode="after")
     def _years(self) -> Technique:
         if self.first_year is not None and self.last_start is not None \
                 and self.first_year > self.last_start:
             raise Rule("be at most last_start", self.first_year, field="first_year")
         if self.label == BASE:
-            given = [k for k in ("inputs", "capital", "labour", "service_life", "profile",
+            given = [k for k in ("inputs", "capital", "labour", "mean_service_life", "retirement",
                                  "lead_time") if getattr(self, k) is not None]
             if given or self.by_products or self.initial_capacity:
                 raise Rule("set only first_year and last_start of a base technique (the "
@@ -195,7 +233,7 @@ class TechniqueSet:
         return self.m == n and bool(np.array_equal(self.outputs, np.eye(n)))
 
 
-def refuse_techniques(plan: Any, what: str) -> None:
+def refuse_techniques(plan: Plan, what: str) -> None:
     """Refuse a plan with alternative techniques or embodied change where they are not handled.
 
     Raises
@@ -261,18 +299,19 @@ def _spec(economy: Economy, tq: Technique, where: str) -> CapitalSpec:
     own = economy.capital[tq.sector]
     fields = own.model_dump()
     fields.update(initial_capacity=tq.initial_capacity, investment_history=None)
-    if tq.service_life is not None:
-        fields["mean_service_life"] = tq.service_life
-    if tq.profile is not None:
-        fields["retirement"] = tq.profile
+    if tq.mean_service_life is not None:
+        fields["mean_service_life"] = tq.mean_service_life
+    if tq.retirement is not None:
+        fields["retirement"] = tq.retirement
     if tq.lead_time is not None and tq.lead_time != own.lead_time:
         fields.update(lead_time=tq.lead_time, spending_profile=None)
     try:
         return CapitalSpec(**fields)
     except InvalidInput as exc:  # name the technique's own field and value
-        name = {"mean_service_life": "service_life", "retirement": "profile",
-                "lead_time": "lead_time"}.get((exc.field or "").rsplit(".", 1)[-1],
-                                               "service_life")
+        # the technique's fields have the capital spec's names
+        name = (exc.field or "").rsplit(".", 1)[-1]
+        if name not in ("mean_service_life", "retirement", "lead_time"):
+            name = "mean_service_life"
         text = str(exc)
         rule = text.split(" must ", 1)[-1].rsplit(". Got ", 1)[0]
         raise Rule(rule, getattr(tq, name), field=f"{where}.{name}") from None

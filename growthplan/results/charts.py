@@ -1,4 +1,8 @@
-"""Charts of plan results (matplotlib, the ``plot`` extra).
+"""Every chart of the library (matplotlib, the ``plot`` extra).
+
+Charts of a plan result come first, then those of other objects: the fan
+and probability charts of an uncertainty study, the comparison of a plan
+with its revision, the wage–profit frontier of a choice of techniques.
 
 Every function draws on the Axes it is given (or a new figure) and returns
 the Axes for further styling. Every axis names its unit, taken from the
@@ -20,16 +24,21 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 import pandas as pd
 
+from ..errors import invalid
+
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
+    from ..analysis.choice import WageProfitFrontier
+    from ..scenarios.uncertainty import UncertaintyResult
     from .result import PlanResult
 
 __all__ = ["plot_paths", "plot_starts", "plot_labour", "plot_shadow_prices",
            "plot_ray_distance", "plot_scenarios", "ray_distance", "save_charts",
            "plot_consumption", "plot_targets", "plot_utilisation", "plot_diagnosis",
            "PALETTE", "chart_list", "plot_emissions", "plot_abatement", "plot_flows",
-           "plot_regional_growth"]
+           "plot_regional_growth", "plot_fan", "plot_probabilities", "plot_compare",
+           "plot_wage_profit"]
 
 # Twelve colours whose grey levels (luma 0.299 R + 0.587 G + 0.114 B) run from
 # 0.15 to 0.78 in steps of about 0.057, ordered so that neighbours in a legend
@@ -961,5 +970,122 @@ def plot_regional_growth(result: PlanResult, *, ax: Axes | None = None) -> Axes:
     _year_axis(ax, table.index, pad=0.4)
     ax.set_title(title)
     _legend(ax, len(d.regions.regions))
+    ax.grid(alpha=0.3)
+    return ax
+
+
+# -- charts of scenarios and analyses ------------------------------------------------
+
+def plot_fan(result: UncertaintyResult, quantity: str = "capacity", *,
+             sector: str | None = None, ax: Axes | None = None) -> Axes:
+    """Fan chart of a yearly quantity over the draws: median, 50 % and 90 % bands.
+
+    Parameters
+    ----------
+    result : UncertaintyResult
+    quantity : {"capacity", "output", "shadow_price"}
+    sector : str, optional
+        One sector (default: the sum over sectors).
+    """
+    q = result.quantiles(quantity, sector=sector)
+    ax = _axes(ax)
+    years = q.index.to_numpy()
+    ax.fill_between(years, q[0.05], q[0.95], color="#1b3a5c", alpha=0.15, hatch="..",
+                    label="5–95 %")
+    ax.fill_between(years, q[0.25], q[0.75], color="#1b3a5c", alpha=0.35, label="25–75 %")
+    ax.plot(years, q[0.5], color="#1b3a5c", marker="o", markersize=3, label="median")
+    ax.set_xlabel("year")
+    ax.set_ylabel(f"{quantity}{' of ' + sector if sector else ' (sum over sectors)'}")
+    ax.legend(frameon=False)
+    return ax
+
+
+def plot_probabilities(result: UncertaintyResult, *, ax: Axes | None = None, top: int = 30) -> Axes:
+    """Horizontal bars: the probability that each condition (and the plan) is met."""
+    p = result.probability()
+    label = p["condition"] + p["year"].map(lambda y: "" if pd.isna(y) else f" {y}")
+    p = p.assign(label=label).sort_values("probability").head(top)
+    ax = _axes(ax)
+    ax.barh(p["label"], p["probability"], color="#4f7d3a", hatch="//", edgecolor="white")
+    ax.set_xlim(0, 1)
+    ax.set_xlabel("probability met")
+    return ax
+
+
+
+def plot_compare(table: pd.DataFrame, quantity: str = "starts", *, sector: str | None = None,
+                 labels: tuple[str, str] = ("original", "revised"), ax: Axes | None = None) -> Axes:
+    """Lines of a quantity in two results (from :func:`compare`), summed over sectors."""
+    t = table[table["quantity"] == quantity]
+    if sector is not None:
+        t = t[t["sector"] == sector]
+    if t.empty:
+        raise invalid("quantity", "be a quantity (and sector) of the comparison", quantity)
+    per = t.groupby("year")[["a", "b"]].sum()
+    ax = _axes(ax)
+    for i, (col, label) in enumerate(zip(("a", "b"), labels, strict=True)):
+        ax.plot(per.index, per[col], label=label, **_style(i))
+    ax.set_xlabel("year")
+    ax.set_ylabel(f"{quantity}{' of ' + sector if sector else ' (sum over sectors)'}")
+    ax.legend(frameon=False)
+    return ax
+
+
+def _legend_labels(sets: list[str]) -> dict[str, str]:
+    """Each set named by the choices in which the sets differ ("agriculture: mechanised").
+
+    A set's name lists ``commodity:technique`` for every commodity; choices
+    shared by all sets are left out (with "others alike"), and a technique
+    labelled by its commodity (an economy's own) reads "base".
+    """
+    split = [name.split(", ") for name in sets]
+    common = set.intersection(*map(set, split)) if len(split) > 1 else set()
+
+    def word(entry: str) -> str:
+        commodity, _, tech = entry.partition(":")
+        tech = tech[len(commodity) + 1:] if tech.startswith(f"{commodity}:") else tech
+        return f"{commodity}: {'base' if tech == commodity else tech}"
+
+    out = {}
+    for name, entries in zip(sets, split, strict=True):
+        own = [e for e in entries if e not in common]
+        out[name] = ", ".join(map(word, own)) + ("; others alike" if common else "") \
+            if own else name
+    return out
+
+
+def plot_wage_profit(frontier: WageProfitFrontier, *, ax: Axes | None = None) -> Axes:
+    """Chart the wage–profit frontier: one line style per technique set, switch points marked.
+
+    The legend names each set by the choices in which the sets drawn differ.
+
+    Parameters
+    ----------
+    frontier : WageProfitFrontier
+    ax : matplotlib Axes, optional
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    ax = _axes(ax)
+    grid = frontier.table[~frontier.table["switch"]]
+    order = list(dict.fromkeys(grid["techniques"]))
+    legend = _legend_labels(order)
+    # one line per contiguous range, so a set that comes back is drawn twice in its style
+    run = (grid["techniques"] != grid["techniques"].shift()).cumsum()
+    for _, part in grid.groupby(run, sort=False):
+        name = str(part["techniques"].iloc[0])
+        first = part.index[0] == grid.index[grid["techniques"] == name][0]
+        ax.plot(part["profit_rate"], part["wage"], label=legend[name] if first else None,
+                **(_style(order.index(name)) | {"markersize": 2}))
+    sw = frontier.switch_points
+    if not sw.empty:
+        ax.scatter(sw["profit_rate"], sw["wage"], marker="X", s=60, color="black", zorder=3,
+                   label="switch point")
+    ax.set_xlabel("profit rate")
+    ax.set_ylabel("wage (per unit of the numeraire)")
+    ax.set_title("Wage–profit frontier")
+    ax.legend(fontsize="small", frameon=False)
     ax.grid(alpha=0.3)
     return ax

@@ -12,7 +12,7 @@ from __future__ import annotations
 import os
 from collections.abc import Iterable
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, Generic, TypeVar, overload
 
 import numpy as np
 import pandas as pd
@@ -26,9 +26,37 @@ from .audit import Audit
 from .summary import CAUTION, Summary, key_figures
 
 if TYPE_CHECKING:
+    from ..model.plan import Plan
     from .diagnosis import Diagnosis
 
-__all__ = ["PlanResult", "CAUTION"]
+__all__ = ["PlanResult", "Table", "CAUTION"]
+
+
+T = TypeVar("T")
+
+
+class Table(Generic[T]):
+    """A :class:`PlanResult` attribute for a table declared in :mod:`growthplan.results.tables`.
+
+    Its name is the attribute's, its docstring the declaration's; the table is
+    computed on first access and a copy returned.
+    """
+
+    def __set_name__(self, owner: type, name: str) -> None:
+        self.name = name
+        self.__doc__ = tables.TABLES[name].doc
+
+    @overload
+    def __get__(self, obj: None, objtype: type | None = None) -> Table[T]: ...
+
+    @overload
+    def __get__(self, obj: PlanResult, objtype: type | None = None) -> T: ...
+
+    def __get__(self, obj: PlanResult | None, objtype: type | None = None) -> Table[T] | T:
+        if obj is None:
+            return self
+        value: T = obj._get(self.name)
+        return value
 
 
 class PlanResult:
@@ -93,10 +121,30 @@ class PlanResult:
     available only when ``ok`` is true; on any other result they raise
     :class:`~growthplan.PlanNotOptimal`, so a stopped or unverified solve
     cannot be mistaken for a plan. ``raw_solution`` still holds the solver's
-    numbers for inspection.
+    numbers for inspection. Every table is declared once in
+    :mod:`growthplan.results.tables`.
+
+    Examples
+    --------
+    One sector with a = 0.6, b = 2 and a 20-year geometric life: capacity
+    grows at the Harrod–Domar rate (1 − a)/b − δ = 0.15 a year.
+
+    >>> from growthplan import CapitalSpec, Economy, Plan, TerminalGrowth
+    >>> econ = Economy(sectors=["goods"], input_coefficients=[[0.6]],
+    ...                capital_coefficients=[[2.0]],
+    ...                capital={"goods": CapitalSpec(initial_capacity=100,
+    ...                                              mean_service_life=20)})
+    >>> result = Plan(economy=econ, years=range(2030, 2033),
+    ...               terminal=TerminalGrowth(rate=0.02)).solve()
+    >>> result.ok
+    True
+    >>> result.capacity["goods"].round(4).tolist()
+    [100.0, 115.0, 132.25, 152.0875]
+    >>> float(result.utilisation.loc[2031, "goods"].round(9))
+    1.0
     """
 
-    def __init__(self, plan: Any, lp: LinearProgram, outcome: SolverOutcome, *,
+    def __init__(self, plan: Plan, lp: LinearProgram, outcome: SolverOutcome, *,
                  status: Status, timings: dict[str, float], audit: Audit | None = None,
                  schedules: Schedules | None = None, notes: list[str] | None = None,
                  diagnosis: Diagnosis | None = None, backend: str = "highs") -> None:
@@ -117,7 +165,8 @@ class PlanResult:
         self.horizons: dict[int, str] | None = None
         self.runaway: list[str] = []
         self._schedules = schedules
-        self._frames: dict[str, Any] | None = None
+        self._solved: tables.Solved | None = None
+        self._computed: dict[str, Any] = {}
         import highspy
         import pulp
 
@@ -178,106 +227,52 @@ class PlanResult:
                 f"{name} is only available for an optimal, audited plan; this result has "
                 f"status {self.status.value!r} ({self.message}). See result.status, "
                 "result.diagnosis or result.raw_solution.")
-        if self._frames is None:
-            assert self._schedules is not None and self.data is not None
-            self._frames = tables.frames(self.data, self.lp, self.outcome, self._schedules,
-                                         self.plan.objective.discount_rate())
-        value = self._frames[name]
+        if name not in self._computed:
+            if self._solved is None:
+                self._solved = tables.Solved(self)
+            self._computed[name] = tables.TABLES[name].compute(self._solved)
+        value = self._computed[name]
         # a copy: editing a returned table never changes the audited plan (cheap with
         # pandas' copy-on-write)
         return value.copy() if isinstance(value, pd.DataFrame | pd.Series) else value
 
-    # -- schedules --------------------------------------------------------------
-    output = property(lambda self: self._get("output"), doc="Output, years × sectors.")
-    capacity = property(lambda self: self._get("capacity"),
-                        doc="Capacity in service, years (and the year after) × sectors.")
-    utilisation = property(lambda self: self._get("utilisation"),
-                           doc="Output over capacity in service.")
-    starts = property(lambda self: self._get("starts"), doc="Capacity starts, years × sectors.")
-    capital_deliveries = property(lambda self: self._get("capital_deliveries"),
-                                  doc="Capital goods delivered, years × commodities.")
-    retirements = property(lambda self: self._get("retirements"),
-                           doc="Capacity retired during each year, years × sectors.")
-    labour = property(lambda self: self._get("labour"),
-                      doc="Labour used and available, years × (kind, used/available).")
-    consumption = property(lambda self: self._get("consumption"),
-                           doc="Consumption level and commodities consumed, years × columns.")
-    surplus = property(lambda self: self._get("surplus"),
-                       doc="Free-disposal slack of each commodity balance.")
-    shadow_prices = property(lambda self: self._get("shadow_prices"),
-                             doc="Value of one more unit of each commodity per year, as solved.")
-    shadow_prices_current = property(
-        lambda self: self._get("shadow_prices_current"),
-        doc="Shadow prices undiscounted to current-year terms (see the README).")
-    labour_values = property(lambda self: self._get("labour_values"),
-                             doc="Value of one more person-year, years × kinds.")
-    quasi_rents = property(lambda self: self._get("quasi_rents"),
-                           doc="Value of one more unit of capacity, years × sectors.")
-    target_values = property(lambda self: self._get("target_values"),
-                             doc="Each target with its value (cost of the requirement).")
-    imports = property(lambda self: self._get("imports"), doc="Imports, years × commodities.")
-    exports = property(lambda self: self._get("exports"), doc="Exports, years × commodities.")
-    shadow_exchange_rate = property(
-        lambda self: self._get("shadow_exchange_rate"),
-        doc="Value of one more unit of foreign exchange per year (0 when the balance is slack).")
-
-    accounts = property(
-        lambda self: self._get("accounts"),
-        doc="The plan in national-accounts terms at base-year prices, by year "
-            "(see growthplan.results.accounts).")
-    employment = property(lambda self: self._get("employment"),
-                          doc="Labour used by kind and sector, years × (kind, sector).")
-    shadow_prices_money = property(
-        lambda self: self._get("shadow_prices_money"),
-        doc="Shadow prices in base-year money per unit: each year scaled so the first "
-            "year's output bundle is worth the same at shadow and at base-year prices.")
-    quasi_rents_money = property(lambda self: self._get("quasi_rents_money"),
-                                 doc="Quasi-rents in base-year money (same numeraire).")
-    labour_values_money = property(lambda self: self._get("labour_values_money"),
-                                   doc="Labour values in base-year money (same numeraire).")
-    calibration = property(
-        lambda self: self._get("calibration"),
-        doc="The first plan year against the base year by sector: output, its change, "
-            "employment (empty when the economy has no base-year output).")
+    # -- the tables (declared in growthplan.results.tables) ---------------------
+    output = Table[pd.DataFrame]()
+    capacity = Table[pd.DataFrame]()
+    utilisation = Table[pd.DataFrame]()
+    starts = Table[pd.DataFrame]()
+    capital_deliveries = Table[pd.DataFrame]()
+    retirements = Table[pd.DataFrame]()
+    labour = Table[pd.DataFrame]()
+    consumption = Table[pd.DataFrame]()
+    surplus = Table[pd.DataFrame]()
+    shadow_prices = Table[pd.DataFrame]()
+    shadow_prices_current = Table[pd.DataFrame]()
+    labour_values = Table[pd.DataFrame]()
+    quasi_rents = Table[pd.DataFrame]()
+    target_values = Table[pd.DataFrame]()
+    imports = Table[pd.DataFrame]()
+    exports = Table[pd.DataFrame]()
+    shadow_exchange_rate = Table[pd.Series]()
+    accounts = Table[pd.DataFrame]()
+    employment = Table[pd.DataFrame]()
+    shadow_prices_money = Table[pd.DataFrame]()
+    quasi_rents_money = Table[pd.DataFrame]()
+    labour_values_money = Table[pd.DataFrame]()
+    calibration = Table[pd.DataFrame]()
+    floor_values = Table[pd.Series]()
+    terminal_value = Table[float]()
+    level = Table[float | None]()
     # several regions (empty tables for a plan of one region)
-    regional_accounts = property(
-        lambda self: self._get("regional_accounts"),
-        doc="Each region's product, investment and its share, consumption and employment, "
-            "(year, region) × items, at base-year prices.")
-    regional_gap = property(lambda self: self._get("regional_gap"),
-                            doc="Regional product per person-year by region, and the ratio "
-                                "of the highest to the lowest, by year.")
-    flows = property(lambda self: self._get("flows"),
-                     doc="Shipments by year, origin, destination and good: units, transport "
-                         "used, value at base-year prices.")
-    spatial_prices = property(lambda self: self._get("spatial_prices"),
-                              doc="Shadow prices by (year, commodity) × region, with the spread.")
-    regional_output = property(lambda self: self._get("regional_output"),
-                               doc="Output, years × (region, sector).")
-    floor_values = property(lambda self: self._get("floor_values"),
-                            doc="Value of relaxing the consumption floor by one unit, per year.")
-
-    emissions = property(
-        lambda self: self._get("emissions"),
-        doc="Emissions and resource use in long form: year, stressor (or impact), sector, "
-            "technique (households for their direct emissions), amount, unit.")
-    emission_totals = property(
-        lambda self: self._get("emission_totals"),
-        doc="Emissions of each stressor and impact by year (units in attrs['units']).")
-    emission_prices = property(
-        lambda self: self._get("emission_prices"),
-        doc="Every emission limit's row with its shadow price: value (objective gained per "
-            "unit relaxed) and price (base-year money per unit); one row for a budget.")
-
-    @property
-    def terminal_value(self) -> float:
-        """Value at base-year prices of the capacity in service after the plan."""
-        return float(self._get("terminal_value"))
-
-    @property
-    def level(self) -> float | None:
-        """Terminal-capacity level ``λ`` (terminal-capacity objective only)."""
-        return self._get("level")
+    regional_accounts = Table[pd.DataFrame]()
+    regional_gap = Table[pd.DataFrame]()
+    flows = Table[pd.DataFrame]()
+    spatial_prices = Table[pd.DataFrame]()
+    regional_output = Table[pd.DataFrame]()
+    # emissions (empty without a satellite account)
+    emissions = Table[pd.DataFrame]()
+    emission_totals = Table[pd.DataFrame]()
+    emission_prices = Table[pd.DataFrame]()
 
     def tidy(self) -> pd.DataFrame:
         """All year × sector schedules in long form: year, sector, quantity, value.
@@ -415,30 +410,8 @@ class PlanResult:
 
     # -- export -----------------------------------------------------------------
     def _tables(self) -> dict[str, pd.DataFrame]:
-        names = ["accounts", "output", "capacity", "utilisation", "starts",
-                 "capital_deliveries", "retirements", "labour", "employment", "consumption",
-                 "surplus", "shadow_prices", "shadow_prices_money", "shadow_prices_current",
-                 "labour_values", "labour_values_money", "quasi_rents", "quasi_rents_money",
-                 "target_values", "imports", "exports"]
-        out = {n: _with_units(self._get(n)) for n in names}
-        fx = self._get("shadow_exchange_rate")
-        if not fx.isna().all():
-            out["shadow_exchange_rate"] = fx.to_frame()
-        from .regions import REGIONAL_TABLES, flat_table
-
-        for name in REGIONAL_TABLES:  # several regions only (empty otherwise)
-            out[name] = flat_table(self._get(name))
-        if self.data is not None and self.data.tech is not None:
-            from .techniques import technique_export
-
-            out["techniques"] = technique_export(self)
-        if self.data is not None and self.data.satellite is not None:
-            out["emissions"] = self._get("emissions")
-            out["emission_totals"] = _with_units(self._get("emission_totals"))
-            out["emission_prices"] = self._get("emission_prices")
-        assert self.audit is not None
-        out["audit"] = self.audit.checks.reset_index()
-        return {k: v for k, v in out.items() if v is not None and not v.empty}
+        """The exported tables by file name, in order (see growthplan.results.tables)."""
+        return tables.exported(self._get)
 
     def _diagnosis_tables(self) -> dict[str, pd.DataFrame]:
         """The diagnosis of a result that is not a plan, as tables (empty without one)."""
@@ -552,21 +525,3 @@ class PlanResult:
         return write_workbook(self, path, tables, overwrite=overwrite, protect=protect,
                               force=force)
 
-
-def _with_units(frame: pd.DataFrame) -> pd.DataFrame:
-    """A copy whose column headers carry their units, for exports ("energy [GWh]")."""
-    units = frame.attrs.get("units")
-    unit = frame.attrs.get("unit")
-    if isinstance(frame.columns, pd.MultiIndex) or (not units and not unit):
-        return frame
-    share = ("share", "growth", "per_head")
-
-    def label(c: object) -> object:
-        if units and c in units:
-            return f"{c} [{units[c]}]"
-        if unit and isinstance(c, str) and not c.startswith("employment") \
-                and not c.endswith(share):
-            return f"{c} [{unit}]"
-        return c
-
-    return frame.rename(columns=label)

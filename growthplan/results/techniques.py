@@ -39,6 +39,8 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 import pandas as pd
 
+from ..errors import SolverFailure
+
 if TYPE_CHECKING:
     from .result import PlanResult
 
@@ -117,7 +119,7 @@ def _values(result: PlanResult) -> tuple[np.ndarray, np.ndarray]:
     lp = result.lp
     dual = result.outcome.row_dual
     if dual is None:
-        raise ValueError("the solve returned no duals; technique profits need them")
+        raise SolverFailure("the solve returned no duals; technique profits need them")
     sign = 1.0 if lp.sense == "max" else -1.0
     value = sign * lp.row_sign * dual  # π_r, as in the shadow-price tables
     return lp.row_sign * value, sign * lp.cost

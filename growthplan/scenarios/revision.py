@@ -19,7 +19,7 @@ and its survival in later years follows the vintages' ages.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
@@ -27,11 +27,14 @@ import pandas as pd
 from ..errors import invalid
 from ..limits import ACTUALS_MAX_BYTES
 
-__all__ = ["revise", "compare", "plot_compare", "read_actuals"]
+if TYPE_CHECKING:
+    from ..model.plan import Plan
+
+__all__ = ["revise", "compare", "read_actuals"]
 
 
 
-def _actuals(plan: Any, actuals: Any, k: int) -> np.ndarray:
+def _actuals(plan: Plan, actuals: Any, k: int) -> np.ndarray:
     """Starts made in plan years 0..k−1, years × sectors."""
     names = plan.economy.names
     past = plan.years[:k]
@@ -146,7 +149,7 @@ def _vintages(spec: Any, c0: float) -> np.ndarray:
     return h * (c0 / alive) if alive > 0 else h * 0.0
 
 
-def revise(plan: Any, actuals: Any, from_year: int, *, capacity: dict[str, float] | None = None,
+def revise(plan: Plan, actuals: Any, from_year: int, *, capacity: dict[str, float] | None = None,
            labour: dict[str, float] | None = None,
            budget_used: dict[int, float] | None = None) -> Any:
     """The plan for ``from_year``..end, starting from what was actually built.
@@ -201,6 +204,7 @@ def revise(plan: Any, actuals: Any, from_year: int, *, capacity: dict[str, float
     new_years = years[k:]
     pipeline: dict[str, list[float]] = {}
     capital: dict[str, Any] = {}
+    assert econ.capital is not None  # a valid plan's economy has capital for every sector
     for j, name in enumerate(names):
         spec = econ.capital[name]
         theta = int(d.theta[j])
@@ -359,23 +363,3 @@ def compare(result_a: Any, result_b: Any, *, quantities: tuple[str, ...] = (
     with np.errstate(divide="ignore", invalid="ignore"):
         out["relative"] = np.where(out["a"] != 0, out["difference"] / out["a"].abs(), np.nan)
     return out
-
-
-def plot_compare(table: pd.DataFrame, quantity: str = "starts", *, sector: str | None = None,
-                 labels: tuple[str, str] = ("original", "revised"), ax: Any = None) -> Any:
-    """Lines of a quantity in two results (from :func:`compare`), summed over sectors."""
-    from ..results.charts import _axes, _style
-
-    t = table[table["quantity"] == quantity]
-    if sector is not None:
-        t = t[t["sector"] == sector]
-    if t.empty:
-        raise invalid("quantity", "be a quantity (and sector) of the comparison", quantity)
-    per = t.groupby("year")[["a", "b"]].sum()
-    ax = _axes(ax)
-    for i, (col, label) in enumerate(zip(("a", "b"), labels, strict=True)):
-        ax.plot(per.index, per[col], label=label, **_style(i))
-    ax.set_xlabel("year")
-    ax.set_ylabel(f"{quantity}{' of ' + sector if sector else ' (sum over sectors)'}")
-    ax.legend(frameon=False)
-    return ax

@@ -30,7 +30,7 @@ import warnings
 from concurrent.futures import Executor
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass, field
-from typing import Annotated, Any, Literal
+from typing import TYPE_CHECKING, Annotated, Any, Literal
 
 import numpy as np
 import pandas as pd
@@ -41,9 +41,13 @@ from ..errors import invalid
 from ..limits import MAX_DRAWS, MAX_ROBUST_SCENARIOS
 from ..model.validation import Model, Rule
 
+if TYPE_CHECKING:
+    from ..backends.base import Backend
+    from ..model.plan import Plan
+
 __all__ = ["Normal", "LogNormal", "Uniform", "Triangular", "Empirical", "Uncertain",
            "UncertaintySpec", "UncertaintyResult", "RobustPlan", "stress_test", "reoptimise",
-           "robust_plan", "fix_starts", "plot_fan", "plot_probabilities"]
+           "robust_plan", "fix_starts"]
 
 COLUMNS = ["draw", "status", "quantity", "year", "name", "value", "error"]
 
@@ -262,7 +266,7 @@ class Uncertain(Model):
                        field="relative")
         return self
 
-    def _cells(self, plan: Any, where: str) -> tuple[list[str], list[str], list[str], list[str]]:
+    def _cells(self, plan: Plan, where: str) -> tuple[list[str], list[str], list[str], list[str]]:
         """(row names available, column names available, rows chosen, columns chosen)."""
         econ = plan.economy
         if self.what in ("input_coefficients", "capital_coefficients"):
@@ -344,7 +348,7 @@ class UncertaintySpec(Model):
     draws: int = Field(default=100, ge=1, le=MAX_DRAWS, description=(
         "Number of drawn economies the analyses use when not told otherwise."))
 
-    def check(self, plan: Any) -> None:
+    def check(self, plan: Plan) -> None:
         """Raise InvalidInput when an item selects cells the plan does not have."""
         for k, item in enumerate(self.items):
             item._cells(plan, f"items.{k}")
@@ -353,7 +357,7 @@ class UncertaintySpec(Model):
         """The generator of draw ``i`` (a child of the seed, independent of other draws)."""
         return np.random.default_rng(np.random.SeedSequence(self.seed, spawn_key=(int(i),)))
 
-    def values(self, plan: Any, i: int) -> list[np.ndarray]:
+    def values(self, plan: Plan, i: int) -> list[np.ndarray]:
         """The values drawn for each item in draw ``i`` (rows × cols of its selection)."""
         rng = self.rng(i)
         out = []
@@ -363,13 +367,14 @@ class UncertaintySpec(Model):
             out.append(item.distribution.ppf(u).reshape(len(rows), len(cols)))
         return out
 
-    def draw(self, plan: Any, i: int) -> Any:
+    def draw(self, plan: Plan, i: int) -> Any:
         """Plan of draw ``i``: the nominal plan with every item's cells drawn (validated anew)."""
         from ..lp.data import exogenous_demand
         from ..model.economy import CapitalSpec, Economy
         from ..model.plan import LabourSupply, Plan, Trade
 
         econ = plan.economy
+        assert econ.capital is not None  # a valid plan's economy has capital for every sector
         blocks = {"input_coefficients": np.array(econ.input_coefficients, dtype=float),
                   "capital_coefficients": np.array(econ.capital_coefficients, dtype=float)}
         if econ.labour_coefficients is not None:
@@ -428,6 +433,7 @@ class UncertaintySpec(Model):
             fields["final_demand"] = pd.DataFrame(path, index=plan.years, columns=econ.names)
             fields["final_demand_growth"] = 0.0
         if touched & set(_PRICES):
+            assert plan.trade is not None  # checked: prices are uncertain only with trade
             trade = plan.trade.model_dump()
             for w, v in prices.items():
                 trade[w] = dict(zip(trade[w], v.tolist(), strict=True))
@@ -534,7 +540,7 @@ def _error_row(draw: int, exc: BaseException | str) -> list[tuple[Any, ...]]:
     return [(draw, "error", "error", None, "", np.nan, text)]
 
 
-def _drawn(spec: UncertaintySpec, plan: Any, i: int) -> list[tuple[str, Any, str, float]]:
+def _drawn(spec: UncertaintySpec, plan: Plan, i: int) -> list[tuple[str, Any, str, float]]:
     return [("drawn", None, f"{k}: {item.what}", float(np.mean(v)))
             for k, (item, v) in enumerate(zip(spec.items, spec.values(plan, i), strict=True))]
 
@@ -570,11 +576,11 @@ def fix_starts(lp: Any, starts: np.ndarray, *, ceiling: bool = False) -> Any:
 def _elastic(lp: Any) -> tuple[Any, Any, list[dict[str, Any]]]:
     """Least total shortfall, then, holding it, the plan's own objective (its first stage)."""
     from ..backends.base import Status
-    from ..backends.highs import HighsBackend
+    from ..backends.options import SolveOptions, highs_backend
     from ..results.diagnosis import elastic_program
 
     elastic, info = elastic_program(lp)
-    solver = HighsBackend("simplex", tolerance=1e-9)
+    solver = highs_backend(SolveOptions(method="simplex", tolerance=1e-9))
     out = solver.solve(elastic)
     if out.status is not Status.OPTIMAL or not np.any(lp.cost):
         return elastic, out, info
@@ -587,7 +593,7 @@ def _elastic(lp: Any) -> tuple[Any, Any, list[dict[str, Any]]]:
     return elastic, (again if again.status is Status.OPTIMAL else out), info
 
 
-def _stress_one(plan: Any, spec: UncertaintySpec, i: int,
+def _stress_one(plan: Plan, spec: UncertaintySpec, i: int,
                 starts: np.ndarray) -> list[tuple[Any, ...]]:
     from ..backends.base import Status
     from ..lp.build import build
@@ -627,7 +633,7 @@ def _stress_one(plan: Any, spec: UncertaintySpec, i: int,
     return _rows(i, "met" if not (any_short or cut) else "short", items)
 
 
-def _reopt_one(plan: Any, spec: UncertaintySpec, i: int, options: dict[str, Any]
+def _reopt_one(plan: Plan, spec: UncertaintySpec, i: int, options: dict[str, Any]
                ) -> list[tuple[Any, ...]]:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
@@ -687,7 +693,7 @@ def _chunk_based(task: tuple[tuple[Any, ...], list[int]]) -> list[tuple[Any, ...
     return _chunk((kind, plan, spec, draws, extra))
 
 
-def _run(kind: str, plan: Any, spec: UncertaintySpec, draws: int, extra: Any,
+def _run(kind: str, plan: Plan, spec: UncertaintySpec, draws: int, extra: Any,
          executor: Executor | None, max_workers: int | None, chunk: int | None,
          progress: bool, in_flight: int | None = None) -> pd.DataFrame:
     """Run chunks of draws on an executor, results in draw order, failures as rows.
@@ -758,7 +764,7 @@ def _alone(job: tuple[Any, ...], mp_context: Any) -> list[tuple[Any, ...]]:
     return rows
 
 
-def stress_test(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
+def stress_test(plan: Plan, spec: UncertaintySpec, draws: int | None = None, *,
                 nominal: Any = None, executor: Executor | None = None,
                 max_workers: int | None = None, chunk: int | None = None,
                 progress: bool = False, in_flight: int | None = None) -> UncertaintyResult:
@@ -812,7 +818,7 @@ def stress_test(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
     return UncertaintyResult(table, "stress_test", nominal)
 
 
-def reoptimise(plan: Any, spec: UncertaintySpec, draws: int | None = None, *,
+def reoptimise(plan: Plan, spec: UncertaintySpec, draws: int | None = None, *,
                executor: Executor | None = None, max_workers: int | None = None,
                chunk: int | None = None, progress: bool = False,
                solve_options: dict[str, Any] | None = None,
@@ -907,9 +913,9 @@ class RobustPlan:
         return pd.DataFrame(rows, columns=["scenario", "status", "max_shortfall_share"])
 
 
-def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
+def robust_plan(plan: Plan, spec: UncertaintySpec, scenarios: int = 20, *,
                 criterion: Literal["worst", "mean"] = "worst", include_nominal: bool = True,
-                nominal: Any = None, backend: Any = None) -> RobustPlan:
+                nominal: Any = None, backend: Backend | None = None) -> RobustPlan:
     """One set of starts that meets every condition in each of ``scenarios`` drawn economies.
 
     The scenario LPs are stacked block-diagonally with one shared set of
@@ -937,7 +943,7 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
         Default HiGHS.
     """
     from ..backends.base import Status
-    from ..backends.highs import HighsBackend
+    from ..backends.options import default_backend
     from ..lp.build import build
     from ..model.technique import refuse_techniques
 
@@ -1030,7 +1036,7 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
                             row_upper=np.concatenate(row_up), col_lower=np.concatenate(col_lo),
                             col_upper=np.concatenate(col_up), cost=cost, sense=sense,
                             rows=rows, cols=cols)
-    out = run(stacked, backend or HighsBackend())
+    out = run(stacked, backend or default_backend())
     scen = np.full(S, np.nan)
     starts = None
     objective = float("nan")
@@ -1040,7 +1046,7 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
                               columns=pd.Index(z0.labels[1], name="sector"))
         # each scenario's own objective with the robust starts (its other columns free)
         for s, lp in enumerate(lps):
-            alone = run(fix_starts(lp, z), backend or HighsBackend())
+            alone = run(fix_starts(lp, z), backend or default_backend())
             if alone.status is Status.OPTIMAL:
                 scen[s] = float(alone.objective)
         objective = float(out.objective) if worst else float(scen.mean())
@@ -1049,46 +1055,3 @@ def robust_plan(plan: Any, spec: UncertaintySpec, scenarios: int = 20, *,
     return RobustPlan(status=out.status, starts=starts, objective=objective,
                       scenario_objectives=scen, nominal_objective=nom, cost=cost_r,
                       criterion=criterion, plans=plans, lp=stacked)
-
-
-# -- charts ---------------------------------------------------------------------------------
-
-def plot_fan(result: UncertaintyResult, quantity: str = "capacity", *,
-             sector: str | None = None, ax: Any = None) -> Any:
-    """Fan chart of a yearly quantity over the draws: median, 50 % and 90 % bands.
-
-    Parameters
-    ----------
-    result : UncertaintyResult
-    quantity : {"capacity", "output", "shadow_price"}
-    sector : str, optional
-        One sector (default: the sum over sectors).
-    """
-    from ..results.charts import _axes
-
-    q = result.quantiles(quantity, sector=sector)
-    ax = _axes(ax)
-    years = q.index.to_numpy()
-    ax.fill_between(years, q[0.05], q[0.95], color="#1b3a5c", alpha=0.15, hatch="..",
-                    label="5–95 %")
-    ax.fill_between(years, q[0.25], q[0.75], color="#1b3a5c", alpha=0.35, label="25–75 %")
-    ax.plot(years, q[0.5], color="#1b3a5c", marker="o", markersize=3, label="median")
-    ax.set_xlabel("year")
-    ax.set_ylabel(f"{quantity}{' of ' + sector if sector else ' (sum over sectors)'}")
-    ax.legend(frameon=False)
-    return ax
-
-
-def plot_probabilities(result: UncertaintyResult, *, ax: Any = None, top: int = 30) -> Any:
-    """Horizontal bars: the probability that each condition (and the plan) is met."""
-    from ..results.charts import _axes
-
-    p = result.probability()
-    label = p["condition"] + p["year"].map(lambda y: "" if pd.isna(y) else f" {y}")
-    p = p.assign(label=label).sort_values("probability").head(top)
-    ax = _axes(ax)
-    ax.barh(p["label"], p["probability"], color="#4f7d3a", hatch="//", edgecolor="white")
-    ax.set_xlim(0, 1)
-    ax.set_xlabel("probability met")
-    return ax
-

@@ -28,7 +28,7 @@ def _plan(techniques: list[gp.Technique]) -> gp.Plan:
 TECHNIQUES = [
     # labour-saving and capital-using, with its own service life
     gp.Technique(sector="grain", label="mechanised", inputs={"grain": 0.15, "tools": 0.12},
-                 capital={"tools": 1.6}, labour=0.25, service_life=8, first_year=2032),
+                 capital={"tools": 1.6}, labour=0.25, mean_service_life=8, first_year=2032),
     # straw as a by-product of the same grain
     gp.Technique(sector="tools", label="forged", labour=0.3, capital={"tools": 1.5},
                  by_products={"grain": 0.05}),

@@ -20,7 +20,7 @@ def test_plan_file_with_techniques(tmp_path):
     data["plan"].pop("targets", None)  # they name years after this short plan
     data["plan"]["techniques"] = [
         {"sector": "energy", "label": "solar", "labour": 0.01, "first_year": 2028,
-         "capital": {"machinery": 0.9, "construction": 1.6}, "service_life": 25},
+         "capital": {"machinery": 0.9, "construction": 1.6}, "mean_service_life": 25},
         {"sector": "energy", "label": "base", "last_start": 2029}]
     path = tmp_path / "plan.yaml"
     path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
@@ -28,7 +28,7 @@ def test_plan_file_with_techniques(tmp_path):
     assert [t.label for t in plan.techniques] == ["solar", "base"]
     assert plan.techniques[0] == gp.Technique(
         sector="energy", label="solar", labour=0.01, first_year=2028,
-        capital={"machinery": 0.9, "construction": 1.6}, service_life=25)
+        capital={"machinery": 0.9, "construction": 1.6}, mean_service_life=25)
     d = plan.lowered()
     assert d.m == d.n + 1 and d.tech_names[-1] == "energy:solar"
     r = plan.solve()

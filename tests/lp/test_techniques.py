@@ -32,7 +32,7 @@ def _random_techniques(rng: np.random.Generator, econ: gp.Economy, years: list[i
                 sector=s, label=f"alt{k}", inputs=dict(zip(names, a[:, j] * fa, strict=True)),
                 capital=dict(zip(names, b[:, j] * fb, strict=True)),
                 labour=float(rng.uniform(0.05, 1.0)), first_year=first, by_products=joint,
-                service_life=float(rng.integers(5, 30))))
+                mean_service_life=float(rng.integers(5, 30))))
     return out
 
 
@@ -243,8 +243,9 @@ def test_the_audit_rebuilds_each_vintages_capital_goods():
      "techniques.0.first_year"),
     ({"sector": "goods", "label": "base", "labour": 0.3}, "techniques.0.label"),
     ({"sector": "goods", "label": "x", "labour": {"skilled": 1.0}}, "techniques.0.labour"),
-    ({"sector": "goods", "label": "x", "profile": "bogus"}, "techniques.0.profile"),
-    ({"sector": "goods", "label": "x", "service_life": 0.5}, "techniques.0.service_life"),
+    ({"sector": "goods", "label": "x", "retirement": "bogus"}, "techniques.0.retirement"),
+    ({"sector": "goods", "label": "x", "mean_service_life": 0.5},
+     "techniques.0.mean_service_life"),
     ({"sector": "goods", "label": "x", "by_products": {"goods": 0.5}},
      "techniques.0.by_products"),
 ])

@@ -110,7 +110,7 @@ def test_report_lists_the_sectors_with_a_choice():
     plan = gp.demo_plan()
     plan = plan.model_copy(update={"techniques": [
         gp.Technique(sector="agriculture", label="mechanised", labour=0.12, first_year=2029,
-                     capital={"machinery": 1.7, "construction": 0.8}, service_life=15)]})
+                     capital={"machinery": 1.7, "construction": 0.8}, mean_service_life=15)]})
     result = plan.solve(progress=False)
     sec = _parse(render(result, charts=False)).sections["Techniques"]
     keys = {c for c in sec["cells"] if c in result.technique_years.index}
@@ -166,7 +166,7 @@ def test_cli_solve_prints_technique_years(tmp_path, monkeypatch):
     data = yaml.safe_load((DEMO_DIR / "plan.yaml").read_text())
     data["plan"]["techniques"] = [
         {"sector": "agriculture", "label": "mechanised", "labour": 0.12, "first_year": 2029,
-         "capital": {"machinery": 1.7, "construction": 0.8}, "service_life": 15}]
+         "capital": {"machinery": 1.7, "construction": 0.8}, "mean_service_life": 15}]
     (tmp_path / "plan.yaml").write_text(yaml.safe_dump(data, sort_keys=False),
                                         encoding="utf-8")
     monkeypatch.chdir(tmp_path)

@@ -9,7 +9,8 @@ from conftest import one_sector
 from helpers import economy, make_plan
 
 import growthplan as gp
-from growthplan.scenarios.revision import compare, plot_compare, revise
+from growthplan.results.charts import plot_compare
+from growthplan.scenarios.revision import compare, revise
 
 
 def _with_capital(econ: gp.Economy, **spec) -> gp.Economy:

@@ -15,6 +15,7 @@ from scipy import stats
 
 import growthplan as gp
 from growthplan.lp.build import build
+from growthplan.results.charts import plot_fan, plot_probabilities
 from growthplan.scenarios.uncertainty import (
     Empirical,
     LogNormal,
@@ -24,8 +25,6 @@ from growthplan.scenarios.uncertainty import (
     UncertaintySpec,
     Uniform,
     fix_starts,
-    plot_fan,
-    plot_probabilities,
     reoptimise,
     robust_plan,
     stress_test,
