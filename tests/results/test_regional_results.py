@@ -31,7 +31,7 @@ def test_regional_accounts_add_up_to_the_national_ones(result) -> None:
     national = result.accounts
     # the regions' products and investment are the nation's, split (identity of the accounts)
     for ours, theirs in (("regional_product", "gdp"), ("investment", "investment"),
-                         ("employment", "employment labour"), ("consumption", "consumption")):
+                         ("employment", "employment"), ("consumption", "consumption")):
         total = acc[ours].groupby(level="year").sum()
         np.testing.assert_allclose(total.to_numpy(), national[theirs].to_numpy(), rtol=1e-9,
                                    atol=1e-9)
