@@ -255,8 +255,11 @@ def _finish(plan: Plan, lp: LinearProgram, final_lp: LinearProgram, outcome: Sol
         timings["diagnose"] = time.perf_counter() - t2
         if diagnosis.confirmed:
             if status is not Status.INFEASIBLE:
-                notes.append(f"The solver reported {status.value} ({outcome.message}); the "
-                             "elastic re-solve confirms that the plan is infeasible.")
+                # HiGHS's presolve often stops at "unknown" on an impossible plan: say what
+                # was shown, not what the solver could not decide
+                notes.append("The elastic re-solve shows that no plan meets every condition "
+                             f"(the first solve ended without a verdict: {status.value}, "
+                             f"HiGHS's '{outcome.message}').")
             status = Status.INFEASIBLE
         elif diagnosis.status is Status.OPTIMAL:
             # the plan is feasible: the solver's verdict was wrong or it gave up

@@ -602,7 +602,7 @@ def read_plan_file(path: str | os.PathLike[str], *,
     The demo's plan file (Arvenna, an invented economy) and its settings:
 
     >>> from growthplan.demo import DEMO_DIR
-    >>> plan, options = load_plan_file(DEMO_DIR / "plan.yaml")
+    >>> plan, options = read_plan_file(DEMO_DIR / "plan.yaml")
     >>> plan.economy.n, plan.years[0], plan.years[-1], options.method
     (10, 2027, 2041, 'auto')
     >>> result = plan.solve(solver=options)  # doctest: +SKIP
