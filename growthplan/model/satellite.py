@@ -48,6 +48,13 @@ def _amounts(v: dict[str, float], what: str) -> dict[str, float]:
     return v
 
 
+def _name(v: str) -> str:
+    """A stressor's or an impact's name or unit: non-empty, safe in every export."""
+    if not v.strip():
+        raise Rule("be a non-empty name", v)
+    return check_label(v)
+
+
 class Stressor(Model):
     """One emission or natural resource, with its unit and intensities.
 
@@ -81,9 +88,7 @@ class Stressor(Model):
     @field_validator("name", "unit")
     @classmethod
     def _text(cls, v: str) -> str:
-        if not v.strip():
-            raise Rule("be a non-empty name", v)
-        return check_label(v)  # names reach every export
+        return _name(v)
 
     @field_validator("intensities")
     @classmethod
@@ -123,9 +128,7 @@ class Impact(Model):
     @field_validator("name", "unit")
     @classmethod
     def _text(cls, v: str) -> str:
-        if not v.strip():
-            raise Rule("be a non-empty name", v)
-        return check_label(v)  # names reach every export
+        return _name(v)
 
     @field_validator("factors")
     @classmethod
