@@ -3,8 +3,10 @@
 1. lower the validated plan to arrays, once (:func:`growthplan.lp.data.lower`);
 2. build the LP from the condition families (:func:`growthplan.lp.build.build`);
 3. optimise each objective stage on a back end, falling back to another
-   method when a solve fails (:func:`optimise`); the horizon search of
-   :class:`~growthplan.model.objectives.Fastest` runs here too, above any back end;
+   method when a solve fails (:func:`optimise`; a large interior-point solve
+   that ends without a verdict goes to step 5 first, which decides faster);
+   the horizon search of :class:`~growthplan.model.objectives.Fastest` runs
+   here too, above any back end;
 4. read the schedules from the solution and audit them independently;
 5. diagnose a plan that is impossible (an elastic re-solve, which always has
    a solution), and confirm every verdict of infeasibility by it.
@@ -85,6 +87,13 @@ def run(lp: LinearProgram, backend: Backend, *, stop: Any = None, callback: Any 
     """One solve of ``lp``; when it fails, the back end's alternatives are tried in turn."""
     out = backend.solve(lp, stop=stop, callback=callback)
     if out.status not in FAILED:
+        return out
+    undecided = getattr(backend, "undecided_at_size", None)
+    if undecided is not None and undecided(lp, out):
+        # the elastic re-solve decides (diagnosis); the alternatives come after it
+        # only when it finds the plan possible
+        out.options["fallback_from"] = []
+        out.options["deferred"] = "the elastic re-solve decides before the alternatives"
         return out
     tried = [f"{out.method}: {out.status.value} ({out.message})"]
     for alt in backend.alternatives():

@@ -43,11 +43,14 @@ Method and budget
 
 The conflict
     A set of conditions that cannot hold together: HiGHS's irreducible
-    infeasible subset when it is available, otherwise the library's own
+    infeasible subset when it is available and the plan is small enough
+    for its search (which no time limit stops), otherwise the library's own
     deletion filter on the conditions that bind at the elastic optimum (the
     rows with a non-zero shadow price: the elastic problem restricted to
     them has the same positive optimum, so they cannot all hold; the filter
-    drops rows, groups at a time, while the rest stay infeasible).
+    drops rows, groups at a time, while the rest stay infeasible), which
+    keeps to the budget. Above ``CONFLICT_NONZERO_LIMIT`` nonzeros no simplex
+    solve fits a budget, and the conflict is left to ``subset=True``.
 """
 
 from __future__ import annotations
@@ -68,14 +71,27 @@ from ..lp.conditions import CONDITIONS
 from ..lp.program import LinearProgram
 
 __all__ = ["Diagnosis", "Step", "diagnose", "elastic_program", "deletion_filter",
-           "POSITIVE_SHARE", "IIS_ROW_LIMIT", "POLISH_LIMIT", "BUDGET_FACTOR", "BUDGET_FLOOR",
+           "POSITIVE_SHARE", "IIS_ROW_LIMIT", "IIS_NONZERO_LIMIT", "OTHER_VIEW_FACTOR",
+           "CONFLICT_NONZERO_LIMIT", "POLISH_LIMIT", "BUDGET_FACTOR", "BUDGET_FLOOR",
            "RELAX"]
 
 POSITIVE_SHARE = 1e-7     # a shortfall below this share of its requirement counts as none
-IIS_ROW_LIMIT = 20_000    # larger plans skip HiGHS's (slow) subset search by default
+IIS_ROW_LIMIT = 20_000    # larger plans skip the conflict by default
+# HiGHS's own subset search has no time limit of its own: up to 60 × 30 (248,000
+# nonzeros) it took 0.4 s on the benchmarks' plans, at 71 × 30 (340,000) its
+# elasticity filter failed and its fallback had not ended after 5 minutes, so above
+# this size the library's deletion filter (which keeps to the budget) is used instead
+IIS_NONZERO_LIMIT = 200_000
+# above this size the deletion filter's simplex solves cannot fit any budget (at
+# 200 × 30, 2.5 million nonzeros, one dual simplex solve had not ended in 15 minutes)
+CONFLICT_NONZERO_LIMIT = 1_000_000
 POLISH_LIMIT = 12         # short conditions polished one by one (one solve each)
 BUDGET_FACTOR = 4.0       # default budget: this many times the plan's own solve time ...
 BUDGET_FLOOR = 10.0       # ... and at least this many seconds
+OTHER_VIEW_FACTOR = 3.0   # the other view, unasked, may take this many re-solves' time
+# weight of the earlier levels' shortfalls while a later level is minimised: the later
+# level's least penalty is then found within this share of the earlier levels' penalty
+EARLIER_WEIGHT = 1e-9
 TOLERANCE = 1e-9          # primal and dual feasibility of the re-solve
 IPM_OPTIMALITY = 1e-10    # interior point's relative gap (HiGHS's default is 1e-8)
 RELAX = ("aims", "facts", "together")
@@ -404,11 +420,13 @@ def _solver(elastic: LinearProgram, method: str, threads: int | None,
 
 
 def _run(lp: LinearProgram, solver: HighsBackend, clock: _Clock, name: str,
-         callback: Any = None, stop: Any = None, essential: bool = False) -> Any:
+         callback: Any = None, stop: Any = None, essential: bool = False,
+         alternatives: bool = True) -> Any:
     """One solve with the budget left as its time limit; alternatives when it fails.
 
     An ``essential`` solve (the re-solve itself) has no time limit under the default
     budget: a diagnosis is never given up for a budget the caller did not set.
+    Without ``alternatives`` a failed solve is returned as it is.
     """
     t0 = time.perf_counter()
     limit = max(clock.left(), 1e-3) if clock.hard or not essential else None
@@ -416,7 +434,7 @@ def _run(lp: LinearProgram, solver: HighsBackend, clock: _Clock, name: str,
                      options=solver.options, time_limit=limit)
     s._warn_slow = False
     out = s.solve(lp, stop=stop, callback=callback)
-    if out.status in FAILED:
+    if out.status in FAILED and alternatives:
         for alt in s.alternatives():
             if clock.left() <= 0 and (clock.hard or not essential):
                 break
@@ -444,25 +462,48 @@ class _View:
 
 def _solve_view(elastic: LinearProgram, info: list[dict[str, Any]], groups: list[list[str]],
                 solver: HighsBackend, clock: _Clock, tag: str, callback: Any = None,
-                stop: Any = None, essential: bool = False) -> _View:
-    """The lexicographic elastic re-solve over ``groups`` (relaxed in that order)."""
+                stop: Any = None, essential: bool = False, top_down: bool = False) -> _View:
+    """The lexicographic elastic re-solve over ``groups`` (relaxed in that order).
+
+    Bottom-up (the default) it tries the first group alone, then the first two,
+    and so on, holding each level's least shortfall on the way back down: one
+    solve when the first group suffices. ``top_down`` starts with every group
+    relaxed and holds its way down (one solve per group, each problem with a
+    solution): the same optimum without solving levels that have no solution,
+    which is how the other view (whose first level seldom has one) is found.
+    """
     b = elastic.cols["shortfall"]
     k = b.size
     group = np.full(k, len(groups))
     for g, fams in enumerate(groups):
         group[np.isin([i["family"] for i in info], fams)] = g
     weight = elastic.cost[b.start:b.stop].copy()
+
+    def level_cost(g: int) -> tuple[np.ndarray, np.ndarray]:
+        # (the level's own penalty, what is minimised): the earlier levels, free at
+        # this one, carry EARLIER_WEIGHT of theirs, so that the optimal face is bounded
+        # (an interior point does not converge on an unbounded one)
+        own = np.zeros(elastic.shape[1])
+        own[b.start:b.stop] = np.where(group == g, weight, 0.0)
+        tie = own.copy()
+        tie[b.start:b.stop] += np.where(group < g, EARLIER_WEIGHT * weight, 0.0)
+        return own, tie
+
     last = Status.UNKNOWN
-    for g in range(len(groups)):
+    for g in range(len(groups) - 1 if top_down else 0, len(groups)):
         up = elastic.col_upper.copy()
         up[b.start:b.stop] = np.where(group <= g, np.inf, 0.0)
-        cost = np.zeros(elastic.shape[1])
-        cost[b.start:b.stop] = np.where(group == g, weight, 0.0)
-        lp = elastic.replace(col_upper=up, cost=cost)
+        cost, tie = level_cost(g)
+        lp = elastic.replace(col_upper=up, cost=tie)
         where = " + ".join(", ".join(x) for x in groups[:g + 1])
-        out = _run(lp, solver, clock, f"{tag}: relax {where}", callback, stop, essential)
+        final = g == len(groups) - 1
+        # a level before the last may be impossible, and an interior point often ends
+        # such a problem undecided; moving on is sound: the next level, with its own
+        # least shortfall held, is the same problem whenever this one had a solution
+        out = _run(lp, solver, clock, f"{tag}: relax {where}", callback, stop, essential,
+                   alternatives=final)
         last = out.status
-        if out.status is Status.INFEASIBLE:
+        if out.status is Status.INFEASIBLE or (not final and out.status in FAILED):
             continue
         if out.status is not Status.OPTIMAL:
             return _View(out.status, np.zeros(k), method=out.method)
@@ -474,9 +515,8 @@ def _solve_view(elastic: LinearProgram, info: list[dict[str, Any]], groups: list
             row = sparse.csr_array(cost[None, :])
             lp = lp.add_rows("held_shortfall", row, np.array([-np.inf]),
                              np.array([f * (1 + 1e-9) + 1e-12]), (f"level_{h + 1}",))
-            cost = np.zeros(elastic.shape[1])
-            cost[b.start:b.stop] = np.where(group == h, weight, 0.0)
-            lp = lp.replace(cost=cost)
+            cost, tie = level_cost(h)
+            lp = lp.replace(cost=tie)
             again = _run(lp, solver, clock, f"{tag}: hold {', '.join(groups[h + 1])}, "
                          f"relax {', '.join(groups[h])}", callback, stop, essential)
             if again.status is not Status.OPTIMAL:
@@ -725,14 +765,14 @@ def _conflict(lp: LinearProgram, view: _View | None, backend: Any, subset: bool 
     est_iis = None if view is None else max(view.seconds, 1e-3)
     if subset is False:
         return None, "not computed (subset=False)"
-    if subset is None and (rows > IIS_ROW_LIMIT or
+    if subset is None and (rows > IIS_ROW_LIMIT or base.nnz > CONFLICT_NONZERO_LIMIT or
                            (est_iis is not None and clock.left() < 2 * est_iis)):
         guess = (est_iis or 1.0) * 2 * max(1.0, np.log2(max(rows, 2)))
-        return None, (f"not computed: the plan has {rows:,} rows; set subset=True to compute "
-                      f"it (about {guess:.0f} s or more)")
+        return None, (f"not computed: the plan has {rows:,} rows and {base.nnz:,} nonzeros; "
+                      f"set subset=True to compute it (about {guess:.0f} s or more)")
     reason = ""
-    if backend is not None and Feature.IIS in getattr(backend, "features", ()) \
-            and rows <= IIS_ROW_LIMIT:
+    small = rows <= IIS_ROW_LIMIT and base.nnz <= IIS_NONZERO_LIMIT
+    if backend is not None and Feature.IIS in getattr(backend, "features", ()) and small:
         t0 = time.perf_counter()
         try:
             found = backend.iis(base)
@@ -746,7 +786,8 @@ def _conflict(lp: LinearProgram, view: _View | None, backend: Any, subset: bool 
     elif backend is not None and Feature.IIS not in getattr(backend, "features", ()):
         reason = f"the back end {getattr(backend, 'name', '')!r} has none"
     else:
-        reason = f"skipped above {IIS_ROW_LIMIT:,} rows"
+        reason = (f"skipped above {IIS_ROW_LIMIT:,} rows or {IIS_NONZERO_LIMIT:,} nonzeros, "
+                  "where its search has no time limit")
     # the library's own: a deletion filter on the rows that bind at the elastic optimum
     t0 = time.perf_counter()
     cand = np.arange(rows)
@@ -810,7 +851,8 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
         within a level of the priority.
     subset : bool, optional
         Compute the conflict. Default: when the plan has at most
-        ``IIS_ROW_LIMIT`` rows and the budget allows; ``True`` always.
+        ``IIS_ROW_LIMIT`` rows and ``CONFLICT_NONZERO_LIMIT`` nonzeros and
+        the budget allows; ``True`` always.
     backend : Backend, optional
         The back end the plan was solved with; its infeasible-subset feature
         is used when it has one (default: HiGHS).
@@ -826,7 +868,9 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
         At most this many shortfalls are each minimised alone.
     other_view : bool, optional
         Also compute the shortfalls with the other order (facts first when
-        aims come first); default: when the budget allows.
+        aims come first); default: when the budget allows, within
+        ``OTHER_VIEW_FACTOR`` times the re-solve's own time (``True``: the
+        whole budget left).
     plan_seconds : float, optional
         The plan's own solve time, for the default budget.
     progress : bool, default False
@@ -883,14 +927,25 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
             clock.left() > 2 * max(view.seconds, 1e-3)
         if has_other and want:
             flip = "facts" if name == "aims" else "aims"
-            other = _solve_view(elastic, info, _priority(flip, info)[1], solver, clock, flip,
-                                stop=stop)
+            # unasked, the other view gets a share of the budget of its own: its problems
+            # can be far harder for an interior point than the re-solve (a degenerate
+            # optimal face: 58 iterations against 30 at 71 × 30)
+            allowance = clock.left() if other_view else \
+                min(clock.left(), OTHER_VIEW_FACTOR * max(view.seconds, 1e-3))
+            sub = _Clock(allowance, hard=True)
+            other = _solve_view(elastic, info, _priority(flip, info)[1], solver, sub, flip,
+                                stop=stop, top_down=True)
             if other.status is Status.OPTIMAL:
-                _polish(other, clock, solver, min(polish, 3), [], flip, stop)
+                _polish(other, sub, solver, min(polish, 3), [], flip, stop)
                 table = _table(other, info, lp.data)
                 if not table[["condition", "sector", "year"]].equals(
                         diag.shortfalls[["condition", "sector", "year"]]):
                     diag.other_view = table
+            else:
+                notes.append(f"The view with the other order of relaxation did not finish "
+                             f"within {allowance:.3g} s ({other.status.value}); "
+                             f"relax={flip!r} computes it alone.")
+            clock.steps.extend(sub.steps)
         elif has_other and other_view is None:
             notes.append("The view with the other order of relaxation was not computed: "
                          "the time budget would run out.")

@@ -181,3 +181,134 @@ def test_a_71_by_30_consumption_floor_beyond_reach_is_diagnosed():
     assert d.method == "ipm"
     assert d.audit_ok
     assert d.conflict() or "set subset=True" in d.subset_source
+
+
+def test_an_undecided_interior_point_at_size_goes_to_the_elastic_re_solve(monkeypatch):
+    # at 200 × 30 the interior point ended the impossible plan "unknown" (no progress)
+    # after 24 s and the simplex alternative had not decided after 15 minutes: above
+    # the slow-method size the elastic re-solve decides first
+    from growthplan import solve as pipeline
+    from growthplan.backends import highs
+    from growthplan.backends.base import SolverOutcome, Status
+
+    lp = gp.Plan(economy=two_sector(), years=range(2030, 2035),
+                 targets=[gp.Target("food", year=2031, output_at_least=1000.0)]).compile()
+    unknown = SolverOutcome(status=Status.UNKNOWN, message="Unknown", objective=np.nan,
+                            x=np.full(lp.shape[1], np.nan), row_dual=None, method="ipm")
+    be = gp.HighsBackend("ipm")
+    assert not be.undecided_at_size(lp, unknown)  # small: the alternatives decide
+    monkeypatch.setattr(highs, "SLOW_METHOD_NONZEROS", lp.nnz - 1)
+    assert be.undecided_at_size(lp, unknown)
+    unknown.method = "simplex"
+    assert not be.undecided_at_size(lp, unknown)
+    unknown.method = "ipm"
+
+    class Undecided(gp.HighsBackend):
+        def solve(self, lp, *, stop=None, callback=None):
+            return unknown
+
+        def alternatives(self):
+            raise AssertionError("the alternatives come after the elastic re-solve")
+
+    out = pipeline.run(lp, Undecided("ipm"))
+    assert out.status is Status.UNKNOWN and "elastic" in out.options["deferred"]
+    # the plan itself: unknown, then the elastic re-solve confirms it impossible
+    plan = gp.Plan(economy=two_sector(), years=range(2030, 2035),
+                   targets=[gp.Target("food", year=2031, output_at_least=1000.0)])
+    r = pipeline.solve(plan, backend=Undecided("ipm"))
+    assert r.status is gp.Status.INFEASIBLE
+    assert "first solve ended without a verdict" in " ".join(r.warnings)
+
+
+def test_top_down_levels_give_the_lexicographic_optimum_of_bottom_up():
+    # relax="facts" on a plan whose facts alone cannot meet the aims: bottom-up solves an
+    # impossible first level, top-down never does; the optimum is the same, and equals
+    # the closed form (labour 20 + the target's need; SciPy's linprog for the maximum)
+    from growthplan.results import diagnosis as D
+
+    plan = gp.Plan(economy=two_sector(), years=range(2030, 2033),
+                   labour=gp.LabourSupply(start=20.0),
+                   targets=[gp.Target("food", year=2031, output_at_least=80.0)])
+    lp = plan.compile()
+    elastic, info = D.elastic_program(lp)
+    groups = D._priority("facts", info)[1]
+    solver = D._solver(elastic, "simplex", None, None)
+    views = [D._solve_view(elastic, info, groups, solver, D._Clock(60.0), "facts",
+                           top_down=t) for t in (False, True)]
+    assert all(v.status is gp.Status.OPTIMAL for v in views)
+    np.testing.assert_allclose(views[0].s, views[1].s, rtol=1e-7, atol=1e-9)
+    # with the aims as the second group (and so minimised first, facts free) too
+    groups = D._priority("aims", info)[1]
+    views = [D._solve_view(elastic, info, groups, solver, D._Clock(60.0), "aims",
+                           top_down=t) for t in (False, True)]
+    np.testing.assert_allclose(views[0].s, views[1].s, rtol=1e-7, atol=1e-9)
+    # an undecided earlier level is passed over: the next level decides
+    calls = []
+    real = D._run
+
+    def undecided_first(lp, solver, clock, name, *a, **k):
+        calls.append(name)
+        out = real(lp, solver, clock, name, *a, **k)
+        if len(calls) == 1:
+            out.status = gp.Status.UNKNOWN
+        return out
+
+    D._run, saved = undecided_first, D._run
+    try:
+        v = D._solve_view(elastic, info, D._priority("facts", info)[1], solver,
+                          D._Clock(60.0), "facts")
+    finally:
+        D._run = saved
+    assert v.status is gp.Status.OPTIMAL and len(calls) >= 2
+    np.testing.assert_allclose(v.s, diagnose_shares(lp, "facts"), rtol=1e-7, atol=1e-9)
+
+
+def diagnose_shares(lp, relax):
+    from growthplan.results import diagnosis as D
+
+    elastic, info = D.elastic_program(lp)
+    solver = D._solver(elastic, "simplex", None, None)
+    return D._solve_view(elastic, info, D._priority(relax, info)[1], solver,
+                         D._Clock(60.0), relax).s
+
+
+def test_above_the_subset_size_the_deletion_filter_keeps_to_the_budget(monkeypatch):
+    # HiGHS's own subset search has no time limit (at 71 × 30 it had not ended after
+    # 5 minutes): above IIS_NONZERO_LIMIT the library's deletion filter runs instead
+    from growthplan.results import diagnosis as D
+
+    plan = gp.Plan(economy=two_sector(), years=range(2030, 2035),
+                   targets=[gp.Target("food", year=2031, output_at_least=1000.0)])
+    lp = plan.compile()
+    monkeypatch.setattr(D, "IIS_NONZERO_LIMIT", lp.nnz - 1)
+    d = diagnose(lp)
+    assert "deletion filter" in d.subset_source and "nonzeros" in d.subset_source
+    assert "the output target of food in 2031" in d.conflict()
+    # above CONFLICT_NONZERO_LIMIT no simplex solve fits a budget: said, with the way on
+    monkeypatch.setattr(D, "CONFLICT_NONZERO_LIMIT", lp.nnz - 1)
+    d = diagnose(lp)
+    assert d.conflict() == "" and "set subset=True" in d.subset_source
+    assert f"{lp.nnz:,} nonzeros" in d.subset_source
+    assert "the output target of food in 2031" in diagnose(lp, subset=True).conflict()
+
+
+def test_an_unfinished_other_view_is_said_and_the_diagnosis_stands(monkeypatch):
+    from growthplan.results import diagnosis as D
+
+    plan = gp.Plan(economy=two_sector(), years=range(2030, 2033),
+                   labour=gp.LabourSupply(start=20.0),
+                   targets=[gp.Target("food", year=2031, output_at_least=80.0)])
+    lp = plan.compile()
+    real = D._solve_view
+
+    def slow_other(*a, top_down=False, **k):  # the other view runs out of its allowance
+        if top_down:
+            return D._View(gp.Status.TIME_LIMIT, np.zeros(len(a[1])))
+        return real(*a, **k)
+
+    monkeypatch.setattr(D, "_solve_view", slow_other)
+    d = diagnose(lp)
+    assert d.confirmed and set(d.shortfalls.kind) == {"aim"} and d.other_view is None
+    assert any("did not finish" in n and "relax='facts'" in n for n in d.notes)
+    monkeypatch.setattr(D, "_solve_view", real)
+    assert diagnose(lp).other_view is not None
