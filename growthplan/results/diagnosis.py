@@ -72,6 +72,7 @@ from ..lp.program import LinearProgram
 
 __all__ = ["Diagnosis", "Step", "diagnose", "elastic_program", "deletion_filter",
            "POSITIVE_SHARE", "IIS_ROW_LIMIT", "IIS_NONZERO_LIMIT", "OTHER_VIEW_FACTOR",
+           "IDLE_PRICE",
            "CONFLICT_NONZERO_LIMIT", "POLISH_LIMIT", "BUDGET_FACTOR", "BUDGET_FLOOR",
            "RELAX"]
 
@@ -88,7 +89,8 @@ CONFLICT_NONZERO_LIMIT = 1_000_000
 POLISH_LIMIT = 12         # short conditions polished one by one (one solve each)
 BUDGET_FACTOR = 4.0       # default budget: this many times the plan's own solve time ...
 BUDGET_FLOOR = 10.0       # ... and at least this many seconds
-OTHER_VIEW_FACTOR = 3.0   # the other view, unasked, may take this many re-solves' time
+IDLE_PRICE = 1e-7          # a held condition's shadow price per share below this is zero
+OTHER_VIEW_FACTOR = 3.0   # the other view, unasked, may take this many re-solves' time (≥ 1 s)
 # weight of the earlier levels' shortfalls while a later level is minimised: the later
 # level's least penalty is then found within this share of the earlier levels' penalty
 EARLIER_WEIGHT = 1e-9
@@ -530,6 +532,31 @@ def _solve_view(elastic: LinearProgram, info: list[dict[str, Any]], groups: list
     return _View(last, np.zeros(k))
 
 
+def _held_price(elastic: LinearProgram, info: list[dict[str, Any]], view: _View,
+                groups: list[list[str]]) -> float | None:
+    """Largest shadow price, per share, of the conditions a first-level view held.
+
+    At the first level the later groups' shortfalls are held at zero; the
+    reduced cost of such a column, ``m_r |y_r|``, is how fast the penalty
+    would fall per share of that condition relaxed. The least penalty is a
+    convex function of the held conditions' levels, so when every such price
+    is zero no relaxation of them, however large, lessens it: the other order
+    of relaxation ends where this one did. None when the view is not at its
+    first level or has no duals.
+    """
+    if view.level != 0 or view.duals is None or len(groups) < 2:
+        return None
+    b = elastic.cols["shortfall"]
+    first = set(groups[0])
+    held = [k for k, i in enumerate(info) if i["family"] not in first]
+    if not held:
+        return None
+    cols = sparse.csc_array(elastic.matrix)
+    rows = np.array([cols.indices[cols.indptr[b.start + k]] for k in held])
+    units = np.array([info[k]["unit"] for k in held])
+    return float(np.max(np.abs(view.duals[rows]) * units))
+
+
 def _polish(view: _View, clock: _Clock, solver: HighsBackend, limit: int,
             notes: list[str], tag: str, stop: Any = None) -> None:
     """Each positive shortfall made as small as it can be, the others held.
@@ -925,13 +952,25 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
         has_other = any(i["role"] != ("aim" if name == "aims" else "fact") for i in info)
         want = other_view if other_view is not None else \
             clock.left() > 2 * max(view.seconds, 1e-3)
-        if has_other and want:
-            flip = "facts" if name == "aims" else "aims"
+        flip = "facts" if name == "aims" else "aims"
+        price = _held_price(elastic, info, view, groups) if has_other else None
+        weight = float(np.max(elastic.cost[elastic.cols["shortfall"].start:
+                                           elastic.cols["shortfall"].stop], initial=1.0))
+        if price is not None and price <= IDLE_PRICE * weight and other_view is not True:
+            # the other order would hold the same shortfalls: nothing to solve
+            clock.steps.append(Step(f"{flip}: the same as {name}", 0.0,
+                                    f"largest shadow price of the held {flip} {price:.2g} "
+                                    "per share"))
+            notes.append(f"Relaxing the {flip} first gives the same shortfalls: at the "
+                         f"elastic optimum their shadow prices are zero (at most "
+                         f"{price:.2g} per share), so no relaxation of the {flip} lessens "
+                         f"the shortfall of the {name}.")
+        elif has_other and want:
             # unasked, the other view gets a share of the budget of its own: its problems
             # can be far harder for an interior point than the re-solve (a degenerate
             # optimal face: 58 iterations against 30 at 71 × 30)
             allowance = clock.left() if other_view else \
-                min(clock.left(), OTHER_VIEW_FACTOR * max(view.seconds, 1e-3))
+                min(clock.left(), max(OTHER_VIEW_FACTOR * view.seconds, 1.0))
             sub = _Clock(allowance, hard=True)
             other = _solve_view(elastic, info, _priority(flip, info)[1], solver, sub, flip,
                                 stop=stop, top_down=True)

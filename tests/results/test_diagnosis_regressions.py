@@ -312,3 +312,26 @@ def test_an_unfinished_other_view_is_said_and_the_diagnosis_stands(monkeypatch):
     assert any("did not finish" in n and "relax='facts'" in n for n in d.notes)
     monkeypatch.setattr(D, "_solve_view", real)
     assert diagnose(lp).other_view is not None
+
+
+def test_when_the_held_facts_have_no_shadow_price_the_other_view_is_not_solved():
+    # labour is ample, the target beyond what capital allows: relaxing labour cannot
+    # help (its shadow price is zero), so the facts-first view is the same; checked by
+    # computing that view outright
+    plan = gp.Plan(economy=two_sector(), years=range(2030, 2035),
+                   labour=gp.LabourSupply(start=1e5),
+                   targets=[gp.Target("food", year=2031, output_at_least=1000.0)])
+    lp = plan.compile()
+    d = diagnose(lp)
+    assert d.other_view is None
+    assert any("Relaxing the facts first gives the same shortfalls" in n for n in d.notes)
+    assert any(s.name == "facts: the same as aims" for s in d.steps)
+    facts = diagnose(lp, relax="facts").shortfalls
+    keys = ["condition", "sector", "year"]
+    assert facts[keys].equals(d.shortfalls[keys]) and set(facts.kind) == {"aim"}
+    np.testing.assert_allclose(facts.shortfall, d.shortfalls.shortfall, rtol=1e-9)
+    # where labour binds, the other view is solved and differs
+    tight = gp.Plan(economy=two_sector(), years=range(2030, 2033),
+                    labour=gp.LabourSupply(start=20.0),
+                    targets=[gp.Target("food", year=2031, output_at_least=80.0)])
+    assert diagnose(tight.compile()).other_view is not None
