@@ -18,6 +18,11 @@ Aims before facts
     any priority (families named first are relaxed first). With the default
     weight 1 the penalty adds shortfalls as shares of what was asked;
     ``weights`` by family set a penalty per unit of shortfall within a level.
+    The other order is computed too when the budget allows, from the top
+    level down (every problem on the way has a solution); it is not solved
+    when the conditions the first order held have zero shadow prices at its
+    optimum, for then no relaxation of them lessens the shortfall and the
+    other order ends where the first did.
 
 Each positive shortfall is then minimised alone with the others held at their
 values (polishing), so ``achievable`` is the most that condition can reach with
@@ -794,9 +799,11 @@ def _conflict(lp: LinearProgram, view: _View | None, backend: Any, subset: bool 
         return None, "not computed (subset=False)"
     if subset is None and (rows > IIS_ROW_LIMIT or base.nnz > CONFLICT_NONZERO_LIMIT or
                            (est_iis is not None and clock.left() < 2 * est_iis)):
-        guess = (est_iis or 1.0) * 2 * max(1.0, np.log2(max(rows, 2)))
+        tests = int(2 * max(1.0, np.log2(max(rows, 2))))
+        guess = (est_iis or 1.0) * tests
         return None, (f"not computed: the plan has {rows:,} rows and {base.nnz:,} nonzeros; "
-                      f"set subset=True to compute it (about {guess:.0f} s or more)")
+                      f"set subset=True to compute it (about {guess:.0f} s or more: some "
+                      f"{tests} simplex solves, each at least as long as the re-solve)")
     reason = ""
     small = rows <= IIS_ROW_LIMIT and base.nnz <= IIS_NONZERO_LIMIT
     if backend is not None and Feature.IIS in getattr(backend, "features", ()) and small:

@@ -171,6 +171,23 @@ def test_a_71_sector_30_year_plan_of_bea_solves_optimal_and_audited():
     assert_optimal(plan.solve())
 
 
+@needs_bea
+@pytest.mark.slow
+def test_a_71_sector_30_year_plan_of_bea_beyond_reach_is_diagnosed_in_full():
+    # the size at which the diagnosis once ended "did not finish" with nothing else:
+    # now a shortfall table, an audited elastic solution, and a conflict or its reason
+    result = bea_plan(71, 30, floor_factor=1.5).solve()
+    assert result.status is gp.Status.INFEASIBLE
+    d = result.diagnosis
+    assert d is not None and d.status is gp.Status.OPTIMAL and d.audit_ok
+    assert not d.shortfalls.empty and set(d.shortfalls.kind) == {"aim"}
+    assert "consumption floor" in set(d.shortfalls.condition)
+    assert d.method == "ipm"
+    assert d.conflict() or "set subset=True" in d.subset_source
+    # every step said with its method, time and outcome
+    assert d.steps and all(s.seconds >= 0 and s.outcome for s in d.steps)
+
+
 def test_economy_build_on_the_demo_writes_labour_kinds_and_a_plan(tmp_path):
     out = tmp_path / "arvenna"
     r = _cli("economy", "build", str(gp.DEMO_DIR / "supply_use" / "economy.yaml"), "--out",
