@@ -94,6 +94,10 @@ CONFLICT_NONZERO_LIMIT = 1_000_000
 POLISH_LIMIT = 12         # short conditions polished one by one (one solve each)
 BUDGET_FACTOR = 4.0       # default budget: this many times the plan's own solve time ...
 BUDGET_FLOOR = 10.0       # ... and at least this many seconds
+# a level's least penalty is held within this share of itself while the earlier levels
+# are minimised: looser than the solver's tolerances (1e-9), or the held problem is
+# infeasible within them (HiGHS ended such a problem "unknown" on a 71-industry plan)
+HOLD = 1e-7
 IDLE_PRICE = 1e-7          # a held condition's shadow price per share below this is zero
 OTHER_VIEW_FACTOR = 3.0   # the other view, unasked, may take this many re-solves' time (≥ 1 s)
 # weight of the earlier levels' shortfalls while a later level is minimised: the later
@@ -521,13 +525,14 @@ def _solve_view(elastic: LinearProgram, info: list[dict[str, Any]], groups: list
             f = float(cost @ out.x)
             row = sparse.csr_array(cost[None, :])
             lp = lp.add_rows("held_shortfall", row, np.array([-np.inf]),
-                             np.array([f * (1 + 1e-9) + 1e-12]), (f"level_{h + 1}",))
+                             np.array([f * (1 + HOLD) + HOLD * 1e-3]), (f"level_{h + 1}",))
             cost, tie = level_cost(h)
             lp = lp.replace(cost=tie)
             again = _run(lp, solver, clock, f"{tag}: hold {', '.join(groups[h + 1])}, "
                          f"relax {', '.join(groups[h])}", callback, stop, essential)
             if again.status is not Status.OPTIMAL:
-                break
+                # the earlier levels' shortfalls would not be their least: no table
+                return _View(again.status, np.zeros(k), method=again.method)
             out = again
         view.s = np.maximum(b.take(out.x), 0.0)
         view.x = out.x

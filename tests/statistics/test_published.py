@@ -182,7 +182,10 @@ def test_a_71_sector_30_year_plan_of_bea_beyond_reach_is_diagnosed_in_full():
     assert d is not None and d.status is gp.Status.OPTIMAL and d.audit_ok
     assert not d.shortfalls.empty and set(d.shortfalls.kind) == {"aim"}
     assert "consumption floor" in set(d.shortfalls.condition)
-    assert d.method == "ipm"
+    # the entries span 16 orders of magnitude: the interior point ends the elastic
+    # problem "unknown" and simplex on the problem as it is decides (steps say so)
+    assert d.method in ("ipm", "simplex")
+    assert any("optimal by" in s.outcome for s in d.steps)
     assert d.conflict() or "set subset=True" in d.subset_source
     # every step said with its method, time and outcome
     assert d.steps and all(s.seconds >= 0 and s.outcome for s in d.steps)
