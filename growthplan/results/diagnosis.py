@@ -442,7 +442,8 @@ def _run(lp: LinearProgram, solver: HighsBackend, clock: _Clock, name: str,
     t0 = time.perf_counter()
     limit = max(clock.left(), 1e-3) if clock.hard or not essential else None
     s = HighsBackend(solver.method, tolerance=solver.tolerance, threads=solver.threads,
-                     options=solver.options, time_limit=limit)
+                     options=solver.options, time_limit=limit, scale=solver.scale,
+                     presolve=solver.presolve)
     s._warn_slow = False
     out = s.solve(lp, stop=stop, callback=callback)
     if out.status in FAILED and alternatives:
@@ -513,6 +514,15 @@ def _solve_view(elastic: LinearProgram, info: list[dict[str, Any]], groups: list
         # least shortfall held, is the same problem whenever this one had a solution
         out = _run(lp, solver, clock, f"{tag}: relax {where}", callback, stop, essential,
                    alternatives=final)
+        if not final and out.status in FAILED and lp.nnz <= CONFLICT_NONZERO_LIMIT \
+                and solver.method != "simplex":
+            # undecided but not shown impossible: where simplex still fits, it decides on
+            # the problem as it is (on a 71-industry plan from published tables the
+            # interior point and simplex on the equilibrated copy both ended "unknown")
+            plain = HighsBackend("simplex", tolerance=solver.tolerance, threads=solver.threads,
+                                 scale=False)
+            out = _run(lp, plain, clock, f"{tag}: relax {where}", callback, stop, essential,
+                       alternatives=False)
         last = out.status
         if out.status is Status.INFEASIBLE or (not final and out.status in FAILED):
             continue
