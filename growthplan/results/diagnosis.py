@@ -978,7 +978,7 @@ def diagnose(lp: LinearProgram, *, weights: dict[str, float] | None = None,
         price = _held_price(elastic, info, view, groups) if has_other else None
         weight = float(np.max(elastic.cost[elastic.cols["shortfall"].start:
                                            elastic.cols["shortfall"].stop], initial=1.0))
-        if price is not None and price <= IDLE_PRICE * weight and other_view is not True:
+        if price is not None and price <= IDLE_PRICE * weight and other_view is None:
             # the other order would hold the same shortfalls: nothing to solve
             clock.steps.append(Step(f"{flip}: the same as {name}", 0.0,
                                     f"largest shadow price of the held {flip} {price:.2g} "
